@@ -1,0 +1,52 @@
+"""The command line, kept thin: parse arguments, dispatch to :mod:`audit.commands`, map errors to
+exit codes (see :mod:`audit.exitcodes`). Only the command line prints."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+import traceback
+
+from audit import __version__
+from audit.commands import check, schema
+from audit.errors import InputError
+from audit.exitcodes import EXIT_INPUT, EXIT_INTERNAL
+
+COMMANDS = [check, schema]
+
+
+def _parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="plant-audit",
+        description="Check a plant energy balance against the first and second laws, with "
+        "real-fluid properties.",
+    )
+    parser.add_argument("--version", action="version", version=f"plant-audit {__version__}")
+    commands = parser.add_subparsers(dest="command", required=True)
+    for module in COMMANDS:
+        sub = commands.add_parser(module.NAME, help=module.HELP, description=module.__doc__)
+        module.add_arguments(sub)
+        sub.set_defaults(handler=module.run)
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    args = _parser().parse_args(argv)
+    try:
+        return args.handler(args)
+    except InputError as exc:
+        for problem in exc.problems:
+            print(f"error: {problem}", file=sys.stderr)
+        return EXIT_INPUT
+    except KeyboardInterrupt:
+        print("interrupted", file=sys.stderr)
+        return EXIT_INTERNAL
+    except Exception:  # a bug of ours: say so plainly, with a short trace for the report
+        print("internal error in plant-audit (please report it with the input file):",
+              file=sys.stderr)
+        traceback.print_exc(limit=3, file=sys.stderr)
+        return EXIT_INTERNAL
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

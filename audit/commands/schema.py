@@ -1,0 +1,29 @@
+"""``plant-audit schema``: print (or write) the JSON Schema of a balance file."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+from audit.exitcodes import EXIT_PASS
+
+NAME = "schema"
+HELP = "print the JSON Schema of a balance file (for editor completion)"
+
+
+def add_arguments(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("-o", "--output", type=Path, help="write it to this file instead")
+
+
+def run(args: argparse.Namespace) -> int:
+    from audit.model import schema_text
+
+    text = schema_text()
+    if args.output:
+        from audit.report.machine import atomic_write_text
+
+        atomic_write_text(args.output, text)
+    else:
+        sys.stdout.write(text)
+    return EXIT_PASS

@@ -1,0 +1,88 @@
+"""One exception hierarchy for plant-audit.
+
+Every failure a user can cause (a malformed file, an unknown unit, a state the property engine cannot
+evaluate) is raised as an :class:`InputError`, which carries *where* it happened as fields: the file,
+the line and column, the path of the field and the stream or step id. CoolProp, pint, YAML and
+pydantic failures are translated into these classes at the edge where they happen, so the command line
+can print a clear message and exit with code 2 instead of a traceback.
+
+Several problems found in one pass are gathered into one :class:`InputErrors` so the user sees all of
+them at once.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+
+@dataclass
+class Problem:
+    """One thing wrong with the input, with where it was found."""
+
+    message: str
+    file: str | None = None
+    line: int | None = None
+    column: int | None = None
+    field_path: str | None = None
+    where: str | None = None  # "stream S3", "step T1"
+
+    def __str__(self) -> str:
+        place = ""
+        if self.file:
+            place = self.file
+            if self.line is not None:
+                place += f":{self.line}"
+                if self.column is not None:
+                    place += f":{self.column}"
+            place += ": "
+        context = []
+        if self.where:
+            context.append(self.where)
+        if self.field_path:
+            context.append(f"field '{self.field_path}'")
+        prefix = (", ".join(context) + ": ") if context else ""
+        return f"{place}{prefix}{self.message}"
+
+
+class AuditError(Exception):
+    """Base class of every error plant-audit raises on purpose."""
+
+
+class InputError(AuditError, ValueError):
+    """A problem with the balance the user gave: exit code 2."""
+
+    def __init__(self, message: str, **where: object) -> None:
+        self.problem = Problem(message, **where)  # type: ignore[arg-type]
+        super().__init__(str(self.problem))
+
+    @property
+    def problems(self) -> list[Problem]:
+        return [self.problem]
+
+
+class UnitError(InputError):
+    """A quantity whose number or unit cannot be read, or has the wrong dimension."""
+
+
+class StateError(InputError):
+    """A stream state the property engine cannot or must not evaluate."""
+
+
+class InputErrors(InputError):
+    """Several input problems found in one pass."""
+
+    def __init__(self, problems: list[Problem]) -> None:
+        self._problems = list(problems)
+        AuditError.__init__(self, "\n".join(str(p) for p in self._problems))
+
+    @property
+    def problems(self) -> list[Problem]:
+        return self._problems
+
+    @property
+    def problem(self) -> Problem:  # type: ignore[override]
+        return self._problems[0]
+
+
+class InternalError(AuditError, RuntimeError):
+    """A bug in plant-audit itself: exit code 3."""

@@ -1,0 +1,235 @@
+"""The balance file's model (pydantic v2) and its loading, with errors mapped to file positions.
+
+A balance file has three parts::
+
+    balance:            # metadata: name, revision, site pressure, dead state, tolerances
+    streams:            # id -> stream (fluid, two state properties, flow)
+    steps:              # a list; each step's `kind` selects its model (audit.steps)
+
+Quantities are strings with units and become SI floats on validation (:mod:`audit.quantities`).
+Gauge pressures need ``balance.site_pressure``, which is read first and handed to the validators
+through the validation context.
+"""
+
+from __future__ import annotations
+
+import difflib
+import json
+from pathlib import Path
+from typing import Annotated, Any, Union
+
+from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator
+
+from audit import units
+from audit.errors import InputError, InputErrors, Problem, UnitError
+from audit.loader import Document, load_document, parse_document
+from audit.quantities import Pressure, Temperature
+from audit.state_spec import StreamSpec
+from audit.steps import REGISTRY
+from audit.tolerances import ToleranceOverrides, Tolerances
+
+SCHEMA_VERSION = "1"
+SCHEMA_FILE = "plant-audit-balance.schema.json"
+
+
+class DeadState(BaseModel):
+    """The environment exergy is measured against: T0 and P0."""
+
+    model_config = ConfigDict(extra="forbid")
+
+    T: Temperature = Field("25 degC", validate_default=True, description="dead-state temperature")
+    P: Pressure = Field("101.325 kPa", validate_default=True, description="dead-state pressure")
+
+
+class BalanceInfo(BaseModel):
+    """Metadata of a balance."""
+
+    model_config = ConfigDict(extra="forbid")
+
+    name: str
+    revision: str | None = None
+    description: str | None = None
+    site_pressure: Pressure | None = Field(
+        None, description="atmospheric pressure at the site (absolute); needed for gauge "
+        "pressures such as '10 barg'")
+    dead_state: DeadState = Field(default_factory=DeadState)
+    tolerances: Tolerances = Field(default_factory=Tolerances)
+
+    @field_validator("revision", mode="before")
+    @classmethod
+    def _revision_text(cls, value: Any) -> Any:
+        return str(value) if isinstance(value, (int, float)) else value
+
+
+def _step_union() -> Any:
+    models = tuple(kind.model for kind in REGISTRY.values())
+    return Annotated[Union[models], Field(discriminator="kind")]  # noqa: UP007
+
+
+StepModel = _step_union()
+
+
+class Balance(BaseModel):
+    """A whole balance file."""
+
+    model_config = ConfigDict(extra="forbid", title="plant-audit balance")
+
+    balance: BalanceInfo
+    streams: dict[str, StreamSpec] = Field(min_length=1)
+    steps: list[StepModel] = Field(default_factory=list)  # type: ignore[valid-type]
+
+
+# -- loading ---------------------------------------------------------------------------------------
+def load_balance(path: str | Path) -> tuple[Balance, Document]:
+    """Read, parse and validate a balance file.
+
+    Raises :class:`InputError` (or :class:`InputErrors`) whose messages name the file, line, column
+    and field path of every problem found.
+    """
+    document = load_document(path)
+    return validate_document(document), document
+
+
+def parse_balance(text: str, file: str = "<text>") -> tuple[Balance, Document]:
+    """As :func:`load_balance`, from text."""
+    document = parse_document(text, file)
+    return validate_document(document), document
+
+
+def validate_document(document: Document) -> Balance:
+    data = document.data
+    if not isinstance(data, dict):
+        raise InputError("a balance file is a mapping with 'balance', 'streams' and 'steps'",
+                         file=document.file, line=1)
+    site = None
+    info = data.get("balance")
+    if isinstance(info, dict) and info.get("site_pressure") is not None:
+        try:
+            site = units.to_si(info["site_pressure"], "pressure")
+        except UnitError as exc:
+            line, column = document.position(("balance", "site_pressure"))
+            raise InputError(exc.problem.message, file=document.file, line=line, column=column,
+                             field_path="balance.site_pressure") from None
+    try:
+        return Balance.model_validate(data, context={"site_pressure": site})
+    except ValidationError as exc:
+        raise InputErrors(_problems(exc, document)) from None
+
+
+def _problems(exc: ValidationError, document: Document) -> list[Problem]:
+    problems = []
+    for error in exc.errors(include_url=False):
+        path, missing = _real_path(document.data, error["loc"])
+        line, column = document.position(path)
+        message = _message(error, missing, path, document.data)
+        problems.append(Problem(
+            message=message, file=document.file, line=line, column=column,
+            field_path=_dotted(path, missing), where=_where(path, document.data),
+        ))
+    return problems
+
+
+def _real_path(data: Any, loc: tuple) -> tuple[tuple, str | None]:
+    """Follow a pydantic error location through the data, skipping union tags and validator
+    names; return the deepest path that exists and the name of a missing last field, if any."""
+    node, path = data, []
+    missing = None
+    for i, part in enumerate(loc):
+        if isinstance(node, dict) and part in node:
+            node = node[part]
+            path.append(part)
+        elif isinstance(node, list) and isinstance(part, int) and 0 <= part < len(node):
+            node = node[part]
+            path.append(part)
+        elif i == len(loc) - 1 and isinstance(part, str) and isinstance(node, dict):
+            missing = part
+    return tuple(path), missing
+
+
+def _dotted(path: tuple, missing: str | None) -> str:
+    parts = []
+    for part in (*path, missing) if missing else path:
+        if isinstance(part, int):
+            parts.append(f"[{part}]")
+        else:
+            parts.append(("." if parts else "") + str(part))
+    return "".join(parts)
+
+
+def _where(path: tuple, data: Any) -> str | None:
+    if len(path) >= 2 and path[0] == "streams":
+        return f"stream {path[1]}"
+    if len(path) >= 2 and path[0] == "steps":
+        step = data["steps"][path[1]]
+        if isinstance(step, dict) and isinstance(step.get("id"), str):
+            return f"step {step['id']}"
+        return f"step #{path[1] + 1}"
+    return None
+
+
+def _message(error: dict, missing: str | None, path: tuple, data: Any) -> str:
+    kind = error["type"]
+    if kind == "missing":
+        return f"'{missing or error['loc'][-1]}' is required here"
+    if kind == "extra_forbidden":
+        name = str(error["loc"][-1])
+        allowed = _allowed_fields(path[:-1], data)
+        close = difflib.get_close_matches(name, allowed, n=1)
+        hint = f"; did you mean '{close[0]}'?" if close else ""
+        return f"unknown field '{name}'{hint}"
+    if kind == "union_tag_invalid":
+        known = ", ".join(sorted(REGISTRY))
+        tag = error.get("ctx", {}).get("tag")
+        return f"unknown step kind '{tag}'; the known kinds are: {known}"
+    if kind == "union_tag_not_found":
+        known = ", ".join(sorted(REGISTRY))
+        return f"a step needs a 'kind', one of: {known}"
+    message = error["msg"]
+    for prefix in ("Value error, ", "Assertion failed, "):
+        if message.startswith(prefix):
+            message = message[len(prefix):]
+    return message
+
+
+def _allowed_fields(path: tuple, data: Any) -> list[str]:
+    """The field names of the model that owns the mapping at ``path`` (for suggestions)."""
+    model: type[BaseModel] | None = None
+    if len(path) == 0:
+        model = Balance
+    elif path[0] == "balance":
+        model = {1: BalanceInfo}.get(len(path))
+        if len(path) == 2 and path[1] == "tolerances":
+            model = Tolerances
+        elif len(path) == 2 and path[1] == "dead_state":
+            model = DeadState
+    elif path[0] == "streams" and len(path) == 2:
+        model = StreamSpec
+    elif path[0] == "steps" and len(path) >= 2:
+        step = data["steps"][path[1]]
+        kind = REGISTRY.get(step.get("kind")) if isinstance(step, dict) else None
+        if kind is not None:
+            model = kind.model
+            if len(path) == 3 and path[2] == "tolerances":
+                model = ToleranceOverrides
+            elif len(path) == 3:
+                annotation = kind.model.model_fields.get(str(path[2]))
+                inner = getattr(annotation, "annotation", None)
+                model = inner if isinstance(inner, type) and issubclass(inner, BaseModel) else None
+    return sorted(model.model_fields) if model is not None else []
+
+
+# -- schema --------------------------------------------------------------------------------------
+def json_schema() -> dict:
+    """The JSON Schema of a balance file (for editors), as committed in ``schemas/``."""
+    schema = Balance.model_json_schema(mode="validation")
+    schema["$schema"] = "https://json-schema.org/draft/2020-12/schema"
+    schema["$id"] = f"https://plant-audit.invalid/schemas/{SCHEMA_FILE}"
+    schema["description"] = (
+        f"A plant energy balance for plant-audit (schema version {SCHEMA_VERSION}). Quantities "
+        "are strings with units, e.g. '420 degC', '40 barg', '12 t/h', '2.5 MW'."
+    )
+    return schema
+
+
+def schema_text() -> str:
+    return json.dumps(json_schema(), indent=2, ensure_ascii=False, sort_keys=True) + "\n"

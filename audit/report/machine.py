@@ -1,0 +1,100 @@
+"""Machine outputs: JSON (documented, versioned) and CSV tables. SI units throughout.
+
+JSON structure, version ``JSON_VERSION``::
+
+    {"format": "plant-audit-results", "version": "1",
+     "balance": {name, revision, file, sha256, dead_state {T [K], P [Pa]}, site_pressure [Pa],
+                 tolerances {...}},
+     "provenance": {...}, "verdict": {"counts": {...}},
+     "units": {...},
+     "streams": [{id, fluid, T, P, rho, h, s, u, g, a, psi, phase, quality, basis, mass_flow, ...}],
+     "steps": [{id, kind, batch, Q, W, dH, dU, dS, dG, dA, energy_residual, S_gen, W_rev, ...}],
+     "findings": [{severity, name, step, stream, message, claimed, bound, margin, ...}],
+     "plant": {heat_in, heat_out, work_out, work_in, exergy_destroyed, ...}}
+
+Non-finite numbers (an infinitely hot source) are written as null. Keys are sorted and the run-time
+fields are kept in ``provenance`` only, so two runs on the same input differ only there.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import tempfile
+from dataclasses import asdict
+from pathlib import Path
+from typing import Any
+
+from audit.results import AuditResult
+
+JSON_VERSION = "1"
+
+UNITS = {
+    "T": "K", "P": "Pa", "rho": "kg/m3", "h, u, g, a, psi": "J/kg", "s": "J/(kg K)",
+    "mass_flow": "kg/s", "molar_flow": "mol/s", "Q, W, dH, dU, dG, dA, W_rev, exergy_destroyed, "
+    "energy_residual": "W (flow steps) or J (vessels)", "dS, S_gen": "W/K or J/K",
+}
+
+
+def _clean(value: Any) -> Any:
+    if isinstance(value, float):
+        return value if math.isfinite(value) else None
+    if isinstance(value, dict):
+        return {str(k): _clean(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_clean(v) for v in value]
+    return value
+
+
+def to_dict(result: AuditResult) -> dict:
+    """The versioned JSON structure of a result (see the module docstring)."""
+    return _clean({
+        "format": "plant-audit-results",
+        "version": JSON_VERSION,
+        "balance": {
+            "name": result.name, "revision": result.revision, "file": result.file,
+            "sha256": result.sha256,
+            "dead_state": {"T": result.dead_T, "P": result.dead_P},
+            "site_pressure": result.site_pressure, "tolerances": result.tolerances,
+        },
+        "provenance": result.provenance,
+        "verdict": {"counts": result.counts()},
+        "units": UNITS,
+        "streams": [asdict(s) for s in result.streams],
+        "steps": [asdict(s) for s in result.steps],
+        "findings": [asdict(f) for f in result.findings],
+        "plant": asdict(result.plant),
+    })
+
+
+def write_json(result: AuditResult, path: str | Path) -> None:
+    """Write the JSON results atomically (a temporary file moved into place)."""
+    text = json.dumps(to_dict(result), indent=2, sort_keys=True, ensure_ascii=False) + "\n"
+    atomic_write_text(Path(path), text)
+
+
+def write_csv(result: AuditResult, folder: str | Path) -> list[Path]:
+    """Write findings.csv, steps.csv and streams.csv (SI units) into ``folder``."""
+    folder = Path(folder)
+    folder.mkdir(parents=True, exist_ok=True)
+    written = []
+    for name, frame in (("findings", result.findings_frame()), ("steps", result.steps_frame()),
+                        ("streams", result.streams_frame())):
+        target = folder / f"{name}.csv"
+        atomic_write_text(target, frame.to_csv(index=name != "findings"))
+        written.append(target)
+    return written
+
+
+def atomic_write_text(path: Path, text: str) -> None:
+    """Write text to ``path`` through a temporary file in the same folder, then rename."""
+    path.parent.mkdir(parents=True, exist_ok=True)
+    handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", dir=path.parent)
+    try:
+        with os.fdopen(handle, "w", encoding="utf-8", newline="") as stream:
+            stream.write(text)
+        os.replace(temporary, path)
+    except BaseException:
+        Path(temporary).unlink(missing_ok=True)
+        raise

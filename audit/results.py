@@ -1,0 +1,197 @@
+"""Plain result objects: what the solver hands to the reports, all values SI.
+
+The reports import these classes, never the solver. :class:`AuditResult` also offers pandas
+DataFrames of streams, steps and findings for use from a notebook.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import asdict, dataclass, field
+from typing import Any
+
+import pandas as pd
+
+from audit.findings import SEVERITY_RANK, Finding, at_or_above
+
+STANDARD_GRAVITY = 9.806_65  # m/s**2, exact by definition (3rd CGPM, 1901)
+
+
+@dataclass
+class StreamResult:
+    """A stream's evaluated state and flow. T [K], P [Pa], rho [kg/m**3], h, u, g, a, psi
+    [J/kg], s [J/(kg K)], mass_flow [kg/s], molar_flow [mol/s], velocity [m/s], elevation [m]."""
+
+    id: str
+    fluid: str
+    T: float
+    P: float
+    rho: float
+    h: float
+    s: float
+    u: float
+    g: float
+    a: float
+    psi: float
+    phase: str
+    quality: float | None
+    basis: str
+    mass_flow: float
+    molar_flow: float
+    flow_as_written: str
+    velocity: float = 0.0
+    elevation: float = 0.0
+    declared_phase: str | None = None
+    description: str | None = None
+    line: int | None = None
+
+    @property
+    def kinetic_potential(self) -> float:
+        """Kinetic plus potential energy per kg [J/kg]."""
+        return 0.5 * self.velocity**2 + STANDARD_GRAVITY * self.elevation
+
+
+@dataclass
+class HeatFlow:
+    """A heat flow INTO the step [W] (or [J] for a vessel) crossing the boundary at
+    ``temperature`` [K] (math.inf: an infinitely hot source). ``claimed`` is False when the
+    balance inferred it from the first law."""
+
+    Q: float
+    temperature: float
+    claimed: bool
+    note: str = ""
+
+
+@dataclass
+class StepResult:
+    """Everything computed for one step. Flow steps: rates [W], [W/K]; vessels: totals [J], [J/K].
+
+    Sign convention: Q is heat into the step, W is work delivered by the step.
+    """
+
+    id: str
+    kind: str
+    batch: bool
+    inlets: list[str]
+    outlets: list[str]
+    Q: float
+    W: float
+    heat_flows: list[HeatFlow]
+    H_in: float
+    H_out: float
+    KE_PE_in: float
+    KE_PE_out: float
+    dH: float
+    dU: float
+    dS: float
+    dG: float
+    dA: float
+    energy_residual: float
+    mass_residual: dict[str, float]
+    S_gen: float
+    W_rev: float
+    exergy_destroyed: float
+    energy_scale: float
+    energy_tolerance: float
+    bound_basis: str
+    classical_bound: float | None
+    second_law_efficiency: float | None = None
+    isentropic_efficiency: float | None = None
+    claimed: list[str] = field(default_factory=list)
+    inferred: list[str] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)
+    extra: dict[str, Any] = field(default_factory=dict)
+    description: str | None = None
+    line: int | None = None
+
+
+@dataclass
+class PlantTotals:
+    """Plant totals over the flow steps [W]: heat in and out, work out and in, exergy destroyed,
+    and the boundary streams (consumed by a step but produced by none, and the reverse)."""
+
+    heat_in: float
+    heat_out: float
+    work_out: float
+    work_in: float
+    exergy_destroyed: float
+    boundary_inlets: list[str]
+    boundary_outlets: list[str]
+    boundary_energy_residual: float
+    sum_of_step_residuals: float
+
+
+@dataclass
+class AuditResult:
+    """The result of one audit: metadata, streams, steps, findings, plant totals, provenance."""
+
+    name: str
+    revision: str | None
+    file: str
+    sha256: str
+    dead_T: float
+    dead_P: float
+    site_pressure: float | None
+    tolerances: dict[str, float]
+    streams: list[StreamResult]
+    steps: list[StepResult]
+    findings: list[Finding]
+    plant: PlantTotals
+    provenance: dict[str, str]
+
+    # -- verdicts ------------------------------------------------------------------------------
+    def counts(self) -> dict[str, int]:
+        """Number of findings per severity."""
+        counts = {severity: 0 for severity in SEVERITY_RANK}
+        for finding in self.findings:
+            counts[finding.severity] += 1
+        return counts
+
+    def fails(self, threshold: str = "error") -> bool:
+        """True when any finding is at or above ``threshold`` ("error" or "warning")."""
+        return any(at_or_above(f.severity, threshold) for f in self.findings)
+
+    # -- tables --------------------------------------------------------------------------------
+    def streams_frame(self) -> pd.DataFrame:
+        """One row per stream, SI units."""
+        return pd.DataFrame([asdict(s) for s in self.streams]).set_index("id")
+
+    def steps_frame(self) -> pd.DataFrame:
+        """One row per step, SI units (Q in, W out)."""
+        rows = []
+        for step in self.steps:
+            row = asdict(step)
+            row.pop("heat_flows")
+            row["mass_residual"] = max(
+                (abs(v) for v in step.mass_residual.values()), default=0.0)
+            row.update({f"extra.{k}": v for k, v in row.pop("extra").items()})
+            rows.append(row)
+        return pd.DataFrame(rows).set_index("id") if rows else pd.DataFrame()
+
+    def findings_frame(self) -> pd.DataFrame:
+        """One row per finding, SI units."""
+        columns = list(Finding.__dataclass_fields__)
+        return pd.DataFrame([asdict(f) for f in self.findings], columns=columns)
+
+    def step(self, step_id: str) -> StepResult:
+        for step in self.steps:
+            if step.id == step_id:
+                return step
+        raise KeyError(step_id)
+
+    def stream(self, stream_id: str) -> StreamResult:
+        for stream in self.streams:
+            if stream.id == stream_id:
+                return stream
+        raise KeyError(stream_id)
+
+    def findings_for(self, step_id: str) -> list[Finding]:
+        return [f for f in self.findings if f.step == step_id]
+
+
+def finite_or_none(value: float | None) -> float | None:
+    """``value`` if it is a finite float, else None (for JSON and workbook cells)."""
+    if value is None or not math.isfinite(value):
+        return None
+    return value

@@ -1,0 +1,244 @@
+"""The solver: validated balance → stream states → step results → findings. It reads no files.
+
+Order of work:
+
+1. every stream's state and mass flow through the property engine (all state problems are
+   gathered, each naming its stream and line);
+2. the plant's topology: every stream a step names exists, no stream is produced or consumed by
+   more than one step, no two steps share an id (input errors), unused streams (warning);
+3. every step through its kind's ``evaluate``, with the balance's tolerances and the step's own
+   overrides;
+4. plant totals over the flow steps.
+"""
+
+from __future__ import annotations
+
+import difflib
+import platform
+import time
+from collections import defaultdict
+from datetime import datetime, timezone
+from typing import Any
+
+from audit import __version__
+from audit.errors import InputErrors, Problem, StateError
+from audit.findings import WARNING, Finding
+from audit.loader import Document
+from audit.model import Balance
+from audit.properties import BACKEND, COOLPROP_VERSION, PropertyEngine
+from audit.results import AuditResult, PlantTotals, StepResult, StreamResult
+from audit.state_spec import StreamSpec
+from audit.steps import REGISTRY, StepContext
+from audit.tolerances import merged
+from audit.units import Flow
+
+_PHASE_MATCH = {
+    "liquid": {"liquid"},
+    "vapour": {"vapour", "gas"},
+    "two-phase": {"two-phase"},
+    "supercritical": {"supercritical", "gas", "supercritical liquid"},
+}
+
+
+def solve(balance: Balance, document: Document, sha256: str = "") -> AuditResult:
+    """Audit a validated balance; raise :class:`InputErrors` for states or topology that cannot be
+    evaluated. ``document`` supplies the file name and the line of each stream and step."""
+    started = time.perf_counter()
+    info = balance.balance
+    tol = info.tolerances
+    engine = PropertyEngine(info.dead_state.T, info.dead_state.P, tol.saturation_band)
+    findings: list[Finding] = []
+    streams, problems = _evaluate_streams(balance, document, engine, findings)
+    problems += _check_topology(balance, document, findings, streams)
+    if problems:
+        raise InputErrors(problems)
+
+    results: list[StepResult] = []
+    for index, step in enumerate(balance.steps):
+        kind = REGISTRY[step.kind]
+        line, _ = document.position(("steps", index))
+        ctx = StepContext(streams=streams, engine=engine, T0=info.dead_state.T,
+                          P0=info.dead_state.P, tolerances=merged(tol, step.tolerances),
+                          line=line)
+        try:
+            results.append(kind.evaluate(step, ctx))
+        except StateError as exc:
+            problems.append(Problem(
+                exc.problem.message, file=document.file, line=line, where=f"step {step.id}"))
+            continue
+        findings.extend(ctx.findings)
+    if problems:
+        raise InputErrors(problems)
+
+    elapsed = time.perf_counter() - started
+    return AuditResult(
+        name=info.name, revision=info.revision, file=document.file, sha256=sha256,
+        dead_T=info.dead_state.T, dead_P=info.dead_state.P, site_pressure=info.site_pressure,
+        tolerances=tol.model_dump(), streams=list(streams.values()), steps=results,
+        findings=findings, plant=_plant_totals(balance, streams, results),
+        provenance={
+            "plant-audit": __version__, "CoolProp": COOLPROP_VERSION,
+            "property back end": f"{BACKEND} (IAPWS-95 for water)",
+            "Python": platform.python_version(),
+            "run at (UTC)": datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M:%S"),
+            "solve time [s]": f"{elapsed:.3f}",
+            "property evaluations": str(engine.flash_count),
+        },
+    )
+
+
+# -- streams ---------------------------------------------------------------------------------------
+def _evaluate_streams(balance: Balance, document: Document, engine: PropertyEngine,
+                      findings: list[Finding]) -> tuple[dict[str, StreamResult], list[Problem]]:
+    streams: dict[str, StreamResult] = {}
+    problems: list[Problem] = []
+    for stream_id, spec in balance.streams.items():
+        line, column = document.position(("streams", stream_id))
+        try:
+            streams[stream_id] = _stream(stream_id, spec, engine, line)
+        except StateError as exc:
+            problems.append(Problem(exc.problem.message, file=document.file, line=line,
+                                    column=column, where=f"stream {stream_id}"))
+            continue
+        result = streams[stream_id]
+        if spec.phase is not None and result.phase not in _PHASE_MATCH[spec.phase]:
+            findings.append(Finding(
+                WARNING, "phase-mismatch", None,
+                f"stream {stream_id} is declared {spec.phase} but its state "
+                f"({result.T - 273.15:.2f} °C, {result.P / 1e5:.4g} bar) is {result.phase}",
+                stream=stream_id,
+            ))
+    return streams, problems
+
+
+def _stream(stream_id: str, spec: StreamSpec, engine: PropertyEngine, line: int | None
+            ) -> StreamResult:
+    pair, a, b = spec.inputs()
+    state = engine.state(spec.fluid, pair, a, b)
+    mass_flow = _mass_flow(spec.flow, spec.fluid, state.rho, state.molar_mass, engine)
+    return StreamResult(
+        id=stream_id, fluid=state.fluid, T=state.T, P=state.P, rho=state.rho, h=state.h,
+        s=state.s, u=state.u, g=state.g, a=state.a, psi=state.psi, phase=state.phase,
+        quality=state.quality, basis=state.basis, mass_flow=mass_flow,
+        molar_flow=mass_flow / state.molar_mass, flow_as_written=spec.flow.basis,
+        velocity=spec.velocity or 0.0, elevation=spec.elevation or 0.0,
+        declared_phase=spec.phase, description=spec.description, line=line,
+    )
+
+
+def _mass_flow(flow: Flow, fluid: str, rho: float, molar_mass: float,
+               engine: PropertyEngine) -> float:
+    """Mass flow [kg/s] from a flow as written (mass, molar, normal/standard or actual volume)."""
+    if flow.basis == "mass":
+        return flow.value
+    if flow.basis == "molar":
+        return flow.value * molar_mass
+    if flow.basis == "actual_volume":
+        return flow.value * rho
+    T_ref, P_ref = flow.reference  # type: ignore[misc]
+    reference = engine.state(fluid, "TP", T_ref, P_ref)
+    if reference.phase not in ("vapour", "gas", "supercritical"):
+        raise StateError(
+            f"a normal or standard volumetric flow needs a gas at its reference conditions "
+            f"({T_ref - 273.15:g} °C, {P_ref / 1e3:g} kPa), but {reference.fluid} is "
+            f"{reference.phase} there; give a mass or molar flow"
+        )
+    return flow.value * reference.rho
+
+
+# -- topology ----------------------------------------------------------------------------------------
+def _check_topology(balance: Balance, document: Document, findings: list[Finding],
+                    streams: dict[str, StreamResult]) -> list[Problem]:
+    problems: list[Problem] = []
+    producers: dict[str, list[str]] = defaultdict(list)
+    consumers: dict[str, list[str]] = defaultdict(list)
+    seen_ids: dict[str, int] = {}
+    raw_steps = document.data.get("steps") or []
+    for index, step in enumerate(balance.steps):
+        line, _ = document.position(("steps", index))
+        if step.id in seen_ids:
+            problems.append(Problem(
+                f"the step id '{step.id}' is used twice (also on line {seen_ids[step.id]})",
+                file=document.file, line=line, where=f"step {step.id}"))
+        seen_ids.setdefault(step.id, line or 0)
+        inlets, outlets = step.stream_ids()
+        for role, ids, table in (("inlet", inlets, consumers), ("outlet", outlets, producers)):
+            for stream_id in ids:
+                if stream_id not in balance.streams:
+                    path = _find_reference(raw_steps[index], stream_id, ("steps", index))
+                    ref_line, ref_col = document.position(path)
+                    close = difflib.get_close_matches(stream_id, list(balance.streams), n=1)
+                    problems.append(Problem(
+                        f"{role} '{stream_id}' is not a stream of this balance" + (
+                            f"; did you mean '{close[0]}'?" if close else ""),
+                        file=document.file, line=ref_line, column=ref_col,
+                        where=f"step {step.id}"))
+                    continue
+                if step.id in table[stream_id]:
+                    problems.append(Problem(
+                        f"stream '{stream_id}' is named twice as an {role} of the same step",
+                        file=document.file, line=line, where=f"step {step.id}"))
+                table[stream_id].append(step.id)
+    for stream_id, steps in producers.items():
+        if len(steps) > 1:
+            line, _ = document.position(("streams", stream_id))
+            problems.append(Problem(
+                f"is produced by more than one step ({', '.join(steps)}); a stream leaves one "
+                "step only", file=document.file, line=line, where=f"stream {stream_id}"))
+    for stream_id, steps in consumers.items():
+        if len(steps) > 1:
+            line, _ = document.position(("streams", stream_id))
+            problems.append(Problem(
+                f"is consumed by more than one step ({', '.join(steps)}); a stream enters one "
+                "step only (add a splitter)", file=document.file, line=line,
+                where=f"stream {stream_id}"))
+    if balance.steps:
+        for stream_id in balance.streams:
+            if stream_id not in producers and stream_id not in consumers:
+                findings.append(Finding(
+                    WARNING, "stream-unused", None,
+                    f"stream {stream_id} is neither produced nor consumed by any step",
+                    stream=stream_id))
+    return problems
+
+
+def _find_reference(raw: Any, value: str, path: tuple) -> tuple:
+    """The path of the first string equal to ``value`` inside ``raw`` (for error positions)."""
+    if isinstance(raw, str):
+        return path if raw == value else ()
+    items = raw.items() if isinstance(raw, dict) else enumerate(raw) if isinstance(
+        raw, list) else []
+    for key, item in items:
+        if key in ("id", "description"):
+            continue
+        found = _find_reference(item, value, (*path, key))
+        if found:
+            return found
+    return () if len(path) > 2 else path
+
+
+# -- plant totals --------------------------------------------------------------------------------
+def _plant_totals(balance: Balance, streams: dict[str, StreamResult],
+                  steps: list[StepResult]) -> PlantTotals:
+    flow_steps = [s for s in steps if not s.batch]
+    produced = {o for s in flow_steps for o in s.outlets}
+    consumed = {i for s in flow_steps for i in s.inlets}
+    boundary_in = sorted(consumed - produced)
+    boundary_out = sorted(produced - consumed)
+
+    def energy(ids: list[str]) -> float:
+        return sum(streams[i].mass_flow * (streams[i].h + streams[i].kinetic_potential)
+                   for i in ids)
+
+    Q_net = sum(s.Q for s in flow_steps)
+    W_net = sum(s.W for s in flow_steps)
+    return PlantTotals(
+        heat_in=sum(q.Q for s in flow_steps for q in s.heat_flows if q.Q > 0),
+        heat_out=-sum(q.Q for s in flow_steps for q in s.heat_flows if q.Q < 0),
+        work_out=sum(s.W for s in flow_steps if s.W > 0),
+        work_in=-sum(s.W for s in flow_steps if s.W < 0),
+        exergy_destroyed=sum(s.exergy_destroyed for s in flow_steps),
+        boundary_inlets=boundary_in, boundary_outlets=boundary_out,
+        boundary_energy_residual=Q_net - W_net - (energy(boundary_out) - energy(boundary_in)),
+        sum_of_step_residuals=sum(s.energy_residual for s in flow_steps),
+    )

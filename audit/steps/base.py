@@ -1,0 +1,216 @@
+"""What every step kind shares: the base model, heat claims, the registry and the finishing helper.
+
+A step kind is one module in :mod:`audit.steps` that defines a pydantic model (a subclass of
+:class:`StepBase` with ``kind: Literal["..."]``) and an ``evaluate(step, ctx)`` function, and calls
+:func:`register` once. ``evaluate`` turns the step's claims into heat flows into the step and work
+delivered by the step, lets :func:`finish_flow_step` apply the laws, and adds the kind's own checks.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass, field
+from typing import Any
+
+from pydantic import BaseModel, ConfigDict, Field, model_validator
+
+from audit.findings import Finding
+from audit.laws import Balance, energy_tolerance, flow_balance, law_findings
+from audit.properties import PropertyEngine
+from audit.quantities import Power, Temperature
+from audit.results import HeatFlow, StepResult, StreamResult
+from audit.tolerances import ToleranceOverrides, Tolerances
+
+CONSERVATIVE_NOTE = (
+    "Heat with no declared boundary temperature is taken as received from an infinitely hot "
+    "source, or rejected at the dead-state temperature: the choice least likely to flag a "
+    "violation."
+)
+
+
+class StepBase(BaseModel):
+    """Fields every step has."""
+
+    model_config = ConfigDict(extra="forbid")
+
+    id: str = Field(description="the step's identifier, unique in the balance")
+    description: str | None = None
+    tolerances: ToleranceOverrides | None = Field(
+        None, description="this step's own tolerances, overriding the balance's")
+
+    def stream_ids(self) -> tuple[list[str], list[str]]:
+        """(inlet stream ids, outlet stream ids) for the plant's topology."""
+        raise NotImplementedError
+
+
+class HeatClaim(BaseModel):
+    """A heat flow written without signs: ``added`` to the step or ``removed`` from it, crossing
+    the boundary at ``temperature`` (the source or sink temperature) when it is known."""
+
+    model_config = ConfigDict(extra="forbid")
+
+    added: Power | None = Field(None, description="heat received by the step")
+    removed: Power | None = Field(None, description="heat given off by the step")
+    temperature: Temperature | None = Field(
+        None, description="temperature at which the heat crosses the boundary")
+
+    @model_validator(mode="after")
+    def _one_direction(self) -> HeatClaim:
+        if (self.added is None) == (self.removed is None):
+            raise ValueError("a heat flow needs exactly one of 'added' or 'removed'")
+        for value in (self.added, self.removed):
+            if value is not None and value < 0:
+                raise ValueError("write heat as a positive amount under 'added' or 'removed'")
+        return self
+
+    @property
+    def into_step(self) -> float:
+        return self.added if self.added is not None else -float(self.removed)  # type: ignore
+
+
+@dataclass
+class StepContext:
+    """What a step's ``evaluate`` may use: the evaluated streams, the property engine, the dead
+    state, its tolerances, and where its findings go."""
+
+    streams: dict[str, StreamResult]
+    engine: PropertyEngine
+    T0: float
+    P0: float
+    tolerances: Tolerances
+    line: int | None = None
+    findings: list[Finding] = field(default_factory=list)
+
+    def stream(self, stream_id: str) -> StreamResult:
+        return self.streams[stream_id]
+
+    def add(self, finding: Finding) -> None:
+        self.findings.append(finding)
+
+
+@dataclass(frozen=True)
+class StepKind:
+    name: str
+    model: type[StepBase]
+    evaluate: Callable[[Any, StepContext], StepResult]
+    summary: str
+
+
+REGISTRY: dict[str, StepKind] = {}
+
+
+def register(name: str, model: type[StepBase], evaluate: Callable[[Any, StepContext],
+             StepResult], summary: str) -> None:
+    """Register a step kind under ``name`` (the value of ``kind:`` in the file)."""
+    if name in REGISTRY:
+        raise ValueError(f"step kind {name!r} registered twice")  # pragma: no cover
+    REGISTRY[name] = StepKind(name, model, evaluate, summary)
+
+
+def boundary_temperature(
+    Q: float, declared: float | None, T0: float, coldest: float | None = None
+) -> float:
+    """The boundary temperature of a heat flow Q [W] into the step [K].
+
+    The declared one when there is one; else the conservative choice: heat in comes from an
+    infinitely hot source, heat out goes to the dead state T0 or, when a stream of the step is
+    colder than T0, to that coldest stream temperature (a sink the stream can always reject to).
+    """
+    if declared is not None:
+        return declared
+    if Q > 0:
+        return math.inf
+    return T0 if coldest is None else min(T0, coldest)
+
+
+def inferred_heat(balance_without_heat: Balance) -> float:
+    """Heat into the step [W] that closes the first law when no heat is claimed."""
+    return -balance_without_heat.energy_residual
+
+
+def bound_basis_flow(
+    streams: Sequence[StreamResult], heat_flows: Sequence[HeatFlow], tol: Tolerances,
+    dG: float,
+) -> tuple[str, float | None]:
+    """Which potential governs a flow step, and its value [W].
+
+    Rule: when every stream (and every declared finite heat boundary temperature) lies within
+    ``isothermal_band`` of one temperature, the reversible work of a steady-flow step exchanging
+    heat at that temperature is −ΔG (Gibbs function of the streams); otherwise the bound is the
+    exergy drop of design note 2.4.
+    """
+    temperatures = [s.T for s in streams] + [
+        q.temperature for q in heat_flows if q.claimed and math.isfinite(q.temperature)]
+    if temperatures and max(temperatures) - min(temperatures) <= tol.isothermal_band:
+        return "-ΔG (isothermal flow)", -dG
+    return "exergy drop", None
+
+
+def finish_flow_step(
+    step: StepBase,
+    kind: str,
+    ctx: StepContext,
+    inlets: Sequence[StreamResult],
+    outlets: Sequence[StreamResult],
+    heat_flows: list[HeatFlow],
+    W: float,
+    claimed: list[str],
+    inferred: list[str],
+    check_energy: bool = True,
+    energy_finding: str = "energy-imbalance",
+    notes: Sequence[str] = (),
+    check_mass: bool = True,
+) -> tuple[StepResult, Balance]:
+    """Apply the laws to a flow step and build its :class:`StepResult` (kind checks come after)."""
+    tol = ctx.tolerances
+    balance = flow_balance(inlets, outlets, heat_flows, W, ctx.T0)
+    conservative = any("conservative" in q.note for q in heat_flows)
+    inlet_mass = sum(s.mass_flow for s in inlets)
+    for finding in law_findings(
+        step.id, balance, tol, ctx.T0, batch=False, inlet_mass=inlet_mass,
+        conservative_note=CONSERVATIVE_NOTE if conservative else "",
+        check_energy=check_energy, energy_finding=energy_finding, check_mass=check_mass,
+    ):
+        ctx.add(finding)
+    basis, classical = bound_basis_flow([*inlets, *outlets], heat_flows, tol, balance.dG)
+    result = StepResult(
+        id=step.id, kind=kind, batch=False, inlets=[s.id for s in inlets],
+        outlets=[s.id for s in outlets], Q=balance.Q, W=W, heat_flows=heat_flows,
+        H_in=balance.H_in, H_out=balance.H_out, KE_PE_in=balance.KE_PE_in,
+        KE_PE_out=balance.KE_PE_out, dH=balance.dH, dU=balance.dU, dS=balance.dS,
+        dG=balance.dG, dA=balance.dA, energy_residual=balance.energy_residual,
+        mass_residual=balance.mass_residual, S_gen=balance.S_gen, W_rev=balance.W_rev,
+        exergy_destroyed=balance.exergy_destroyed, energy_scale=balance.energy_scale,
+        energy_tolerance=energy_tolerance(balance, tol, batch=False), bound_basis=basis,
+        classical_bound=classical, second_law_efficiency=second_law_efficiency(W, balance.W_rev),
+        claimed=claimed, inferred=inferred, notes=list(notes), description=step.description,
+        line=ctx.line,
+    )
+    if conservative:
+        result.notes.append(CONSERVATIVE_NOTE)
+    return result, balance
+
+
+def second_law_efficiency(W: float, W_rev: float) -> float | None:
+    """W / Ẇ_rev for a work producer, Ẇ_rev / W for a consumer (both as magnitudes) [-]."""
+    if W > 0 and W_rev > 0:
+        return W / W_rev
+    if W < 0 and W_rev < 0:
+        return W_rev / W
+    return None
+
+
+def heat_flows_from_claims(
+    claims: Sequence[HeatClaim], T0: float, coldest: float | None = None
+) -> list[HeatFlow]:
+    """Heat flows into the step from written claims, with conservative boundary temperatures."""
+    flows = []
+    for claim in claims:
+        Q = claim.into_step
+        flows.append(HeatFlow(
+            Q=Q, temperature=boundary_temperature(Q, claim.temperature, T0, coldest),
+            claimed=True,
+            note="" if claim.temperature is not None else "conservative boundary temperature",
+        ))
+    return flows

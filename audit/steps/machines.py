@@ -1,0 +1,106 @@
+"""Helpers shared by the work machines (turbine, compressor, pump): heat loss and the isentropic
+outlet. Not a step kind itself."""
+
+from __future__ import annotations
+
+from audit.errors import StateError
+from audit.findings import ERROR, WARNING, Finding
+from audit.results import HeatFlow, StreamResult
+from audit.steps.base import StepContext, boundary_temperature
+
+
+def heat_loss_flow(
+    loss: float | None, temperature: float | None, T0: float, coldest: float | None = None
+) -> list[HeatFlow]:
+    """A machine's claimed heat loss [W], at the declared temperature or, conservatively, at T0
+    (or the coldest stream, when that is colder)."""
+    if loss is None:
+        return []
+    note = "heat loss" + ("" if temperature is not None else ", conservative boundary temperature")
+    return [HeatFlow(Q=-loss, temperature=boundary_temperature(-loss, temperature, T0, coldest),
+                     claimed=True, note=note)]
+
+
+def isentropic_outlet_enthalpy(
+    step_id: str, inlet: StreamResult, outlet: StreamResult, ctx: StepContext
+) -> float | None:
+    """h [J/kg] at the outlet pressure and the inlet entropy, or None (with a finding) when the
+    equation of state cannot give it. Method: one (P, s) flash, CoolProp HEOS."""
+    if inlet.fluid != outlet.fluid:
+        return None
+    try:
+        state = ctx.engine.state(inlet.fluid, "Ps", outlet.P, inlet.s, table_basis=False)
+    except StateError as exc:
+        ctx.add(Finding(
+            WARNING, "step-not-evaluated", step_id,
+            f"the isentropic outlet state could not be evaluated, so the isentropic efficiency "
+            f"is not checked: {exc.problem.message}",
+        ))
+        return None
+    return state.h
+
+
+def evaluate_work_absorber(step, kind: str, ctx: StepContext, noun: str):
+    """Laws and efficiency checks of a machine that absorbs shaft power (compressor, pump).
+
+    η_s = (h_out,s − h_in) / (h_out − h_in) ≤ 1 for an adiabatic machine, and
+    η_s = ṁ (h_out,s − h_in) / W_shaft for one whose heat loss (cooling) is claimed; the outlet
+    pressure must exceed the inlet's.
+    Returns the :class:`StepResult`.
+    """
+    from audit.steps.base import finish_flow_step
+
+    inlet, outlet = ctx.stream(step.inlet), ctx.stream(step.outlet)
+    heat = heat_loss_flow(step.heat_loss, step.heat_loss_temperature, ctx.T0,
+                          min(inlet.T, outlet.T))
+    claimed, inferred = [], []
+    if step.shaft_power is not None:
+        W = -step.shaft_power
+        claimed.append("shaft_power")
+    else:
+        Q = sum(q.Q for q in heat)
+        W = Q - (outlet.mass_flow * (outlet.h + outlet.kinetic_potential)
+                 - inlet.mass_flow * (inlet.h + inlet.kinetic_potential))
+        inferred.append("shaft_power")
+    claimed.append("heat_loss" if step.heat_loss is not None else "adiabatic")
+    result, _ = finish_flow_step(step, kind, ctx, [inlet], [outlet], heat, W, claimed, inferred)
+    tol = ctx.tolerances
+    if outlet.P <= inlet.P:
+        ctx.add(Finding(
+            ERROR, "pressure-wrong-way", step.id,
+            f"the outlet pressure ({outlet.P / 1e5:.4g} bar) is not above the inlet pressure "
+            f"({inlet.P / 1e5:.4g} bar); a {noun} raises the pressure (inlet and outlet swapped?)",
+            claimed=outlet.P, bound=inlet.P, margin=inlet.P - outlet.P, quantity="pressure",
+        ))
+        return result
+    h_s = isentropic_outlet_enthalpy(step.id, inlet, outlet, ctx)
+    cooled = step.heat_loss is not None and step.shaft_power is not None
+    if h_s is not None and cooled and W < 0:
+        # A cooled machine: the efficiency is the isentropic power over the shaft power.
+        eta = inlet.mass_flow * (h_s - inlet.h) / -W
+    elif h_s is not None and outlet.h - inlet.h > 0:
+        eta = (h_s - inlet.h) / (outlet.h - inlet.h)
+    else:
+        eta = None
+    if eta is not None and h_s is not None:
+        result.isentropic_efficiency = eta
+        result.extra["h_out_isentropic"] = h_s
+        if eta > 1.0 + tol.efficiency:
+            ctx.add(Finding(
+                ERROR, "efficiency-above-one", step.id,
+                f"the streams give an isentropic efficiency of {eta:.3f}: the outlet enthalpy is "
+                f"below the isentropic outlet's ({h_s / 1e3:.1f} kJ/kg), which no real {noun} "
+                "reaches",
+                claimed=eta, bound=1.0, margin=eta - 1.0, margin_relative=eta - 1.0,
+                quantity="fraction", tolerance=tol.efficiency,
+            ))
+        claimed_eta = getattr(step, "isentropic_efficiency", None)
+        if claimed_eta is not None and abs(claimed_eta - eta) > 0.01:
+            ctx.add(Finding(
+                WARNING, "efficiency-mismatch", step.id,
+                f"the claimed isentropic efficiency {claimed_eta:.3f} differs from the "
+                f"{eta:.3f} the streams give",
+                claimed=claimed_eta, bound=eta, margin=claimed_eta - eta,
+                margin_relative=(claimed_eta - eta) / eta, quantity="fraction", tolerance=0.01,
+            ))
+    return result
