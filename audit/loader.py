@@ -25,8 +25,12 @@ from audit.errors import InputError
 MAX_FILE_BYTES = 20 * 1024 * 1024
 """Largest balance file read [bytes]; a real balance is a few hundred kB."""
 
-MAX_NODES = 2_000_000
-"""Most values built from one file, aliases expanded; past it the file is refused."""
+MAX_NODES = 5_000_000
+"""Most values built from one file; past it the file is refused."""
+
+MAX_ALIAS_NODES = 100_000
+"""Most values built a second time through aliases; past it the file is refused as an alias bomb
+(a legitimate balance repeats a few hundred values through anchors at most)."""
 
 _STANDARD_TAG = "tag:yaml.org,2002:"
 _ALLOWED_SCALAR_TAGS = {
@@ -38,11 +42,16 @@ Path_ = tuple[object, ...]
 
 @dataclass
 class Document:
-    """The plain data of a balance file and where each value was written (1-based line, column)."""
+    """The plain data of a balance file and where each value was written (1-based line, column).
+
+    ``cells`` records values that came from a table (:mod:`audit.tables`) instead: path → (table
+    file, place in it), the place reading like ``sheet 'HB rev C', cell D14`` or ``row 14``.
+    """
 
     data: Any
     file: str
     positions: dict[Path_, tuple[int, int]] = field(default_factory=dict)
+    cells: dict[Path_, tuple[str, str]] = field(default_factory=dict)
 
     def position(self, path: Path_) -> tuple[int | None, int | None]:
         """Line and column of the value at ``path``, or of its nearest written ancestor."""
@@ -53,11 +62,28 @@ class Document:
             path = path[:-1]
         return self.positions.get((), (None, None))
 
+    def place(self, path: Path_) -> dict[str, Any]:
+        """Where the value at ``path`` was written, as keyword arguments of
+        :class:`audit.errors.Problem`: the file with its line and column, or the table file with
+        its cell, whichever the nearest written ancestor of ``path`` is."""
+        path = tuple(path)
+        while path:
+            if path in self.cells:
+                file, cell = self.cells[path]
+                return {"file": file, "line": None, "column": None, "cell": cell}
+            if path in self.positions:
+                break
+            path = path[:-1]
+        line, column = self.position(path)
+        return {"file": self.file, "line": line, "column": column, "cell": None}
+
 
 class _Builder:
     def __init__(self, file: str) -> None:
         self.file = file
         self.count = 0
+        self.repeats = 0
+        self._seen: set[int] = set()
         self.positions: dict[Path_, tuple[int, int]] = {}
         self._scalar = SafeConstructor()
 
@@ -69,12 +95,18 @@ class _Builder:
 
     def build(self, node: yaml.Node, path: Path_, depth: int = 0) -> Any:
         self.count += 1
+        if id(node) in self._seen:
+            self.repeats += 1
+            if self.repeats > MAX_ALIAS_NODES:
+                raise self._fail(
+                    node,
+                    f"aliases in the file expand to more than {MAX_ALIAS_NODES:,} repeated "
+                    "values; refusing it as an alias bomb",
+                )
+        else:
+            self._seen.add(id(node))
         if self.count > MAX_NODES:
-            raise self._fail(
-                node,
-                f"the file expands to more than {MAX_NODES:,} values (aliases expanded); "
-                "refusing it as an alias bomb",
-            )
+            raise self._fail(node, f"the file holds more than {MAX_NODES:,} values")
         if depth > 100:
             raise self._fail(node, "the file nests deeper than 100 levels")
         self.positions.setdefault(path, (node.start_mark.line + 1, node.start_mark.column + 1))

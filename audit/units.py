@@ -194,7 +194,7 @@ def to_si(text: object, kind: str, site_pressure: float | None = None) -> float:
     except UnitError as exc:
         raise UnitError(f"'{text}': {exc.problem.message}") from None
     wanted = KINDS[kind]
-    if dimensionality != wanted.dimensionality:
+    if dimensionality != _dimension_of(wanted.si_unit):
         raise UnitError(
             f"'{text}' is not a {kind.replace('_', ' ')}: '{unit}' has dimension "
             f"{dimensionality}; expected a unit such as {wanted.example}"
@@ -205,6 +205,11 @@ def to_si(text: object, kind: str, site_pressure: float | None = None) -> float:
     if kind == "pressure" and value <= 0.0:
         raise UnitError(f"'{text}' is not a positive absolute pressure ({value:.6g} Pa)")
     return value
+
+
+@lru_cache(maxsize=64)
+def _dimension_of(si_unit: str) -> str:
+    return str(UREG.Quantity(1.0, si_unit).dimensionality)
 
 
 def to_flow(text: object) -> Flow:
@@ -230,11 +235,11 @@ def to_flow(text: object) -> Flow:
         raise UnitError(f"'{text}': unknown unit '{unit}'; a flow is written like {example}") from None
     value = number * scale + offset
     _check_flow_sign(text, value)
-    if dimensionality == KINDS["mass_flow"].dimensionality:
+    if dimensionality == _dimension_of("kg/s"):
         return Flow("mass", value)
-    if dimensionality == KINDS["molar_flow"].dimensionality:
+    if dimensionality == _dimension_of("mol/s"):
         return Flow("molar", value)
-    if dimensionality == "[length] ** 3 / [time]":
+    if dimensionality == _dimension_of("m**3/s"):
         return Flow("actual_volume", value)
     raise UnitError(
         f"'{text}' is not a flow: '{unit}' has dimension {dimensionality}; write it like {example}"

@@ -37,7 +37,8 @@ class Pump(StepBase):
 def evaluate(step: Pump, ctx: StepContext) -> StepResult:
     result = evaluate_work_absorber(step, "pump", ctx, "pump")
     inlet = ctx.stream(step.inlet)
-    if inlet.phase not in ("liquid", "supercritical liquid"):
+    saturated_liquid = inlet.phase == "two-phase" and (inlet.quality or 0.0) <= 1e-9
+    if inlet.phase not in ("liquid", "supercritical liquid") and not saturated_liquid:
         ctx.add(Finding(
             ERROR, "pump-inlet-not-liquid", step.id,
             f"the pump inlet {inlet.id} is {inlet.phase}; a pump needs liquid at its inlet",
