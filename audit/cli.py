@@ -8,11 +8,11 @@ import sys
 import traceback
 
 from audit import __version__
-from audit.commands import check, schema
+from audit.commands import batch, check, convert, diff, history, schema, template
 from audit.errors import InputError
 from audit.exitcodes import EXIT_INPUT, EXIT_INTERNAL
 
-COMMANDS = [check, schema]
+COMMANDS = [check, batch, diff, history, schema, template, convert]
 
 
 def _parser() -> argparse.ArgumentParser:

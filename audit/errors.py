@@ -25,10 +25,13 @@ class Problem:
     column: int | None = None
     field_path: str | None = None
     where: str | None = None  # "stream S3", "step T1"
+    cell: str | None = None  # in a table file: "sheet 'HB rev C', cell D14" (audit.tables)
 
     def __str__(self) -> str:
         place = ""
-        if self.file:
+        if self.cell:
+            place = f"{self.file}, {self.cell}: " if self.file else f"{self.cell}: "
+        elif self.file:
             place = self.file
             if self.line is not None:
                 place += f":{self.line}"

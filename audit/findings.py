@@ -43,14 +43,55 @@ NAMES: dict[str, str] = {
     "mixer-outlet-pressure": "a mixer outlet above its lowest inlet pressure",
     "stream-unused": "a stream that no step produces or consumes",
     "step-not-evaluated": "a check of the step could not be evaluated",
+    "below-dew-point": "a gas mixture with a species above its saturation pressure (it would "
+    "condense)",
+    "element-imbalance": "atoms of an element appear or vanish in a reacting step",
+    "species-imbalance": "species flows that the step's written reactions and extents do not "
+    "explain",
+    "heating-value-mismatch": "a claimed fuel heating value that differs from the one computed "
+    "from formation data",
+    "voltage-beyond-reversible": "a fuel cell above, or an electrolyser below, the reversible "
+    "cell voltage",
+    "heat-needed-below-thermoneutral": "an electrolyser below the thermoneutral voltage whose "
+    "balance does not bring in the heat it needs",
+    "faraday-mismatch": "current and production (or consumption) that disagree with Faraday's "
+    "law, or a faradaic efficiency above 1",
+    "power-mismatch": "a claimed electrical power that differs from voltage × current × cells",
+    "acceptance-unmatched": "a reviewer's acceptance that matches no finding of the audit",
+    "acceptance-expired": "a reviewer's acceptance past its expiry date: the finding counts again",
 }
+
+
+# Verdicts of a law finding on a balance with declared uncertainties (audit.uncertainty): the
+# interval margin ± U (U the expanded uncertainty) lies wholly beyond the tolerance, reaches into it,
+# or reaches zero.
+VIOLATED = "violated"
+MARGINAL = "marginal"
+CONSISTENT = "consistent"
+VERDICTS = (VIOLATED, MARGINAL, CONSISTENT)
+
+
+@dataclass(frozen=True)
+class Contributor:
+    """One input's part in a finding's uncertainty (GUM, JCGM 100:2008, §5.1.3): its standard
+    uncertainty u [SI of the input], the sensitivity c = ∂margin/∂input, the contribution c·u [SI of
+    the margin] and its share of the margin's variance (c·u)²/u_c² [-]."""
+
+    input: str
+    quantity: str | None
+    standard_uncertainty: float
+    sensitivity: float
+    contribution: float
+    share: float
 
 
 @dataclass(frozen=True)
 class Finding:
     """One finding. ``quantity`` names the kind of the values (``power``, ``energy``,
     ``entropy_rate``, ``entropy``, ``temperature``, ``temperature_difference``, ``pressure``,
-    ``mass_flow``, ``fraction``) so reports can show them in engineering units."""
+    ``mass_flow``, ``fraction``) so reports can show them in engineering units. ``accepted`` holds
+    a reviewer's acceptance of the finding: it is still shown in every report but no longer fails
+    the gate (:meth:`audit.results.AuditResult.fails`)."""
 
     severity: str
     name: str
@@ -63,12 +104,25 @@ class Finding:
     quantity: str | None = None
     tolerance: float | None = None
     stream: str | None = None
+    accepted: str | None = None  # a reviewer's acceptance (reason, who, until); see audit.acceptance
+    # With declared uncertainties (audit.uncertainty): the expanded uncertainty of the margin
+    # [its unit], the coverage factor k, the verdict (VERDICTS), the largest contributors and,
+    # as a cross-check, the Monte Carlo expanded uncertainty (k times the sample deviation).
+    uncertainty: float | None = None
+    coverage_factor: float | None = None
+    verdict: str | None = None
+    contributors: tuple[Contributor, ...] = ()
+    monte_carlo_uncertainty: float | None = None
+    # Single slips that would make the step close (audit.causes), one sentence each.
+    probable_causes: tuple[str, ...] = ()
 
     def __post_init__(self) -> None:
         if self.name not in NAMES:
             raise ValueError(f"undocumented finding name {self.name!r}")
         if self.severity not in SEVERITY_RANK:
             raise ValueError(f"unknown severity {self.severity!r}")
+        if self.verdict is not None and self.verdict not in VERDICTS:
+            raise ValueError(f"unknown verdict {self.verdict!r}")
 
 
 def relative(margin: float, reference: float) -> float | None:

@@ -18,7 +18,17 @@ References
 
 To add a species: append a :class:`Species` with its CoolProp fluid name, its elements, ΔfH° [J/mol]
 and S° [J/(mol K)] of the ideal gas at 298.15 K and 1 bar, and the source, then add a test that
-checks one published value through the property layer.
+checks one published value through the property layer. To use it in gas mixtures, also give the
+temperature range over which CoolProp's ideal-gas part was verified against NIST-JANAF
+(``audit.mixtures.VERIFIED_RANGE``, with the test in ``tests/test_mixtures.py``).
+
+The module also holds the standard atomic weights of the elements used (element balances) and the
+named compositions a stream may give instead of mole fractions (``composition: air``).
+
+.. [3] T. Prohaska et al., "Standard atomic weights of the elements 2021 (IUPAC Technical
+   Report)", Pure Appl. Chem. 94 (2022) 573–600 (abridged, conventional values).
+.. [4] A. Picard, R. S. Davis, M. Gläser, K. Fujii, "Revised formula for the density of moist air
+   (CIPM-2007)", Metrologia 45 (2008) 149–155, Table 1 (dry-air mole fractions).
 """
 
 from __future__ import annotations
@@ -72,3 +82,36 @@ SPECIES: dict[str, Species] = {
 def species(fluid: str) -> Species | None:
     """The formation data of a CoolProp fluid name, or None when it has none here."""
     return SPECIES.get(fluid)
+
+
+BY_FORMULA: dict[str, Species] = {s.formula: s for s in SPECIES.values()}
+
+
+def lookup(name: str) -> Species | None:
+    """The formation data of a species by formula (``"CO2"``) or CoolProp name
+    (``"CarbonDioxide"``, any case), or None."""
+    if name in BY_FORMULA:
+        return BY_FORMULA[name]
+    lowered = name.lower()
+    for fluid, data in SPECIES.items():
+        if fluid.lower() == lowered:
+            return data
+    return None
+
+
+# Standard atomic weights [kg/mol], abridged conventional values of IUPAC/CIAAW 2021 [3].
+ATOMIC_WEIGHTS: dict[str, float] = {
+    "H": 1.008e-3,
+    "C": 12.011e-3,
+    "N": 14.007e-3,
+    "O": 15.999e-3,
+    "Ar": 39.95e-3,
+}
+
+# Dry air, mole fractions: CIPM-2007 [4] gives N2 0.780848, O2 0.209390, Ar 0.009332 and CO2 0.0004
+# (values quoted from memory of the paper's Table 1); the minor gases (about 30 µmol/mol, mostly Ne
+# and He, both inert here) are counted with N2 so that the fractions sum to 1.
+DRY_AIR: dict[str, float] = {"N2": 0.780878, "O2": 0.209390, "Ar": 0.009332, "CO2": 0.000400}
+
+NAMED_COMPOSITIONS: dict[str, dict[str, float]] = {"air": DRY_AIR}
+"""Compositions a stream may name (``composition: air``), mole fractions by formula."""

@@ -85,17 +85,13 @@ def flow_balance(
     W : work delivered by the step [W]
     T0 : dead-state temperature [K]
     """
-    def total(streams: Sequence[StreamResult], attr: str) -> float:
-        return sum(s.mass_flow * getattr(s, attr) for s in streams)
-
-    H_in, H_out = total(inlets, "h"), total(outlets, "h")
-    KE_in = sum(s.mass_flow * s.kinetic_potential for s in inlets)
-    KE_out = sum(s.mass_flow * s.kinetic_potential for s in outlets)
+    (H_in, U_in, S_in, G_in, A_in, KE_in), (H_out, U_out, S_out, G_out, A_out, KE_out) = (
+        _flow_totals(inlets), _flow_totals(outlets))
     dH = H_out - H_in
-    dU = total(outlets, "u") - total(inlets, "u")
-    dS = total(outlets, "s") - total(inlets, "s")
-    dG = total(outlets, "g") - total(inlets, "g")
-    dA = total(outlets, "a") - total(inlets, "a")
+    dU = U_out - U_in
+    dS = S_out - S_in
+    dG = G_out - G_in
+    dA = A_out - A_in
     Q = sum(q.Q for q in heat_flows)
     residual = Q - W - (dH + KE_out - KE_in)
     mass: dict[str, float] = defaultdict(float)
@@ -112,6 +108,22 @@ def flow_balance(
         dA=dA, Q=Q, W=W, energy_residual=residual, mass_residual=dict(mass), S_gen=S_gen,
         W_rev=W_rev, exergy_destroyed=T0 * S_gen, energy_scale=scale,
     )
+
+
+def _flow_totals(streams: Sequence[StreamResult]) -> tuple[float, float, float, float, float,
+                                                             float]:
+    """Σ ṁ h, Σ ṁ u, Σ ṁ s, Σ ṁ g, Σ ṁ a [W, W/K] and Σ ṁ (V²/2 + g z) [W] of ``streams``, in one
+    pass (summed in the order given, as ``sum`` would)."""
+    H = U = S = G = A = KE = 0.0
+    for s in streams:
+        m = s.mass_flow
+        H += m * s.h
+        U += m * s.u
+        S += m * s.s
+        G += m * s.g
+        A += m * s.a
+        KE += m * s.kinetic_potential
+    return H, U, S, G, A, KE
 
 
 def energy_turnover(inlets: Sequence[StreamResult], outlets: Sequence[StreamResult]) -> float:

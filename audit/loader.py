@@ -20,6 +20,7 @@ from typing import Any
 import yaml
 from yaml.constructor import SafeConstructor
 
+from audit import flowlines
 from audit.errors import InputError
 
 MAX_FILE_BYTES = 20 * 1024 * 1024
@@ -36,6 +37,13 @@ _STANDARD_TAG = "tag:yaml.org,2002:"
 _ALLOWED_SCALAR_TAGS = {
     _STANDARD_TAG + t for t in ("str", "int", "float", "bool", "null", "timestamp")
 }
+_STR_TAG = _STANDARD_TAG + "str"
+
+_FAST_LOADER = getattr(yaml, "CSafeLoader", None)
+"""libyaml's parser, when PyYAML was built with it: it composes the same nodes, with the same
+marks, about eight times faster than the pure-Python parser (benchmarks/run.py). Text it refuses,
+and text with a tab, goes to the pure-Python parser, whose errors the messages below are written
+for."""
 
 Path_ = tuple[object, ...]
 
@@ -79,11 +87,14 @@ class Document:
 
 
 class _Builder:
-    def __init__(self, file: str) -> None:
+    def __init__(self, file: str, flow_lines: dict | None = None) -> None:
         self.file = file
+        self.flow_lines = flow_lines or {}  # mappings audit.flowlines read, by (line, column)
+        self.flow_lines_built: set[tuple[int, int]] = set()
         self.count = 0
         self.repeats = 0
         self._seen: set[int] = set()
+        self._open: set[int] = set()  # collections being built: an alias back to one is a loop
         self.positions: dict[Path_, tuple[int, int]] = {}
         self._scalar = SafeConstructor()
 
@@ -111,20 +122,42 @@ class _Builder:
             raise self._fail(node, "the file nests deeper than 100 levels")
         self.positions.setdefault(path, (node.start_mark.line + 1, node.start_mark.column + 1))
         if isinstance(node, yaml.ScalarNode):
+            if node.tag == _STR_TAG:
+                return node.value  # what SafeConstructor makes of a string, without its calls
             if node.tag not in _ALLOWED_SCALAR_TAGS:
                 raise self._fail(node, f"the tag '{node.tag}' is not allowed in a balance file")
-            value = self._scalar.construct_object(node, deep=True)
             if node.tag == _STANDARD_TAG + "timestamp":
-                value = node.value  # keep dates as written
-            return value
+                return node.value  # keep dates as written (and never fail on 2024-02-30)
+            try:
+                return self._scalar.construct_object(node, deep=True)
+            except ValueError as exc:  # e.g. an integer of more than 4300 digits
+                shown = node.value if len(node.value) <= 40 else node.value[:40] + "..."
+                reason = (f"a number of {len(node.value):,} digits is too long to read"
+                          if "integer string conversion" in str(exc) else str(exc))
+                raise self._fail(node, f"the value '{shown}' cannot be read: {reason}") from None
+        if id(node) in self._open:
+            raise self._fail(node, "an alias here refers to a collection that contains it, so "
+                             "the value would never end")
         if isinstance(node, yaml.SequenceNode):
             if node.tag != _STANDARD_TAG + "seq":
                 raise self._fail(node, f"the tag '{node.tag}' is not allowed in a balance file")
-            return [self.build(item, path + (i,), depth + 1) for i, item in enumerate(node.value)]
+            self._open.add(id(node))
+            built = [self.build(item, path + (i,), depth + 1) for i, item in enumerate(node.value)]
+            self._open.discard(id(node))
+            return built
         if isinstance(node, yaml.MappingNode):
             if node.tag != _STANDARD_TAG + "map":
                 raise self._fail(node, f"the tag '{node.tag}' is not allowed in a balance file")
-            return self._mapping(node, path, depth)
+            if not node.value and self.flow_lines:
+                where = (node.start_mark.line, node.start_mark.column)
+                items = self.flow_lines.get(where)
+                if items is not None:
+                    self.flow_lines_built.add(where)
+                    return self._flow_line(items, where[0], path, depth)
+            self._open.add(id(node))
+            built = self._mapping(node, path, depth)
+            self._open.discard(id(node))
+            return built
         raise self._fail(node, "unsupported YAML node")  # pragma: no cover
 
     def _mapping(self, node: yaml.MappingNode, path: Path_, depth: int) -> dict:
@@ -147,10 +180,12 @@ class _Builder:
             key = self.build(key_node, path + ("<key>",), depth + 1)
             line = key_node.start_mark.line + 1
             if key in seen:
+                where = (f"on line {line}" if seen[key] == line else
+                         f"on line {seen[key]} and line {line}")
                 raise self._fail(
                     key_node,
-                    f"the key '{key}' is written twice in the same mapping, on line "
-                    f"{seen[key]} and line {line}; a balance must say each thing once",
+                    f"the key '{key}' is written twice in the same mapping, {where}; a balance "
+                    "must say each thing once",
                 )
             seen[key] = line
             result[key] = self.build(value_node, path + (key,), depth + 1)
@@ -160,6 +195,42 @@ class _Builder:
         return result
 
 
+    def _flow_line(self, items: list, line: int, path: Path_, depth: int) -> dict:
+        """A mapping :mod:`audit.flowlines` read from one line, built as :meth:`_mapping` builds
+        composed nodes: the same values, positions and node count."""
+        result: dict = {}
+        for key_text, key_column, value in items:
+            key = self._flow_scalar(key_text, line, key_column, path + ("<key>",), depth + 1)
+            if key in result:
+                raise _FastPathDeclined  # the usual path words the duplicate-key error
+            if isinstance(value[1], list):
+                column, inner = value
+                self._flow_node(path + (key,), line, column, depth + 1)
+                result[key] = self._flow_line(inner, line, path + (key,), depth + 1)
+            else:
+                text, column = value
+                result[key] = self._flow_scalar(text, line, column, path + (key,), depth + 1)
+            self.positions[path + (key,)] = (line + 1, key_column + 1)
+        return result
+
+    def _flow_scalar(self, text: str, line: int, column: int, path: Path_, depth: int) -> Any:
+        tag = flowlines.tag_of(text)
+        if tag != _STR_TAG:
+            return self.build(flowlines.scalar_node(text, tag, line, column), path, depth)
+        self._flow_node(path, line, column, depth)
+        return text
+
+    def _flow_node(self, path: Path_, line: int, column: int, depth: int) -> None:
+        self.count += 1
+        if self.count > MAX_NODES or depth > 100:
+            raise _FastPathDeclined  # the usual path words the error
+        self.positions.setdefault(path, (line + 1, column + 1))
+
+
+class _FastPathDeclined(Exception):
+    """The fast path of :mod:`audit.flowlines` does not apply: read the original text."""
+
+
 def read_text(path: Path) -> str:
     """Read a balance file as UTF-8 text, refusing folders, huge files and undecodable bytes."""
     name = str(path)
@@ -167,13 +238,16 @@ def read_text(path: Path) -> str:
         raise InputError("no such file", file=name)
     if path.is_dir():
         raise InputError("is a folder, not a balance file", file=name)
-    size = path.stat().st_size
-    if size > MAX_FILE_BYTES:
-        raise InputError(
-            f"the file is {size / 1e6:.1f} MB, larger than the {MAX_FILE_BYTES / 1e6:.0f} MB "
-            "a balance file may be", file=name,
-        )
-    raw = path.read_bytes()
+    try:
+        size = path.stat().st_size
+        if size > MAX_FILE_BYTES:
+            raise InputError(
+                f"the file is {size / 2**20:.1f} MiB, larger than the {MAX_FILE_BYTES / 2**20:.0f} "
+                "MiB a balance file may be", file=name,
+            )
+        raw = path.read_bytes()
+    except OSError as exc:  # permission denied, a device, an I/O error
+        raise InputError(f"cannot be read: {exc.strerror or exc}", file=name) from None
     try:
         return raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
@@ -185,29 +259,88 @@ def read_text(path: Path) -> str:
 
 
 def parse_document(text: str, file: str) -> Document:
-    """Compose YAML text into plain data with positions; see the module docstring for the rules."""
+    """Compose YAML text into plain data with positions; see the module docstring for the rules.
+
+    One-line flow mappings are read by the fast path of :mod:`audit.flowlines` when it applies;
+    whenever it does not (or the text has an error), the original text is read the usual way."""
+    scanned = flowlines.scan(text)
+    if scanned is not None:
+        try:
+            return _parse(scanned.text, file, scanned.mappings)
+        except (InputError, _FastPathDeclined):
+            pass
+    return _parse(text, file, None)
+
+
+def _parse(text: str, file: str, flow_lines: dict | None) -> Document:
     try:
-        node = yaml.compose(text, Loader=yaml.SafeLoader)
+        node = _compose(text)
     except yaml.MarkedYAMLError as exc:
         mark = exc.problem_mark or exc.context_mark
         problem = exc.problem or "malformed YAML"
         if exc.context:
-            problem = f"{exc.context}: {problem}" if "found character '\\t'" not in problem else (
+            context = exc.context
+            if exc.context_mark and mark and exc.context_mark.line != mark.line:
+                context += f" (begun on line {exc.context_mark.line + 1})"
+            problem = f"{context}: {problem}" if "found character '\\t'" not in problem else (
                 problem)
+        if "expected <block end>" in problem:
+            problem += " (check the indentation of this line)"
         if "\\t" in problem or "tab" in problem.lower():
             problem += " (YAML does not allow tabs for indentation; use spaces)"
         raise InputError(
             f"not valid YAML: {problem}", file=file,
             line=mark.line + 1 if mark else None, column=mark.column + 1 if mark else None,
         ) from None
+    except yaml.reader.ReaderError as exc:  # a control character: position is a text offset
+        line = text.count("\n", 0, exc.position) + 1
+        column = exc.position - (text.rfind("\n", 0, exc.position) + 1) + 1
+        raise InputError(
+            f"not valid YAML: the control character #x{exc.character:04x} is not allowed in a "
+            "balance file", file=file, line=line, column=column,
+        ) from None
     except yaml.YAMLError as exc:
         raise InputError(f"not valid YAML: {exc}", file=file) from None
+    except RecursionError:  # PyYAML composes nested collections recursively
+        raise InputError("the file nests deeper than 100 levels", file=file,
+                         **_too_deep(text)) from None
     if node is None:
         raise InputError("the file is empty; a balance needs 'balance', 'streams' and 'steps'",
                          file=file, line=1)
-    builder = _Builder(file)
+    builder = _Builder(file, flow_lines)
     data = builder.build(node, ())
+    if flow_lines and len(builder.flow_lines_built) != len(flow_lines):
+        raise _FastPathDeclined  # a recognised line did not come back as a mapping where written
     return Document(data=data, file=file, positions=builder.positions)
+
+
+def _compose(text: str) -> yaml.Node | None:
+    """The YAML node graph of ``text``: libyaml's when it reads the text, else the pure-Python
+    parser's (which raises the errors :func:`parse_document` words)."""
+    if _FAST_LOADER is not None and "\t" not in text:
+        try:
+            return yaml.compose(text, Loader=_FAST_LOADER)
+        except yaml.YAMLError:
+            pass
+    return yaml.compose(text, Loader=yaml.SafeLoader)
+
+
+def _too_deep(text: str) -> dict[str, int]:
+    """Line and column where collections first nest deeper than 100 levels (parse events are read
+    without recursion, so this works where composing the file failed)."""
+    depth = 0
+    try:
+        for event in yaml.parse(text, Loader=yaml.SafeLoader):
+            if isinstance(event, yaml.CollectionStartEvent):
+                depth += 1
+                if depth > 100:
+                    return {"line": event.start_mark.line + 1,
+                            "column": event.start_mark.column + 1}
+            elif isinstance(event, yaml.CollectionEndEvent):
+                depth -= 1
+    except yaml.YAMLError:
+        pass
+    return {}
 
 
 def load_document(path: str | Path) -> Document:

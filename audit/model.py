@@ -21,12 +21,16 @@ from typing import Annotated, Any, Union
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator
 
 from audit import units
+from audit.acceptance import Acceptance
 from audit.errors import InputError, InputErrors, Problem, UnitError
 from audit.loader import Document, load_document, parse_document
 from audit.quantities import Pressure, Temperature
 from audit.state_spec import StreamSpec
 from audit.steps import REGISTRY
+from audit.tables import TableSource
+from audit.tables import resolve as resolve_tables
 from audit.tolerances import ToleranceOverrides, Tolerances
+from audit.uncertainty_spec import BalanceUncertainty
 
 SCHEMA_VERSION = "1"
 SCHEMA_FILE = "plant-audit-balance.schema.json"
@@ -54,6 +58,9 @@ class BalanceInfo(BaseModel):
         "pressures such as '10 barg'")
     dead_state: DeadState = Field(default_factory=DeadState)
     tolerances: Tolerances = Field(default_factory=Tolerances)
+    uncertainty: BalanceUncertainty | None = Field(
+        None, description="measurement uncertainties: defaults per kind of quantity "
+        "(audit.uncertainty_spec)")
 
     @field_validator("revision", mode="before")
     @classmethod
@@ -77,6 +84,14 @@ class Balance(BaseModel):
     balance: BalanceInfo
     streams: dict[str, StreamSpec] = Field(min_length=1)
     steps: list[StepModel] = Field(default_factory=list)  # type: ignore[valid-type]
+    accepted: list[Acceptance] = Field(
+        default_factory=list, description="findings a reviewer has accepted (audit.acceptance)")
+    streams_from: str | TableSource | None = Field(
+        None, description="a stream table (.xlsx or .csv, relative to the balance file) whose "
+        "rows are merged into 'streams' (audit.tables)")
+    claims_from: str | TableSource | None = Field(
+        None, description="a claim table (step | field | value | unit) whose rows set fields of "
+        "the steps (audit.tables)")
 
 
 # -- loading ---------------------------------------------------------------------------------------
@@ -86,7 +101,7 @@ def load_balance(path: str | Path) -> tuple[Balance, Document]:
     Raises :class:`InputError` (or :class:`InputErrors`) whose messages name the file, line, column
     and field path of every problem found.
     """
-    document = load_document(path)
+    document, _ = resolve_tables(load_document(path))
     return validate_document(document), document
 
 
@@ -105,6 +120,10 @@ def validate_document(document: Document) -> Balance:
     info = data.get("balance")
     if isinstance(info, dict) and info.get("site_pressure") is not None:
         try:
+            if units.is_gauge(info["site_pressure"]):
+                raise UnitError(
+                    f"'{info['site_pressure']}' is a gauge pressure, but the site pressure is the "
+                    "atmospheric pressure at the site: write it as absolute, e.g. '1.013 bar'")
             site = units.to_si(info["site_pressure"], "pressure")
         except UnitError as exc:
             line, column = document.position(("balance", "site_pressure"))
@@ -120,10 +139,9 @@ def _problems(exc: ValidationError, document: Document) -> list[Problem]:
     problems = []
     for error in exc.errors(include_url=False):
         path, missing = _real_path(document.data, error["loc"])
-        line, column = document.position(path)
         message = _message(error, missing, path, document.data)
         problems.append(Problem(
-            message=message, file=document.file, line=line, column=column,
+            message=message, **document.place(path),
             field_path=_dotted(path, missing), where=_where(path, document.data),
         ))
     return problems
@@ -141,7 +159,8 @@ def _real_path(data: Any, loc: tuple) -> tuple[tuple, str | None]:
         elif isinstance(node, list) and isinstance(part, int) and 0 <= part < len(node):
             node = node[part]
             path.append(part)
-        elif i == len(loc) - 1 and isinstance(part, str) and isinstance(node, dict):
+        elif (i == len(loc) - 1 and isinstance(part, str) and isinstance(node, dict)
+              and part != node.get("kind")):  # a step's kind is a union tag, not a field
             missing = part
     return tuple(path), missing
 
@@ -184,12 +203,52 @@ def _message(error: dict, missing: str | None, path: tuple, data: Any) -> str:
     if kind == "union_tag_not_found":
         known = ", ".join(sorted(REGISTRY))
         return f"a step needs a 'kind', one of: {known}"
+    if kind == "too_short":
+        ctx = error.get("ctx", {})
+        wanted, found = ctx.get("min_length", 1), ctx.get("actual_length", 0)
+        return (f"needs at least {wanted} {'entry' if wanted == 1 else 'entries'}; "
+                f"{'none is' if found == 0 else f'only {found} is' if found == 1 else f'{found} are'}"
+                " given")
+    if kind in ("model_type", "model_attributes_type", "dict_type"):
+        return (f"expected a mapping of fields here ('name: value' lines or {{...}}), not "
+                f"{_describe(error.get('input'))}")
+    if kind == "list_type":
+        return (f"expected a list here ('- item' lines or [...]), not "
+                f"{_describe(error.get('input'))}")
+    if kind == "string_type" and error["loc"] and error["loc"][-1] == "[key]":
+        return (f"the name {error.get('input')!r} must be text; put it in quotes, e.g. "
+                f"'{error.get('input')}'")
+    if kind == "string_type":
+        value = error.get("input")
+        hint = (f"; put it in quotes ('{value}') if it is a name"
+                if isinstance(value, (int, float)) and not isinstance(value, bool) else "")
+        return f"expected text here, not {_describe(value)}{hint}"
+    if kind in ("float_parsing", "float_type"):
+        hint = (" (quality is the vapour mass fraction, a number from 0 to 1, e.g. 0.95)"
+                if error["loc"] and error["loc"][-1] == "quality" else "")
+        return f"expected a plain number here, not {_describe(error.get('input'))}{hint}"
     message = error["msg"]
     for prefix in ("Value error, ", "Assertion failed, "):
         if message.startswith(prefix):
             message = message[len(prefix):]
     return message
 
+
+def _describe(value: Any) -> str:
+    """A value's kind in words, for messages."""
+    if value is None:
+        return "an empty value"
+    if isinstance(value, list):
+        return "a list"
+    if isinstance(value, dict):
+        return "a mapping"
+    if isinstance(value, bool):
+        return f"the value {value}"
+    if isinstance(value, (int, float)):
+        return f"the number {value!r}"
+    if isinstance(value, str):
+        return f"the text '{value[:40]}'"
+    return type(value).__name__
 
 def _allowed_fields(path: tuple, data: Any) -> list[str]:
     """The field names of the model that owns the mapping at ``path`` (for suggestions)."""
@@ -202,6 +261,8 @@ def _allowed_fields(path: tuple, data: Any) -> list[str]:
             model = Tolerances
         elif len(path) == 2 and path[1] == "dead_state":
             model = DeadState
+        elif len(path) == 2 and path[1] == "uncertainty":
+            model = BalanceUncertainty
     elif path[0] == "streams" and len(path) == 2:
         model = StreamSpec
     elif path[0] == "steps" and len(path) >= 2:
@@ -228,6 +289,9 @@ def json_schema() -> dict:
         f"A plant energy balance for plant-audit (schema version {SCHEMA_VERSION}). Quantities "
         "are strings with units, e.g. '420 degC', '40 barg', '12 t/h', '2.5 MW'."
     )
+    # The streams may come from a table instead (audit.tables): one of the two is needed.
+    schema["required"] = [name for name in schema.get("required", []) if name != "streams"]
+    schema["anyOf"] = [{"required": ["streams"]}, {"required": ["streams_from"]}]
     return schema
 
 

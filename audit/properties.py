@@ -22,6 +22,13 @@ balance file gives as inputs are read on the fluid's usual table reference (Cool
 IAPWS convention for water, the IIR convention for refrigerants), as printed in steam and refrigerant
 tables.
 
+Gas mixtures (a stream written with ``composition:``) are ideal-gas mixtures of the pure species on
+the same formation basis, built from CoolProp's ideal-gas parts in :mod:`audit.mixtures` (which
+documents the model, its verified temperature ranges and its pressure limit); their states say
+``basis = "formation (ideal-gas mixture)"`` and carry their composition. Pure species in a reaction
+(:meth:`PropertyEngine.species_molar`) are ideal gases, or the real liquid for a species written
+``(l)``.
+
 References
 ----------
 .. [1] W. Wagner, A. Pruß, "The IAPWS formulation 1995 for the thermodynamic properties of ordinary
@@ -35,13 +42,15 @@ References
 from __future__ import annotations
 
 import math
+from collections.abc import Mapping
 from dataclasses import dataclass
 
 import CoolProp
 import CoolProp.CoolProp as CP
 
+from audit import mixtures
 from audit.errors import StateError
-from audit.formation import P_STANDARD, T_STANDARD, species
+from audit.formation import P_STANDARD, T_STANDARD, lookup, species
 
 COOLPROP_VERSION = CoolProp.__version__
 BACKEND = "HEOS"
@@ -49,6 +58,7 @@ GAS_CONSTANT = 8.314_462_618_153_24  # J/(mol K), exact since the 2019 SI (CODAT
 
 BASIS_FORMATION = "formation"
 BASIS_FLUID = "fluid reference"
+BASIS_MIXTURE = f"formation ({mixtures.MODEL_NAME})"
 
 _PAIRS = {
     "TP": CP.PT_INPUTS,
@@ -75,7 +85,9 @@ class State:
 
     T [K], P [Pa], rho [kg/m**3], h, u, g, a, psi [J/kg], s [J/(kg K)], quality [-] (None outside
     the two-phase region), molar_mass [kg/mol]; ``basis`` says whether h, s, u, g, a are on the
-    formation basis or the fluid's own reference.
+    formation basis or the fluid's own reference. A gas mixture also carries its ``composition``
+    (mole fractions by formula) and the species that would condense at its state, as (formula,
+    partial pressure [Pa], saturation pressure [Pa]).
     """
 
     fluid: str
@@ -92,6 +104,8 @@ class State:
     psi: float
     molar_mass: float
     basis: str
+    composition: tuple[tuple[str, float], ...] | None = None
+    condensing: tuple[tuple[str, float, float], ...] = ()
 
 
 @dataclass(frozen=True)
@@ -128,7 +142,18 @@ class PropertyEngine:
         self._cache: dict[tuple, State] = {}
         self._dead: dict[str, tuple[float, float]] = {}
         self._tsat: dict[tuple[str, float], float] = {}
-        self.flash_count = 0
+        self._mixtures = mixtures.IdealGasMixtures()
+        self._mixture_names: dict[str, tuple[mixtures.Component, ...]] = {}
+        self._flashes = 0
+
+    @property
+    def flash_count(self) -> int:
+        """Number of CoolProp evaluations so far (pure fluids and mixture species)."""
+        return self._flashes + self._mixtures.flash_count
+
+    @flash_count.setter
+    def flash_count(self, value: int) -> None:
+        self._flashes = value - self._mixtures.flash_count
 
     # -- fluids -------------------------------------------------------------------------------
     def fluid(self, name: str) -> _Fluid:
@@ -170,7 +195,10 @@ class PropertyEngine:
 
     # -- saturation -----------------------------------------------------------------------------
     def saturation_temperature(self, fluid: str, P: float) -> float | None:
-        """T_sat(P) [K] of a pure fluid, or None above the critical pressure."""
+        """T_sat(P) [K] of a pure fluid, or None above the critical pressure (and for a gas
+        mixture, which the engine does not condense)."""
+        if fluid in self._mixture_names:
+            return None
         info = self.fluid(fluid)
         if P >= info.P_crit:
             return None
@@ -179,7 +207,7 @@ class PropertyEngine:
             state = self._states[info.name]
             try:
                 state.update(CP.PQ_INPUTS, P, 0.0)
-                self.flash_count += 1
+                self._flashes += 1
                 self._tsat[key] = state.T()
             except ValueError:
                 self._tsat[key] = math.nan
@@ -207,7 +235,11 @@ class PropertyEngine:
         cached = self._cache.get(key)
         if cached is not None:
             return cached
-        result = self._evaluate(fluid, pair, a, b, table_basis)
+        components = self._mixture_names.get(fluid)
+        if components is not None:
+            result = self._mixture_from_pair(components, pair, a, b)
+        else:
+            result = self._evaluate(fluid, pair, a, b, table_basis)
         self._cache[key] = result
         return result
 
@@ -253,21 +285,22 @@ class PropertyEngine:
                 state.update(CP.HmassP_INPUTS, b, a)
             else:
                 state.update(_PAIRS[pair], a, b)
-            self.flash_count += 1
+            self._flashes += 1
             T, P = state.T(), state.p()
             rho, h, s, u = state.rhomass(), state.hmass(), state.smass(), state.umass()
             phase_index = state.phase()
             Q = state.Q()
         except ValueError as exc:
             raise StateError(
-                f"the equation of state of {info.name} cannot evaluate this state ({pair}: "
-                f"{a:.6g}, {b:.6g}): {_short(exc)}"
+                f"the equation of state of {info.name} cannot evaluate this state "
+                f"({_inputs_text(pair, a, b)}): {_short(exc)}"
             ) from None
         finally:
             if imposed is not None:
                 state.unspecify_phase()
-        values = (T, P, rho, h, s, u)
-        if not all(math.isfinite(v) for v in values):
+        isfinite = math.isfinite
+        if not (isfinite(T) and isfinite(P) and isfinite(rho) and isfinite(h) and isfinite(s)
+                and isfinite(u)):
             raise StateError(f"the equation of state of {info.name} returned a non-finite value")
         self._check_T(info, T)
         self._check_P(info, P)
@@ -335,7 +368,7 @@ class PropertyEngine:
             if imposed is not None:
                 state.specify_phase(imposed)
             state.update(CP.PT_INPUTS, P0, T0)
-            self.flash_count += 1
+            self._flashes += 1
             value = (state.hmass() + info.h_shift, state.smass() + info.s_shift)
         except ValueError:
             value = (math.nan, math.nan)
@@ -347,7 +380,127 @@ class PropertyEngine:
 
     def dead_state(self, fluid: str) -> tuple[float, float]:
         """(h0 [J/kg], s0 [J/(kg K)]) of ``fluid`` at the engine's dead state."""
+        components = self._mixture_names.get(fluid)
+        if components is not None:
+            dead = self._mixtures.state(components, self.dead_T, self.dead_P, check_ideal=False)
+            return dead.h, dead.s
         return self._dead_state(self.fluid(fluid))
+
+    # -- gas mixtures and the species of reactions --------------------------------------------------
+    def mixture_components(self, fractions: Mapping[str, float], basis: str = "mole"
+                           ) -> tuple[mixtures.Component, ...]:
+        """The species of a composition (formulas or CoolProp names; ``basis`` ``"mole"`` or
+        ``"mass"``) as mole fractions [-] by formula; :class:`StateError` for a bad composition."""
+        return self._mixtures.components(fractions, basis)
+
+    def mixture_state(self, fractions: Mapping[str, float], T: float, P: float,
+                      basis: str = "mole") -> State:
+        """An ideal-gas mixture at T [K] and P [Pa] on the formation basis (:mod:`audit.mixtures`).
+
+        ``fluid`` is a readable name such as ``mixture(N2 0.7809, O2 0.2094, ...)``, ``phase`` is
+        ``"gas"``, ψ is relative to the same mixture (as an ideal gas) at the dead state, and
+        ``condensing`` lists the species whose partial pressure exceeds their saturation pressure.
+
+        Raises
+        ------
+        StateError : a bad composition, T outside the species' verified ranges, or a pressure at
+            which the mixture is not an ideal gas
+        """
+        components = self.mixture_components(fractions, basis)
+        key = ("mixture", components, T, P)
+        cached = self._cache.get(key)
+        if cached is not None:
+            return cached
+        values = self._mixtures.state(components, T, P)
+        dead = self._mixtures.state(components, self.dead_T, self.dead_P, check_ideal=False)
+        T0 = self.dead_T
+        result = State(
+            fluid=mixtures.mixture_name(components), T=T, P=P, rho=values.rho, h=values.h,
+            s=values.s, u=values.u, phase="gas", quality=None, g=values.h - T * values.s,
+            a=values.u - T * values.s, psi=(values.h - dead.h) - T0 * (values.s - dead.s),
+            molar_mass=values.molar_mass, basis=BASIS_MIXTURE,
+            composition=tuple((c.formula, c.x) for c in components),
+            condensing=values.condensing,
+        )
+        self._cache[key] = result
+        self._mixture_names[result.fluid] = components
+        return result
+
+    def _mixture_from_pair(self, components: tuple[mixtures.Component, ...], pair: str, a: float,
+                           b: float) -> State:
+        """A mixture (already evaluated once by name) from (T, P), (P, h) or (P, s); h [J/kg] and
+        s [J/(kg K)] on the formation basis, T found by regula falsi (Illinois) on the verified
+        range, where h and s rise monotonically with T."""
+        fractions = {c.formula: c.x for c in components}
+        if pair == "TP":
+            return self.mixture_state(fractions, a, b)
+        if pair not in ("Ph", "Ps"):
+            raise StateError("a gas mixture has no quality: give it by (T, P), (P, h) or (P, s)")
+        P, target = a, b
+
+        def residual(T: float) -> float:
+            values = self._mixtures.state(components, T, P, check_ideal=False)
+            return (values.h if pair == "Ph" else values.s) - target
+
+        low = max(mixtures.VERIFIED_RANGE[c.fluid][0] for c in components)
+        high = min(mixtures.VERIFIED_RANGE[c.fluid][1] for c in components)
+        f_low, f_high = residual(low), residual(high)
+        if f_low > 0.0 or f_high < 0.0:
+            name = "h" if pair == "Ph" else "s"
+            raise StateError(
+                f"no state of this gas mixture at {P / 1e5:.6g} bar has {name} = {target:.6g} "
+                f"within its verified temperature range ({low - 273.15:.6g} to "
+                f"{high - 273.15:.6g} °C)")
+        side = 0
+        T = low
+        for _ in range(100):
+            T = (low * f_high - high * f_low) / (f_high - f_low)
+            f = residual(T)
+            if f == 0.0 or high - low < 1e-9 * T:
+                break
+            if f > 0.0:
+                high, f_high = T, f
+                if side == -1:
+                    f_low /= 2.0
+                side = -1
+            else:
+                low, f_low = T, f
+                if side == 1:
+                    f_high /= 2.0
+                side = 1
+            if abs(f) < 1e-10 * max(1.0, abs(target)):
+                break
+        return self.mixture_state(fractions, T, P)
+
+    def species_molar(self, name: str, phase: str, T: float, P: float) -> tuple[float, float]:
+        """A pure species of a reaction at T [K] and P [Pa] on the formation basis:
+        (h [J/mol], s [J/(mol K)]).
+
+        ``phase`` ``"g"``: the ideal gas (:mod:`audit.mixtures`); ``"l"``: the real liquid from the
+        species' equation of state (IAPWS-95 for water), which must be liquid at (T, P).
+        """
+        data = lookup(name)
+        if data is None:
+            raise StateError(f"no formation data for '{name}'")
+        if phase == "g":
+            return self._mixtures.species_molar(data.fluid, T, P)
+        state = self.state(data.fluid, "TP", T, P)
+        if state.phase != "liquid":
+            raise StateError(
+                f"{data.formula}(l) is not liquid at {T - 273.15:.6g} °C and {P / 1e5:.6g} bar "
+                f"(it is {state.phase} there); write {data.formula}(g) or give other conditions")
+        return state.h * state.molar_mass, state.s * state.molar_mass
+
+    def species_molar_mass(self, name: str) -> float:
+        """Molar mass [kg/mol] of a species with formation data (formula or CoolProp name)."""
+        data = lookup(name)
+        if data is None:
+            raise StateError(f"no formation data for '{name}'")
+        return self.fluid(data.fluid).molar_mass
+
+    def saturation_pressure(self, fluid: str, T: float) -> float | None:
+        """p_sat(T) [Pa] of a pure fluid below its critical temperature, else None."""
+        return self._mixtures.saturation_pressure(self.canonical_name(fluid), T)
 
 
 def _ideal_gas_standard(state: CP.AbstractState) -> tuple[float, float]:
@@ -363,6 +516,16 @@ def _ideal_gas_standard(state: CP.AbstractState) -> tuple[float, float]:
     s_ig = state.smolar_idealgas() - GAS_CONSTANT * math.log(rho_standard / rho_low)
     return h_ig, s_ig
 
+
+def _inputs_text(pair: str, a: float, b: float) -> str:
+    """A state's two inputs in engineering units, for messages: 'P = 1 bar, h = 1e+05 kJ/kg'."""
+    shown = {"T": lambda v: f"T = {v - 273.15:.6g} °C", "P": lambda v: f"P = {v / 1e5:.6g} bar",
+             "Q": lambda v: f"quality = {v:.6g}", "h": lambda v: f"h = {v / 1e3:.6g} kJ/kg",
+             "s": lambda v: f"s = {v / 1e3:.6g} kJ/(kg K)"}
+    first, second = pair[:1], pair[1:]
+    if first not in shown or second not in shown:
+        return f"{pair}: {a:.6g}, {b:.6g}"
+    return f"{shown[first](a)}, {shown[second](b)}"
 
 def _short(exc: Exception) -> str:
     text = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__

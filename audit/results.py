@@ -20,7 +20,9 @@ STANDARD_GRAVITY = 9.806_65  # m/s**2, exact by definition (3rd CGPM, 1901)
 @dataclass
 class StreamResult:
     """A stream's evaluated state and flow. T [K], P [Pa], rho [kg/m**3], h, u, g, a, psi
-    [J/kg], s [J/(kg K)], mass_flow [kg/s], molar_flow [mol/s], velocity [m/s], elevation [m]."""
+    [J/kg], s [J/(kg K)], mass_flow [kg/s], molar_flow [mol/s], velocity [m/s], elevation [m];
+    a gas mixture's ``composition`` is its mole fractions [-] by species formula (None for a
+    pure fluid)."""
 
     id: str
     fluid: str
@@ -44,6 +46,7 @@ class StreamResult:
     declared_phase: str | None = None
     description: str | None = None
     line: int | None = None
+    composition: dict[str, float] | None = None
 
     @property
     def kinetic_potential(self) -> float:
@@ -141,16 +144,21 @@ class AuditResult:
     provenance: dict[str, str]
 
     # -- verdicts ------------------------------------------------------------------------------
-    def counts(self) -> dict[str, int]:
-        """Number of findings per severity."""
+    def counts(self, include_accepted: bool = True) -> dict[str, int]:
+        """Number of findings per severity (without the accepted ones if ``include_accepted`` is
+        False)."""
         counts = {severity: 0 for severity in SEVERITY_RANK}
         for finding in self.findings:
-            counts[finding.severity] += 1
+            if include_accepted or not finding.accepted:
+                counts[finding.severity] += 1
         return counts
 
-    def fails(self, threshold: str = "error") -> bool:
-        """True when any finding is at or above ``threshold`` ("error" or "warning")."""
-        return any(at_or_above(f.severity, threshold) for f in self.findings)
+    def fails(self, threshold: str = "error", marginal: bool = False) -> bool:
+        """True when any finding not accepted by a reviewer is at or above ``threshold``
+        ("error" or "warning") or, with ``marginal``, has the verdict "marginal" (a law finding
+        within its measurement uncertainty, :mod:`audit.uncertainty`)."""
+        return any((at_or_above(f.severity, threshold) or (marginal and f.verdict == "marginal"))
+                   and not f.accepted for f in self.findings)
 
     # -- tables --------------------------------------------------------------------------------
     def streams_frame(self) -> pd.DataFrame:

@@ -8,7 +8,9 @@ Order of work:
    more than one step, no two steps share an id (input errors), unused streams (warning);
 3. every step through its kind's ``evaluate``, with the balance's tolerances and the step's own
    overrides;
-4. plant totals over the flow steps.
+4. plant totals over the flow steps;
+5. the law findings' verdicts with measurement uncertainty and the probable causes of failing
+   steps (:mod:`audit.uncertainty`, :mod:`audit.causes`).
 """
 
 from __future__ import annotations
@@ -22,14 +24,15 @@ from typing import Any
 
 from audit import __version__
 from audit.errors import InputErrors, Problem, StateError
-from audit.findings import WARNING, Finding
+from audit.findings import ERROR, WARNING, Finding, relative
 from audit.loader import Document
 from audit.model import Balance
-from audit.properties import BACKEND, COOLPROP_VERSION, PropertyEngine
+from audit.properties import BACKEND, COOLPROP_VERSION, GAS_CONSTANT, PropertyEngine, State
 from audit.results import AuditResult, PlantTotals, StepResult, StreamResult
 from audit.state_spec import StreamSpec
 from audit.steps import REGISTRY, StepContext
 from audit.tolerances import merged
+from audit.uncertainty import review
 from audit.units import Flow
 
 _PHASE_MATCH = {
@@ -40,9 +43,12 @@ _PHASE_MATCH = {
 }
 
 
-def solve(balance: Balance, document: Document, sha256: str = "") -> AuditResult:
+def solve(balance: Balance, document: Document, sha256: str = "", monte_carlo: int = 0
+          ) -> AuditResult:
     """Audit a validated balance; raise :class:`InputErrors` for states or topology that cannot be
-    evaluated. ``document`` supplies the file name and the line of each stream and step."""
+    evaluated. ``document`` supplies the file name and the line of each stream and step.
+    ``monte_carlo`` > 0 adds a Monte Carlo cross-check of the uncertainties with that many draws
+    per step (:mod:`audit.uncertainty`)."""
     started = time.perf_counter()
     info = balance.balance
     tol = info.tolerances
@@ -69,6 +75,9 @@ def solve(balance: Balance, document: Document, sha256: str = "") -> AuditResult
         findings.extend(ctx.findings)
     if problems:
         raise InputErrors(problems)
+    # 5. verdicts with measurement uncertainty, and probable causes of failing steps
+    findings, review_notes = review(balance, document, engine, streams, results, findings,
+                                    stream_of=_stream, monte_carlo_trials=monte_carlo)
 
     elapsed = time.perf_counter() - started
     return AuditResult(
@@ -83,6 +92,7 @@ def solve(balance: Balance, document: Document, sha256: str = "") -> AuditResult
             "run at (UTC)": datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M:%S"),
             "solve time [s]": f"{elapsed:.3f}",
             "property evaluations": str(engine.flash_count),
+            **review_notes,
         },
     )
 
@@ -93,12 +103,11 @@ def _evaluate_streams(balance: Balance, document: Document, engine: PropertyEngi
     streams: dict[str, StreamResult] = {}
     problems: list[Problem] = []
     for stream_id, spec in balance.streams.items():
-        line, column = document.position(("streams", stream_id))
+        place = document.place(("streams", stream_id))  # a line, or a table cell
         try:
-            streams[stream_id] = _stream(stream_id, spec, engine, line)
+            streams[stream_id] = _stream(stream_id, spec, engine, place["line"])
         except StateError as exc:
-            problems.append(Problem(exc.problem.message, file=document.file, line=line,
-                                    column=column, where=f"stream {stream_id}"))
+            problems.append(Problem(exc.problem.message, **place, where=f"stream {stream_id}"))
             continue
         result = streams[stream_id]
         if spec.phase is not None and result.phase not in _PHASE_MATCH[spec.phase]:
@@ -108,14 +117,46 @@ def _evaluate_streams(balance: Balance, document: Document, engine: PropertyEngi
                 f"({result.T - 273.15:.2f} °C, {result.P / 1e5:.4g} bar) is {result.phase}",
                 stream=stream_id,
             ))
+        if result.composition is not None:
+            findings.extend(_dew_point_findings(
+                stream_id, engine.state(result.fluid, "TP", result.T, result.P)))
     return streams, problems
+
+
+def _dew_point_findings(stream_id: str, state: State) -> list[Finding]:
+    """A gas mixture with a species above its saturation pressure would condense; the ideal-gas
+    mixture model does not, so the stream's values assume a gas that cannot exist."""
+    found = []
+    for formula, partial, p_sat in state.condensing:
+        found.append(Finding(
+            ERROR, "below-dew-point", None,
+            f"stream {stream_id} is below its dew point: the partial pressure of {formula} "
+            f"({partial / 1e3:.4g} kPa) exceeds its saturation pressure at "
+            f"{state.T - 273.15:.2f} °C ({p_sat / 1e3:.4g} kPa), so it would condense; the "
+            "ideal-gas mixture model does not condense: give the condensate as a stream of its "
+            "own and the gas at its dew point or above",
+            claimed=partial, bound=p_sat, margin=partial - p_sat,
+            margin_relative=relative(partial - p_sat, p_sat), quantity="pressure",
+            stream=stream_id,
+        ))
+    return found
 
 
 def _stream(stream_id: str, spec: StreamSpec, engine: PropertyEngine, line: int | None
             ) -> StreamResult:
     pair, a, b = spec.inputs()
-    state = engine.state(spec.fluid, pair, a, b)
-    mass_flow = _mass_flow(spec.flow, spec.fluid, state.rho, state.molar_mass, engine)
+    if spec.composition is not None:
+        # A gas mixture (audit.mixtures); a normal or standard volume of it is converted with the
+        # ideal-gas molar volume at its reference conditions, as combustion practice does.
+        state = engine.mixture_state(spec.composition, a, b, spec.composition_basis)
+        if spec.flow.basis == "normal_volume":
+            T_ref, P_ref = spec.flow.reference  # type: ignore[misc]
+            mass_flow = spec.flow.value * P_ref * state.molar_mass / (GAS_CONSTANT * T_ref)
+        else:
+            mass_flow = _mass_flow(spec.flow, state.fluid, state.rho, state.molar_mass, engine)
+    else:
+        state = engine.state(spec.fluid, pair, a, b)  # type: ignore[arg-type]
+        mass_flow = _mass_flow(spec.flow, spec.fluid, state.rho, state.molar_mass, engine)
     return StreamResult(
         id=stream_id, fluid=state.fluid, T=state.T, P=state.P, rho=state.rho, h=state.h,
         s=state.s, u=state.u, g=state.g, a=state.a, psi=state.psi, phase=state.phase,
@@ -123,6 +164,7 @@ def _stream(stream_id: str, spec: StreamSpec, engine: PropertyEngine, line: int 
         molar_flow=mass_flow / state.molar_mass, flow_as_written=spec.flow.basis,
         velocity=spec.velocity or 0.0, elevation=spec.elevation or 0.0,
         declared_phase=spec.phase, description=spec.description, line=line,
+        composition=dict(state.composition) if state.composition is not None else None,
     )
 
 
@@ -136,7 +178,14 @@ def _mass_flow(flow: Flow, fluid: str, rho: float, molar_mass: float,
     if flow.basis == "actual_volume":
         return flow.value * rho
     T_ref, P_ref = flow.reference  # type: ignore[misc]
-    reference = engine.state(fluid, "TP", T_ref, P_ref)
+    try:
+        reference = engine.state(fluid, "TP", T_ref, P_ref)
+    except StateError as exc:  # e.g. water at 0 °C is below its equation's range
+        raise StateError(
+            f"a normal or standard volumetric flow needs a gas at its reference conditions "
+            f"({T_ref - 273.15:g} °C, {P_ref / 1e3:g} kPa), but {fluid} cannot be evaluated "
+            f"there ({exc.problem.message}); give a mass or molar flow"
+        ) from None
     if reference.phase not in ("vapour", "gas", "supercritical"):
         raise StateError(
             f"a normal or standard volumetric flow needs a gas at its reference conditions "
@@ -181,16 +230,14 @@ def _check_topology(balance: Balance, document: Document, findings: list[Finding
                 table[stream_id].append(step.id)
     for stream_id, steps in producers.items():
         if len(steps) > 1:
-            line, _ = document.position(("streams", stream_id))
             problems.append(Problem(
                 f"is produced by more than one step ({', '.join(steps)}); a stream leaves one "
-                "step only", file=document.file, line=line, where=f"stream {stream_id}"))
+                "step only", **document.place(("streams", stream_id)), where=f"stream {stream_id}"))
     for stream_id, steps in consumers.items():
         if len(steps) > 1:
-            line, _ = document.position(("streams", stream_id))
             problems.append(Problem(
                 f"is consumed by more than one step ({', '.join(steps)}); a stream enters one "
-                "step only (add a splitter)", file=document.file, line=line,
+                "step only (add a splitter)", **document.place(("streams", stream_id)),
                 where=f"stream {stream_id}"))
     if balance.steps:
         for stream_id in balance.streams:

@@ -11,6 +11,7 @@ from typing import Literal
 
 from pydantic import BaseModel, ConfigDict, Field, model_validator
 
+from audit.composition import check_fractions, named_composition
 from audit.quantities import (
     Length,
     Pressure,
@@ -20,6 +21,7 @@ from audit.quantities import (
     Temperature,
     Velocity,
 )
+from audit.uncertainty_spec import StreamUncertaintyField
 
 PAIRS = {
     frozenset({"T", "P"}): "TP",
@@ -29,6 +31,10 @@ PAIRS = {
     frozenset({"P", "s"}): "Ps",
 }
 _PROPERTIES = ("T", "P", "quality", "h", "s")
+_PAIR_OF_GIVEN = {tuple(name in given for name in _PROPERTIES): pair for given, pair in PAIRS.items()}
+"""(T given, P given, quality given, h given, s given) -> pair: a cheap lookup per stream."""
+_INPUT_NAMES = {"TP": ("T", "P"), "PQ": ("P", "quality"), "TQ": ("T", "quality"),
+                "Ph": ("P", "h"), "Ps": ("P", "s")}
 
 
 class PropertyPair(BaseModel):
@@ -47,6 +53,8 @@ class PropertyPair(BaseModel):
 
     @model_validator(mode="after")
     def _two_properties(self) -> PropertyPair:
+        if self._given() in _PAIR_OF_GIVEN:
+            return self
         given = frozenset(name for name in _PROPERTIES if getattr(self, name) is not None)
         if given not in PAIRS:
             written = ", ".join(sorted(given)) or "none"
@@ -56,16 +64,18 @@ class PropertyPair(BaseModel):
             )
         return self
 
+    def _given(self) -> tuple[bool, bool, bool, bool, bool]:
+        return (self.T is not None, self.P is not None, self.quality is not None,
+                self.h is not None, self.s is not None)
+
     @property
     def pair(self) -> str:
-        given = frozenset(name for name in _PROPERTIES if getattr(self, name) is not None)
-        return PAIRS[given]
+        return _PAIR_OF_GIVEN[self._given()]
 
     def inputs(self) -> tuple[str, float, float]:
         """(pair, first value, second value) in SI, in the order the pair names them."""
         pair = self.pair
-        names = {"TP": ("T", "P"), "PQ": ("P", "quality"), "TQ": ("T", "quality"),
-                 "Ph": ("P", "h"), "Ps": ("P", "s")}[pair]
+        names = _INPUT_NAMES[pair]
         return pair, float(getattr(self, names[0])), float(getattr(self, names[1]))
 
 
@@ -76,11 +86,45 @@ class StateSpec(PropertyPair):
 
 
 class StreamSpec(StateSpec):
-    """A stream: a state, a flow, and optionally velocity, elevation and a declared phase."""
+    """A stream: a state, a flow, and optionally velocity, elevation and a declared phase.
 
+    A gas mixture gives ``composition`` (mole fractions by formula or CoolProp name, or mass
+    fractions with ``composition_basis: mass``, or a named composition such as ``air``) instead of
+    ``fluid``, with T and P; it is evaluated as an ideal-gas mixture (:mod:`audit.mixtures`).
+    """
+
+    fluid: str | None = Field(  # type: ignore[assignment]
+        None, description="CoolProp fluid name, e.g. 'Water', 'Ammonia', 'Air' (or give "
+        "'composition' for a gas mixture)")
+    composition: dict[str, float] | str | None = Field(
+        None, description="a gas mixture instead of 'fluid': fractions by species formula or "
+        "CoolProp name, e.g. {CH4: 0.97, N2: 0.02, CO2: 0.01}, summing to 1; or a named "
+        "composition: 'air' (dry air)")
+    composition_basis: Literal["mole", "mass"] = Field(
+        "mole", description="whether the composition gives mole (default) or mass fractions")
     flow: StreamFlow = Field(description="mass, molar or volumetric flow")
     velocity: Velocity | None = Field(None, description="mean velocity, for kinetic energy")
     elevation: Length | None = Field(None, description="elevation, for potential energy")
     phase: Literal["liquid", "vapour", "two-phase", "supercritical"] | None = Field(
         None, description="the phase the balance states; checked against the computed one")
     description: str | None = None
+    uncertainty: StreamUncertaintyField = None
+
+    @model_validator(mode="after")
+    def _fluid_or_composition(self) -> StreamSpec:
+        if (self.fluid is None) == (self.composition is None):
+            raise ValueError("a stream needs exactly one of 'fluid' (a pure fluid) or "
+                             "'composition' (a gas mixture)")
+        if self.composition is None:
+            return self
+        if isinstance(self.composition, str):
+            if self.composition_basis == "mass":
+                raise ValueError("a named composition gives mole fractions; drop "
+                                 "'composition_basis: mass'")
+            self.composition = named_composition(self.composition)
+        check_fractions(self.composition, self.composition_basis)
+        if self.pair != "TP":
+            raise ValueError("a gas mixture is written with T and P")
+        if self.phase not in (None, "vapour"):
+            raise ValueError(f"a gas mixture is a gas; it cannot be declared {self.phase}")
+        return self

@@ -43,6 +43,8 @@ _GAUGE = re.compile(r"^(mbar|bar|Pa|kPa|MPa|psi)(?:g|\(g\))$")
 _ABSOLUTE = re.compile(r"^(mbar|bar|Pa|kPa|MPa|psi)(?:a|\(a\))$")
 _NORMAL_FLOW = re.compile(r"^([NS])m(?:3|\^3|\*\*3|³)/(s|h|d)$")
 _PER = {"s": 1.0, "h": 3600.0, "d": 86400.0}
+MAX_QUANTITY_CHARS = 200
+"""Longest quantity text read; longer text is refused before pint parses it."""
 
 
 @dataclass(frozen=True)
@@ -114,7 +116,10 @@ def _converter(unit: str) -> tuple[float, float, str]:
         one = UREG.Quantity(1.0, unit)
         base_zero = zero.to_base_units()
         base_one = one.to_base_units()
-    except (pint.errors.PintError, AttributeError, TypeError, ValueError, SyntaxError) as exc:
+    except Exception as exc:
+        # pint's parser evaluates the text: any failure of it (a PintError, but also
+        # ZeroDivisionError for 'kg/s/0', tokenize.TokenError for 'degC)', RecursionError for very
+        # long products) means the text is not a unit we know
         raise UnitError(f"unknown unit '{unit}'") from exc
     # pint's base unit of substance is the mole and of temperature the kelvin, as in SI.
     offset = float(base_zero.magnitude)
@@ -133,6 +138,11 @@ def split_number(text: object, kind: str) -> tuple[float, str]:
         )
     if not isinstance(text, str):
         raise UnitError(f"expected a quantity with a unit, such as {expected}; got {text!r}")
+    if len(text) > MAX_QUANTITY_CHARS:
+        raise UnitError(
+            f"'{text[:40]}...' is {len(text):,} characters long, too long for a quantity such as "
+            f"{expected}"
+        )
     match = _NUMBER.match(text)
     if not match:
         lowered = text.strip().lower()
@@ -150,6 +160,15 @@ def split_number(text: object, kind: str) -> tuple[float, str]:
     return number, unit
 
 
+def is_gauge(text: object) -> bool:
+    """Whether a pressure is written in a gauge unit (``"10 barg"``, ``"5 psi(g)"``)."""
+    try:
+        _, unit = split_number(text, "pressure")
+    except UnitError:
+        return False
+    unit = _normalise(unit)
+    return bool(_GAUGE.match(unit)) or unit == "psig"
+
 def to_si(text: object, kind: str, site_pressure: float | None = None) -> float:
     """Convert a quantity string to the SI unit of ``kind``.
 
@@ -164,28 +183,54 @@ def to_si(text: object, kind: str, site_pressure: float | None = None) -> float:
     The value in the SI unit of the kind (see :data:`KINDS`).
     """
     number, unit = split_number(text, kind)
+    rule = _RULES.get((kind, unit))
+    if rule is None:
+        rule = _unit_rule(text, kind, unit)
+        if len(_RULES) < _MAX_RULES:
+            _RULES[(kind, unit)] = rule
+    scale, offset, gauge = rule
+    if gauge:
+        if site_pressure is None:
+            raise UnitError(
+                f"'{text}' is a gauge pressure, but the balance declares no site_pressure; "
+                "add 'site_pressure' (the atmospheric pressure at the site, e.g. "
+                "'1.013 bar') under 'balance', or write the pressure as absolute"
+            )
+        return number * scale + site_pressure
+    value = number * scale + offset
+    if kind == "temperature" and value <= 0.0:
+        raise UnitError(f"'{text}' is at or below absolute zero ({value:.6g} K)")
+    if kind == "pressure" and value <= 0.0:
+        raise UnitError(f"'{text}' is not a positive absolute pressure ({value:.6g} Pa)")
+    return value
+
+
+_MAX_RULES = 4096
+_RULES: dict[tuple[str, str], tuple[float, float, bool]] = {}
+"""(kind, unit as written) -> its rule (:func:`_unit_rule`): each distinct unit is read once."""
+
+_DIFFERENCE_UNITS = {"K": 1.0, "degC": 1.0, "delta_degC": 1.0, "degF": 5 / 9, "delta_degF": 5 / 9,
+                     "degR": 5 / 9, "mK": 1e-3}
+
+
+def _unit_rule(text: object, kind: str, unit: str) -> tuple[float, float, bool]:
+    """How ``unit`` converts to the SI unit of ``kind``: (scale, offset, gauge), with SI = number
+    × scale + offset, or number × scale + the site pressure for a gauge pressure. Raises
+    :class:`UnitError` naming ``text`` for a unit that is unknown or of another dimension."""
     unit = _normalise(unit)
     if kind == "pressure":
         gauge = _GAUGE.match(unit)
         if gauge or unit in ("psig",):
             base = "psi" if unit == "psig" else gauge.group(1)  # type: ignore[union-attr]
-            scale, offset, _ = _converter(base)
-            if site_pressure is None:
-                raise UnitError(
-                    f"'{text}' is a gauge pressure, but the balance declares no site_pressure; "
-                    "add 'site_pressure' (the atmospheric pressure at the site, e.g. "
-                    "'1.013 bar') under 'balance', or write the pressure as absolute"
-                )
-            return number * scale + site_pressure
+            scale, _, _ = _converter(base)
+            return scale, 0.0, True
         absolute = _ABSOLUTE.match(unit)
         if absolute or unit == "psia":
             unit = "psi" if unit == "psia" else absolute.group(1)  # type: ignore[union-attr]
     if kind == "temperature_difference":
         # A temperature difference: degC and K are the same size; no offset applies.
-        diff_units = {"K": 1.0, "degC": 1.0, "delta_degC": 1.0, "degF": 5 / 9, "delta_degF": 5 / 9,
-                      "degR": 5 / 9, "mK": 1e-3}
-        if unit in diff_units:
-            return number * diff_units[unit]
+        if unit in _DIFFERENCE_UNITS:
+            return _DIFFERENCE_UNITS[unit], 0.0, False
         raise UnitError(
             f"'{text}': '{unit}' is not a unit of temperature difference; use K, degC or degF"
         )
@@ -196,15 +241,11 @@ def to_si(text: object, kind: str, site_pressure: float | None = None) -> float:
     wanted = KINDS[kind]
     if dimensionality != _dimension_of(wanted.si_unit):
         raise UnitError(
-            f"'{text}' is not a {kind.replace('_', ' ')}: '{unit}' has dimension "
+            f"'{text}' is not {'an' if kind[0] in 'aeiou' else 'a'} {kind.replace('_', ' ')}: "
+            f"'{unit}' has dimension "
             f"{dimensionality}; expected a unit such as {wanted.example}"
         )
-    value = number * scale + offset
-    if kind == "temperature" and value <= 0.0:
-        raise UnitError(f"'{text}' is at or below absolute zero ({value:.6g} K)")
-    if kind == "pressure" and value <= 0.0:
-        raise UnitError(f"'{text}' is not a positive absolute pressure ({value:.6g} Pa)")
-    return value
+    return scale, offset, False
 
 
 @lru_cache(maxsize=64)
@@ -219,31 +260,54 @@ def to_flow(text: object) -> Flow:
     [m**3/s at 0 °C, 101.325 kPa]; ``"1500 Sm3/h"`` → standard volume [m**3/s at 15 °C,
     101.325 kPa, ISO 13443]; ``"120 m3/h"`` → actual volume at the stream's own state.
     """
-    example = "'12 t/h', '3.3 kg/s', '10 kmol/h', '1500 Nm3/h' or '120 m3/h'"
     number, unit = split_number(text, "mass_flow")
+    rule = _FLOW_RULES.get(unit)
+    if rule is None:
+        rule = _flow_rule(text, unit)
+        if len(_FLOW_RULES) < _MAX_RULES:
+            _FLOW_RULES[unit] = rule
+    basis, scale, offset, reference, unit, dimensionality = rule
+    if basis == "normal_volume":
+        value = number / scale  # scale: seconds per time unit of the flow
+        _check_flow_sign(text, value)
+        return Flow("normal_volume", value, reference)
+    value = number * scale + offset
+    _check_flow_sign(text, value)
+    if basis is None:
+        raise UnitError(
+            f"'{text}' is not a flow: '{unit}' has dimension {dimensionality}; write it like "
+            f"{_FLOW_EXAMPLE}"
+        )
+    return Flow(basis, value)
+
+
+_FLOW_EXAMPLE = "'12 t/h', '3.3 kg/s', '10 kmol/h', '1500 Nm3/h' or '120 m3/h'"
+_FLOW_RULES: dict[str, tuple] = {}
+"""unit as written -> (basis or None, scale, offset, reference, normalised unit, dimensionality)."""
+
+
+def _flow_rule(text: object, unit: str) -> tuple:
+    """How a flow unit converts (see :data:`_FLOW_RULES`); raises :class:`UnitError` naming
+    ``text`` for an unknown unit."""
     compact = unit.replace(" ", "")
     normal = _NORMAL_FLOW.match(compact)
     if normal:
         reference = NORMAL_CONDITIONS if normal.group(1) == "N" else STANDARD_CONDITIONS
-        value = number / _PER[normal.group(2)]
-        _check_flow_sign(text, value)
-        return Flow("normal_volume", value, reference)
+        return "normal_volume", _PER[normal.group(2)], 0.0, reference, unit, ""
     unit = _normalise(unit)
     try:
         scale, offset, dimensionality = _converter(unit)
     except UnitError:
-        raise UnitError(f"'{text}': unknown unit '{unit}'; a flow is written like {example}") from None
-    value = number * scale + offset
-    _check_flow_sign(text, value)
+        raise UnitError(
+            f"'{text}': unknown unit '{unit}'; a flow is written like {_FLOW_EXAMPLE}") from None
+    basis = None
     if dimensionality == _dimension_of("kg/s"):
-        return Flow("mass", value)
-    if dimensionality == _dimension_of("mol/s"):
-        return Flow("molar", value)
-    if dimensionality == _dimension_of("m**3/s"):
-        return Flow("actual_volume", value)
-    raise UnitError(
-        f"'{text}' is not a flow: '{unit}' has dimension {dimensionality}; write it like {example}"
-    )
+        basis = "mass"
+    elif dimensionality == _dimension_of("mol/s"):
+        basis = "molar"
+    elif dimensionality == _dimension_of("m**3/s"):
+        basis = "actual_volume"
+    return basis, scale, offset, None, unit, dimensionality
 
 
 def _check_flow_sign(text: object, value: float) -> None:

@@ -20,6 +20,8 @@ EXPECTED_SEEDED = {
     ("EV1", "valve-not-isenthalpic"), ("EV1", "negative-entropy-generation"),
     ("R1", "energy-imbalance"),
     ("SP1", "mass-imbalance"),
+    ("B1", "heating-value-mismatch"),
+    ("EL1", "input-below-minimum"), ("EL1", "power-mismatch"), ("EL1", "energy-imbalance"),
 }
 
 

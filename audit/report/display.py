@@ -23,6 +23,8 @@ DISPLAY: dict[str, tuple[str, float, float]] = {
     "specific_entropy": ("kJ/(kg·K)", 1e-3, 0.0),
     "density": ("kg/m³", 1.0, 0.0),
     "fraction": ("-", 1.0, 0.0),
+    "voltage": ("V", 1.0, 0.0),
+    "current": ("A", 1.0, 0.0),
     "mass": ("kg", 1.0, 0.0),
 }
 

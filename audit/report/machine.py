@@ -14,6 +14,10 @@ JSON structure, version ``JSON_VERSION``::
 
 Non-finite numbers (an infinitely hot source) are written as null. Keys are sorted and the run-time
 fields are kept in ``provenance`` only, so two runs on the same input differ only there.
+
+CSV text fields that a spreadsheet program would read as a formula (they start with ``=``, ``+``,
+``-``, ``@``, a tab or a carriage return: formula or CSV injection, OWASP) are written with a leading
+single quote; the JSON keeps the text as written.
 """
 
 from __future__ import annotations
@@ -29,6 +33,9 @@ from typing import Any
 from audit.results import AuditResult
 
 JSON_VERSION = "1"
+
+# First characters that make a spreadsheet program evaluate a cell as a formula (OWASP, CSV injection)
+FORMULA_TRIGGERS = ("=", "+", "-", "@", "\t", "\r")
 
 UNITS = {
     "T": "K", "P": "Pa", "rho": "kg/m3", "h, u, g, a, psi": "J/kg", "s": "J/(kg K)",
@@ -82,9 +89,22 @@ def write_csv(result: AuditResult, folder: str | Path) -> list[Path]:
     for name, frame in (("findings", result.findings_frame()), ("steps", result.steps_frame()),
                         ("streams", result.streams_frame())):
         target = folder / f"{name}.csv"
+        frame = frame.apply(lambda column: column.map(csv_safe))
+        frame.index = frame.index.map(csv_safe)
         atomic_write_text(target, frame.to_csv(index=name != "findings"))
         written.append(target)
     return written
+
+
+def csv_safe(value: Any) -> Any:
+    """``value`` with a leading single quote when it is text a spreadsheet program would evaluate
+    as a formula (see :data:`FORMULA_TRIGGERS`); carriage returns in text become line feeds (the
+    csv writer quotes a field with a line feed, not one with a lone carriage return, which would
+    split the row). Anything else unchanged."""
+    if not isinstance(value, str):
+        return value
+    text = value.replace("\r\n", "\n").replace("\r", "\n")
+    return "'" + text if value.startswith(FORMULA_TRIGGERS) else text
 
 
 def atomic_write_text(path: Path, text: str) -> None:

@@ -21,6 +21,7 @@ from audit.properties import PropertyEngine
 from audit.quantities import Power, Temperature
 from audit.results import HeatFlow, StepResult, StreamResult
 from audit.tolerances import ToleranceOverrides, Tolerances
+from audit.uncertainty_spec import StepUncertaintyField, step_spreads
 
 CONSERVATIVE_NOTE = (
     "Heat with no declared boundary temperature is taken as received from an infinitely hot "
@@ -38,6 +39,12 @@ class StepBase(BaseModel):
     description: str | None = None
     tolerances: ToleranceOverrides | None = Field(
         None, description="this step's own tolerances, overriding the balance's")
+    uncertainty: StepUncertaintyField = None
+
+    @model_validator(mode="after")
+    def _uncertainty_names_claims(self) -> StepBase:
+        step_spreads(self)  # raises naming a key that is not a claim, or an unreadable spread
+        return self
 
     def stream_ids(self) -> tuple[list[str], list[str]]:
         """(inlet stream ids, outlet stream ids) for the plant's topology."""
@@ -161,10 +168,16 @@ def finish_flow_step(
     energy_finding: str = "energy-imbalance",
     notes: Sequence[str] = (),
     check_mass: bool = True,
+    energy_scale_floor: float = 0.0,
 ) -> tuple[StepResult, Balance]:
-    """Apply the laws to a flow step and build its :class:`StepResult` (kind checks come after)."""
+    """Apply the laws to a flow step and build its :class:`StepResult` (kind checks come after).
+
+    ``energy_scale_floor`` [W] raises the scale of the relative energy tolerance where the streams'
+    own turnover misses the step's largest energy term (a reacting step's heat of reaction).
+    """
     tol = ctx.tolerances
     balance = flow_balance(inlets, outlets, heat_flows, W, ctx.T0)
+    balance.energy_scale = max(balance.energy_scale, energy_scale_floor)
     conservative = any("conservative" in q.note for q in heat_flows)
     inlet_mass = sum(s.mass_flow for s in inlets)
     for finding in law_findings(

@@ -101,12 +101,16 @@ def evaluate(step: HeatExchanger, ctx: StepContext) -> StepResult:
             ))
     if step.duty is not None:
         tol_E = result.energy_tolerance
-        worst = max((released, received), key=lambda d: abs(d - step.duty))
+        # the duty is what passes from the hot side to the cold side: the hot side releases it
+        # plus the claimed heat loss
+        loss = step.heat_loss or 0.0
+        worst = max((released - loss, received), key=lambda d: abs(d - step.duty))
         if abs(worst - step.duty) > tol_E:
+            lost = f" ({format_power(loss)} of it lost to ambient)" if loss else ""
             ctx.add(Finding(
                 ERROR, "duty-mismatch", step.id,
                 f"the claimed duty {format_power(step.duty)} differs from the streams: the hot "
-                f"side releases {format_power(released)}, the cold side receives "
+                f"side releases {format_power(released)}{lost}, the cold side receives "
                 f"{format_power(received)}",
                 claimed=step.duty, bound=worst, margin=abs(worst - step.duty),
                 margin_relative=relative(abs(worst - step.duty), worst), quantity="power",

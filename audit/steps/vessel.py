@@ -20,6 +20,7 @@ from typing import Literal
 
 from pydantic import BaseModel, ConfigDict, model_validator
 
+from audit.errors import StateError
 from audit.laws import closed_balance, energy_tolerance, law_findings
 from audit.quantities import Energy, Mass, Temperature
 from audit.results import HeatFlow, StepResult, StreamResult
@@ -76,7 +77,10 @@ class Vessel(StepBase):
 
 def _contents(step: Vessel, ctx: StepContext, which: str, spec: PropertyPair) -> StreamResult:
     pair, a, b = spec.inputs()
-    s = ctx.engine.state(step.fluid, pair, a, b)
+    try:
+        s = ctx.engine.state(step.fluid, pair, a, b)
+    except StateError as exc:
+        raise StateError(f"the {which} state: {exc.problem.message}") from None
     return StreamResult(
         id=f"{step.id}.{which}", fluid=s.fluid, T=s.T, P=s.P, rho=s.rho, h=s.h, s=s.s, u=s.u,
         g=s.g, a=s.a, psi=s.psi, phase=s.phase, quality=s.quality, basis=s.basis,

@@ -1,0 +1,217 @@
+"""Accepted findings: a reviewer's record that a known finding may stand for a while.
+
+A reviewer accepts a finding by naming the step (or the stream) and the finding's name, with a
+reason, who accepted it and an expiry date. Acceptances are written either inside the balance, as a
+top-level ``accepted:`` list, or in a file beside it named ``<balance stem>.accepted.yaml`` (or
+``.accepted.yml``) holding the same ``accepted:`` list::
+
+    accepted:
+      - step: T1
+        finding: work-above-bound
+        reason: vendor curve pending; the guarantee point is being re-rated
+        accepted_by: process lead
+        expires: 2026-12-31
+
+Rules, applied after the audit by :func:`apply_acceptances`:
+
+* an acceptance matches every finding with its name at its step (and at its stream, when it names
+  one); a matched finding keeps its severity and stays in every report, with ``accepted`` set to the
+  reason, who and until when, and no longer fails the gate;
+* an acceptance is valid up to and including its expiry date; past it the finding counts again and
+  an ``acceptance-expired`` warning says so;
+* an acceptance that matches no finding is reported as an ``acceptance-unmatched`` warning, so
+  stale acceptances do not pile up silently.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import difflib
+from datetime import date
+from pathlib import Path
+from typing import Any
+
+from pydantic import (
+    BaseModel,
+    ConfigDict,
+    Field,
+    PrivateAttr,
+    ValidationError,
+    field_validator,
+    model_validator,
+)
+
+from audit.errors import InputError, InputErrors, Problem
+from audit.findings import NAMES, WARNING, Finding
+from audit.loader import load_document
+from audit.results import AuditResult
+
+BESIDE_SUFFIXES = (".accepted.yaml", ".accepted.yml")
+"""Endings of the acceptance file beside a balance (``plant.yaml`` → ``plant.accepted.yaml``)."""
+
+
+class Acceptance(BaseModel):
+    """One accepted finding, as written in the balance or in the file beside it."""
+
+    model_config = ConfigDict(extra="forbid")
+
+    finding: str = Field(description="the finding's name, e.g. 'work-above-bound'")
+    step: str | None = Field(None, description="the id of the step the finding is reported at")
+    stream: str | None = Field(
+        None, description="the id of the stream, for findings reported at a stream")
+    reason: str = Field(min_length=1, description="why the finding may stand")
+    accepted_by: str = Field(min_length=1, description="who accepted it")
+    expires: date = Field(description="last day the acceptance holds (YYYY-MM-DD)")
+    _source: str | None = PrivateAttr(None)
+
+    @property
+    def source(self) -> str | None:
+        """Where it was written (file:line), once :meth:`placed` has been called."""
+        return self._source
+
+    def placed(self, source: str) -> Acceptance:
+        """A copy that remembers where it was written (file:line), for the messages."""
+        copy = self.model_copy()
+        copy._source = source
+        return copy
+
+    @field_validator("finding")
+    @classmethod
+    def _known_name(cls, value: str) -> str:
+        if value not in NAMES:
+            close = difflib.get_close_matches(value, list(NAMES), n=1)
+            hint = f"; did you mean '{close[0]}'?" if close else ""
+            raise ValueError(f"'{value}' is not a finding name{hint}")
+        if value.startswith("acceptance-"):
+            raise ValueError(f"'{value}' is about acceptances themselves and cannot be accepted")
+        return value
+
+    @field_validator("reason", "accepted_by")
+    @classmethod
+    def _not_blank(cls, value: str) -> str:
+        if not value.strip():
+            raise ValueError("must not be blank")
+        return value
+
+    @model_validator(mode="after")
+    def _names_a_place(self) -> Acceptance:
+        if self.step is None and self.stream is None:
+            raise ValueError("an acceptance names the 'step' (or the 'stream') of the finding")
+        return self
+
+    def matches(self, finding: Finding) -> bool:
+        """True when ``finding`` is the one this acceptance is about."""
+        return (finding.name == self.finding
+                and (self.step is None or finding.step == self.step)
+                and (self.stream is None or finding.stream == self.stream))
+
+    def where(self) -> str:
+        parts = []
+        if self.step is not None:
+            parts.append(f"step {self.step}")
+        if self.stream is not None:
+            parts.append(f"stream {self.stream}")
+        return ", ".join(parts)
+
+    def label(self) -> str:
+        """The text a report shows beside an accepted finding."""
+        return f"{self.reason} (accepted by {self.accepted_by}, until {self.expires.isoformat()})"
+
+
+def beside_file(balance_path: str | Path) -> Path | None:
+    """The acceptance file beside ``balance_path``, if one exists."""
+    path = Path(balance_path)
+    for suffix in BESIDE_SUFFIXES:
+        candidate = path.with_name(path.name[: -len(path.suffix)] + suffix if path.suffix
+                                   else path.name + suffix)
+        if candidate.is_file():
+            return candidate
+    return None
+
+
+def is_acceptance_file(path: str | Path) -> bool:
+    """True for a file named like an acceptance file (batches do not audit those)."""
+    return Path(path).name.lower().endswith(BESIDE_SUFFIXES)
+
+
+def parse_acceptances(items: Any, document: Any, base: tuple = ("accepted",)) -> list[Acceptance]:
+    """Validate a list of acceptances found at ``base`` in ``document`` (a
+    :class:`audit.loader.Document`); errors name the file, line and field."""
+    if items is None:
+        return []
+    if not isinstance(items, list):
+        line, column = document.position(base)
+        raise InputError("'accepted' is a list of acceptances", file=document.file, line=line,
+                         column=column, field_path=".".join(map(str, base)))
+    accepted: list[Acceptance] = []
+    problems: list[Problem] = []
+    for index, item in enumerate(items):
+        path = (*base, index)
+        line, column = document.position(path)
+        try:
+            acceptance = Acceptance.model_validate(item)
+        except ValidationError as exc:
+            for error in exc.errors(include_url=False):
+                loc = tuple(part for part in error["loc"] if isinstance(part, (str, int)))
+                at = (*path, *loc) if loc and isinstance(item, dict) and loc[0] in item else path
+                e_line, e_column = document.position(at)
+                message = error["msg"].removeprefix("Value error, ")
+                if error["type"] == "missing":
+                    message = f"'{loc[-1]}' is required here"
+                elif error["type"] == "extra_forbidden":
+                    message = f"unknown field '{loc[-1]}'"
+                field_path = "".join(f"[{p}]" if isinstance(p, int) else f".{p}" for p in (
+                    *path, *loc)).lstrip(".")
+                problems.append(Problem(message, file=document.file, line=e_line, column=e_column,
+                                        field_path=field_path, where=f"acceptance #{index + 1}"))
+            continue
+        accepted.append(acceptance.placed(f"{document.file}:{line}" if line else document.file))
+    if problems:
+        raise InputErrors(problems)
+    return accepted
+
+
+def load_beside(balance_path: str | Path) -> list[Acceptance]:
+    """The acceptances in the file beside the balance (none when there is no such file)."""
+    path = beside_file(balance_path)
+    if path is None:
+        return []
+    document = load_document(path)
+    data = document.data
+    if not isinstance(data, dict) or set(data) != {"accepted"}:
+        raise InputError("an acceptance file holds one key, 'accepted:', with a list of "
+                         "acceptances", file=document.file, line=1)
+    return parse_acceptances(data["accepted"], document)
+
+
+def apply_acceptances(result: AuditResult, acceptances: list[Acceptance],
+                      today: date | None = None) -> AuditResult:
+    """Mark the findings of ``result`` that a valid acceptance covers, and report expired and
+    unmatched acceptances as findings (see the module docstring). Returns ``result``, changed."""
+    if not acceptances:
+        return result
+    today = today or date.today()
+    findings = list(result.findings)
+    extra: list[Finding] = []
+    for acceptance in acceptances:
+        matched = [i for i, f in enumerate(findings) if acceptance.matches(f)]
+        origin = f" ({acceptance.source})" if acceptance.source else ""
+        if not matched:
+            extra.append(Finding(
+                WARNING, "acceptance-unmatched", acceptance.step,
+                f"an acceptance of '{acceptance.finding}' at {acceptance.where()}{origin} matches "
+                "no finding of this audit: remove it, or correct its step or finding name",
+                stream=acceptance.stream))
+            continue
+        if acceptance.expires < today:
+            extra.append(Finding(
+                WARNING, "acceptance-expired", acceptance.step,
+                f"the acceptance of '{acceptance.finding}' at {acceptance.where()}{origin} by "
+                f"{acceptance.accepted_by} expired on {acceptance.expires.isoformat()}; the "
+                "finding counts again", stream=acceptance.stream))
+            continue
+        for i in matched:
+            if not findings[i].accepted:
+                findings[i] = dataclasses.replace(findings[i], accepted=acceptance.label())
+    result.findings = findings + extra
+    return result

@@ -1,0 +1,141 @@
+"""``plant-audit batch PATHS...``: audit every balance in folders (recursively), globs and files,
+in parallel worker processes, and exit with the worst file's code: 3 (an internal error on some
+file) > 2 (an invalid file) > 1 (findings at or above ``--fail-on`` that no reviewer accepted) > 0
+(every file passes). A broken file is reported and never stops the others."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from audit.outcomes import FileOutcome
+
+
+NAME = "batch"
+HELP = "audit every balance in folders, globs and files, in parallel"
+
+
+def add_arguments(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("paths", nargs="+", metavar="PATH",
+                        help="balance files, folders (searched for *.yaml and *.yml) or globs")
+    parser.add_argument("-o", "--output", type=Path, metavar="DIR",
+                        help="write summary.xlsx and each file's own workbook into DIR")
+    parser.add_argument("--workers", type=_positive, metavar="N",
+                        help="worker processes (default: one per core)")
+    parser.add_argument("--scheduler", metavar="ADDRESS",
+                        help="run on the Dask cluster at ADDRESS (e.g. tcp://host:8786; needs the "
+                        "'distributed' extra) instead of local processes")
+    parser.add_argument("--fail-on", choices=["error", "warning"], default="error",
+                        help="lowest severity that fails a file (default: error)")
+    parser.add_argument("--junit", type=Path, metavar="PATH", help="write JUnit XML for CI")
+    parser.add_argument("--history", type=Path, metavar="DB",
+                        help="record every run in this SQLite file and say what is new since "
+                        "each file's last run")
+    parser.add_argument("--allow-outside", action="store_true",
+                        help="let balances read stream or claim tables outside their own folder")
+    parser.add_argument("-q", "--quiet", action="store_true",
+                        help="no progress bar and no per-file lines: print only the verdict")
+
+
+def _positive(text: str) -> int:
+    value = int(text)
+    if value < 1:
+        raise argparse.ArgumentTypeError("must be at least 1")
+    return value
+
+
+def run(args: argparse.Namespace) -> int:
+    from audit.batch import SUMMARY_NAME, run_batch
+    from audit.executors import DaskCluster, LocalProcesses
+    from audit.outcomes import batch_exit_code
+
+    if args.scheduler and args.workers:
+        print("note: --workers is ignored with --scheduler (the cluster has its own workers)",
+              file=sys.stderr)
+    executor = (DaskCluster(address=args.scheduler) if args.scheduler
+                else LocalProcesses(args.workers))
+    progress = _Progress(enabled=not args.quiet and sys.stdout.isatty())
+    with progress:
+        outcomes = run_batch(args.paths, output=args.output, fail_on=args.fail_on,
+                             executor=executor, on_start=progress.start,
+                             on_done=progress.advance, allow_outside=args.allow_outside)
+    if args.history:
+        from audit.history import record
+
+        record(args.history, outcomes, fail_on=args.fail_on)
+    if args.output:
+        from audit.report.batch_workbook import write_batch_workbook
+
+        write_batch_workbook(outcomes, args.output / SUMMARY_NAME, fail_on=args.fail_on)
+    if args.junit:
+        from audit.report.junit import write_junit
+
+        write_junit(outcomes, args.junit, fail_on=args.fail_on)
+    code = batch_exit_code(outcomes, args.fail_on)
+    if not args.quiet:
+        for outcome in outcomes:
+            print(_line(outcome, args.fail_on))
+    print(_verdict(outcomes, args.fail_on, code))
+    return code
+
+
+def _line(outcome: FileOutcome, fail_on: str) -> str:
+    verdict = outcome.verdict(fail_on)
+    if outcome.result is None:
+        detail = outcome.problems[0] if outcome.problems else ""
+        more = f" (and {len(outcome.problems) - 1} more)" if len(outcome.problems) > 1 else ""
+        if not detail.startswith(outcome.path):
+            detail = f"{outcome.path}: {detail}"
+        return f"{verdict:<14} {detail}{more}"
+    result = outcome.result
+    counts = result.counts(include_accepted=False)
+    accepted = sum(1 for f in result.findings if f.accepted)
+    revision = f" revision {result.revision}" if result.revision else ""
+    text = (f"{verdict:<14} {outcome.path}{revision}: {counts['error']} error, "
+            f"{counts['warning']} warning" + (f", {accepted} accepted" if accepted else ""))
+    note = outcome.history_note()
+    return text + (f"; {note}" if note else "")
+
+
+def _verdict(outcomes: list[FileOutcome], fail_on: str, code: int) -> str:
+    verdicts = [o.verdict(fail_on) for o in outcomes]
+    parts = ", ".join(f"{verdicts.count(v)} {v.lower()}" for v in dict.fromkeys(
+        ["PASS", "FAIL", "INVALID", "INTERNAL ERROR"]) if verdicts.count(v))
+    return (f"Batch: {len(outcomes)} files ({parts}); exit code {code}. Consistency check only: "
+            "not a safety or code-compliance review; defer to local codes and licensed engineers.")
+
+
+class _Progress:
+    """A rich progress bar on a terminal; nothing otherwise."""
+
+    def __init__(self, enabled: bool) -> None:
+        self.enabled = enabled
+        self._bar = None
+        self._task = None
+
+    def __enter__(self) -> _Progress:
+        return self
+
+    def __exit__(self, *exc: object) -> None:
+        if self._bar is not None:
+            self._bar.stop()
+
+    def start(self, total: int) -> None:
+        if not self.enabled:
+            return
+        from rich.progress import BarColumn, MofNCompleteColumn, Progress, TimeRemainingColumn
+
+        # No refresh thread (auto_refresh off): worker processes are forked while it runs.
+        self._bar = Progress("[progress.description]{task.description}", BarColumn(),
+                             MofNCompleteColumn(), TimeRemainingColumn(), transient=True,
+                             auto_refresh=False)
+        self._task = self._bar.add_task("auditing", total=total)
+        self._bar.start()
+
+    def advance(self, outcome: FileOutcome, done: int, total: int) -> None:
+        if self._bar is not None:
+            self._bar.update(self._task, completed=done, description=Path(outcome.path).name)
+            self._bar.refresh()

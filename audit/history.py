@@ -1,0 +1,201 @@
+"""Run history in an SQLite database: every audit of a file, its content hash, revision, time and
+findings, so a report can say what is new since the last run of each file.
+
+Files are keyed by their absolute path. "New since the last run" compares with the file's last
+*audited* run (an invalid file or an internal error has no findings to compare with).
+
+Tables (``PRAGMA user_version`` = :data:`SCHEMA_VERSION`)::
+
+    runs(id, file, sha256, name, revision, run_at [UTC, ISO 8601], status, verdict, fail_on,
+         errors, warnings, infos, accepted, exergy_destroyed [W], problems, tool_version)
+    findings(run_id, severity, name, step, stream, message, margin [SI], quantity, accepted)
+
+Several processes may record at once (SQLite locks the file; writers wait up to 30 s).
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import sqlite3
+from collections.abc import Iterator
+from contextlib import contextmanager
+from dataclasses import dataclass
+from datetime import datetime, timezone
+from pathlib import Path
+
+from audit import __version__
+from audit.errors import InputError
+from audit.findings import ERROR, INFO, WARNING
+from audit.outcomes import FileOutcome, FindingKey, finding_key
+
+SCHEMA_VERSION = 1
+
+_SCHEMA = """
+CREATE TABLE IF NOT EXISTS runs (
+    id INTEGER PRIMARY KEY AUTOINCREMENT,
+    file TEXT NOT NULL,
+    sha256 TEXT,
+    name TEXT,
+    revision TEXT,
+    run_at TEXT NOT NULL,
+    status TEXT NOT NULL,
+    verdict TEXT NOT NULL,
+    fail_on TEXT NOT NULL,
+    errors INTEGER NOT NULL DEFAULT 0,
+    warnings INTEGER NOT NULL DEFAULT 0,
+    infos INTEGER NOT NULL DEFAULT 0,
+    accepted INTEGER NOT NULL DEFAULT 0,
+    exergy_destroyed REAL,
+    problems TEXT NOT NULL DEFAULT '[]',
+    tool_version TEXT NOT NULL
+);
+CREATE INDEX IF NOT EXISTS runs_by_file ON runs (file, id);
+CREATE TABLE IF NOT EXISTS findings (
+    run_id INTEGER NOT NULL REFERENCES runs (id) ON DELETE CASCADE,
+    severity TEXT NOT NULL,
+    name TEXT NOT NULL,
+    step TEXT NOT NULL,
+    stream TEXT NOT NULL,
+    message TEXT NOT NULL,
+    margin REAL,
+    quantity TEXT,
+    accepted TEXT
+);
+CREATE INDEX IF NOT EXISTS findings_by_run ON findings (run_id);
+"""
+
+
+@dataclass(frozen=True)
+class Run:
+    """One recorded run of a file."""
+
+    id: int
+    file: str
+    sha256: str | None
+    name: str | None
+    revision: str | None
+    run_at: str
+    status: str
+    verdict: str
+    fail_on: str
+    errors: int
+    warnings: int
+    infos: int
+    accepted: int
+    exergy_destroyed: float | None
+    problems: list[str]
+    findings: list[FindingKey]
+
+
+def file_key(path: str | Path) -> str:
+    """How a file is named in the history: its absolute, normalised path."""
+    return os.path.normpath(os.path.abspath(str(path)))
+
+
+@contextmanager
+def _connect(database: str | Path, create: bool) -> Iterator[sqlite3.Connection]:
+    database = Path(database)
+    if not create and not database.is_file():
+        raise InputError("no run history here (record runs with --history)", file=str(database))
+    if create:
+        database.parent.mkdir(parents=True, exist_ok=True)
+    try:
+        connection = sqlite3.connect(database, timeout=30.0)
+    except sqlite3.Error as exc:
+        raise InputError(f"cannot open the run history: {exc}", file=str(database)) from None
+    try:
+        version = connection.execute("PRAGMA user_version").fetchone()[0]
+        if version == 0:
+            connection.executescript(_SCHEMA)
+            connection.execute(f"PRAGMA user_version = {SCHEMA_VERSION}")
+        elif version != SCHEMA_VERSION:
+            raise InputError(f"the run history has schema version {version}; this plant-audit "
+                             f"reads version {SCHEMA_VERSION}", file=str(database))
+        yield connection
+        connection.commit()
+    except sqlite3.DatabaseError as exc:
+        raise InputError(f"not a plant-audit run history: {exc}", file=str(database)) from None
+    finally:
+        connection.close()
+
+
+def record(database: str | Path, outcomes: list[FileOutcome], fail_on: str = "error",
+           now: datetime | None = None) -> list[FileOutcome]:
+    """Record one run per outcome and fill each outcome's ``previous_run`` and ``new_since_last``
+    (the findings absent from the file's last audited run). Returns ``outcomes``."""
+    run_at = (now or datetime.now(timezone.utc)).astimezone(timezone.utc).strftime(
+        "%Y-%m-%dT%H:%M:%SZ")
+    with _connect(database, create=True) as connection:
+        for outcome in outcomes:
+            key = file_key(outcome.path)
+            previous = _last_run(connection, key)
+            current = _keys(outcome)
+            outcome.recorded = True
+            if previous is not None and outcome.result is not None:
+                outcome.previous_run = previous.run_at
+                earlier = set(previous.findings)
+                outcome.new_since_last = [k for k in dict.fromkeys(current) if k not in earlier]
+            result = outcome.result
+            counts = result.counts(include_accepted=False) if result else {}
+            cursor = connection.execute(
+                "INSERT INTO runs (file, sha256, name, revision, run_at, status, verdict, "
+                "fail_on, errors, warnings, infos, accepted, exergy_destroyed, problems, "
+                "tool_version) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
+                (key, outcome.sha256, result.name if result else None,
+                 result.revision if result else None, run_at, outcome.status,
+                 outcome.verdict(fail_on), fail_on, counts.get(ERROR, 0),
+                 counts.get(WARNING, 0), counts.get(INFO, 0),
+                 sum(1 for f in result.findings if f.accepted) if result else 0,
+                 result.plant.exergy_destroyed if result else None,
+                 json.dumps(outcome.problems), __version__))
+            if result is not None:
+                connection.executemany(
+                    "INSERT INTO findings (run_id, severity, name, step, stream, message, margin, "
+                    "quantity, accepted) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
+                    [(cursor.lastrowid, f.severity, f.name, f.step or "", f.stream or "",
+                      f.message, f.margin, f.quantity, f.accepted) for f in result.findings])
+    return outcomes
+
+
+def runs(database: str | Path, path: str | Path, limit: int | None = None) -> list[Run]:
+    """The recorded runs of the file at ``path``, newest first."""
+    with _connect(database, create=False) as connection:
+        query = "SELECT * FROM runs WHERE file = ? ORDER BY id DESC"
+        parameters: tuple = (file_key(path),)
+        if limit is not None:
+            query += " LIMIT ?"
+            parameters += (limit,)
+        rows = connection.execute(query, parameters).fetchall()
+        return [_run(connection, row) for row in rows]
+
+
+def _last_run(connection: sqlite3.Connection, key: str) -> Run | None:
+    """The file's last audited run (invalid runs and internal errors have no findings to
+    compare with)."""
+    row = connection.execute(
+        "SELECT * FROM runs WHERE file = ? AND status = 'audited' ORDER BY id DESC LIMIT 1",
+        (key,)).fetchone()
+    return _run(connection, row) if row else None
+
+
+def _run(connection: sqlite3.Connection, row: tuple) -> Run:
+    findings = connection.execute(
+        "SELECT step, stream, name FROM findings WHERE run_id = ? ORDER BY rowid",
+        (row[0],)).fetchall()
+    return Run(*row[:14], json.loads(row[14]), [tuple(f) for f in findings])  # type: ignore
+
+
+def _keys(outcome: FileOutcome) -> list[FindingKey]:
+    return [finding_key(f) for f in outcome.result.findings] if outcome.result else []
+
+
+def new_between(older: Run | None, newer: Run) -> list[FindingKey]:
+    """Findings of ``newer`` that ``older`` did not have (all of them when there is no older)."""
+    earlier = set(older.findings) if older else set()
+    return [k for k in dict.fromkeys(newer.findings) if k not in earlier]
+
+
+def audited_before(history: list[Run], index: int) -> Run | None:
+    """In ``history`` (newest first), the audited run recorded before ``history[index]``."""
+    return next((r for r in history[index + 1:] if r.status == "audited"), None)

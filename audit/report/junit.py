@@ -1,0 +1,88 @@
+"""JUnit XML, so a CI system shows an audit like a test run (standard library only).
+
+Layout: one ``<testsuite>`` per file, named by the file's path. An audited file has one
+``<testcase>`` per step (named ``<step id> (<kind>)``) plus one named ``plant and streams`` for
+findings that belong to no step. A test case *fails* (one ``<failure>``, its text listing every
+such finding) when it has findings at or above the gate that no reviewer accepted; accepted and
+lower findings are listed in its ``<system-out>``. An invalid file is one test case ``load and
+validate`` with an ``<error type="invalid-input">``; an internal error, one with
+``<error type="internal-error">``.
+"""
+
+from __future__ import annotations
+
+import xml.etree.ElementTree as ET
+from pathlib import Path
+
+from audit.findings import Finding, at_or_above
+from audit.outcomes import INTERNAL, INVALID, FileOutcome
+from audit.report.machine import atomic_write_text
+
+PLANT_CASE = "plant and streams"
+LOAD_CASE = "load and validate"
+
+
+def _line(finding: Finding) -> str:
+    where = finding.step or (f"stream {finding.stream}" if finding.stream else "plant")
+    text = f"{finding.severity.upper()} {finding.name} at {where}: {finding.message}"
+    if finding.accepted:
+        text += f" [ACCEPTED: {finding.accepted}]"
+    return text
+
+
+def junit_tree(outcomes: list[FileOutcome], fail_on: str = "error") -> ET.ElementTree:
+    """The JUnit XML tree of a batch (or of one ``check``); see the module docstring."""
+    root = ET.Element("testsuites", name="plant-audit")
+    totals = {"tests": 0, "failures": 0, "errors": 0}
+    for outcome in outcomes:
+        suite = ET.SubElement(root, "testsuite", name=outcome.path)
+        counts = {"tests": 0, "failures": 0, "errors": 0}
+        classname = outcome.path
+        if outcome.status in (INVALID, INTERNAL) or outcome.result is None:
+            case = ET.SubElement(suite, "testcase", classname=classname, name=LOAD_CASE,
+                                 time=f"{outcome.seconds:.3f}")
+            kind = "invalid-input" if outcome.status == INVALID else "internal-error"
+            error = ET.SubElement(case, "error", type=kind,
+                                  message=(outcome.problems or [kind])[0])
+            error.text = "\n".join(outcome.problems)
+            counts["tests"] += 1
+            counts["errors"] += 1
+        else:
+            result = outcome.result
+            ET.SubElement(ET.SubElement(suite, "properties"), "property", name="revision",
+                          value=result.revision or "")
+            cases = [(f"{s.id} ({s.kind})", s.id) for s in result.steps] + [(PLANT_CASE, None)]
+            step_ids = {s.id for s in result.steps}
+            for name, step_id in cases:
+                own = [f for f in result.findings if (f.step == step_id) or (
+                    step_id is None and f.step not in step_ids)]
+                case = ET.SubElement(suite, "testcase", classname=classname, name=name,
+                                     time="0")
+                failing = [f for f in own if at_or_above(f.severity, fail_on) and not f.accepted]
+                counts["tests"] += 1
+                if failing:
+                    counts["failures"] += 1
+                    names = ", ".join(dict.fromkeys(f.name for f in failing))
+                    failure = ET.SubElement(
+                        case, "failure", type=failing[0].name,
+                        message=f"{len(failing)} finding(s) at or above '{fail_on}': {names}")
+                    failure.text = "\n".join(_line(f) for f in failing)
+                others = [f for f in own if f not in failing]
+                if others:
+                    ET.SubElement(case, "system-out").text = "\n".join(_line(f) for f in others)
+        for key, value in counts.items():
+            suite.set(key, str(value))
+            totals[key] += value
+        suite.set("skipped", "0")
+        suite.set("time", f"{outcome.seconds:.3f}")
+    for key, value in totals.items():
+        root.set(key, str(value))
+    ET.indent(root)
+    return ET.ElementTree(root)
+
+
+def write_junit(outcomes: list[FileOutcome], path: str | Path, fail_on: str = "error") -> None:
+    """Write the JUnit XML of ``outcomes`` to ``path`` atomically."""
+    text = ET.tostring(junit_tree(outcomes, fail_on).getroot(), encoding="unicode",
+                       xml_declaration=True)
+    atomic_write_text(Path(path), text + "\n")

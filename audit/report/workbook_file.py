@@ -1,0 +1,90 @@
+"""Writing the findings workbook's file: openpyxl's parts with each formula's cached value, fixed
+entry and document times (the same result gives the same bytes), written to a temporary file beside
+the target and moved into place. Used by :mod:`audit.report.workbook`."""
+
+from __future__ import annotations
+
+import io
+import os
+import re
+import tempfile
+import zipfile
+from collections.abc import Callable
+from datetime import datetime
+from pathlib import Path
+from typing import BinaryIO
+
+from openpyxl import Workbook
+from openpyxl.writer.excel import ExcelWriter
+
+from audit.results import AuditResult
+
+_ZIP_EPOCH = (1980, 1, 1, 0, 0, 0)  # the earliest time a zip entry can hold
+
+
+def run_time(result: AuditResult) -> datetime:
+    """The run time recorded in ``result.provenance`` ("run at (UTC)"), naive UTC; the zip epoch
+    (1980-01-01) when it is missing, so the file stays reproducible."""
+    text = result.provenance.get("run at (UTC)", "")
+    try:
+        when = datetime.strptime(text, "%Y-%m-%d %H:%M:%S")
+    except ValueError:
+        when = datetime(*_ZIP_EPOCH)
+    return max(when, datetime(*_ZIP_EPOCH))
+
+
+def package(wb: Workbook, formulas: dict[str, list[tuple[str, float]]], when: datetime,
+            stream: BinaryIO) -> None:
+    """Write the workbook to ``stream``: openpyxl's parts, with cached formula values and fixed
+    entry times."""
+    raw = io.BytesIO()
+    with zipfile.ZipFile(raw, "w", zipfile.ZIP_DEFLATED, allowZip64=True) as archive:
+        ExcelWriter(wb, archive).write_data()  # save_workbook would stamp 'modified' with now
+    parts = {ws.path.lstrip("/"): formulas.get(ws.title, []) for ws in wb.worksheets}
+    stamp = when.timetuple()[:6]
+    with zipfile.ZipFile(raw) as source, zipfile.ZipFile(stream, "w", zipfile.ZIP_DEFLATED,
+                                                         allowZip64=True) as target:
+        for info in source.infolist():
+            content = source.read(info.filename)
+            if parts.get(info.filename):
+                content = cache_formula_values(content, parts[info.filename])
+            entry = zipfile.ZipInfo(info.filename, date_time=stamp)
+            entry.compress_type = zipfile.ZIP_DEFLATED
+            entry.create_system = 0
+            target.writestr(entry, content)
+
+
+def cache_formula_values(xml: bytes, cached: list[tuple[str, float]]) -> bytes:
+    """Put each formula cell's value into its empty ``<v/>`` (openpyxl writes none)."""
+    text = xml.decode("utf-8")
+    for coordinate, value in cached:
+        pattern = re.compile(rf'(<c r="{coordinate}"[^>]*><f>[^<]*</f>)(?:<v\s*/>|<v></v>)')
+        cached_text = f"<v>{float(value)!r}</v>"
+        text = pattern.sub(lambda m, v=cached_text: m.group(1) + v, text, count=1)
+        # No match: an openpyxl that writes cells differently; the formula stays uncached and
+        # spreadsheet programs still compute it on load (the tests catch the change).
+    return text.encode("utf-8")
+
+
+def atomic_write(path: Path, write: Callable[[BinaryIO], None]) -> None:
+    """Let ``write`` fill a temporary file beside ``path``, then move the file into place; on any
+    failure remove the temporary file and leave ``path`` as it was."""
+    path.parent.mkdir(parents=True, exist_ok=True)
+    handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
+    try:
+        with os.fdopen(handle, "wb") as stream:
+            write(stream)
+            stream.flush()
+            os.fsync(stream.fileno())
+        os.chmod(temporary, 0o666 & ~_umask())
+        os.replace(temporary, path)
+    except BaseException:
+        Path(temporary).unlink(missing_ok=True)
+        raise
+
+
+def _umask() -> int:
+    """The process's umask (read by setting and restoring it; the CLI is single-threaded)."""
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask

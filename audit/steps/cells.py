@@ -1,0 +1,310 @@
+"""What the electrochemical step kinds share (electrolyser, fuel cell): the model and the checks.
+Not a step kind itself.
+
+A cell stack of ``cells`` cells in series carries the stack ``current`` I through each cell at
+``cell_voltage`` V; its electrical power is V I N (``power``, absorbed by an electrolyser,
+delivered by a fuel cell). The cell reaction (``reaction``; by default water splitting or forming,
+with the water's phase taken from the water stream) transfers n electrons per mole of reaction
+(``electrons``; by default 4 per mole of O2, the O2/H2O couple). Its extent ξ̇ [mol/s] is fitted to
+the streams' compositions.
+
+The laws are those of every step, on the formation basis: the work bound compares the electrical
+work with the reversible work of the streams, which for an isothermal cell exchanging heat at its
+own temperature is −ΔG of the reaction (a fuel cell cannot deliver more, an electrolyser cannot
+take less; ``work-above-bound``, ``input-below-minimum``). The cell checks [1, ch. 2], [2, ch. 14]:
+
+* reversible voltage E_rev = ΔG_rxn(T, P) / (n F) and thermoneutral voltage E_tn = ΔH_rxn / (n F),
+  for the reaction written in the direction the cell runs (splitting in an electrolyser: ΔG > 0;
+  in a fuel cell the signs are reversed so both are positive). A fuel cell cannot run above E_rev,
+  an electrolyser not below it (``voltage-beyond-reversible``);
+* below E_tn an electrolyser must take in heat, n F ξ̇ (E_tn − V) at least, and a balance that
+  claims its heat must show it (``heat-needed-below-thermoneutral``);
+* Faraday's law: n F ξ̇ = η_F I N, with the faradaic efficiency η_F ≤ 1 (the charge an
+  electrolyser passes makes at most n F per mole; a fuel cell's current is at most n F times the
+  fuel it consumes), and equal to a claimed ``faradaic_efficiency`` (``faraday-mismatch``);
+* a claimed power equals V I N (``power-mismatch``).
+
+Conditions: E_rev and E_tn are evaluated with every species pure at the cell's ``temperature`` and
+``pressure`` in its written phase (gases ideal, liquid water from IAPWS-95), which is the Nernst
+equation for pure product and reactant gases at the cell pressure. Where the balance does not
+declare them, the voltage and heat checks use the most lenient of the four corners (lowest and
+highest stream temperature, lowest and highest stream pressure), and the values reported are at the
+outlets' mean temperature and pressure. Voltage tolerance: ``energy_relative`` × E_rev (the same
+relative tolerance as the energy checks, since n F ξ̇ V is a power); Faraday: ``energy_relative``.
+
+References
+----------
+.. [1] J. Larminie, A. Dicks, *Fuel Cell Systems Explained*, 2nd ed., Wiley, 2003, ch. 2.
+.. [2] M. J. Moran, H. N. Shapiro, D. D. Boettner, M. B. Bailey, *Fundamentals of Engineering
+   Thermodynamics*, 8th ed., Wiley, 2014, ch. 13–14.
+"""
+
+from __future__ import annotations
+
+import itertools
+from collections.abc import Sequence
+
+from pydantic import Field, field_validator, model_validator
+
+from audit.findings import ERROR, Finding, relative
+from audit.formation import species
+from audit.laws import format_power
+from audit.quantities import Current, Power, Pressure, Temperature, Voltage
+from audit.reactions import FARADAY, Reaction, ReactionProperties, parse_reaction
+from audit.results import StepResult, StreamResult
+from audit.steps.base import HeatClaim, StepBase, StepContext
+from audit.steps.reacting import (
+    element_findings,
+    extents_and_findings,
+    finish_reacting_step,
+    heat_and_work,
+    properties_at,
+    step_conditions,
+)
+
+ELECTROLYSER = "electrolyser"
+FUEL_CELL = "fuel_cell"
+
+
+class CellStep(StepBase):
+    """Fields of an electrochemical step (see the module docstring)."""
+
+    inlets: list[str] = Field(min_length=1)
+    outlets: list[str] = Field(min_length=1)
+    reaction: str | None = Field(
+        None, description="the cell reaction, e.g. 'H2O(l) -> H2 + 1/2 O2' (default: water "
+        "splitting or forming, the water's phase from its stream)")
+    electrons: int | None = Field(
+        None, ge=1, description="electrons per mole of reaction (default: 4 per mole of O2)")
+    cell_voltage: Voltage | None = Field(None, description="voltage of one cell")
+    current: Current | None = Field(None, description="stack current through each cell")
+    cells: int = Field(1, ge=1, description="number of cells in series")
+    power: Power | None = Field(None, description="electrical (DC) power of the stack")
+    faradaic_efficiency: float | None = Field(
+        None, description="fraction of the charge that drives the cell reaction, 0 to 1")
+    heat: list[HeatClaim] | None = None
+    heat_temperature: Temperature | None = Field(
+        None, description="boundary temperature of inferred heat")
+    temperature: Temperature | None = Field(None, description="cell operating temperature")
+    pressure: Pressure | None = Field(None, description="cell operating pressure")
+
+    @field_validator("reaction")
+    @classmethod
+    def _reaction(cls, value: str | None) -> str | None:
+        if value is not None:
+            parse_reaction(value)  # it must read and balance
+        return value
+
+    @field_validator("faradaic_efficiency")
+    @classmethod
+    def _efficiency(cls, value: float | None) -> float | None:
+        if value is not None and not 0.0 < value <= 1.0:
+            raise ValueError(
+                f"a faradaic efficiency is above 0 and at most 1 (got {value:g}): the charge "
+                "passed cannot drive more reaction than Faraday's law allows")
+        return value
+
+    @model_validator(mode="after")
+    def _claims(self) -> CellStep:
+        if self.power is None and (self.cell_voltage is None or self.current is None):
+            raise ValueError("give the stack 'power', or 'cell_voltage' and 'current' (with "
+                             "'cells'), or all three")
+        if self.reaction is not None and self.electrons is None and (
+                "O2" not in parse_reaction(self.reaction).nu()):
+            raise ValueError("give 'electrons' (per mole of reaction) for a cell reaction "
+                             "without O2")
+        for name in ("cell_voltage", "current", "power"):
+            value = getattr(self, name)
+            if value is not None and value <= 0:
+                raise ValueError(f"'{name}' is a positive amount")
+        return self
+
+    def stream_ids(self) -> tuple[list[str], list[str]]:
+        return list(self.inlets), list(self.outlets)
+
+
+def default_reaction(kind: str, inlets: Sequence[StreamResult],
+                     outlets: Sequence[StreamResult]) -> str:
+    """Water splitting (electrolyser) or forming (fuel cell), liquid water when the water stream
+    (a pure-water inlet of an electrolyser, outlet of a fuel cell) is liquid."""
+    streams = inlets if kind == ELECTROLYSER else outlets
+    liquid = any(s.composition is None and (d := species(s.fluid)) is not None
+                 and d.formula == "H2O" and s.phase == "liquid" for s in streams)
+    water = "H2O(l)" if liquid else "H2O"
+    return f"{water} -> H2 + 1/2 O2" if kind == ELECTROLYSER else f"H2 + 1/2 O2 -> {water}"
+
+
+def _reversed(reaction: Reaction) -> Reaction:
+    return Reaction(f"{reaction.equation} (reversed)", reaction.products, reaction.reactants)
+
+
+def evaluate_cell(step: CellStep, ctx: StepContext, kind: str) -> StepResult:
+    """Laws and cell checks of an electrolyser or fuel cell (see the module docstring)."""
+    driven = kind == ELECTROLYSER  # the cell absorbs electrical work
+    inlets = [ctx.stream(i) for i in step.inlets]
+    outlets = [ctx.stream(o) for o in step.outlets]
+    notes = []
+    text = step.reaction
+    if text is None:
+        text = default_reaction(kind, inlets, outlets)
+        notes.append(f"Cell reaction taken as '{text}' (the default for the kind).")
+    reaction = parse_reaction(text)
+    T_rep, P_rep = step_conditions(step.temperature, step.pressure, outlets)
+    reported = properties_at(ctx, [reaction], T_rep, P_rep)[0]
+    if (reported.dG < 0) == driven:  # written against the direction the cell runs
+        reaction = _reversed(reaction)
+        reported = properties_at(ctx, [reaction], T_rep, P_rep)[0]
+    n = step.electrons or round(4 * abs(reaction.nu()["O2"]))
+    sign = 1.0 if driven else -1.0
+
+    elements = element_findings(step.id, ctx, inlets, outlets)
+    extents, species_found = extents_and_findings(step.id, ctx, [reaction], [None], inlets,
+                                                  outlets)
+    xi = extents[0]
+    stack = (step.cell_voltage * step.current * step.cells
+             if step.cell_voltage is not None and step.current is not None else None)
+    electrical = step.power if step.power is not None else stack
+    assert electrical is not None  # the model requires one
+    heat, W, claimed, inferred = heat_and_work(
+        ctx, inlets, outlets, step.heat, step.heat_temperature,
+        -electrical if driven else electrical)
+    claimed = [c for c in claimed if c != "work"] + [
+        name for name in ("power", "cell_voltage", "current", "faradaic_efficiency")
+        if getattr(step, name) is not None]
+    if step.power is None:
+        inferred.append("power (V × I × cells)")
+    result = finish_reacting_step(
+        step, kind, ctx, inlets, outlets, heat, W, claimed, inferred, elements,
+        energy_scale_floor=abs(xi * reported.dH), notes=notes)
+    if not elements[0]:
+        for finding in species_found:
+            ctx.add(finding)
+
+    corners = _corners(ctx, reaction, step, [*inlets, *outlets])
+    E_rev = [sign * p.dG / (n * FARADAY) for p in corners]
+    E_tn = [sign * p.dH / (n * FARADAY) for p in corners]
+    E_rev_checked = min(E_rev) if driven else max(E_rev)
+    E_tn_checked = min(E_tn)
+    charge = step.current * step.cells if step.current is not None else None
+    efficiency = None
+    if charge is not None and xi > 0.0:
+        efficiency = n * FARADAY * xi / charge if driven else charge / (n * FARADAY * xi)
+    result.extra.update({
+        "reaction": reaction.equation, "electrons": n, "extent": xi,
+        "reaction_T": T_rep, "reaction_P": P_rep, "dH_rxn": reported.dH, "dS_rxn": reported.dS,
+        "dG_rxn": reported.dG, "E_rev": sign * reported.dG / (n * FARADAY),
+        "E_tn": sign * reported.dH / (n * FARADAY), "E_rev_checked": E_rev_checked,
+        "E_tn_checked": E_tn_checked, "gibbs_work": sign * xi * reported.dG,
+        "electrical_power": electrical, "stack_power": stack, "charge_rate": charge,
+        "faradaic_efficiency": efficiency,
+    })
+    if not elements[0]:
+        for finding in _cell_findings(step, ctx, result, driven, n, xi, E_rev_checked,
+                                      E_tn_checked, efficiency, stack, heat):
+            ctx.add(finding)
+    return result
+
+
+def _corners(ctx: StepContext, reaction: Reaction, step: CellStep,
+             streams: Sequence[StreamResult]) -> list[ReactionProperties]:
+    temperatures = ([step.temperature] if step.temperature is not None
+                    else sorted({min(s.T for s in streams), max(s.T for s in streams)}))
+    pressures = ([step.pressure] if step.pressure is not None
+                 else sorted({min(s.P for s in streams), max(s.P for s in streams)}))
+    return [properties_at(ctx, [reaction], T, P)[0]
+            for T, P in itertools.product(temperatures, pressures)]
+
+
+def _cell_findings(step: CellStep, ctx: StepContext, result: StepResult, driven: bool, n: int,
+                   xi: float, E_rev: float, E_tn: float, efficiency: float | None,
+                   stack: float | None, heat: list) -> list[Finding]:
+    tol = ctx.tolerances
+    found = []
+    V = step.cell_voltage
+    tol_V = tol.energy_relative * E_rev
+    where = ("at the cell's declared conditions" if step.temperature is not None
+             and step.pressure is not None else
+             "the most lenient over the streams' temperatures and pressures")
+    if V is not None and driven and V < E_rev - tol_V:
+        found.append(Finding(
+            ERROR, "voltage-beyond-reversible", step.id,
+            f"the cell voltage {V:.4g} V is below the reversible voltage {E_rev:.4g} V "
+            f"(ΔG_rxn / nF, {where}) by {E_rev - V:.3g} V: an electrolyser cannot split at "
+            f"less (tolerance {tol_V:.2g} V)",
+            claimed=V, bound=E_rev, margin=E_rev - V, margin_relative=relative(E_rev - V, E_rev),
+            quantity="voltage", tolerance=tol_V,
+        ))
+    if V is not None and not driven and V > E_rev + tol_V:
+        found.append(Finding(
+            ERROR, "voltage-beyond-reversible", step.id,
+            f"the cell voltage {V:.4g} V is above the reversible voltage {E_rev:.4g} V "
+            f"(−ΔG_rxn / nF, {where}) by {V - E_rev:.3g} V: a fuel cell cannot deliver more "
+            f"(tolerance {tol_V:.2g} V)",
+            claimed=V, bound=E_rev, margin=V - E_rev, margin_relative=relative(V - E_rev, E_rev),
+            quantity="voltage", tolerance=tol_V,
+        ))
+    if (V is not None and driven and step.heat is not None and xi > 0.0
+            and V < E_tn - tol.energy_relative * E_tn):
+        needed = n * FARADAY * xi * (E_tn - V)
+        shown = sum(q.Q for q in heat if q.claimed)
+        if shown < needed - result.energy_tolerance:
+            found.append(Finding(
+                ERROR, "heat-needed-below-thermoneutral", step.id,
+                f"the cells run at {V:.4g} V, below the thermoneutral voltage {E_tn:.4g} V "
+                f"(ΔH_rxn / nF), so they must take in at least {format_power(needed)} of heat "
+                f"(n F ξ̇ (E_tn − V)), but the balance shows {format_power(shown)} of heat in",
+                claimed=shown, bound=needed, margin=needed - shown,
+                margin_relative=relative(needed - shown, needed), quantity="power",
+                tolerance=result.energy_tolerance,
+            ))
+    if step.current is not None:
+        charge = step.current * step.cells
+        if xi <= 0.0:
+            found.append(Finding(
+                ERROR, "faraday-mismatch", step.id,
+                f"a current of {step.current:.4g} A through {step.cells} cells is claimed, but "
+                f"the streams show the cell reaction at {xi:.4g} mol/s: no "
+                f"{'production' if driven else 'consumption'} for the charge to account for",
+                claimed=charge, bound=0.0, quantity="fraction",
+            ))
+        elif efficiency is not None:
+            made = n * FARADAY * xi
+            if efficiency > 1.0 + tol.energy_relative:
+                words = (f"the streams show {xi:.4g} mol/s of reaction, which needs "
+                         f"{made:.5g} A of charge (n F ξ̇), more than the {charge:.5g} A "
+                         f"passed (I × cells)" if driven else
+                         f"the current {charge:.5g} A (I × cells) is more than the {made:.5g} A "
+                         f"its fuel consumption of {xi:.4g} mol/s of reaction can carry (n F ξ̇)")
+                found.append(Finding(
+                    ERROR, "faraday-mismatch", step.id,
+                    f"{words}: a faradaic efficiency of {efficiency:.4f}, above 1",
+                    claimed=efficiency, bound=1.0, margin=efficiency - 1.0,
+                    margin_relative=efficiency - 1.0, quantity="fraction",
+                    tolerance=tol.energy_relative,
+                ))
+            elif (step.faradaic_efficiency is not None
+                  and abs(efficiency - step.faradaic_efficiency) > tol.energy_relative):
+                gap = efficiency - step.faradaic_efficiency
+                found.append(Finding(
+                    ERROR, "faraday-mismatch", step.id,
+                    f"the claimed faradaic efficiency {step.faradaic_efficiency:.4g} differs from "
+                    f"the {efficiency:.4f} that the current ({charge:.5g} A through the cells) "
+                    f"and the streams' {xi:.4g} mol/s of reaction give",
+                    claimed=step.faradaic_efficiency, bound=efficiency, margin=abs(gap),
+                    margin_relative=relative(abs(gap), efficiency), quantity="fraction",
+                    tolerance=tol.energy_relative,
+                ))
+    if step.power is not None and stack is not None:
+        gap = step.power - stack
+        if abs(gap) > result.energy_tolerance:
+            found.append(Finding(
+                ERROR, "power-mismatch", step.id,
+                f"the claimed power {format_power(step.power)} differs from voltage × current × "
+                f"cells = {V:.4g} V × {step.current:.5g} A × {step.cells} = "
+                f"{format_power(stack)}, by {format_power(abs(gap))} (tolerance "
+                f"{format_power(result.energy_tolerance)})",
+                claimed=step.power, bound=stack, margin=abs(gap),
+                margin_relative=relative(abs(gap), stack), quantity="power",
+                tolerance=result.energy_tolerance,
+            ))
+    return found

@@ -1,0 +1,1036 @@
+"""Generated steps of every kind: consistent by construction they must pass, and with one violation
+above tolerance injected they must always be caught.
+
+Each example builds one balance with two steps from real-fluid states computed here with CoolProp
+(HEOS; its default reference, which is the table reference a balance file writes h and s on):
+
+* a *consistent* step, whose claims follow exactly from the laws (a turbine of random isentropic
+  efficiency in [0.5, 0.95] claims ṁ (h_in − h_out) as shaft power, a heater claims ṁ Δh as duty, a
+  mixer's outlet carries the mixed enthalpy, ...) and whose entropy generation, computed here
+  independently as Σ ṁ s_out − Σ ṁ s_in − Σ Q/T_boundary, is not negative: it must raise NO finding;
+* a *violated* copy (its own streams) with one error injected above the documented default tolerance
+  (extra claimed work, a broken heat duty, a lost mass flow, an efficiency above one, a temperature
+  cross, ...): it must raise one of the findings that names that error.
+
+Numbers are written with every digit (``repr``) in K, Pa, J/kg, kg/s, W and J, so rounding cannot
+trip a tolerance. The documented default tolerances the injections must exceed (README's table of
+tolerances; common practice, no published source): energy max(1 % of the step's energy scale, 1 kW)
+(1 kJ for a vessel), mass max(0.2 % of the inlet flow, 0.36 kg/h), isentropic efficiency 1 + 0,
+splitter outlets 0.5 K and 0.5 % of the pressure.
+
+The default run draws a fixed-seed sample per kind (``derandomize=True``). The long run, ≥ 10 000
+steps in all, is marked ``slow`` (excluded by default) and prints its false-positive and
+false-negative counts::
+
+    /tmp/dev/bin/pytest -m slow -s tests/test_generated_steps.py
+    PLANT_AUDIT_GENERATED_EXAMPLES=2000 /tmp/dev/bin/pytest -m slow -s tests/test_generated_steps.py
+"""
+
+from __future__ import annotations
+
+import math
+import os
+from collections import Counter
+from dataclasses import dataclass, field
+from functools import cache
+
+import CoolProp.CoolProp as CP
+import pytest
+from hypothesis import HealthCheck, assume, given, note, settings
+from hypothesis import strategies as st
+
+from audit.errors import InputError
+from audit.model import parse_balance
+from audit.solve import solve
+
+T0 = 298.15  # K, the default dead state (25 °C) the balances below keep
+P0 = 101_325.0  # Pa
+ENERGY_RELATIVE, ENERGY_ABSOLUTE, ENERGY_ABSOLUTE_BATCH = 0.01, 1000.0, 1000.0  # -, W, J
+MASS_RELATIVE, MASS_ABSOLUTE = 0.002, 0.36 / 3600.0  # -, kg/s
+SATURATION_MARGIN = 1.0  # K: (T, P) states are kept this far from T_sat(P) (the band is 0.1 K)
+
+KINDS = ["turbine", "compressor", "pump", "valve", "heater", "cooler", "heat_exchanger", "mixer",
+         "splitter", "vessel", "general"]
+DEFAULT_EXAMPLES = 20  # per kind, in the default suite
+LONG_EXAMPLES = int(os.environ.get("PLANT_AUDIT_GENERATED_EXAMPLES", "1000"))  # per kind
+
+
+class Reject(Exception):
+    """The drawn numbers do not make a usable state (outside the equation of state, too close to
+    saturation, ...): the example is discarded, not counted."""
+
+
+# -- states, computed here with CoolProp ---------------------------------------------------------------
+@dataclass(frozen=True)
+class Point:
+    """A state [SI: K, Pa, J/kg, J/(kg K), kg/m**3] and how the balance file writes it."""
+
+    fluid: str
+    T: float
+    P: float
+    h: float
+    s: float
+    u: float
+    rho: float
+    phase: str
+    quality: float | None
+    written: str  # "TP", "Ph" or "PQ"
+
+    def fields(self) -> dict[str, str]:
+        """The state's fields as the balance file writes them (every digit, SI units)."""
+        if self.written == "TP":
+            return {"T": f"{self.T!r} K", "P": f"{self.P!r} Pa"}
+        if self.written == "PQ":
+            return {"P": f"{self.P!r} Pa", "quality": repr(self.quality)}
+        return {"P": f"{self.P!r} Pa", "h": f"{self.h!r} J/kg"}
+
+
+@cache
+def _engine(fluid: str) -> CP.AbstractState:
+    return CP.AbstractState("HEOS", fluid)
+
+
+@cache
+def limits(fluid: str) -> tuple[float, float, float, float, float]:
+    """T_min, T_max [K], P_max, T_crit [K], P_crit [Pa] of the fluid's equation of state."""
+    a = _engine(fluid)
+    return a.Tmin(), a.Tmax(), a.pmax(), a.T_critical(), a.p_critical()
+
+
+def _flash(fluid: str, pair: int, x: float, y: float, written: str) -> Point:
+    a = _engine(fluid)
+    try:
+        a.update(pair, x, y)
+        T, P, h, s, u, rho = a.T(), a.p(), a.hmass(), a.smass(), a.umass(), a.rhomass()
+        phase, Q = a.phase(), a.Q()
+    except ValueError:
+        raise Reject(f"CoolProp cannot evaluate {fluid} at {x}, {y}") from None
+    values = (T, P, h, s, u, rho)
+    T_min, T_max, P_max, T_c, P_c = limits(fluid)
+    if not all(math.isfinite(v) for v in values) or not (T_min + 0.5 <= T <= T_max - 1.0) or (
+            P > P_max):
+        raise Reject(f"{fluid} at {T} K, {P} Pa is outside the equation of state")
+    if abs(T / T_c - 1.0) < 0.03 and abs(P / P_c - 1.0) < 0.15:
+        raise Reject("too close to the critical point")
+    two_phase = phase == CP.iphase_twophase and 0.0 <= Q <= 1.0
+    return Point(fluid, T, P, h, s, u, rho, "two-phase" if two_phase else "single",
+                 Q if two_phase else None, written)
+
+
+def t_sat(fluid: str, P: float) -> float | None:
+    """T_sat(P) [K] (bubble point), None above the critical pressure."""
+    if P >= limits(fluid)[4]:
+        return None
+    try:
+        return _flash(fluid, CP.PQ_INPUTS, P, 0.0, "PQ").T
+    except Reject:
+        return None
+
+
+def p_sat(fluid: str, T: float) -> float:
+    """P_sat(T) [Pa]."""
+    return _flash(fluid, CP.QT_INPUTS, 0.0, T, "PQ").P
+
+
+def tp(fluid: str, T: float, P: float) -> Point:
+    """A single-phase state from (T, P), kept SATURATION_MARGIN away from the saturation line."""
+    T_sat = t_sat(fluid, P) if T < limits(fluid)[3] else None
+    if T_sat is not None and abs(T - T_sat) < SATURATION_MARGIN:
+        raise Reject("(T, P) too close to saturation")
+    return _flash(fluid, CP.PT_INPUTS, P, T, "TP")
+
+
+def ph(fluid: str, P: float, h: float) -> Point:
+    return _flash(fluid, CP.HmassP_INPUTS, h, P, "Ph")
+
+
+def ps(fluid: str, P: float, s: float) -> Point:
+    return _flash(fluid, CP.PSmass_INPUTS, P, s, "Ph")
+
+
+def pq(fluid: str, P: float, quality: float) -> Point:
+    return _flash(fluid, CP.PQ_INPUTS, P, quality, "PQ")
+
+
+def dt(fluid: str, rho: float, T: float) -> Point:
+    point = _flash(fluid, CP.DmassT_INPUTS, rho, T, "TP")
+    if point.phase == "two-phase":
+        return Point(**{**point.__dict__, "written": "TQ"})
+    return tp(fluid, point.T, point.P)
+
+
+def written_as(point: Point, written: str) -> Point:
+    return Point(**{**point.__dict__, "written": written})
+
+
+# -- what a generated step is --------------------------------------------------------------------------
+@dataclass
+class Stream:
+    point: Point
+    flow: float  # kg/s
+
+
+@dataclass
+class Heat:
+    Q: float  # W (or J for a vessel) INTO the step
+    T: float | None  # declared boundary temperature [K], or None (the conservative choice)
+
+
+@dataclass
+class Step:
+    """A step as the balance writes it: its kind, its streams and its claims (already in SI)."""
+
+    kind: str
+    inlets: list[Stream]
+    outlets: list[Stream]
+    claims: dict = field(default_factory=dict)
+    heat: list[Heat] = field(default_factory=list)  # the heat flows the claims stand for
+    W: float = 0.0  # W (J) delivered by the step
+    batch: dict | None = None  # vessel: fluid, mass, initial, final
+
+    def streams(self) -> list[Stream]:
+        return [*self.inlets, *self.outlets]
+
+
+def power(x: float) -> str:
+    return f"{x!r} W"
+
+
+def energy(x: float) -> str:
+    return f"{x!r} J"
+
+
+def kelvin(x: float) -> str:
+    return f"{x!r} K"
+
+
+def entropy_generation(step: Step) -> float:
+    """Σ ṁ s_out − Σ ṁ s_in − Σ Q / T_b [W/K] (J/K for a vessel), with the boundary temperatures the
+    design notes prescribe when none is declared (heat in from T → ∞, heat out at min(T0, the
+    coldest stream))."""
+    if step.batch is not None:
+        m, a, b = step.batch["mass"], step.batch["initial"], step.batch["final"]
+        dS, coldest = m * (b.s - a.s), min(a.T, b.T)
+    else:
+        dS = (sum(x.flow * x.point.s for x in step.outlets)
+              - sum(x.flow * x.point.s for x in step.inlets))
+        coldest = min(x.point.T for x in step.streams())
+    for q in step.heat:
+        T_b = q.T if q.T is not None else (math.inf if q.Q > 0 else min(T0, coldest))
+        dS -= 0.0 if math.isinf(T_b) else q.Q / T_b
+    return dS
+
+
+def energy_scale(step: Step) -> float:
+    """An upper bound of the step's energy scale [W or J] (the documented scale is the largest of
+    |W|, Σ |Q| and the energy turnover Σ ṁ_i |h_i − mean outlet h of its fluid|; here their sum)."""
+    if step.batch is not None:
+        m, a, b = step.batch["mass"], step.batch["initial"], step.batch["final"]
+        return abs(step.W) + sum(abs(q.Q) for q in step.heat) + m * abs(b.u - a.u)
+    turnover = 0.0
+    for x in step.inlets:
+        outs = [o for o in step.outlets if o.point.fluid == x.point.fluid]
+        m_out = sum(o.flow for o in outs)
+        mean = sum(o.flow * o.point.h for o in outs) / m_out if m_out > 0 else x.point.h
+        turnover += x.flow * abs(x.point.h - mean)
+    return abs(step.W) + sum(abs(q.Q) for q in step.heat) + turnover
+
+
+def energy_excess(draw, step: Step) -> float:
+    """An energy error [W or J] comfortably above the tolerance the step will have once the error
+    is added: e ≥ 1.1 max(1 % of the scale bound, the absolute tolerance), so that even with the
+    error itself in the scale, 1 % of (scale + e) stays below e (1.1 · 1 % · S > 1 % · S + 0.01 e
+    whenever e ≥ 1.1 · 1 % · S ≥ 0.011 S)."""
+    absolute = ENERGY_ABSOLUTE_BATCH if step.batch is not None else ENERGY_ABSOLUTE
+    factor = draw(st.floats(1.1, 10.0))
+    return factor * max(ENERGY_RELATIVE * energy_scale(step), absolute)
+
+
+def mass_excess(draw, step: Step) -> float:
+    """A mass-flow error [kg/s] at least 1.1 times the mass tolerance."""
+    inlet = sum(x.flow for x in step.inlets)
+    return draw(st.floats(1.1, 10.0)) * max(MASS_RELATIVE * inlet, MASS_ABSOLUTE)
+
+
+# -- drawing states -----------------------------------------------------------------------------------
+def between(draw, lo: float, hi: float) -> float:
+    """A float in [lo, hi]; the draw is discarded when the range is empty."""
+    if not hi > lo:
+        raise Reject(f"empty range [{lo}, {hi}]")
+    return draw(st.floats(lo, hi))
+
+
+def draw_flow(draw) -> float:
+    return draw(st.floats(0.05, 120.0))
+
+
+def superheated(draw, fluid: str, P_range: tuple[float, float], superheat: tuple[float, float]
+                ) -> Point:
+    """A vapour/gas (T, P) state: P in P_range [Pa], T = T_sat(P) + superheat [K] (or a gas above
+    the critical temperature)."""
+    P = draw(st.floats(*P_range))
+    T_min, T_max, _, T_c, _ = limits(fluid)
+    base = t_sat(fluid, P) or T_c
+    T = min(max(base, T_min) + draw(st.floats(*superheat)), T_max - 50.0)
+    return tp(fluid, T, P)
+
+
+def subcooled(draw, fluid: str, T_range: tuple[float, float], subcooling: tuple[float, float]
+              ) -> Point:
+    """A liquid (T, P) state: T in T_range [K], P = P_sat(T + subcooling) [Pa], at least 0.5 bar."""
+    T = draw(st.floats(*T_range))
+    P = max(p_sat(fluid, T + draw(st.floats(*subcooling))), 0.5e5)
+    return tp(fluid, T, P)
+
+
+GASES = {  # fluid: (P range [Pa], T range [K]) of gas states far from saturation
+    "Air": ((0.8e5, 40e5), (250.0, 1100.0)),
+    "Nitrogen": ((0.8e5, 60e5), (250.0, 1100.0)),
+    "CarbonDioxide": ((1e5, 40e5), (300.0, 900.0)),
+}
+VAPOURS = {  # fluid: (P range [Pa] of the saturation line used)
+    "Water": (0.05e5, 120e5),
+    "Ammonia": (0.8e5, 40e5),
+    "R134a": (1e5, 25e5),
+}
+LIQUIDS = {  # fluid: T range [K] of subcooled liquid states
+    "Water": (275.0, 450.0),
+    "Ammonia": (210.0, 340.0),
+    "R134a": (200.0, 340.0),
+    "CarbonDioxide": (220.0, 285.0),
+}
+
+
+def draw_vapour_or_gas(draw, P_scale: tuple[float, float] = (0.0, 1.0)) -> Point:
+    """A superheated vapour or a gas of one of the fluids above."""
+    fluid = draw(st.sampled_from(sorted([*GASES, *VAPOURS])))
+    if fluid in GASES:
+        (P_lo, P_hi), (T_lo, T_hi) = GASES[fluid]
+        P = draw(st.floats(P_lo, P_hi))
+        return tp(fluid, draw(st.floats(T_lo, T_hi)), P)
+    P_lo, P_hi = VAPOURS[fluid]
+    return superheated(draw, fluid, (P_lo, P_hi), (SATURATION_MARGIN + 2.0, 250.0))
+
+
+def draw_liquid(draw) -> Point:
+    fluid = draw(st.sampled_from(sorted(LIQUIDS)))
+    return subcooled(draw, fluid, LIQUIDS[fluid], (5.0, 60.0))
+
+
+def draw_any_state(draw) -> Point:
+    """A liquid, a vapour or gas, or a two-phase state."""
+    choice = draw(st.sampled_from(["liquid", "vapour", "two-phase"]))
+    if choice == "liquid":
+        return draw_liquid(draw)
+    if choice == "vapour":
+        return draw_vapour_or_gas(draw)
+    fluid = draw(st.sampled_from(sorted(VAPOURS)))
+    return pq(fluid, draw(st.floats(*VAPOURS[fluid])), draw(st.floats(0.0, 1.0)))
+
+
+def lowest_pressure(fluid: str) -> float:
+    """Lowest pressure an expansion may reach [Pa] (above the triple point with room to spare)."""
+    return {"Water": 0.05e5, "CarbonDioxide": 7e5, "Ammonia": 0.3e5, "R134a": 0.3e5}.get(
+        fluid, 0.3e5)
+
+
+# -- the kinds ----------------------------------------------------------------------------------------
+def machine(kind: str, inlet: Point, P2: float, eta: float, flow: float, loss_share: float,
+            loss_T: float | None) -> Step:
+    """A turbine (expansion) or a compressor/pump (compression) of isentropic efficiency ``eta``.
+
+    Turbine: h2 = h1 − η (h1 − h2s), W = ṁ (h1 − h2) − L; compressor/pump: W_shaft = ṁ (h2s − h1)/η,
+    L = share of (W_shaft − ṁ (h2s − h1)), h2 = h1 + (W_shaft − L)/ṁ; h2s = h(P2, s1) [1, §6.12].
+
+    .. [1] M. J. Moran, H. N. Shapiro et al., Fundamentals of Engineering Thermodynamics, 8th ed.
+    """
+    h2s = ps(inlet.fluid, P2, inlet.s).h
+    if kind == "turbine":
+        h2 = inlet.h - eta * (inlet.h - h2s)
+        loss = loss_share * flow * (inlet.h - h2)
+        W = flow * (inlet.h - h2) - loss
+    else:
+        shaft = flow * (h2s - inlet.h) / eta
+        loss = loss_share * (shaft - flow * (h2s - inlet.h)) if eta < 1.0 else loss_share * 0.0
+        h2 = inlet.h + (shaft - loss) / flow
+        W = -shaft
+    outlet = ph(inlet.fluid, P2, h2)
+    claims = {"shaft_power": power(abs(W))}
+    heat = []
+    if loss > 0.0:
+        claims["heat_loss"] = power(loss)
+        if loss_T is not None:
+            claims["heat_loss_temperature"] = kelvin(loss_T)
+        heat = [Heat(-loss, loss_T)]
+    step = Step(kind, [Stream(inlet, flow)], [Stream(outlet, flow)], claims, heat, W)
+    step.extra = {"h2s": h2s, "eta": eta}  # type: ignore[attr-defined]
+    return step
+
+
+def draw_turbine(draw) -> Step:
+    inlet = draw_vapour_or_gas(draw)
+    P2 = max(inlet.P / draw(st.floats(1.2, 30.0)), lowest_pressure(inlet.fluid))
+    if P2 >= inlet.P / 1.1:
+        raise Reject("no room to expand")
+    eta = draw(st.floats(0.5, 0.95))
+    loss = draw(st.sampled_from([0.0, 0.0, draw(st.floats(0.0, 0.05))]))
+    loss_T = draw(st.sampled_from([None, T0]))
+    step = machine("turbine", inlet, P2, eta, draw_flow(draw), loss, loss_T)
+    out = step.outlets[0].point
+    if out.quality is not None and out.quality < 0.9:
+        raise Reject("exhaust wetter than the 12 % moisture warning")
+    if draw(st.booleans()):
+        step.claims["isentropic_efficiency"] = repr(eta)
+    return step
+
+
+def draw_compressor(draw) -> Step:
+    fluid = draw(st.sampled_from(["Air", "Nitrogen", "CarbonDioxide", "Ammonia", "R134a",
+                                  "Water"]))
+    if fluid in GASES:
+        (P_lo, P_hi), _ = GASES[fluid]
+        inlet = tp(fluid, draw(st.floats(250.0, 450.0) if fluid != "CarbonDioxide" else
+                               st.floats(300.0, 450.0)), draw(st.floats(P_lo, P_hi / 4)))
+    else:
+        P_lo, P_hi = {"Ammonia": (1e5, 10e5), "R134a": (1e5, 8e5), "Water": (0.1e5, 3e5)}[fluid]
+        inlet = superheated(draw, fluid, (P_lo, P_hi), (3.0, 60.0))
+    P2 = inlet.P * draw(st.floats(1.1, 6.0))
+    eta = draw(st.floats(0.5, 0.95))
+    loss = draw(st.sampled_from([0.0, draw(st.floats(0.0, 0.5))]))
+    step = machine("compressor", inlet, P2, eta, draw_flow(draw), loss,
+                   draw(st.sampled_from([None, None, T0])))
+    if draw(st.booleans()):
+        step.claims["isentropic_efficiency"] = repr(eta)
+    return step
+
+
+def draw_pump(draw) -> Step:
+    inlet = draw_liquid(draw)
+    P2 = inlet.P + draw(st.floats(0.5e5, 150e5))
+    if inlet.fluid == "R134a":
+        P2 = min(P2, 0.9 * limits("R134a")[2])
+    if P2 <= inlet.P * 1.01:
+        raise Reject("no pressure rise")
+    eta = draw(st.floats(0.5, 0.95))
+    step = machine("pump", inlet, P2, eta, draw_flow(draw), 0.0, None)
+    if draw(st.booleans()):
+        step.claims["isentropic_efficiency"] = repr(eta)
+    return step
+
+
+def draw_valve(draw) -> Step:
+    inlet = draw_any_state(draw)
+    P2 = max(inlet.P / draw(st.floats(1.05, 20.0)), lowest_pressure(inlet.fluid))
+    if P2 >= inlet.P / 1.01:
+        raise Reject("no pressure drop")
+    flow = draw_flow(draw)
+    outlet = ph(inlet.fluid, P2, inlet.h)
+    return Step("valve", [Stream(inlet, flow)], [Stream(outlet, flow)])
+
+
+def draw_heater(draw) -> Step:
+    inlet = draw_any_state(draw)
+    _, T_max, *_ = limits(inlet.fluid)
+    P2 = inlet.P * (1.0 - draw(st.floats(0.0, 0.05)))
+    T_top = min(T_max - 60.0, 1000.0)
+    if inlet.T >= T_top - 5.0:
+        raise Reject("no room to heat")
+    top = tp(inlet.fluid, T_top, P2) if t_sat(inlet.fluid, P2) is None or abs(
+        T_top - t_sat(inlet.fluid, P2)) > 2 else None
+    if top is None or top.h <= inlet.h:
+        raise Reject("no room to heat")
+    h2 = inlet.h + draw(st.floats(0.01, 1.0)) * (top.h - inlet.h)
+    outlet = ph(inlet.fluid, P2, h2)
+    flow = draw_flow(draw)
+    Q = flow * (outlet.h - inlet.h)
+    claims: dict = {}
+    source = None
+    if draw(st.integers(0, 4)) > 0:
+        claims["duty"] = power(Q)
+    if draw(st.booleans()):
+        hottest = max(outlet.T, ph(inlet.fluid, inlet.P, h2).T)  # along the path at P1 too
+        source = hottest + draw(st.floats(1.0, 500.0))
+        claims["source_temperature"] = kelvin(source)
+    return Step("heater", [Stream(inlet, flow)], [Stream(outlet, flow)], claims,
+                [Heat(Q, source)])
+
+
+def draw_cooler(draw) -> Step:
+    inlet = draw_any_state(draw)
+    T_min, *_ = limits(inlet.fluid)
+    P2 = inlet.P * (1.0 - draw(st.floats(0.0, 0.05)))
+    T_bottom = max(T_min + 5.0, 200.0 if inlet.fluid != "Water" else 280.0)
+    if inlet.T <= T_bottom + 5.0:
+        raise Reject("no room to cool")
+    sat = t_sat(inlet.fluid, P2)
+    bottom = tp(inlet.fluid, T_bottom, P2) if sat is None or abs(T_bottom - sat) > 2 else None
+    if bottom is None or bottom.h >= inlet.h:
+        raise Reject("no room to cool")
+    h2 = inlet.h - draw(st.floats(0.01, 1.0)) * (inlet.h - bottom.h)
+    outlet = ph(inlet.fluid, P2, h2)
+    flow = draw_flow(draw)
+    Q = flow * (inlet.h - outlet.h)
+    claims: dict = {}
+    sink = None
+    if draw(st.integers(0, 4)) > 0:
+        claims["duty"] = power(Q)
+    if draw(st.booleans()):
+        coldest = min(outlet.T, ph(inlet.fluid, inlet.P, h2).T)
+        sink = coldest - between(draw, 1.0, min(100.0, coldest - 30.0))
+        claims["sink_temperature"] = kelvin(sink)
+    return Step("cooler", [Stream(inlet, flow)], [Stream(outlet, flow)], claims, [Heat(-Q, sink)])
+
+
+PROFILE_POINTS = 60  # a multiple of the 20 steps plant-audit compares, so its points are among ours
+
+
+def approach(hot_in: Point, hot_out: Point, cold_in: Point, cold_out: Point, counter: bool
+             ) -> float:
+    """Smallest hot-minus-cold temperature difference [K] along the exchanger: both sides split
+    into PROFILE_POINTS equal enthalpy steps (pressure linear in between) plus the points where a
+    side crosses its saturated-liquid and saturated-vapour enthalpies, T from (P, h) flashes."""
+    fractions = {i / PROFILE_POINTS for i in range(PROFILE_POINTS + 1)}
+    for a, b, is_hot in ((cold_in, cold_out, False), (hot_in, hot_out, True)):
+        P = 0.5 * (a.P + b.P)
+        if P >= limits(a.fluid)[4] or b.h == a.h:
+            continue
+        for quality in (0.0, 1.0):
+            try:
+                f = (pq(a.fluid, P, quality).h - a.h) / (b.h - a.h)
+            except Reject:
+                continue
+            if 0.0 < f < 1.0:
+                fractions.update({f, max(0.0, f - 1e-6), min(1.0, f + 1e-6)}
+                                 if not (is_hot and counter) else
+                                 {1.0 - f, max(0.0, 1.0 - f - 1e-6), min(1.0, 1.0 - f + 1e-6)})
+
+    def side_T(a: Point, b: Point, f: float) -> float:
+        if f <= 0.0:
+            return a.T
+        if f >= 1.0:
+            return b.T
+        return ph(a.fluid, a.P + f * (b.P - a.P), a.h + f * (b.h - a.h)).T
+
+    return min(side_T(hot_in, hot_out, 1.0 - x if counter else x) - side_T(cold_in, cold_out, x)
+               for x in sorted(fractions))
+
+
+def h_near(fluid: str, T: float, P: float) -> float:
+    """h [J/kg] at (T, P), or 1.5 K off it when (T, P) is too close to saturation."""
+    for shift in (0.0, 1.5, -1.5):
+        try:
+            return tp(fluid, T + shift, P).h
+        except Reject:
+            continue
+    raise Reject("no state near that temperature")
+
+
+def draw_heat_exchanger(draw) -> Step:
+    hot_in = draw_vapour_or_gas(draw) if draw(st.booleans()) else draw_liquid(draw)
+    cold_in = draw_liquid(draw) if draw(st.booleans()) else draw_vapour_or_gas(draw)
+    if hot_in.T < cold_in.T + 10.0:
+        raise Reject("hot side not hotter than the cold side")
+    counter = draw(st.integers(0, 3)) > 0
+    Ph2 = hot_in.P * (1.0 - draw(st.floats(0.0, 0.03)))
+    Pc2 = cold_in.P * (1.0 - draw(st.floats(0.0, 0.03)))
+    m_hot, m_cold = draw_flow(draw), draw_flow(draw)
+    # the most either side could exchange: hot cooled to the cold inlet, cold heated to the hot inlet
+    hot_limit = m_hot * (hot_in.h - h_near(hot_in.fluid, cold_in.T + 0.5, Ph2))
+    cold_limit = m_cold * (h_near(cold_in.fluid, hot_in.T - 0.5, Pc2) - cold_in.h)
+    Q_max = min(hot_limit, cold_limit)
+    if Q_max <= 0.0:
+        raise Reject("no heat to exchange")
+    Q = draw(st.floats(0.05, 0.9 if counter else 0.5)) * Q_max
+    loss = draw(st.sampled_from([0.0, 0.0, draw(st.floats(0.0, 0.05))])) * Q
+    hot_out = ph(hot_in.fluid, Ph2, hot_in.h - (Q + loss) / m_hot)
+    cold_out = ph(cold_in.fluid, Pc2, cold_in.h + Q / m_cold)
+    if approach(hot_in, hot_out, cold_in, cold_out, counter) < 0.5:
+        raise Reject("the profiles come within 0.5 K")
+    claims: dict = {"hot": {"inlet": "@hot_in", "outlet": "@hot_out"},
+                    "cold": {"inlet": "@cold_in", "outlet": "@cold_out"},
+                    "arrangement": "counter-current" if counter else "co-current"}
+    if draw(st.integers(0, 4)) > 0:
+        claims["duty"] = power(Q)
+    heat = []
+    if loss > 0.0:
+        claims["heat_loss"] = power(loss)
+        heat = [Heat(-loss, None)]
+    step = Step("heat_exchanger", [Stream(hot_in, m_hot), Stream(cold_in, m_cold)],
+                [Stream(hot_out, m_hot), Stream(cold_out, m_cold)], claims, heat)
+    step.extra = {"Q": Q, "loss": loss, "counter": counter}  # type: ignore[attr-defined]
+    return step
+
+
+def draw_mixer(draw) -> Step:
+    first = draw_any_state(draw)
+    fluid, n = first.fluid, draw(st.integers(2, 4))
+    inlets = [Stream(first, draw_flow(draw))]
+    for _ in range(n - 1):
+        choice = draw(st.sampled_from(["same pressure", "other"]))
+        P = first.P * (1.0 if choice == "same pressure" else draw(st.floats(1.0, 3.0)))
+        T_min, T_max, *_ = limits(fluid)
+        T = between(draw, max(T_min + 5.0, first.T - 150.0), min(T_max - 60.0, first.T + 150.0))
+        inlets.append(Stream(tp(fluid, T, P), draw_flow(draw)))
+    P_out = min(x.point.P for x in inlets) * (1.0 - draw(st.floats(0.0, 0.03)))
+    total = sum(x.flow for x in inlets)
+    H_in = sum(x.flow * x.point.h for x in inlets)
+    loss = draw(st.sampled_from([0.0, 0.0, draw(st.floats(0.0, 0.02))])) * sum(
+        x.flow * abs(x.point.h - H_in / total) for x in inlets)
+    outlet = ph(fluid, P_out, (H_in - loss) / total)
+    claims, heat = {}, []
+    if loss > 0.0:
+        claims["heat_loss"] = power(loss)
+        heat = [Heat(-loss, None)]
+    return Step("mixer", inlets, [Stream(outlet, total)], claims, heat)
+
+
+def draw_splitter(draw) -> Step:
+    inlet = draw_any_state(draw)
+    flow, n = draw_flow(draw), draw(st.integers(2, 4))
+    shares = [draw(st.floats(0.05, 1.0)) for _ in range(n)]
+    flows = [flow * s / sum(shares) for s in shares[:-1]]
+    flows.append(flow - sum(flows))
+    return Step("splitter", [Stream(inlet, flow)], [Stream(inlet, f) for f in flows])
+
+
+def draw_vessel(draw) -> Step:
+    mass = draw(st.floats(0.1, 5000.0))
+    process = draw(st.sampled_from(["constant volume", "constant pressure", "stirred"]))
+    if process == "constant pressure":
+        initial = draw_any_state(draw) if draw(st.booleans()) else draw_liquid(draw)
+        T_min, T_max, *_ = limits(initial.fluid)
+        T2 = between(draw, max(T_min + 5.0, initial.T - 100.0), min(T_max - 60.0,
+                                                                     initial.T + 300.0))
+        final = tp(initial.fluid, T2, initial.P)
+        W = mass * initial.P * (1.0 / final.rho - 1.0 / initial.rho)  # boundary work delivered
+        Q = mass * (final.h - initial.h)
+    else:
+        initial = draw_vapour_or_gas(draw) if draw(st.booleans()) else pq(
+            "Water", draw(st.floats(0.05e5, 50e5)), draw(st.floats(0.0, 1.0)))
+        T_min, T_max, *_ = limits(initial.fluid)
+        low = max(T_min + 5.0, initial.T - 100.0) if process == "constant volume" else initial.T
+        T2 = between(draw, low, min(T_max - 60.0, initial.T + 300.0))
+        final = dt(initial.fluid, initial.rho, T2)
+        if process == "stirred" and final.u <= initial.u:
+            raise Reject("stirring only heats")
+        W = 0.0 if process == "constant volume" else -mass * (final.u - initial.u)
+        Q = 0.0 if process == "stirred" else mass * (final.u - initial.u)
+    claims: dict = {}
+    heat: list[Heat] = []
+    if process != "stirred":
+        T_b = None
+        if draw(st.booleans()):
+            T_b = (max(initial.T, final.T) + draw(st.floats(1.0, 300.0)) if Q > 0 else
+                   min(initial.T, final.T) - between(draw, 1.0, min(100.0, min(
+                       initial.T, final.T) - 30.0)))
+        heat = [Heat(Q, T_b)]
+        entry = {"added": energy(Q)} if Q >= 0 else {"removed": energy(-Q)}
+        if T_b is not None:
+            entry["temperature"] = kelvin(T_b)
+        claims["heat"] = [entry]
+    if W > 0:
+        claims["work_delivered"] = energy(W)
+    elif W < 0:
+        claims["work_absorbed"] = energy(-W)
+    elif draw(st.booleans()):
+        claims["work_delivered"] = energy(0.0)
+    return Step("vessel", [], [], claims, heat, W,
+                batch={"fluid": initial.fluid, "mass": mass, "initial": initial, "final": final})
+
+
+def draw_general(draw) -> Step:
+    """A general step made of 1 to 3 lanes, each a consistent machine, valve, heater or cooler of
+    its own stream: the step's work and heat are the lanes' sums (so it is consistent too)."""
+    lanes = [draw(st.sampled_from(["turbine", "compressor", "pump", "valve", "heater",
+                                   "cooler"])) for _ in range(draw(st.integers(1, 3)))]
+    inlets, outlets, heat, W = [], [], [], 0.0
+    for lane in lanes:
+        part = DRAW[lane](draw)
+        inlets += part.inlets
+        outlets += part.outlets
+        W += part.W
+        heat += part.heat
+    claims: dict = {"inlets": None, "outlets": None}
+    if heat:
+        entries = []
+        for q in heat:
+            entry = {"added": power(q.Q)} if q.Q >= 0 else {"removed": power(-q.Q)}
+            if q.T is not None:
+                entry["temperature"] = kelvin(q.T)
+            entries.append(entry)
+        claims["heat"] = entries
+    claims["work_delivered" if W >= 0 else "work_absorbed"] = power(abs(W))
+    return Step("general", inlets, outlets, claims, heat, W)
+
+
+DRAW = {"turbine": draw_turbine, "compressor": draw_compressor, "pump": draw_pump,
+        "valve": draw_valve, "heater": draw_heater, "cooler": draw_cooler,
+        "heat_exchanger": draw_heat_exchanger, "mixer": draw_mixer, "splitter": draw_splitter,
+        "vessel": draw_vessel, "general": draw_general}
+
+
+# -- violations -----------------------------------------------------------------------------------------
+def _copy(step: Step) -> Step:
+    new = Step(step.kind, list(step.inlets), list(step.outlets), dict(step.claims),
+               list(step.heat), step.W, dict(step.batch) if step.batch else None)
+    new.extra = getattr(step, "extra", {})  # type: ignore[attr-defined]
+    return new
+
+
+def lose_mass(draw, step: Step) -> tuple[Step, set[str], str]:
+    """One outlet carries less (or, when it is too small, more) than the mass balance allows."""
+    bad = _copy(step)
+    i = draw(st.integers(0, len(bad.outlets) - 1))
+    delta = mass_excess(draw, step)
+    out = bad.outlets[i]
+    new_flow = out.flow - delta if out.flow > 2.0 * delta else out.flow + delta
+    bad.outlets[i] = Stream(out.point, new_flow)
+    return bad, {"mass-imbalance"}, f"outlet {i} flow {out.flow!r} -> {new_flow!r} kg/s"
+
+
+def extra_work(draw, step: Step) -> tuple[Step, set[str], str]:
+    """The step claims more work delivered (or less absorbed) than its streams give."""
+    bad = _copy(step)
+    e = energy_excess(draw, step)
+    bad.W = step.W + e
+    batch = step.batch is not None
+    for key in ("shaft_power", "work_delivered", "work_absorbed"):
+        bad.claims.pop(key, None)
+    if step.kind in ("turbine", "compressor", "pump"):
+        if step.kind == "turbine":
+            bad.claims["shaft_power"] = power(bad.W)
+        elif -bad.W > 0:
+            bad.claims["shaft_power"] = power(-bad.W)
+        else:  # the error would flip the sign: claim more absorbed power instead
+            bad.W = step.W - e
+            bad.claims["shaft_power"] = power(-bad.W)
+    else:
+        fmt = energy if batch else power
+        bad.claims["work_delivered" if bad.W >= 0 else "work_absorbed"] = fmt(abs(bad.W))
+        if "heat" not in bad.claims:
+            bad.claims["heat"] = []  # claimed: no heat (else the heat would be inferred)
+    return bad, {"energy-imbalance"}, f"work {step.W!r} -> {bad.W!r}"
+
+
+def efficiency_above_one(draw, step: Step) -> tuple[Step, set[str], str]:
+    """The outlet lies beyond the isentropic one (η_s in [1.001, 1.3]), the work closing the
+    first law with it."""
+    eta = draw(st.floats(1.001, 1.3))
+    inlet, outlet = step.inlets[0], step.outlets[0]
+    share = 0.0
+    if "heat_loss" in step.claims:
+        share = float(step.claims["heat_loss"].split()[0])
+    loss_T = step.heat[0].T if step.heat else None
+    if step.kind == "turbine":
+        share = share / (inlet.flow * (inlet.point.h - outlet.point.h)) if share else 0.0
+    else:
+        share = 0.0  # a compressor or pump beyond the isentropic outlet, adiabatic
+    bad = machine(step.kind, inlet.point, outlet.point.P, eta, inlet.flow, share, loss_T)
+    bad.outlets = [Stream(written_as(bad.outlets[0].point, "Ph"), inlet.flow)]
+    return bad, {"efficiency-above-one"}, f"isentropic efficiency {eta!r}"
+
+
+def broken_duty(draw, step: Step) -> tuple[Step, set[str], str]:
+    """A heater's or cooler's claimed duty (or an exchanger's) off by more than the tolerance."""
+    bad = _copy(step)
+    e = energy_excess(draw, step)
+    if step.kind == "heat_exchanger":
+        Q = step.extra["Q"]  # type: ignore[attr-defined]
+        new = Q + e if Q <= 2.0 * e or draw(st.booleans()) else Q - e
+        bad.claims["duty"] = power(new)
+        return bad, {"duty-mismatch"}, f"duty {Q!r} -> {new!r}"
+    Q = abs(step.heat[0].Q)
+    new = Q + e if Q <= 2.0 * e or draw(st.booleans()) else Q - e
+    bad.claims["duty"] = power(new)
+    return bad, {"energy-imbalance"}, f"duty {Q!r} -> {new!r}"
+
+
+def broken_heat(draw, step: Step) -> tuple[Step, set[str], str]:
+    """A heat claim (vessel, general step, mixer heat loss) off by more than the tolerance; the
+    work is claimed (a zero work claim where none was), so the error cannot be absorbed by it."""
+    bad = _copy(step)
+    e = energy_excess(draw, step)
+    batch = step.batch is not None
+    fmt = energy if batch else power
+    if step.kind == "mixer":
+        loss = float(step.claims.get("heat_loss", "0 W").split()[0])
+        bad.claims["heat_loss"] = power(loss + e)
+        return bad, {"energy-imbalance"}, f"heat loss {loss!r} -> {loss + e!r}"
+    entries = [dict(x) for x in bad.claims["heat"]]
+    i = draw(st.integers(0, len(entries) - 1))
+    key = "added" if "added" in entries[i] else "removed"
+    amount = float(entries[i][key].split()[0])
+    entries[i][key] = fmt(amount + e)
+    bad.claims["heat"] = entries
+    if not any(k in bad.claims for k in ("work_delivered", "work_absorbed")):
+        bad.claims["work_delivered"] = fmt(0.0)
+    return bad, {"energy-imbalance"}, f"heat {key} {amount!r} -> {amount + e!r}"
+
+
+def source_too_cold(draw, step: Step) -> tuple[Step, set[str], str]:
+    bad = _copy(step)
+    T2 = step.outlets[0].point.T
+    source = T2 - between(draw, 0.01, min(100.0, T2 - 20.0))
+    bad.claims["source_temperature"] = kelvin(source)
+    return bad, {"source-too-cold"}, f"source at {source!r} K, outlet at {T2!r} K"
+
+
+def sink_too_hot(draw, step: Step) -> tuple[Step, set[str], str]:
+    bad = _copy(step)
+    T2 = step.outlets[0].point.T
+    sink = T2 + draw(st.floats(0.01, 100.0))
+    bad.claims["sink_temperature"] = kelvin(sink)
+    return bad, {"sink-too-hot"}, f"sink at {sink!r} K, outlet at {T2!r} K"
+
+
+def enthalpy_change(draw, step: Step) -> tuple[Step, set[str], str]:
+    """A valve whose outlet enthalpy is not its inlet's (by more than the tolerance over ṁ)."""
+    bad = _copy(step)
+    inlet, out = step.inlets[0], step.outlets[0]
+    dh = energy_excess(draw, step) / inlet.flow * draw(st.sampled_from([1.0, -1.0]))
+    bad.outlets = [Stream(ph(inlet.point.fluid, out.point.P, inlet.point.h + dh), out.flow)]
+    return bad, {"valve-not-isenthalpic"}, f"outlet h shifted by {dh!r} J/kg"
+
+
+def pressure_rise(draw, step: Step) -> tuple[Step, set[str], str]:
+    """A valve whose outlet pressure is above its inlet's."""
+    bad = _copy(step)
+    inlet, out = step.inlets[0], step.outlets[0]
+    P2 = inlet.point.P * draw(st.floats(1.001, 2.0))
+    bad.outlets = [Stream(ph(inlet.point.fluid, P2, inlet.point.h), out.flow)]
+    return bad, {"pressure-wrong-way"}, f"outlet at {P2!r} Pa"
+
+
+def temperature_cross(draw, step: Step) -> tuple[Step, set[str], str]:
+    """An exchanger whose cold outlet leaves hotter than the hot inlet (counter-current) or than the
+    hot outlet (co-current), the energy still balancing: the cold flow is what makes it close."""
+    bad = _copy(step)
+    hot_in, hot_out = step.inlets[0], step.outlets[0]
+    cold_in, cold_out = step.inlets[1], step.outlets[1]
+    counter = step.extra["counter"]  # type: ignore[attr-defined]
+    Q = step.extra["Q"]  # type: ignore[attr-defined]
+    limit = hot_in.point.T if counter else hot_out.point.T
+    target = limit + draw(st.floats(0.2, 40.0))
+    h_target = tp(cold_in.point.fluid, target, cold_out.point.P).h
+    if h_target <= cold_in.point.h:
+        raise Reject("the cold side cannot be heated there")
+    new_cold = ph(cold_in.point.fluid, cold_out.point.P, h_target)
+    m_cold = Q / (h_target - cold_in.point.h)
+    bad.inlets = [hot_in, Stream(cold_in.point, m_cold)]
+    bad.outlets = [hot_out, Stream(new_cold, m_cold)]
+    return bad, {"temperature-cross", "internal-pinch"}, f"cold outlet at {new_cold.T!r} K"
+
+
+def state_differs(draw, step: Step) -> tuple[Step, set[str], str]:
+    """A splitter outlet whose state is not the inlet's: its pressure lower by 0.6 to 30 % (at the
+    inlet's enthalpy) or, for a two-phase inlet, its quality off by 0.006 to 0.2 (the tolerances are
+    0.5 % and 0.005)."""
+    bad = _copy(step)
+    inlet = step.inlets[0].point
+    i = draw(st.integers(0, len(bad.outlets) - 1))
+    if inlet.quality is not None:
+        dq = draw(st.floats(0.006, 0.2))
+        q = inlet.quality + dq if inlet.quality + dq <= 1.0 else inlet.quality - dq
+        point = pq(inlet.fluid, inlet.P, q)
+        what = f"quality {q!r}"
+    else:
+        point = ph(inlet.fluid, inlet.P * (1.0 - draw(st.floats(0.006, 0.3))), inlet.h)
+        what = f"pressure {point.P!r} Pa"
+    bad.outlets[i] = Stream(point, bad.outlets[i].flow)
+    return bad, {"splitter-state-differs"}, f"outlet {i}: {what}"
+
+
+VIOLATIONS = {
+    "turbine": [extra_work, efficiency_above_one, lose_mass],
+    "compressor": [extra_work, efficiency_above_one, lose_mass],
+    "pump": [extra_work, efficiency_above_one, lose_mass],
+    "valve": [enthalpy_change, pressure_rise, lose_mass],
+    "heater": [broken_duty, source_too_cold, lose_mass],
+    "cooler": [broken_duty, sink_too_hot, lose_mass],
+    "heat_exchanger": [broken_duty, temperature_cross, lose_mass],
+    "mixer": [broken_heat, lose_mass],
+    "splitter": [state_differs, lose_mass],
+    "vessel": [broken_heat, extra_work],
+    "general": [extra_work, broken_heat, lose_mass],
+}
+
+
+def applicable(kind: str, step: Step, violation) -> bool:
+    """Whether the violation can be written into this step (a duty error needs a claimed duty,
+    a heat error a claimed heat flow)."""
+    if violation is broken_duty:
+        return "duty" in step.claims
+    if violation is broken_heat and kind in ("vessel", "general"):
+        return bool(step.claims.get("heat"))
+    return True
+
+
+# -- writing the balance --------------------------------------------------------------------------------
+def _scalar(value) -> str:
+    text = str(value)
+    return text if text and all(c not in text for c in ":{}[],#&*!|>'\"%@`") else f"'{text}'"
+
+
+def _flow_map(fields: dict) -> str:
+    return "{" + ", ".join(f"{k}: {_scalar(v)}" for k, v in fields.items()) + "}"
+
+
+def render(step: Step, prefix: str) -> tuple[list[str], list[str]]:
+    """(stream lines, step lines) of the step, its ids prefixed."""
+    streams, lines = [], [f"  - id: {prefix}", f"    kind: {step.kind}"]
+    names: dict[str, str] = {}
+    for role, group in (("i", step.inlets), ("o", step.outlets)):
+        for k, x in enumerate(group):
+            name = f"{prefix}{role}{k}"
+            names[f"{role}{k}"] = name
+            streams.append(f"  {name}: " + _flow_map(
+                {"fluid": x.point.fluid, **x.point.fields(), "flow": f"{x.flow!r} kg/s"}))
+    if step.kind == "vessel":
+        batch = step.batch
+        lines += [f"    fluid: {batch['fluid']}", f"    mass: {batch['mass']!r} kg"]
+        for which in ("initial", "final"):
+            point = batch[which]
+            fields = point.fields() if point.written != "TQ" else {
+                "T": f"{point.T!r} K", "quality": repr(point.quality)}
+            lines.append(f"    {which}: " + _flow_map(fields))
+    elif step.kind == "heat_exchanger":
+        lines.append(f"    hot: {{inlet: {names['i0']}, outlet: {names['o0']}}}")
+        lines.append(f"    cold: {{inlet: {names['i1']}, outlet: {names['o1']}}}")
+    elif step.kind in ("mixer",):
+        lines.append(f"    inlets: [{', '.join(names[f'i{k}'] for k in range(len(step.inlets)))}]")
+        lines.append(f"    outlet: {names['o0']}")
+    elif step.kind in ("splitter",):
+        lines.append(f"    inlet: {names['i0']}")
+        lines.append(f"    outlets: [{', '.join(names[f'o{k}'] for k in range(len(step.outlets)))}]")
+    elif step.kind == "general":
+        lines.append(f"    inlets: [{', '.join(names[f'i{k}'] for k in range(len(step.inlets)))}]")
+        lines.append(f"    outlets: [{', '.join(names[f'o{k}'] for k in range(len(step.outlets)))}]")
+    else:
+        lines += [f"    inlet: {names['i0']}", f"    outlet: {names['o0']}"]
+    for key, value in step.claims.items():
+        if key in ("hot", "cold", "inlets", "outlets"):
+            continue
+        if isinstance(value, list):
+            lines.append(f"    {key}:" + (" []" if not value else ""))
+            lines += [f"      - {_flow_map(entry)}" for entry in value]
+        else:
+            lines.append(f"    {key}: {_scalar(value)}")
+    return streams, lines
+
+
+SPARE = "Z0"
+
+
+def balance_text(steps: dict[str, Step]) -> str:
+    stream_lines, step_lines = [], []
+    for prefix, step in steps.items():
+        s, t = render(step, prefix)
+        stream_lines += s
+        step_lines += t
+    if not stream_lines:  # a balance needs a stream: vessels get one no step uses
+        stream_lines = [f"  {SPARE}: {{fluid: Water, T: 300.0 K, P: 101325.0 Pa, flow: 1.0 kg/s}}"]
+    return "\n".join(["balance:", "  name: generated step", "  site_pressure: 101325.0 Pa",
+                      "streams:", *stream_lines, "steps:", *step_lines]) + "\n"
+
+
+# -- one example ----------------------------------------------------------------------------------------
+REJECTED: Counter[str] = Counter()  # draws discarded (no usable state), per kind
+@dataclass
+class Verdict:
+    false_positive: list[str]  # findings on the consistent step (or on the plant)
+    missed: bool  # the violated step raised none of the expected findings
+    expected: set[str]
+    found: list[str]
+    violation: str
+    what: str
+
+
+def audit_example(draw, kind: str) -> Verdict:
+    """Draw a consistent step of ``kind`` and a violated copy, audit both in one balance."""
+    try:
+        good = DRAW[kind](draw)
+        if entropy_generation(good) < 0.0:
+            raise Reject("drawn step generates negative entropy")
+        choices = [v for v in VIOLATIONS[kind] if applicable(kind, good, v)]
+        violation = draw(st.sampled_from(choices))
+        bad, expected, what = violation(draw, good)
+    except Reject as why:
+        REJECTED[kind] += 1
+        assume(False)
+        raise AssertionError from why  # pragma: no cover (assume(False) raises)
+    text = balance_text({"A": good, "B": bad})
+    note(text)
+    try:
+        balance, document = parse_balance(text, "generated.yaml")
+        result = solve(balance, document)
+    except InputError as exc:  # a generated balance must always be valid input
+        raise AssertionError(f"the generated balance was refused: {exc}\n{text}") from None
+    positives = [f"{f.name}: {f.message}" for f in result.findings if f.step != "B" and not (
+        f.name == "stream-unused" and f.stream == SPARE)]
+    found = [f.name for f in result.findings if f.step == "B"]
+    return Verdict(positives, not expected & set(found), expected, found, violation.__name__,
+                   f"{violation.__name__}: {what}")
+
+
+SETTINGS = dict(deadline=None, database=None, derandomize=True,
+                suppress_health_check=[HealthCheck.too_slow, HealthCheck.filter_too_much,
+                                       HealthCheck.data_too_large])
+
+
+@pytest.mark.parametrize("kind", KINDS)
+def test_generated_steps(kind):
+    """A fixed-seed sample per kind: consistent steps pass, violations are caught."""
+
+    @settings(max_examples=DEFAULT_EXAMPLES, **SETTINGS)
+    @given(st.data())
+    def check(data):
+        verdict = audit_example(data.draw, kind)
+        assert not verdict.false_positive, f"false positive: {verdict.false_positive}"
+        assert not verdict.missed, (f"missed {verdict.what}: expected one of "
+                                    f"{sorted(verdict.expected)}, found {verdict.found}")
+
+    check()
+
+
+@pytest.mark.slow
+def test_generated_steps_long_run(capsys):
+    """≥ 10 000 generated steps (LONG_EXAMPLES consistent and as many violated per kind): count
+    false positives and missed violations, print the counts, and require both to be zero."""
+    counts = {kind: {"steps": 0, "false positives": 0, "missed": 0} for kind in KINDS}
+    injected: dict[str, Counter[str]] = {kind: Counter() for kind in KINDS}
+    examples: list[str] = []
+    REJECTED.clear()
+
+    def runner(kind: str):
+        @settings(max_examples=LONG_EXAMPLES, **SETTINGS)
+        @given(st.data())
+        def run(data):
+            verdict = audit_example(data.draw, kind)
+            counts[kind]["steps"] += 2
+            injected[kind][verdict.violation] += 1
+            if verdict.false_positive:
+                counts[kind]["false positives"] += 1
+                examples.append(f"{kind} false positive: {verdict.false_positive[:2]}")
+            if verdict.missed:
+                counts[kind]["missed"] += 1
+                examples.append(f"{kind} missed {verdict.what}: found {verdict.found}")
+
+        return run
+
+    for kind in KINDS:
+        runner(kind)()
+    total = {key: sum(c[key] for c in counts.values()) for key in ("steps", "false positives",
+                                                                   "missed")}
+    with capsys.disabled():
+        print(f"\ngenerated steps: {total['steps']} ({LONG_EXAMPLES} consistent and "
+              f"{LONG_EXAMPLES} violated per kind)")
+        for kind, c in counts.items():
+            print(f"  {kind:15s} steps {c['steps']:6d}   false positives {c['false positives']:4d}"
+                  f"   missed violations {c['missed']:4d}   (draws discarded {REJECTED[kind]}; "
+                  + ", ".join(f"{name} {n}" for name, n in sorted(injected[kind].items())) + ")")
+        print(f"  {'total':15s} steps {total['steps']:6d}   false positives "
+              f"{total['false positives']:4d}   missed violations {total['missed']:4d}")
+        for line in examples[:20]:
+            print("   ", line)
+    assert total["steps"] >= 10_000 or LONG_EXAMPLES < 455
+    assert total["false positives"] == 0 and total["missed"] == 0, examples[:20]
