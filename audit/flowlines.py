@@ -40,7 +40,10 @@ _LEAD = re.compile(r"^[ ]*(?:-[ ]+)?(?:[A-Za-z0-9_][A-Za-z0-9_.\-]*:[ ]+)?$")
 
 STR_TAG = "tag:yaml.org,2002:str"
 
-Item = tuple  # (key text, key column, value): value is (text, column) or (brace column, [items])
+Item = tuple
+"""(key text, key column, key tag, value text, value column, value tag) for a scalar value, or
+(key text, key column, key tag, brace column, [items], None) for a nested mapping; a tag is None
+for a plain string (columns 0-based)."""
 
 
 @dataclass
@@ -81,48 +84,55 @@ def scan(text: str) -> Scan | None:
 def _items(line: str, start: int, stop: int, nested: bool) -> list[Item] | None:
     """The items of the flow mapping written in ``line[start:stop]``, or None when it is not
     entirely made of recognised items (or repeats a key)."""
-    pattern = _ITEM if nested else _INNER_ITEM
     items: list[Item] = []
     keys: set[str] = set()
     position = start
-    while position < stop:
-        match = pattern.match(line, position, stop)
-        if match is None:
+    comma = None
+    for match in (_ITEM if nested else _INNER_ITEM).finditer(line, start, stop):
+        if match.start() != position:
             return None
-        key = match.group(1)
+        regs = match.regs
+        if nested:
+            key, inner, value, comma = match.groups()
+            key_at, value_at = regs[1][0], regs[3][0]
+        else:
+            key, value, comma = match.groups()
+            inner, key_at, value_at = None, regs[1][0], regs[2][0]
         if key in keys:
             return None  # the usual path words the duplicate-key error
         keys.add(key)
-        if nested and match.group(2) is not None:
-            inner = _items(line, match.start(2), match.end(2), nested=False)
-            if not inner:
+        key_tag = _tag(key)
+        if inner is not None:
+            nested_items = _items(line, regs[2][0], regs[2][1], nested=False)
+            if not nested_items:
                 return None
-            value: tuple = (match.start(2) - 1, inner)
+            items.append((key, key_at, key_tag, regs[2][0] - 1, nested_items, None))
         else:
-            group = 3 if nested else 2
-            value = (match.group(group).rstrip(" "), match.start(group))
-        items.append((key, match.start(1), value))
+            value = value.rstrip(" ")
+            items.append((key, key_at, key_tag, value, value_at,
+                          None if " " in value else _tag(value)))
         position = match.end()
-        if match.group(4 if nested else 3) == ",":
-            if position >= stop:
-                return None  # a trailing comma: leave it to the usual path
+    if position != stop or comma == ",":
+        return None  # text the items do not cover, or a trailing comma: the usual path reads it
     return items
 
 
 _RESOLVER = yaml.resolver.Resolver()
-_TAGS: dict[str, str] = {}
+_TAGS: dict[str, str | None] = {}
 _MAX_TAGS = 10_000
 
 
-def tag_of(text: str) -> str:
-    """The tag PyYAML's resolver gives ``text`` as a plain scalar (remembered per text)."""
-    if " " in text:
-        return STR_TAG
-    tag = _TAGS.get(text)
-    if tag is None:
-        tag = _RESOLVER.resolve(yaml.ScalarNode, text, (True, False))
-        if len(_TAGS) < _MAX_TAGS:
-            _TAGS[text] = tag
+def _tag(text: str) -> str | None:
+    """The tag PyYAML's resolver gives ``text`` as a plain scalar, None for a string (remembered
+    per text). Text with a space is a string (see the module docstring) and is not asked."""
+    try:
+        return _TAGS[text]
+    except KeyError:
+        pass
+    tag = _RESOLVER.resolve(yaml.ScalarNode, text, (True, False))
+    tag = None if tag == STR_TAG else tag
+    if len(_TAGS) < _MAX_TAGS:
+        _TAGS[text] = tag
     return tag
 
 

@@ -43,7 +43,8 @@ _FAST_LOADER = getattr(yaml, "CSafeLoader", None)
 """libyaml's parser, when PyYAML was built with it: it composes the same nodes, with the same
 marks, about eight times faster than the pure-Python parser (benchmarks/run.py). Text it refuses,
 and text with a tab, goes to the pure-Python parser, whose errors the messages below are written
-for."""
+for. (One known leniency: libyaml reads a tag followed directly by a comma in a flow collection,
+``{a: !!str, b: c}``, as a tag on an empty value, where PyYAML refuses the text.)"""
 
 Path_ = tuple[object, ...]
 
@@ -197,34 +198,40 @@ class _Builder:
 
     def _flow_line(self, items: list, line: int, path: Path_, depth: int) -> dict:
         """A mapping :mod:`audit.flowlines` read from one line, built as :meth:`_mapping` builds
-        composed nodes: the same values, positions and node count."""
-        result: dict = {}
-        for key_text, key_column, value in items:
-            key = self._flow_scalar(key_text, line, key_column, path + ("<key>",), depth + 1)
-            if key in result:
-                raise _FastPathDeclined  # the usual path words the duplicate-key error
-            if isinstance(value[1], list):
-                column, inner = value
-                self._flow_node(path + (key,), line, column, depth + 1)
-                result[key] = self._flow_line(inner, line, path + (key,), depth + 1)
-            else:
-                text, column = value
-                result[key] = self._flow_scalar(text, line, column, path + (key,), depth + 1)
-            self.positions[path + (key,)] = (line + 1, key_column + 1)
-        return result
-
-    def _flow_scalar(self, text: str, line: int, column: int, path: Path_, depth: int) -> Any:
-        tag = flowlines.tag_of(text)
-        if tag != _STR_TAG:
-            return self.build(flowlines.scalar_node(text, tag, line, column), path, depth)
-        self._flow_node(path, line, column, depth)
-        return text
-
-    def _flow_node(self, path: Path_, line: int, column: int, depth: int) -> None:
-        self.count += 1
-        if self.count > MAX_NODES or depth > 100:
+        composed nodes: the same values, positions and node count (a value's own position is
+        overwritten by its key's there, so only the key's is recorded here)."""
+        depth += 1
+        if depth > 100:
             raise _FastPathDeclined  # the usual path words the error
-        self.positions.setdefault(path, (line + 1, column + 1))
+        result: dict = {}
+        positions = self.positions
+        row = line + 1
+        nodes = 0
+        for key, key_column, key_tag, first, second, tag in items:
+            if key_tag is None:
+                nodes += 1
+                if not result:
+                    positions.setdefault(path + ("<key>",), (row, key_column + 1))
+            else:
+                key = self.build(flowlines.scalar_node(key, key_tag, line, key_column),
+                                 path + ("<key>",), depth)
+                if key in result:
+                    raise _FastPathDeclined  # the usual path words the duplicate-key error
+            here = path + (key,)
+            if type(second) is list:  # a nested mapping: (column of its brace, its items)
+                nodes += 1
+                result[key] = self._flow_line(second, line, here, depth)
+            elif tag is None:  # a plain string: (text, column)
+                nodes += 1
+                result[key] = first
+            else:
+                result[key] = self.build(flowlines.scalar_node(first, tag, line, second), here,
+                                         depth)
+            positions[here] = (row, key_column + 1)
+        self.count += nodes
+        if self.count > MAX_NODES:
+            raise _FastPathDeclined  # the usual path words the error
+        return result
 
 
 class _FastPathDeclined(Exception):

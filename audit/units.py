@@ -129,6 +129,12 @@ def _converter(unit: str) -> tuple[float, float, str]:
 
 def split_number(text: object, kind: str) -> tuple[float, str]:
     """Split ``"420 degC"`` into ``(420.0, "degC")``; refuse bare numbers and non-finite values."""
+    if type(text) is str and len(text) <= MAX_QUANTITY_CHARS:
+        match = _NUMBER.match(text)
+        if match is not None:  # the usual case, checked as below in fewer steps
+            number, unit = float(match.group(1)), match.group(2)
+            if unit and math.isfinite(number):
+                return number, unit
     expected = KINDS[kind].example if kind in KINDS else kind
     if isinstance(text, bool) or text is None:
         raise UnitError(f"expected a quantity with a unit, such as {expected}; got {text!r}")

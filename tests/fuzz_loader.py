@@ -7,17 +7,21 @@ Run it as a command (it is not collected by pytest)::
     /tmp/dev/bin/python tests/fuzz_loader.py --seconds 60
     /tmp/dev/bin/python tests/fuzz_loader.py --seconds 600 --crashes /tmp/fuzz-crashes
 
-Inputs are drawn by hypothesis, in rounds of fresh seeds until the time is up, from two sources:
+Inputs are drawn by hypothesis, in rounds of fresh seeds until the time is up, from three sources:
 
 * mutations of real balances (the sample plant and the bad-input corpus): lines deleted, doubled or
   swapped, indentation changed, characters replaced, and tokens that stress YAML and the units
   inserted (tabs, anchors and aliases, tags, brackets, odd numbers and units);
+* edits of the valid sample balances: one to three values replaced by odd ones or removed, the
+  YAML staying well formed, so that the units, the validation and the solver see them;
 * generated documents: nested mappings and lists written by PyYAML, their keys taken from the
   balance file's own vocabulary and their values from numbers, quantity strings and text.
 
-Each input that raises anything but InputError is written to the crash folder, with its traceback,
-and the command exits 1. :func:`check_text` is also run on a small fixed sample by the default test
-suite (``tests/test_bad_inputs.py``).
+Each input is also read with the loader's fast path for one-line flow mappings and without it; the
+two must give the same data and positions. Each input that raises anything but InputError, or reads
+differently, is written to the crash folder with its traceback, and the command exits 1.
+:func:`check_text` is also run on a small fixed sample by the default test suite
+(``tests/test_bad_inputs.py``).
 """
 
 from __future__ import annotations
@@ -26,6 +30,7 @@ import argparse
 import sys
 import time
 import traceback
+from collections import Counter
 from pathlib import Path
 
 import yaml
@@ -37,6 +42,7 @@ ROOT = HERE.parent
 if str(ROOT) not in sys.path:  # run as a script from anywhere
     sys.path.insert(0, str(ROOT))
 
+from audit import loader  # noqa: E402
 from audit.errors import InputError  # noqa: E402
 from audit.model import parse_balance  # noqa: E402
 from audit.solve import solve  # noqa: E402
@@ -138,23 +144,98 @@ def generated(draw) -> str:
         return str(data)
 
 
-INPUTS = mutated() | generated()
+def _leaves(data, path=()):
+    """Paths of every scalar of nested data."""
+    if isinstance(data, dict):
+        for key, value in data.items():
+            yield from _leaves(value, (*path, key))
+    elif isinstance(data, list):
+        for i, value in enumerate(data):
+            yield from _leaves(value, (*path, i))
+    else:
+        yield path
+
+
+VALID = [yaml.safe_load(p.read_text(encoding="utf-8"))
+         for p in sorted((ROOT / "sample_plant").glob("*.yaml"))]
+
+
+@st.composite
+def edited(draw) -> str:
+    """A valid balance with one to three values replaced or removed: it stays well-formed YAML,
+    so the units, the validation and the solver see the odd value."""
+    import copy
+
+    data = copy.deepcopy(draw(st.sampled_from(VALID)))
+    for _ in range(draw(st.integers(1, 3))):
+        paths = list(_leaves(data))
+        if not paths:
+            break
+        path = draw(st.sampled_from(paths))
+        parent = data
+        for part in path[:-1]:
+            parent = parent[part]
+        if not path:
+            data = draw(SCALARS)
+        elif draw(st.integers(0, 4)) == 0 and isinstance(parent, dict):
+            del parent[path[-1]]
+        else:
+            parent[path[-1]] = draw(SCALARS | st.sampled_from(TOKENS))
+    return yaml.safe_dump(data, allow_unicode=True, sort_keys=False)
+
+
+INPUTS = mutated() | generated() | edited()
+OUTCOMES: Counter[str] = Counter()
 
 
 def check_text(text: str) -> str | None:
     """Load, validate and solve ``text``; None when it passes or raises InputError, else the
-    traceback of the other exception."""
+    traceback of the other exception (or the difference between the loader's fast path and its
+    usual path, which must read every text alike)."""
     try:
+        different = _paths_differ(text)
+        if different:
+            return different
         balance, document = parse_balance(text, "fuzzed.yaml")
         solve(balance, document)
     except InputError as exc:
+        OUTCOMES["refused with an InputError"] += 1
         if not str(exc):
             return "an InputError without a message"
         return None
-    except RecursionError:  # a recursion past Python's limit is a crash as well
+    except Exception:  # RecursionError included: a crash all the same
         return traceback.format_exc()
-    except Exception:
-        return traceback.format_exc()
+    OUTCOMES["audited"] += 1
+    return None
+
+
+def _paths_differ(text: str) -> str | None:
+    """Where :func:`audit.loader.parse_document` (which reads one-line flow mappings by the fast
+    path of :mod:`audit.flowlines` when it applies) and the usual path disagree on the data or the
+    positions of ``text``; None when they agree or when the loader has no separate paths."""
+    usual = getattr(loader, "_parse", None)
+    if usual is None:
+        return None
+    try:
+        first = ("ok", loader.parse_document(text, "fuzzed.yaml"))
+    except InputError as exc:
+        first = ("error", str(exc))
+    try:
+        second = ("ok", usual(text, "fuzzed.yaml", None))
+    except InputError as exc:
+        second = ("error", str(exc))
+    if first[0] != second[0]:
+        return f"the fast path gives {first!r}, the usual path {second!r}"
+    if first[0] == "error":
+        return None if first == second else f"errors differ: {first[1]!r} / {second[1]!r}"
+    a, b = first[1], second[1]
+    if repr(a.data) != repr(b.data):
+        return f"the fast path reads {a.data!r}, the usual path {b.data!r}"
+    if a.positions != b.positions:
+        moved = sorted((k for k in set(a.positions) | set(b.positions)
+                        if a.positions.get(k) != b.positions.get(k)), key=repr)[:5]
+        return f"positions differ at {moved}: " + ", ".join(
+            f"{a.positions.get(k)} / {b.positions.get(k)}" for k in moved)
     return None
 
 
@@ -197,7 +278,8 @@ def main(argv: list[str] | None = None) -> int:
     tried, found = fuzz(args.seconds, args.crashes)
     elapsed = time.monotonic() - started
     print(f"fuzzed {tried} inputs in {elapsed:.0f} s ({tried / max(elapsed, 1e-9):.0f}/s): "
-          f"{found} raised something other than InputError"
+          f"{OUTCOMES['audited']} audited, {OUTCOMES['refused with an InputError']} refused with "
+          f"an InputError, {found} raised something else or read differently on the fast path"
           + (f"; see {args.crashes}/" if found else ""))
     return 1 if found else 0
 

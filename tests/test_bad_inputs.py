@@ -156,3 +156,19 @@ def test_real_process_exit_code_and_no_traceback(tmp_path):
         assert "Traceback" not in done.stderr
         assert done.stderr.startswith(f"error: {CORPUS / name}:")
         assert not json_file.exists()
+
+
+def test_fuzzed_inputs_sample():
+    """A fixed-seed sample of the fuzzer's inputs (tests/fuzz_loader.py, which runs for as long as
+    it is told): each is refused with an InputError or audited, never anything else."""
+    from fuzz_loader import INPUTS, check_text
+    from hypothesis import HealthCheck, given, settings
+
+    @settings(max_examples=40, derandomize=True, database=None, deadline=None,
+              suppress_health_check=list(HealthCheck))
+    @given(INPUTS)
+    def never_a_crash(text: str) -> None:
+        problem = check_text(text)
+        assert problem is None, f"{problem}\n--- input ---\n{text}"
+
+    never_a_crash()

@@ -57,13 +57,21 @@ def package(wb: Workbook, formulas: dict[str, list[tuple[str, float]]], when: da
 def cache_formula_values(xml: bytes, cached: list[tuple[str, float]]) -> bytes:
     """Put each formula cell's value into its empty ``<v/>`` (openpyxl writes none)."""
     text = xml.decode("utf-8")
+    values = {}
     for coordinate, value in cached:
-        pattern = re.compile(rf'(<c r="{coordinate}"[^>]*><f>[^<]*</f>)(?:<v\s*/>|<v></v>)')
-        cached_text = f"<v>{float(value)!r}</v>"
-        text = pattern.sub(lambda m, v=cached_text: m.group(1) + v, text, count=1)
-        # No match: an openpyxl that writes cells differently; the formula stays uncached and
-        # spreadsheet programs still compute it on load (the tests catch the change).
-    return text.encode("utf-8")
+        values.setdefault(coordinate, f"<v>{float(value)!r}</v>")
+
+    def fill(match: re.Match) -> str:
+        # the first formula cell of each coordinate takes its value (one pass over the sheet)
+        value = values.pop(match.group(2), None)
+        return match.group(0) if value is None else match.group(1) + value
+
+    # A coordinate without a match: an openpyxl that writes cells differently; the formula stays
+    # uncached and spreadsheet programs still compute it on load (the tests catch the change).
+    return _FORMULA_CELL.sub(fill, text).encode("utf-8")
+
+
+_FORMULA_CELL = re.compile(r'(<c r="([A-Z]+[0-9]+)"[^>]*><f>[^<]*</f>)(?:<v\s*/>|<v></v>)')
 
 
 def atomic_write(path: Path, write: Callable[[BinaryIO], None]) -> None:

@@ -8,6 +8,9 @@ from audit.findings import ERROR, WARNING, Finding
 from audit.results import HeatFlow, StreamResult
 from audit.steps.base import StepContext, boundary_temperature
 
+EFFICIENCY_MATCH = 0.01
+"""A claimed isentropic efficiency may differ from the computed one by this much [-]."""
+
 
 def heat_loss_flow(
     loss: float | None, temperature: float | None, T0: float, coldest: float | None = None
@@ -64,7 +67,6 @@ def evaluate_work_absorber(step, kind: str, ctx: StepContext, noun: str):
         inferred.append("shaft_power")
     claimed.append("heat_loss" if step.heat_loss is not None else "adiabatic")
     result, _ = finish_flow_step(step, kind, ctx, [inlet], [outlet], heat, W, claimed, inferred)
-    tol = ctx.tolerances
     if outlet.P <= inlet.P:
         ctx.add(Finding(
             ERROR, "pressure-wrong-way", step.id,
@@ -83,24 +85,34 @@ def evaluate_work_absorber(step, kind: str, ctx: StepContext, noun: str):
     else:
         eta = None
     if eta is not None and h_s is not None:
-        result.isentropic_efficiency = eta
-        result.extra["h_out_isentropic"] = h_s
-        if eta > 1.0 + tol.efficiency:
-            ctx.add(Finding(
-                ERROR, "efficiency-above-one", step.id,
-                f"the streams give an isentropic efficiency of {eta:.3f}: the outlet enthalpy is "
-                f"below the isentropic outlet's ({h_s / 1e3:.1f} kJ/kg), which no real {noun} "
-                "reaches",
-                claimed=eta, bound=1.0, margin=eta - 1.0, margin_relative=eta - 1.0,
-                quantity="fraction", tolerance=tol.efficiency,
-            ))
-        claimed_eta = getattr(step, "isentropic_efficiency", None)
-        if claimed_eta is not None and abs(claimed_eta - eta) > 0.01:
-            ctx.add(Finding(
-                WARNING, "efficiency-mismatch", step.id,
-                f"the claimed isentropic efficiency {claimed_eta:.3f} differs from the "
-                f"{eta:.3f} the streams give",
-                claimed=claimed_eta, bound=eta, margin=claimed_eta - eta,
-                margin_relative=(claimed_eta - eta) / eta, quantity="fraction", tolerance=0.01,
-            ))
+        efficiency_findings(step, result, ctx, eta, h_s, noun,
+                            "from the shaft power" if cooled else "from the streams")
     return result
+
+
+def efficiency_findings(step, result, ctx: StepContext, eta: float, h_s: float, noun: str,
+                        basis: str = "from the streams") -> None:
+    """Record the isentropic efficiency ``eta`` [-] of a machine (with its isentropic outlet
+    enthalpy ``h_s`` [J/kg]) and flag it above 1 (``efficiency-above-one``) or unlike a claimed
+    value by more than 0.01 (``efficiency-mismatch``)."""
+    tol = ctx.tolerances
+    result.isentropic_efficiency = eta
+    result.extra["h_out_isentropic"] = h_s
+    if eta > 1.0 + tol.efficiency:
+        ctx.add(Finding(
+            ERROR, "efficiency-above-one", step.id,
+            f"the isentropic efficiency {basis} is {eta:.3f} (isentropic outlet "
+            f"{h_s / 1e3:.1f} kJ/kg), above 1, which no real {noun} reaches",
+            claimed=eta, bound=1.0, margin=eta - 1.0, margin_relative=eta - 1.0,
+            quantity="fraction", tolerance=tol.efficiency,
+        ))
+    claimed_eta = getattr(step, "isentropic_efficiency", None)
+    if claimed_eta is not None and abs(claimed_eta - eta) > EFFICIENCY_MATCH:
+        ctx.add(Finding(
+            WARNING, "efficiency-mismatch", step.id,
+            f"the claimed isentropic efficiency {claimed_eta:.3f} differs from the {eta:.3f} "
+            f"computed {basis}",
+            claimed=claimed_eta, bound=eta, margin=claimed_eta - eta,
+            margin_relative=(claimed_eta - eta) / eta, quantity="fraction",
+            tolerance=EFFICIENCY_MATCH,
+        ))

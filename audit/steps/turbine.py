@@ -23,11 +23,11 @@ from typing import Literal
 
 from pydantic import Field
 
-from audit.findings import ERROR, WARNING, Finding, relative
+from audit.findings import ERROR, WARNING, Finding
 from audit.quantities import Power, Temperature
 from audit.results import StepResult
 from audit.steps.base import StepBase, StepContext, finish_flow_step, register
-from audit.steps.machines import heat_loss_flow, isentropic_outlet_enthalpy
+from audit.steps.machines import efficiency_findings, heat_loss_flow, isentropic_outlet_enthalpy
 
 
 class Turbine(StepBase):
@@ -71,28 +71,7 @@ def evaluate(step: Turbine, ctx: StepContext) -> StepResult:
     h_s = isentropic_outlet_enthalpy(step.id, inlet, outlet, ctx)
     if h_s is not None and inlet.h - h_s > 0:
         eta = (inlet.h - outlet.h) / (inlet.h - h_s)
-        result.isentropic_efficiency = eta
-        result.extra["h_out_isentropic"] = h_s
-        if eta > 1.0 + tol.efficiency:
-            ctx.add(Finding(
-                ERROR, "efficiency-above-one", step.id,
-                f"the streams give an isentropic efficiency of {eta:.3f}: the outlet enthalpy is "
-                f"below the isentropic outlet's ({h_s / 1e3:.1f} kJ/kg), which no real turbine "
-                "reaches",
-                claimed=eta, bound=1.0, margin=eta - 1.0, margin_relative=eta - 1.0,
-                quantity="fraction", tolerance=tol.efficiency,
-            ))
-        if step.isentropic_efficiency is not None and abs(
-                step.isentropic_efficiency - eta) > 0.01:
-            ctx.add(Finding(
-                WARNING, "efficiency-mismatch", step.id,
-                f"the claimed isentropic efficiency {step.isentropic_efficiency:.3f} differs from "
-                f"the {eta:.3f} the streams give",
-                claimed=step.isentropic_efficiency, bound=eta,
-                margin=step.isentropic_efficiency - eta,
-                margin_relative=relative(step.isentropic_efficiency - eta, eta),
-                quantity="fraction", tolerance=0.01,
-            ))
+        efficiency_findings(step, result, ctx, eta, h_s, "turbine")
     if outlet.quality is not None and 1.0 - outlet.quality > tol.exhaust_moisture_max:
         moisture = 1.0 - outlet.quality
         ctx.add(Finding(
