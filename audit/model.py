@@ -223,6 +223,9 @@ def _message(error: dict, missing: str | None, path: tuple, data: Any) -> str:
         hint = (f"; put it in quotes ('{value}') if it is a name"
                 if isinstance(value, (int, float)) and not isinstance(value, bool) else "")
         return f"expected text here, not {_describe(value)}{hint}"
+    if kind == "greater_than_equal" and error.get("ctx", {}).get("ge") == 0:
+        return ("must not be negative (write amounts without a sign: a claim's name says its "
+                "direction, e.g. 'heat_loss' is heat leaving the step)")
     if kind in ("float_parsing", "float_type"):
         hint = (" (quality is the vapour mass fraction, a number from 0 to 1, e.g. 0.95)"
                 if error["loc"] and error["loc"][-1] == "quality" else "")

@@ -142,3 +142,12 @@ def test_empty_file_and_folder(tmp_path):
         audit.run(empty)
     with pytest.raises(InputError, match=r"is a folder, not a balance file"):
         audit.run(tmp_path)
+
+
+def test_negative_claims_are_refused(tmp_path):
+    # Claims carry no signs: the field's name says the direction.
+    streams = GOOD_STREAM + "  S2: {fluid: Water, T: 200 degC, P: 2 bar, flow: 1 kg/s}\n"
+    steps = ("steps:\n  - {id: T1, kind: turbine, inlet: S1, outlet: S2, "
+             "heat_loss: -5 kW}\n")
+    message = error_of(tmp_path, balance(streams=streams, steps=steps))
+    assert "step T1, field 'steps[0].heat_loss': must not be negative" in message

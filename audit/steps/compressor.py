@@ -25,8 +25,8 @@ class Compressor(StepBase):
     kind: Literal["compressor"]
     inlet: str
     outlet: str
-    shaft_power: Power | None = Field(None, description="shaft power absorbed by the compressor")
-    heat_loss: Power | None = Field(None, description="heat removed from the gas (default 0)")
+    shaft_power: Power | None = Field(None, ge=0, description="shaft power absorbed by the compressor")
+    heat_loss: Power | None = Field(None, ge=0, description="heat removed from the gas (default 0)")
     heat_loss_temperature: Temperature | None = None
     isentropic_efficiency: float | None = Field(None, gt=0)
 

@@ -25,7 +25,7 @@ class Cooler(StepBase):
     kind: Literal["cooler"]
     inlet: str
     outlet: str
-    duty: Power | None = Field(None, description="heat given off by the stream")
+    duty: Power | None = Field(None, ge=0, description="heat given off by the stream")
     sink_temperature: Temperature | None = Field(None, description="temperature of the sink")
 
     def stream_ids(self) -> tuple[list[str], list[str]]:

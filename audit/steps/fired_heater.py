@@ -117,8 +117,8 @@ class FiredHeater(StepBase):
     air: str = Field(description="the combustion-air stream")
     flue_gas: str = Field(description="the flue-gas stream")
     heated: HeatedSide = Field(description="the heated stream: water and steam, oil, ...")
-    duty: Power | None = Field(None, description="heat received by the heated side")
-    heat_loss: Power | None = Field(None, description="casing and radiation loss (default 0)")
+    duty: Power | None = Field(None, ge=0, description="heat received by the heated side")
+    heat_loss: Power | None = Field(None, ge=0, description="casing and radiation loss (default 0)")
     heat_loss_temperature: Temperature | None = None
     fuel_lhv: HeatingValue | None = Field(None, description="claimed lower heating value")
     fuel_hhv: HeatingValue | None = Field(None, description="claimed higher heating value")

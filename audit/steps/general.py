@@ -33,8 +33,8 @@ class GeneralStep(StepBase):
     heat: list[HeatClaim] | None = None
     heat_temperature: Temperature | None = Field(
         None, description="boundary temperature of inferred heat")
-    work_delivered: Power | None = None
-    work_absorbed: Power | None = None
+    work_delivered: Power | None = Field(None, ge=0)
+    work_absorbed: Power | None = Field(None, ge=0)
 
     @model_validator(mode="after")
     def _check(self) -> GeneralStep:

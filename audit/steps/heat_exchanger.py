@@ -54,8 +54,8 @@ class HeatExchanger(StepBase):
     hot: Side
     cold: Side
     arrangement: Literal["counter-current", "co-current"] = "counter-current"
-    duty: Power | None = Field(None, description="heat transferred from hot side to cold side")
-    heat_loss: Power | None = Field(None, description="heat lost to ambient (default 0)")
+    duty: Power | None = Field(None, ge=0, description="heat transferred from hot side to cold side")
+    heat_loss: Power | None = Field(None, ge=0, description="heat lost to ambient (default 0)")
     heat_loss_temperature: Temperature | None = None
 
     def stream_ids(self) -> tuple[list[str], list[str]]:

@@ -26,7 +26,7 @@ class Heater(StepBase):
     kind: Literal["heater"]
     inlet: str
     outlet: str
-    duty: Power | None = Field(None, description="heat received by the stream")
+    duty: Power | None = Field(None, ge=0, description="heat received by the stream")
     source_temperature: Temperature | None = Field(
         None, description="temperature of the heat source")
 

@@ -24,7 +24,7 @@ class Mixer(StepBase):
     kind: Literal["mixer"]
     inlets: list[str] = Field(min_length=2)
     outlet: str
-    heat_loss: Power | None = None
+    heat_loss: Power | None = Field(None, ge=0)
     heat_loss_temperature: Temperature | None = None
 
     def stream_ids(self) -> tuple[list[str], list[str]]:

@@ -54,8 +54,8 @@ class Reactor(StepBase):
     heat: list[HeatClaim] | None = None
     heat_temperature: Temperature | None = Field(
         None, description="boundary temperature of inferred heat")
-    work_delivered: Power | None = None
-    work_absorbed: Power | None = None
+    work_delivered: Power | None = Field(None, ge=0)
+    work_absorbed: Power | None = Field(None, ge=0)
 
     @field_validator("reactions", mode="before")
     @classmethod

@@ -34,8 +34,8 @@ class Turbine(StepBase):
     kind: Literal["turbine"]
     inlet: str
     outlet: str
-    shaft_power: Power | None = Field(None, description="shaft power delivered by the turbine")
-    heat_loss: Power | None = Field(None, description="heat lost by the casing (default 0)")
+    shaft_power: Power | None = Field(None, ge=0, description="shaft power delivered by the turbine")
+    heat_loss: Power | None = Field(None, ge=0, description="heat lost by the casing (default 0)")
     heat_loss_temperature: Temperature | None = None
     isentropic_efficiency: float | None = Field(None, gt=0)
 
