@@ -101,7 +101,7 @@ def _items(line: str, start: int, stop: int, nested: bool) -> list[Item] | None:
         if key in keys:
             return None  # the usual path words the duplicate-key error
         keys.add(key)
-        key_tag = _tag(key)
+        key, key_tag = _plain(key)
         if inner is not None:
             nested_items = _items(line, regs[2][0], regs[2][1], nested=False)
             if not nested_items:
@@ -109,8 +109,8 @@ def _items(line: str, start: int, stop: int, nested: bool) -> list[Item] | None:
             items.append((key, key_at, key_tag, regs[2][0] - 1, nested_items, None))
         else:
             value = value.rstrip(" ")
-            items.append((key, key_at, key_tag, value, value_at,
-                          None if " " in value else _tag(value)))
+            value, tag = (value, None) if " " in value else _plain(value)
+            items.append((key, key_at, key_tag, value, value_at, tag))
         position = match.end()
     if position != stop or comma == ",":
         return None  # text the items do not cover, or a trailing comma: the usual path reads it
@@ -118,22 +118,24 @@ def _items(line: str, start: int, stop: int, nested: bool) -> list[Item] | None:
 
 
 _RESOLVER = yaml.resolver.Resolver()
-_TAGS: dict[str, str | None] = {}
-_MAX_TAGS = 10_000
+_PLAIN: dict[str, tuple[str, str | None]] = {}
+_MAX_PLAIN = 10_000
 
 
-def _tag(text: str) -> str | None:
-    """The tag PyYAML's resolver gives ``text`` as a plain scalar, None for a string (remembered
-    per text). Text with a space is a string (see the module docstring) and is not asked."""
-    try:
-        return _TAGS[text]
-    except KeyError:
-        pass
+def _plain(text: str) -> tuple[str, str | None]:
+    """(``text``, the tag PyYAML's resolver gives it as a plain scalar, None for a string).
+
+    Remembered per text (the first few thousand distinct ones), which also makes the keys and the
+    repeated values (fluid names, step kinds) of every line one shared string object. Text with a
+    space is a string (see the module docstring) and is not asked here."""
+    known = _PLAIN.get(text)
+    if known is not None:
+        return known
     tag = _RESOLVER.resolve(yaml.ScalarNode, text, (True, False))
-    tag = None if tag == STR_TAG else tag
-    if len(_TAGS) < _MAX_TAGS:
-        _TAGS[text] = tag
-    return tag
+    known = (text, None if tag == STR_TAG else tag)
+    if len(_PLAIN) < _MAX_PLAIN:
+        _PLAIN[text] = known
+    return known
 
 
 def scalar_node(text: str, tag: str, line: int, column: int) -> yaml.ScalarNode:

@@ -27,7 +27,6 @@ References
 from __future__ import annotations
 
 import math
-from collections import defaultdict
 from collections.abc import Sequence
 from dataclasses import dataclass
 
@@ -92,20 +91,26 @@ def flow_balance(
     dS = S_out - S_in
     dG = G_out - G_in
     dA = A_out - A_in
-    Q = sum(q.Q for q in heat_flows)
+    Q = sum(q.Q for q in heat_flows) if heat_flows else 0  # as sum() of nothing
     residual = Q - W - (dH + KE_out - KE_in)
-    mass: dict[str, float] = defaultdict(float)
+    mass: dict[str, float] = {}
     for s in inlets:
-        mass[s.fluid] += s.mass_flow
+        mass[s.fluid] = mass.get(s.fluid, 0.0) + s.mass_flow
     for s in outlets:
-        mass[s.fluid] -= s.mass_flow
-    S_gen = dS - entropy_of_heat(heat_flows)
-    W_rev = -(dH + KE_out - KE_in - T0 * dS) + sum(
-        q.Q * heat_exergy_factor(q.temperature, T0) for q in heat_flows)
-    scale = max(abs(W), sum(abs(q.Q) for q in heat_flows), energy_turnover(inlets, outlets))
+        mass[s.fluid] = mass.get(s.fluid, 0.0) - s.mass_flow
+    if heat_flows:
+        S_gen = dS - entropy_of_heat(heat_flows)
+        W_rev = -(dH + KE_out - KE_in - T0 * dS) + sum(
+            q.Q * heat_exergy_factor(q.temperature, T0) for q in heat_flows)
+        heat_scale = sum(abs(q.Q) for q in heat_flows)
+    else:  # the same sums over no heat flow
+        S_gen = dS - 0
+        W_rev = -(dH + KE_out - KE_in - T0 * dS) + 0
+        heat_scale = 0
+    scale = max(abs(W), heat_scale, energy_turnover(inlets, outlets))
     return Balance(
         H_in=H_in, H_out=H_out, KE_PE_in=KE_in, KE_PE_out=KE_out, dH=dH, dU=dU, dS=dS, dG=dG,
-        dA=dA, Q=Q, W=W, energy_residual=residual, mass_residual=dict(mass), S_gen=S_gen,
+        dA=dA, Q=Q, W=W, energy_residual=residual, mass_residual=mass, S_gen=S_gen,
         W_rev=W_rev, exergy_destroyed=T0 * S_gen, energy_scale=scale,
     )
 
@@ -133,10 +138,13 @@ def energy_turnover(inlets: Sequence[StreamResult], outlets: Sequence[StreamResu
     has no outlet). For a one-inlet, one-outlet step it is ṁ |Δe|; it is the scale of the relative
     energy tolerance (absolute enthalpies, which depend on the reference, are never a scale).
     """
-    flows: dict[str, list[float]] = defaultdict(lambda: [0.0, 0.0])
+    flows: dict[str, list[float]] = {}
     for s in outlets:
-        flows[s.fluid][0] += s.mass_flow
-        flows[s.fluid][1] += s.mass_flow * (s.h + s.kinetic_potential)
+        entry = flows.get(s.fluid)
+        if entry is None:
+            entry = flows[s.fluid] = [0.0, 0.0]
+        entry[0] += s.mass_flow
+        entry[1] += s.mass_flow * (s.h + s.kinetic_potential)
     turnover = 0.0
     for s in inlets:
         m_out, e_out = flows.get(s.fluid, (0.0, 0.0))

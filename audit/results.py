@@ -17,7 +17,7 @@ from audit.findings import SEVERITY_RANK, Finding, at_or_above
 STANDARD_GRAVITY = 9.806_65  # m/s**2, exact by definition (3rd CGPM, 1901)
 
 
-@dataclass
+@dataclass(slots=True)  # one per stream or step: no per-instance dict
 class StreamResult:
     """A stream's evaluated state and flow. T [K], P [Pa], rho [kg/m**3], h, u, g, a, psi
     [J/kg], s [J/(kg K)], mass_flow [kg/s], molar_flow [mol/s], velocity [m/s], elevation [m];
@@ -54,7 +54,7 @@ class StreamResult:
         return 0.5 * self.velocity**2 + STANDARD_GRAVITY * self.elevation
 
 
-@dataclass
+@dataclass(slots=True)  # one per stream or step: no per-instance dict
 class HeatFlow:
     """A heat flow INTO the step [W] (or [J] for a vessel) crossing the boundary at
     ``temperature`` [K] (math.inf: an infinitely hot source). ``claimed`` is False when the
@@ -66,7 +66,7 @@ class HeatFlow:
     note: str = ""
 
 
-@dataclass
+@dataclass(slots=True)  # one per stream or step: no per-instance dict
 class StepResult:
     """Everything computed for one step. Flow steps: rates [W], [W/K]; vessels: totals [J], [J/K].
 

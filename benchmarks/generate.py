@@ -81,12 +81,20 @@ class Fluids:
                      quality if 0.0 <= quality <= 1.0 else None)
 
     def tp(self, fluid: str, T: float, P: float) -> Point:
+        """A (P, T) state with the phase imposed from T_sat(P) below the critical point, as the
+        audit's engine does (a free (P, T) flash can return a metastable phase)."""
         state = self._state(fluid)
+        phase = CP.iphase_not_imposed
         if P < state.p_critical() and T < state.T_critical():
             state.update(CP.PQ_INPUTS, P, 0.0)
             if abs(T - state.T()) < 1.0:
                 raise Retry(f"{fluid} at {T} K, {P} Pa is within 1 K of saturation")
-        state.update(CP.PT_INPUTS, P, T)
+            phase = CP.iphase_liquid if T < state.T() else CP.iphase_gas
+        state.specify_phase(phase)
+        try:
+            state.update(CP.PT_INPUTS, P, T)
+        finally:
+            state.unspecify_phase()
         return self._read(state)
 
     def pq(self, fluid: str, P: float, quality: float) -> Point:
