@@ -131,10 +131,15 @@ class _Builder:
                 return node.value  # keep dates as written (and never fail on 2024-02-30)
             try:
                 return self._scalar.construct_object(node, deep=True)
-            except ValueError as exc:  # e.g. an integer of more than 4300 digits
+            except (ValueError, IndexError, KeyError) as exc:
+                # e.g. an integer of more than 4300 digits, or '!!int' with no value
                 shown = node.value if len(node.value) <= 40 else node.value[:40] + "..."
-                reason = (f"a number of {len(node.value):,} digits is too long to read"
-                          if "integer string conversion" in str(exc) else str(exc))
+                if "integer string conversion" in str(exc):
+                    reason = f"a number of {len(node.value):,} digits is too long to read"
+                elif isinstance(exc, ValueError):
+                    reason = str(exc)
+                else:
+                    reason = f"it is not a valid {node.tag.rsplit(':', 1)[-1]}"
                 raise self._fail(node, f"the value '{shown}' cannot be read: {reason}") from None
         if id(node) in self._open:
             raise self._fail(node, "an alias here refers to a collection that contains it, so "

@@ -397,7 +397,12 @@ def report(results: dict[int, dict]) -> list[str]:
                      f"size ratio {size_ratio:g}, goal within 10 %: "
                      f"{'met' if within else 'NOT MET'}")
         floor_ratio = big["floor_cpu"] / small["floor_cpu"]
-        lines.append(f"  {'floor time(100 000) / time(10 000)':42s} {floor_ratio:10.3g}")
+        lines.append(f"  {'floor time(100 000) / time(10 000)':42s} {floor_ratio:10.3g}   "
+                     "(the same work ten times: the machine's own spread)")
+        overhead = (big["audit_cpu"] / big["floor_cpu"]) / (small["audit_cpu"] / small["floor_cpu"])
+        within = abs(overhead - 1.0) <= 0.10
+        lines.append(f"  {'(audit / floor) at 100 000 over at 10 000':42s} {overhead:10.3g}   "
+                     f"within 10 % of 1: {'met' if within else 'NOT MET'}")
     if 100_000 in results:
         lines.append(" memory")
         lines.append(_ratio_line("peak memory at 100 000 streams [MB]",

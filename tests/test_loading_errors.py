@@ -151,3 +151,10 @@ def test_negative_claims_are_refused(tmp_path):
              "heat_loss: -5 kW}\n")
     message = error_of(tmp_path, balance(streams=streams, steps=steps))
     assert "step T1, field 'steps[0].heat_loss': must not be negative" in message
+
+
+@pytest.mark.parametrize("tag", ["!!int", "!!float", "!!bool"])
+def test_typed_empty_value_is_an_input_error(tmp_path, tag):
+    message = error_of(tmp_path, balance() + f"extra: {tag}\n")
+    assert "balance.yaml:7:" in message
+    assert "cannot be read" in message
