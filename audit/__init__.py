@@ -2,27 +2,27 @@
 
 How the parts fit (data flows one way: file → model → states → step results → findings → reports):
 
-* :mod:`audit.loader` reads the YAML safely and remembers where every value was written;
-* :mod:`audit.tables` merges the streams (and step claims) a balance takes from a spreadsheet
+* :mod:`audit.input.document` reads the YAML safely and remembers where every value was written;
+* :mod:`audit.input.tables` merges the streams (and step claims) a balance takes from a spreadsheet
   (.xlsx, .csv) into that data, remembering the cell of every value; the one input module that
   reads spreadsheets;
-* :mod:`audit.model` validates it into pydantic models (:mod:`audit.state_spec`,
-  :mod:`audit.tolerances`, one model per step kind in :mod:`audit.steps`), with units turned into SI
-  at this edge by :mod:`audit.units` and :mod:`audit.quantities`;
-* :mod:`audit.properties` is the engine's entry point for CoolProp: stream states on the formation
+* :mod:`audit.model.balance` validates it into pydantic models (:mod:`audit.model.streams`,
+  :mod:`audit.model.tolerances`, one model per step kind in :mod:`audit.steps`), with units turned into SI
+  at this edge by :mod:`audit.units` and :mod:`audit.model.quantities`;
+* :mod:`audit.properties.engine` is the engine's entry point for CoolProp: stream states on the formation
   basis (:mod:`audit.formation`); gas mixtures (ideal-gas mixtures of the pure species, written
-  with :mod:`audit.composition`) are evaluated for it by :mod:`audit.mixtures`, the one other
-  module that calls CoolProp; :mod:`audit.reactions` parses reactions and computes reaction
+  with :mod:`audit.model.composition`) are evaluated for it by :mod:`audit.properties.mixtures`, the one other
+  module that calls CoolProp; :mod:`audit.steps.reactions` parses reactions and computes reaction
   properties and heating values through the engine;
-* :mod:`audit.laws` holds the first law, entropy generation and reversible work shared by every step
+* :mod:`audit.steps.laws` holds the first law, entropy generation and reversible work shared by every step
   kind; each kind in :mod:`audit.steps` adds its own checks and emits :class:`audit.findings.Finding`;
 * :mod:`audit.solve` runs it all and returns an :class:`audit.results.AuditResult`;
-* :mod:`audit.acceptance` then marks the findings a reviewer accepted (in the balance or beside it);
+* :mod:`audit.review.acceptance` then marks the findings a reviewer accepted (in the balance or beside it);
 * around one audit: :mod:`audit.batch` audits many files through :mod:`audit.executors` (local
   worker processes or a Dask cluster) into :class:`audit.outcomes.FileOutcome` objects;
   :mod:`audit.history` records runs in SQLite; :mod:`audit.diff` compares two revisions;
 * :mod:`audit.report` renders results (console, JSON, CSV, workbook) and never computes physics;
-* :mod:`audit.cli` is the thin command line; :func:`run` is the Python entry point.
+* :mod:`audit.commands.main` is the thin command line; :func:`run` is the Python entry point.
 """
 
 __version__ = "0.1.0"

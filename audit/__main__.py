@@ -2,6 +2,6 @@
 
 import sys
 
-from audit.cli import main
+from audit.commands.main import main
 
 sys.exit(main())

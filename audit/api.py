@@ -17,23 +17,25 @@ from contextlib import contextmanager
 from datetime import date
 from pathlib import Path
 
-from audit.acceptance import Acceptance, apply_acceptances, load_beside
-from audit.loader import Document, parse_document, read_text
-from audit.model import Balance, validate_document
+from audit.input.document import Document, parse_document, read_text
+from audit.input.tables import resolve as resolve_tables
+from audit.model.balance import Balance
+from audit.reading import validate_document
 from audit.results import AuditResult
-from audit.solve import solve
-from audit.tables import resolve as resolve_tables
+from audit.review.acceptance import Acceptance, apply_acceptances, load_beside
+from audit.review.uncertainty import review
+from audit.solve import solve, to_result
 
 
 def run(path: str | Path, today: date | None = None, allow_outside: bool = False,
         monte_carlo: int = 0) -> AuditResult:
     """Audit the balance file at ``path``, then apply the reviewers' acceptances written in it or
-    beside it (:mod:`audit.acceptance`; ``today`` decides which have expired, default: today).
+    beside it (:mod:`audit.review.acceptance`; ``today`` decides which have expired, default: today).
 
-    Streams and claims the balance takes from tables (:mod:`audit.tables`) are read first; a table
+    Streams and claims the balance takes from tables (:mod:`audit.input.tables`) are read first; a table
     outside the balance file's folder tree is refused unless ``allow_outside`` is true.
     ``monte_carlo`` > 0 cross-checks the measurement uncertainties with that many Monte Carlo
-    draws per step (:mod:`audit.uncertainty`).
+    draws per step (:mod:`audit.review.uncertainty`).
 
     Raises :class:`audit.errors.InputError` when the file cannot be read, parsed, validated or
     evaluated; every message names the file and line.
@@ -45,11 +47,21 @@ def run(path: str | Path, today: date | None = None, allow_outside: bool = False
         document = parse_document(text, str(path))
         document, tables = resolve_tables(document, allow_outside=allow_outside)
         balance = validate_document(document)
-        result = solve(balance, document, sha256=sha256, monte_carlo=monte_carlo)
+        result = audit_balance(balance, document, sha256=sha256, monte_carlo=monte_carlo)
     for table in tables:
         sheet = f", sheet '{table.sheet}'" if table.sheet is not None else ""
         result.provenance[f"table {table.display}{sheet}"] = f"sha256 {table.sha256}"
     return apply_acceptances(result, _acceptances(balance, document, path), today)
+
+
+def audit_balance(balance: Balance, document: Document, sha256: str = "",
+                  monte_carlo: int = 0) -> AuditResult:
+    """Solve a validated balance (:func:`audit.solve.solve`), then review its findings
+    (:func:`audit.review.uncertainty.review`: verdicts with uncertainty and rounding, probable
+    causes). ``monte_carlo`` > 0 cross-checks the uncertainties with that many draws per step."""
+    solution = solve(balance, document)
+    findings, notes = review(solution, monte_carlo_trials=monte_carlo)
+    return to_result(solution, findings, notes, sha256=sha256)
 
 
 @contextmanager

@@ -24,10 +24,10 @@ from collections.abc import Callable, Iterable
 from dataclasses import dataclass
 from pathlib import Path
 
-from audit.acceptance import is_acceptance_file
 from audit.errors import InputError
 from audit.executors import Executor, LocalProcesses, TaskFailed
 from audit.outcomes import AUDITED, INTERNAL, INVALID, FileOutcome
+from audit.review.acceptance import is_acceptance_file
 
 BALANCE_SUFFIXES = (".yaml", ".yml")
 SUMMARY_NAME = "summary.xlsx"

@@ -25,7 +25,7 @@ class Problem:
     column: int | None = None
     field_path: str | None = None
     where: str | None = None  # "stream S3", "step T1"
-    cell: str | None = None  # in a table file: "sheet 'HB rev C', cell D14" (audit.tables)
+    cell: str | None = None  # in a table file: "sheet 'HB rev C', cell D14" (audit.input.tables)
 
     def __str__(self) -> str:
         place = ""

@@ -62,7 +62,7 @@ NAMES: dict[str, str] = {
 }
 
 
-# Verdicts of a law finding on a balance with declared uncertainties (audit.uncertainty): the
+# Verdicts of a law finding on a balance with declared uncertainties (audit.review.uncertainty): the
 # interval margin ± U (U the expanded uncertainty) lies wholly beyond the tolerance, reaches into it,
 # or reaches zero.
 VIOLATED = "violated"
@@ -104,8 +104,8 @@ class Finding:
     quantity: str | None = None
     tolerance: float | None = None
     stream: str | None = None
-    accepted: str | None = None  # a reviewer's acceptance (reason, who, until); see audit.acceptance
-    # With declared uncertainties (audit.uncertainty): the expanded uncertainty of the margin
+    accepted: str | None = None  # a reviewer's acceptance (reason, who, until); see audit.review.acceptance
+    # With declared uncertainties (audit.review.uncertainty): the expanded uncertainty of the margin
     # [its unit], the coverage factor k, the verdict (VERDICTS), the largest contributors and,
     # as a cross-check, the Monte Carlo expanded uncertainty (k times the sample deviation).
     uncertainty: float | None = None
@@ -113,7 +113,7 @@ class Finding:
     verdict: str | None = None
     contributors: tuple[Contributor, ...] = ()
     monte_carlo_uncertainty: float | None = None
-    # Single slips that would make the step close (audit.causes), one sentence each.
+    # Single slips that would make the step close (audit.review.causes), one sentence each.
     probable_causes: tuple[str, ...] = ()
 
     def __post_init__(self) -> None:

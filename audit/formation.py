@@ -20,7 +20,7 @@ To add a species: append a :class:`Species` with its CoolProp fluid name, its el
 and S° [J/(mol K)] of the ideal gas at 298.15 K and 1 bar, and the source, then add a test that
 checks one published value through the property layer. To use it in gas mixtures, also give the
 temperature range over which CoolProp's ideal-gas part was verified against NIST-JANAF
-(``audit.mixtures.VERIFIED_RANGE``, with the test in ``tests/test_mixtures.py``).
+(``audit.properties.mixtures.VERIFIED_RANGE``, with the test in ``tests/test_mixtures.py``).
 
 The module also holds the standard atomic weights of the elements used (element balances) and the
 named compositions a stream may give instead of mole fractions (``composition: air``).

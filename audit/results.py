@@ -156,7 +156,7 @@ class AuditResult:
     def fails(self, threshold: str = "error", marginal: bool = False) -> bool:
         """True when any finding not accepted by a reviewer is at or above ``threshold``
         ("error" or "warning") or, with ``marginal``, has the verdict "marginal" (a law finding
-        within its measurement uncertainty, :mod:`audit.uncertainty`)."""
+        within its measurement uncertainty, :mod:`audit.review.uncertainty`)."""
         return any((at_or_above(f.severity, threshold) or (marginal and f.verdict == "marginal"))
                    and not f.accepted for f in self.findings)
 

@@ -9,8 +9,8 @@ Order of work:
 3. every step through its kind's ``evaluate``, with the balance's tolerances and the step's own
    overrides;
 4. plant totals over the flow steps;
-5. the law findings' verdicts with measurement uncertainty and the probable causes of failing
-   steps (:mod:`audit.uncertainty`, :mod:`audit.causes`).
+5. (after the solver, in :mod:`audit.review`) verdicts with measurement uncertainty and rounding,
+   and the probable causes of failing steps; :func:`to_result` then assembles the result.
 """
 
 from __future__ import annotations
@@ -19,20 +19,20 @@ import difflib
 import platform
 import time
 from collections import defaultdict
+from dataclasses import dataclass, field
 from datetime import datetime, timezone
 from typing import Any
 
 from audit import __version__
 from audit.errors import InputErrors, Problem, StateError
 from audit.findings import ERROR, WARNING, Finding, relative
-from audit.loader import Document
-from audit.model import Balance
-from audit.properties import BACKEND, COOLPROP_VERSION, GAS_CONSTANT, PropertyEngine, State
+from audit.input.document import Document
+from audit.model.balance import Balance
+from audit.model.streams import StreamSpec
+from audit.model.tolerances import merged
+from audit.properties.engine import BACKEND, COOLPROP_VERSION, GAS_CONSTANT, PropertyEngine, State
 from audit.results import AuditResult, PlantTotals, StepResult, StreamResult
-from audit.state_spec import StreamSpec
 from audit.steps import REGISTRY, StepContext
-from audit.tolerances import merged
-from audit.uncertainty import review
 from audit.units import Flow
 
 _PHASE_MATCH = {
@@ -43,16 +43,29 @@ _PHASE_MATCH = {
 }
 
 
-def solve(balance: Balance, document: Document, sha256: str = "", monte_carlo: int = 0
-          ) -> AuditResult:
-    """Audit a validated balance; raise :class:`InputErrors` for states or topology that cannot be
-    evaluated. ``document`` supplies the file name and the line of each stream and step.
-    ``monte_carlo`` > 0 adds a Monte Carlo cross-check of the uncertainties with that many draws
-    per step (:mod:`audit.uncertainty`)."""
+@dataclass
+class Solution:
+    """A solved balance before review: its states, step results and findings, and the engine and
+    document that produced them (the review stage re-evaluates steps through
+    :func:`evaluate_step` and :func:`evaluate_stream`)."""
+
+    balance: Balance
+    document: Document
+    engine: PropertyEngine
+    streams: dict[str, StreamResult]
+    results: list[StepResult]
+    findings: list[Finding]
+    started: float = field(default_factory=time.perf_counter)
+
+
+def solve(balance: Balance, document: Document) -> Solution:
+    """Evaluate every stream and step of a validated balance; raise :class:`InputErrors` for
+    states or topology that cannot be evaluated. ``document`` supplies the file name and the line
+    of each stream and step. The findings are the steps' own (no uncertainty verdicts or causes:
+    that is :mod:`audit.review`'s job)."""
     started = time.perf_counter()
     info = balance.balance
-    tol = info.tolerances
-    engine = PropertyEngine(info.dead_state.T, info.dead_state.P, tol.saturation_band)
+    engine = PropertyEngine(info.dead_state.T, info.dead_state.P, info.tolerances.saturation_band)
     findings: list[Finding] = []
     streams, problems = _evaluate_streams(balance, document, engine, findings)
     problems += _check_topology(balance, document, findings, streams)
@@ -61,30 +74,48 @@ def solve(balance: Balance, document: Document, sha256: str = "", monte_carlo: i
 
     results: list[StepResult] = []
     for index, step in enumerate(balance.steps):
-        kind = REGISTRY[step.kind]
-        line, _ = document.position(("steps", index))
-        ctx = StepContext(streams=streams, engine=engine, T0=info.dead_state.T,
-                          P0=info.dead_state.P, tolerances=merged(tol, step.tolerances),
-                          line=line)
         try:
-            results.append(kind.evaluate(step, ctx))
+            result, step_findings = evaluate_step(balance, document, engine, streams, index)
         except StateError as exc:
+            line, _ = document.position(("steps", index))
             problems.append(Problem(
                 exc.problem.message, file=document.file, line=line, where=f"step {step.id}"))
             continue
-        findings.extend(ctx.findings)
+        results.append(result)
+        findings.extend(step_findings)
     if problems:
         raise InputErrors(problems)
-    # 5. verdicts with measurement uncertainty, and probable causes of failing steps
-    findings, review_notes = review(balance, document, engine, streams, results, findings,
-                                    stream_of=_stream, monte_carlo_trials=monte_carlo)
+    return Solution(balance, document, engine, streams, results, findings, started)
 
-    elapsed = time.perf_counter() - started
+
+def evaluate_step(balance: Balance, document: Document, engine: PropertyEngine,
+                  streams: dict[str, StreamResult], index: int, step: Any = None
+                  ) -> tuple[StepResult, list[Finding]]:
+    """Evaluate step ``index`` of ``balance`` (or ``step``, a changed copy of it) on ``streams``
+    through its kind's ``evaluate``, with the balance's tolerances and the step's own overrides.
+    Returns the step's result and its findings."""
+    step = balance.steps[index] if step is None else step
+    info = balance.balance
+    line, _ = document.position(("steps", index))
+    ctx = StepContext(streams=streams, engine=engine, T0=info.dead_state.T,
+                      P0=info.dead_state.P, tolerances=merged(info.tolerances, step.tolerances),
+                      line=line)
+    result = REGISTRY[step.kind].evaluate(step, ctx)
+    return result, ctx.findings
+
+
+def to_result(solution: Solution, findings: list[Finding], notes: dict[str, str],
+              sha256: str = "") -> AuditResult:
+    """The audit's result: the solution with its reviewed ``findings`` and provenance ``notes``."""
+    balance, engine, streams = solution.balance, solution.engine, solution.streams
+    info = balance.balance
+    elapsed = time.perf_counter() - solution.started
     return AuditResult(
-        name=info.name, revision=info.revision, file=document.file, sha256=sha256,
+        name=info.name, revision=info.revision, file=solution.document.file, sha256=sha256,
         dead_T=info.dead_state.T, dead_P=info.dead_state.P, site_pressure=info.site_pressure,
-        tolerances=tol.model_dump(), streams=list(streams.values()), steps=results,
-        findings=findings, plant=_plant_totals(balance, streams, results),
+        tolerances=info.tolerances.model_dump(), streams=list(streams.values()),
+        steps=solution.results, findings=findings,
+        plant=_plant_totals(balance, streams, solution.results),
         provenance={
             "plant-audit": __version__, "CoolProp": COOLPROP_VERSION,
             "property back end": f"{BACKEND} (IAPWS-95 for water)",
@@ -92,7 +123,7 @@ def solve(balance: Balance, document: Document, sha256: str = "", monte_carlo: i
             "run at (UTC)": datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M:%S"),
             "solve time [s]": f"{elapsed:.3f}",
             "property evaluations": str(engine.flash_count),
-            **review_notes,
+            **notes,
         },
     )
 
@@ -105,7 +136,7 @@ def _evaluate_streams(balance: Balance, document: Document, engine: PropertyEngi
     for stream_id, spec in balance.streams.items():
         place = document.place(("streams", stream_id))  # a line, or a table cell
         try:
-            streams[stream_id] = _stream(stream_id, spec, engine, place["line"])
+            streams[stream_id] = evaluate_stream(stream_id, spec, engine, place["line"])
         except StateError as exc:
             problems.append(Problem(exc.problem.message, **place, where=f"stream {stream_id}"))
             continue
@@ -142,11 +173,12 @@ def _dew_point_findings(stream_id: str, state: State) -> list[Finding]:
     return found
 
 
-def _stream(stream_id: str, spec: StreamSpec, engine: PropertyEngine, line: int | None
-            ) -> StreamResult:
+def evaluate_stream(stream_id: str, spec: StreamSpec, engine: PropertyEngine, line: int | None
+                    ) -> StreamResult:
+    """A stream's state and flows from its written spec, through the property engine."""
     pair, a, b = spec.inputs()
     if spec.composition is not None:
-        # A gas mixture (audit.mixtures); a normal or standard volume of it is converted with the
+        # A gas mixture (audit.properties.mixtures); a normal or standard volume of it is converted with the
         # ideal-gas molar volume at its reference conditions, as combustion practice does.
         state = engine.mixture_state(spec.composition, a, b, spec.composition_basis)
         if spec.flow.basis == "normal_volume":

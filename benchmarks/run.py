@@ -252,10 +252,10 @@ def phases(path: Path) -> dict[str, float]:
     """CPU seconds of each part of one audit (read and parse, validate, solve), run as
     :func:`audit.api.run` runs them."""
     from audit import api
-    from audit.loader import parse_document, read_text
-    from audit.model import validate_document
+    from audit.input.document import parse_document, read_text
+    from audit.input.tables import resolve
+    from audit.reading import validate_document
     from audit.solve import solve
-    from audit.tables import resolve
 
     spent: dict[str, float] = {}
     with api._cycle_collection_paused():

@@ -23,10 +23,10 @@ import sys
 from pathlib import Path
 
 from audit import units
-from audit.loader import load_document, parse_document
+from audit.input.document import load_document, parse_document
 from audit.report.template import write_table_workbook
-from audit.state_spec import StreamSpec
-from audit.tables import resolve, stream_choices, stream_template_headers, table_rows
+from audit.model.streams import StreamSpec
+from audit.input.tables import resolve, stream_choices, stream_template_headers, table_rows
 
 HERE = Path(__file__).resolve().parent
 CLEAN = HERE / "quillon-bay-clean.yaml"

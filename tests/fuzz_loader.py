@@ -42,10 +42,10 @@ ROOT = HERE.parent
 if str(ROOT) not in sys.path:  # run as a script from anywhere
     sys.path.insert(0, str(ROOT))
 
-from audit import loader  # noqa: E402
+from audit.input import document as loader  # noqa: E402
+from audit.api import audit_balance as solve  # noqa: E402
 from audit.errors import InputError  # noqa: E402
-from audit.model import parse_balance  # noqa: E402
-from audit.solve import solve  # noqa: E402
+from audit.reading import parse_balance  # noqa: E402
 
 SEEDS = [p.read_text(encoding="utf-8") for p in sorted(
     [*(ROOT / "sample_plant").glob("*.yaml"), *(HERE / "bad_inputs").glob("*.yaml")])
@@ -210,8 +210,8 @@ def check_text(text: str) -> str | None:
 
 
 def _paths_differ(text: str) -> str | None:
-    """Where :func:`audit.loader.parse_document` (which reads one-line flow mappings by the fast
-    path of :mod:`audit.flowlines` when it applies) and the usual path disagree on the data or the
+    """Where :func:`audit.input.document.parse_document` (which reads one-line flow mappings by the fast
+    path of :mod:`audit.input.flowlines` when it applies) and the usual path disagree on the data or the
     positions of ``text``; None when they agree or when the loader has no separate paths."""
     usual = getattr(loader, "_parse", None)
     if usual is None:

@@ -15,10 +15,10 @@ from pathlib import Path
 import pytest
 
 import audit
-from audit.acceptance import beside_file, is_acceptance_file
-from audit.cli import main
+from audit.commands.main import main
 from audit.errors import InputError
 from audit.results import AuditResult
+from audit.review.acceptance import beside_file, is_acceptance_file
 
 SEEDED = Path(__file__).resolve().parents[1] / "sample_plant" / "quillon-bay-seeded.yaml"
 FAR_FUTURE = "2999-12-31"

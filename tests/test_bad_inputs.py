@@ -16,8 +16,8 @@ from pathlib import Path
 import pytest
 import yaml
 
-from audit import loader
-from audit.cli import main
+from audit.input import document as loader
+from audit.commands.main import main
 
 CORPUS = Path(__file__).resolve().parent / "bad_inputs"
 CASES: dict[str, dict] = yaml.safe_load((CORPUS / "cases.yaml").read_text(encoding="utf-8"))
@@ -136,7 +136,7 @@ def test_unreadable_file(tmp_path, capsys, monkeypatch):
 
 def test_invalid_date_is_kept_as_text(tmp_path):
     """A revision written like a date that does not exist (2024-02-30) is text, not a crash."""
-    from audit.model import parse_balance
+    from audit.reading import parse_balance
 
     balance, _ = parse_balance(GOOD.replace("  site_pressure", "  revision: 2024-02-30\n"
                                             "  site_pressure"))

@@ -19,7 +19,7 @@ import pytest
 
 import audit
 from audit.batch import SUMMARY_NAME, Job, Missing, audit_job, discover, run_batch, workbook_names
-from audit.cli import main
+from audit.commands.main import main
 from audit.errors import InputError
 from audit.executors import DaskCluster, LocalProcesses, TaskFailed
 from audit.exitcodes import EXIT_FINDINGS, EXIT_INPUT, EXIT_INTERNAL, EXIT_PASS

@@ -12,7 +12,7 @@ import pytest
 from conftest import SAMPLE, audit_text
 
 import audit
-from audit.causes import MAX_CAUSES
+from audit.review.causes import MAX_CAUSES
 
 iapws = pytest.importorskip("iapws")
 
@@ -185,7 +185,7 @@ def test_seeded_sample_names_causes_only_where_a_slip_was_seeded():
 def test_no_cause_on_a_clean_balance():
     result = audit.run(SAMPLE / "quillon-bay-clean.yaml")
     assert not any(f.probable_causes for f in result.findings)
-    assert result.provenance["probable causes"] == "0 step re-evaluations (audit.causes)"
+    assert result.provenance["probable causes"] == "0 step re-evaluations (audit.review.causes)"
 
 
 def test_no_cause_for_a_near_miss(tmp_path):

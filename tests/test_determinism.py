@@ -14,7 +14,7 @@ from pathlib import Path
 
 import pytest
 
-from audit.cli import main
+from audit.commands.main import main
 
 SAMPLE = Path(__file__).resolve().parents[1] / "sample_plant"
 RUN_TIME_FIELDS = ("run at (UTC)", "solve time [s]")

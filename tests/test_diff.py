@@ -13,7 +13,7 @@ from pathlib import Path
 import pytest
 
 import audit
-from audit.cli import main
+from audit.commands.main import main
 from audit.diff import CHANGED, NEW, RESOLVED, compare, differs
 from audit.exitcodes import EXIT_FINDINGS, EXIT_INPUT, EXIT_PASS
 from audit.outcomes import finding_key

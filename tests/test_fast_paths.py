@@ -1,6 +1,6 @@
 """The fast paths give exactly what the slow ones give (benchmarks/run.py measures the gain).
 
-* Reading YAML: the one-line flow mappings of :mod:`audit.flowlines`, composed by libyaml where
+* Reading YAML: the one-line flow mappings of :mod:`audit.input.flowlines`, composed by libyaml where
   PyYAML has it, must give the same data (same values, same types) and the same positions as the
   pure-Python parser composing the original text, and the same error for a bad file;
 * units: each distinct unit string is read once; the checks that depend on the value (absolute
@@ -14,7 +14,8 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from audit import flowlines, loader
+from audit.input import document as loader
+from audit.input import flowlines
 from audit.errors import InputError, UnitError
 from audit.report.workbook_file import cache_formula_values
 from audit.units import to_flow, to_si

@@ -9,7 +9,7 @@ import pytest
 from conftest import assert_close
 
 from audit.formation import SPECIES
-from audit.properties import GAS_CONSTANT, PropertyEngine
+from audit.properties.engine import GAS_CONSTANT, PropertyEngine
 
 T_STD, P_STD = 298.15, 1.0e5
 

@@ -43,9 +43,9 @@ import pytest
 from hypothesis import HealthCheck, assume, given, note, settings
 from hypothesis import strategies as st
 
+from audit.api import audit_balance as solve
 from audit.errors import InputError
-from audit.model import parse_balance
-from audit.solve import solve
+from audit.reading import parse_balance
 
 T0 = 298.15  # K, the default dead state (25 °C) the balances below keep
 P0 = 101_325.0  # Pa

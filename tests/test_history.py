@@ -15,7 +15,7 @@ import pytest
 
 import audit
 from audit.batch import Job, audit_job
-from audit.cli import main
+from audit.commands.main import main
 from audit.errors import InputError
 from audit.exitcodes import EXIT_FINDINGS, EXIT_INPUT, EXIT_PASS
 from audit.history import SCHEMA_VERSION, file_key, record, runs

@@ -11,8 +11,8 @@ import math
 import pytest
 from conftest import assert_close, audit_text
 
-from audit.laws import heat_exergy_factor
-from audit.properties import GAS_CONSTANT
+from audit.properties.engine import GAS_CONSTANT
+from audit.steps.laws import heat_exergy_factor
 
 R = 8.314_462_618_153_24  # J/(mol K), N_A·k exact (CODATA 2018)
 T0 = 298.15

@@ -7,7 +7,7 @@ import pytest
 from conftest import write_balance
 
 import audit
-from audit.cli import main
+from audit.commands.main import main
 from audit.errors import InputError
 
 GOOD_STREAM = "  S1: {fluid: Water, T: 300 degC, P: 10 bar, flow: 1 kg/s}\n"

@@ -1,4 +1,4 @@
-"""Gas mixtures on the formation basis (audit.mixtures) against NIST-JANAF, analytic ideal-gas
+"""Gas mixtures on the formation basis (audit.properties.mixtures) against NIST-JANAF, analytic ideal-gas
 results and the Lemmon et al. (2000) air formulation; composition input and its errors."""
 
 from __future__ import annotations
@@ -11,8 +11,8 @@ import pytest
 from conftest import assert_close, audit_text, names
 
 from audit.errors import InputError, StateError
-from audit.mixtures import VERIFIED_RANGE, IdealGasMixtures
-from audit.properties import PropertyEngine
+from audit.properties.engine import PropertyEngine
+from audit.properties.mixtures import VERIFIED_RANGE, IdealGasMixtures
 
 chemicals_heat_capacity = pytest.importorskip("chemicals.heat_capacity")
 
@@ -72,7 +72,7 @@ def _grid(formula: str) -> list[float]:
 
 @pytest.mark.parametrize("formula", sorted(CAS))
 def test_ideal_gas_parts_against_janaf_over_the_verified_range(engine, formula):
-    # The criterion the verified ranges were chosen by (audit.mixtures): h within 50 J/mol and
+    # The criterion the verified ranges were chosen by (audit.properties.mixtures): h within 50 J/mol and
     # s within 0.1 J/(mol K) of NIST-JANAF over the whole range.
     h0, s0 = engine.species_molar(formula, "g", 298.15, 1e5)
     for T in _grid(formula):
@@ -84,7 +84,7 @@ def test_ideal_gas_parts_against_janaf_over_the_verified_range(engine, formula):
 
 def test_ideal_gas_part_of_methane_is_refused_beyond_its_verified_range(engine):
     # CoolProp's methane ideal-gas part departs from JANAF by ~77 J/mol at 700 K, 1.1 kJ/mol at
-    # 1500 K (measured, see audit.mixtures), so a mixture with methane stops at 600 K.
+    # 1500 K (measured, see audit.properties.mixtures), so a mixture with methane stops at 600 K.
     engine.mixture_state({"CH4": 0.5, "N2": 0.5}, 600.0, 1e5)
     with pytest.raises(StateError, match=r"outside the range over which the ideal-gas "
                        r"properties of CH4 were verified \(-73.15 to 326.85 °C"):

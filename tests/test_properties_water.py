@@ -14,7 +14,7 @@ import math
 import pytest
 from conftest import assert_close
 
-from audit.properties import PropertyEngine
+from audit.properties.engine import PropertyEngine
 
 T0, P0 = 298.15, 101_325.0
 

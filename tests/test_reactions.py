@@ -11,8 +11,8 @@ import pytest
 from conftest import assert_close, audit_text, names
 
 from audit.errors import InputError
-from audit.properties import PropertyEngine
-from audit.reactions import heating_values, parse_reaction, reaction_properties
+from audit.properties.engine import PropertyEngine
+from audit.steps.reactions import heating_values, parse_reaction, reaction_properties
 
 R = 8.314_462_618_153_24  # J/(mol K), exact (2019 SI)
 

@@ -8,8 +8,9 @@ import json
 from conftest import SAMPLE, names
 
 import audit
-from audit.cli import main
-from audit.model import SCHEMA_FILE, schema_text
+from audit.commands.main import main
+from audit.model.balance import SCHEMA_FILE
+from audit.reading import schema_text
 
 ROOT = SAMPLE.parent
 

@@ -1,4 +1,4 @@
-"""Stream and claim tables (audit.tables): a balance whose streams live in a spreadsheet audits to
+"""Stream and claim tables (audit.input.tables): a balance whose streams live in a spreadsheet audits to
 the same results as the same balance written out in YAML, and every malformed table is refused with
 a message that names the file, the sheet and the cell.
 
@@ -23,13 +23,13 @@ from conftest import SAMPLE
 from openpyxl.worksheet.worksheet import Worksheet
 
 import audit
-from audit.cli import main
 from audit.commands.convert import resolved_yaml
+from audit.commands.main import main
 from audit.errors import InputError
-from audit.loader import load_document
-from audit.model import json_schema, load_balance
+from audit.input.document import load_document
+from audit.input.tables import CLAIM_HEADERS, column_letter, stream_template_headers, table_rows
+from audit.reading import json_schema, load_balance
 from audit.report.machine import to_dict
-from audit.tables import CLAIM_HEADERS, column_letter, stream_template_headers, table_rows
 
 CLEAN = SAMPLE / "quillon-bay-clean.yaml"
 TABLE_BALANCE = SAMPLE / "quillon-bay-table.yaml"

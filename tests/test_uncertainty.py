@@ -17,13 +17,13 @@ import pytest
 from conftest import SAMPLE, assert_close, audit_text
 
 import audit
-from audit.cli import main
+from audit.commands.main import main
 from audit.errors import InputError
 from audit.findings import CONSISTENT, MARGINAL, VIOLATED
+from audit.model.uncertainty import coverage_divisor, parse_spread
 from audit.report.console import findings_summary
 from audit.report.machine import to_dict
-from audit.uncertainty import propagate, verdict
-from audit.uncertainty_spec import coverage_divisor, parse_spread
+from audit.review.uncertainty import propagate, verdict
 
 iapws = pytest.importorskip("iapws")
 

@@ -30,6 +30,7 @@ import audit
 from audit.errors import InputError
 from audit.findings import ERROR, SEVERITY_RANK, WARNING
 from audit.formation import SPECIES
+from audit.model.tolerances import Tolerances
 from audit.report import workbook_file
 from audit.report.machine import write_csv
 from audit.report.workbook import (
@@ -46,7 +47,6 @@ from audit.report.workbook import (
 )
 from audit.report.workbook_cells import FILLS, FORMATS
 from audit.report.workbook_method import CAUTION, SOURCES
-from audit.tolerances import Tolerances
 
 SEEDED = SAMPLE / "quillon-bay-seeded.yaml"
 RESIDUAL_FORMULA = "first-law residual, formula [kW | kJ]"
@@ -577,11 +577,11 @@ def _docstring_references() -> list[tuple[str, str, str]]:
     import importlib
     import pkgutil
 
-    import audit.steps
+    import audit.steps.kinds
 
-    modules = ["audit.laws", "audit.formation", "audit.properties", "audit.mixtures",
-               "audit.reactions", "audit.uncertainty"] + [
-        f"audit.steps.{m.name}" for m in pkgutil.iter_modules(audit.steps.__path__)]
+    modules = ["audit.steps.laws", "audit.formation", "audit.properties.engine", "audit.properties.mixtures",
+               "audit.steps.reactions", "audit.review.uncertainty"] + [
+        f"audit.steps.kinds.{m.name}" for m in pkgutil.iter_modules(audit.steps.kinds.__path__)]
     found = []
     for name in modules:
         try:

@@ -55,10 +55,10 @@ def resolved_yaml(path: str | Path, allow_outside: bool = False,
     made relative to ``output``'s folder (the working folder when None), or the schema's ``$id``.
     Raises :class:`audit.errors.InputError` when the balance or a table is invalid.
     """
-    from audit.loader import parse_document, read_text
-    from audit.model import json_schema, validate_document
-    from audit.tables import SOURCE_KEYS
-    from audit.tables import resolve as resolve_tables
+    from audit.input.document import parse_document, read_text
+    from audit.input.tables import SOURCE_KEYS
+    from audit.input.tables import resolve as resolve_tables
+    from audit.reading import json_schema, validate_document
 
     path = Path(path)
     text = read_text(path)
@@ -114,7 +114,7 @@ _Dumper.add_representer(_InlineList, lambda d, v: d.represent_sequence(
 def _stream_order(stream: dict) -> dict:
     """A stream's fields in one order (the fluid, then the model's order), whatever the order of
     the table's columns, so that reordering columns does not show as a change."""
-    from audit.state_spec import StreamSpec
+    from audit.model.streams import StreamSpec
 
     order = ["fluid", "composition", *StreamSpec.model_fields]
     rank = {name: i for i, name in enumerate(dict.fromkeys(order))}

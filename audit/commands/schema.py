@@ -17,7 +17,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from audit.model import schema_text
+    from audit.reading import schema_text
 
     text = schema_text()
     if args.output:

@@ -22,8 +22,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
+    from audit.input.tables import CLAIM_HEADERS, stream_choices, stream_template_headers
     from audit.report.template import write_table_workbook
-    from audit.tables import CLAIM_HEADERS, stream_choices, stream_template_headers
 
     path: Path = args.streams
     if path.suffix.lower() != ".xlsx":

@@ -1,5 +1,5 @@
 """The stream-table workbook (``plant-audit template --streams FILE``): a ``streams`` sheet with the
-headers and units the table reader (:mod:`audit.tables`) expects, a ``claims`` sheet, and an
+headers and units the table reader (:mod:`audit.input.tables`) expects, a ``claims`` sheet, and an
 ``instructions`` sheet. The same writer lays out filled tables (the sample site's stream table).
 
 What this module keeps to:

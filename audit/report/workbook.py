@@ -53,6 +53,7 @@ from openpyxl.worksheet.worksheet import Worksheet
 
 from audit.errors import InputError
 from audit.findings import ERROR, NAMES, SEVERITY_RANK, Finding
+from audit.model.tolerances import Tolerances
 from audit.report.display import shown, unit
 from audit.report.workbook_cells import (
     BOLD,
@@ -75,7 +76,6 @@ from audit.report.workbook_cells import (
 from audit.report.workbook_file import atomic_write, package, run_time
 from audit.report.workbook_method import CAUTION, METHOD_TEXT, SOURCES
 from audit.results import AuditResult, StepResult, finite_or_none
-from audit.tolerances import Tolerances
 
 OVERVIEW, FINDINGS, STEPS, STREAMS, HEAT, EXERGY, METHOD = (
     "Overview", "Findings", "Steps", "Streams", "Heat flows", "Exergy losses", "Method")
@@ -84,7 +84,7 @@ SHEETS = (OVERVIEW, FINDINGS, STEPS, STREAMS, HEAT, EXERGY, METHOD)
 RATE_BASIS = "rate (kW)"
 TOTAL_BASIS = "total (kJ)"
 
-# The unit of each tolerance of :class:`audit.tolerances.Tolerances` (tests keep this complete).
+# The unit of each tolerance of :class:`audit.model.tolerances.Tolerances` (tests keep this complete).
 TOLERANCE_QUANTITY = {
     "energy_relative": "fraction", "energy_absolute": "power", "energy_absolute_batch": "energy",
     "mass_relative": "fraction", "mass_absolute": "mass_flow", "efficiency": "fraction",

@@ -1,7 +1,7 @@
-"""What every step kind shares: the base model, heat claims, the registry and the finishing helper.
+"""What every step kind shares: the evaluation context, the registry and the finishing helper.
 
-A step kind is one module in :mod:`audit.steps` that defines a pydantic model (a subclass of
-:class:`StepBase` with ``kind: Literal["..."]``) and an ``evaluate(step, ctx)`` function, and calls
+A step kind is one module in :mod:`audit.steps.kinds` that defines a pydantic model (a subclass of
+:class:`audit.model.steps.StepBase` with ``kind: Literal["..."]``) and an ``evaluate(step, ctx)`` function, and calls
 :func:`register` once. ``evaluate`` turns the step's claims into heat flows into the step and work
 delivered by the step, lets :func:`finish_flow_step` apply the laws, and adds the kind's own checks.
 """
@@ -13,67 +13,18 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
-from pydantic import BaseModel, ConfigDict, Field, model_validator
-
 from audit.findings import Finding
-from audit.laws import Balance, energy_tolerance, flow_balance, law_findings
-from audit.properties import PropertyEngine
-from audit.quantities import Power, Temperature
+from audit.model.steps import HeatClaim, StepBase
+from audit.model.tolerances import Tolerances
+from audit.properties.engine import PropertyEngine
 from audit.results import HeatFlow, StepResult, StreamResult
-from audit.tolerances import ToleranceOverrides, Tolerances
-from audit.uncertainty_spec import StepUncertaintyField, step_spreads
+from audit.steps.laws import Balance, energy_tolerance, flow_balance, law_findings
 
 CONSERVATIVE_NOTE = (
     "Heat with no declared boundary temperature is taken as received from an infinitely hot "
     "source, or rejected at the dead-state temperature: the choice least likely to flag a "
     "violation."
 )
-
-
-class StepBase(BaseModel):
-    """Fields every step has."""
-
-    model_config = ConfigDict(extra="forbid")
-
-    id: str = Field(description="the step's identifier, unique in the balance")
-    description: str | None = None
-    tolerances: ToleranceOverrides | None = Field(
-        None, description="this step's own tolerances, overriding the balance's")
-    uncertainty: StepUncertaintyField = None
-
-    @model_validator(mode="after")
-    def _uncertainty_names_claims(self) -> StepBase:
-        step_spreads(self)  # raises naming a key that is not a claim, or an unreadable spread
-        return self
-
-    def stream_ids(self) -> tuple[list[str], list[str]]:
-        """(inlet stream ids, outlet stream ids) for the plant's topology."""
-        raise NotImplementedError
-
-
-class HeatClaim(BaseModel):
-    """A heat flow written without signs: ``added`` to the step or ``removed`` from it, crossing
-    the boundary at ``temperature`` (the source or sink temperature) when it is known."""
-
-    model_config = ConfigDict(extra="forbid")
-
-    added: Power | None = Field(None, description="heat received by the step")
-    removed: Power | None = Field(None, description="heat given off by the step")
-    temperature: Temperature | None = Field(
-        None, description="temperature at which the heat crosses the boundary")
-
-    @model_validator(mode="after")
-    def _one_direction(self) -> HeatClaim:
-        if (self.added is None) == (self.removed is None):
-            raise ValueError("a heat flow needs exactly one of 'added' or 'removed'")
-        for value in (self.added, self.removed):
-            if value is not None and value < 0:
-                raise ValueError("write heat as a positive amount under 'added' or 'removed'")
-        return self
-
-    @property
-    def into_step(self) -> float:
-        return self.added if self.added is not None else -float(self.removed)  # type: ignore
 
 
 @dataclass

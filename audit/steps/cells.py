@@ -48,11 +48,10 @@ from pydantic import Field, field_validator, model_validator
 
 from audit.findings import ERROR, Finding, relative
 from audit.formation import species
-from audit.laws import format_power
-from audit.quantities import Current, Power, Pressure, Temperature, Voltage
-from audit.reactions import FARADAY, Reaction, ReactionProperties, parse_reaction
+from audit.model.quantities import Current, Power, Pressure, Temperature, Voltage
 from audit.results import StepResult, StreamResult
 from audit.steps.base import HeatClaim, StepBase, StepContext
+from audit.steps.laws import format_power
 from audit.steps.reacting import (
     element_findings,
     extents_and_findings,
@@ -61,6 +60,7 @@ from audit.steps.reacting import (
     properties_at,
     step_conditions,
 )
+from audit.steps.reactions import FARADAY, Reaction, ReactionProperties, parse_reaction
 
 ELECTROLYSER = "electrolyser"
 FUEL_CELL = "fuel_cell"

@@ -2,7 +2,7 @@
 balance, extents and their species check, reaction conditions, and applying the laws.
 
 On the formation basis (design note 2.3) the first law, entropy generation and reversible work of
-:mod:`audit.laws` hold unchanged for reacting steps; only the mass balance changes: a fluid is not
+:mod:`audit.steps.laws` hold unchanged for reacting steps; only the mass balance changes: a fluid is not
 conserved, its elements are [1, ch. 13]. So a reacting step skips the per-fluid mass check and checks
 each element instead (``element-imbalance``, in kg/s of the element with the step's mass
 tolerances). Where the elements do not balance, the energy and entropy sums compare different
@@ -22,17 +22,7 @@ from collections.abc import Sequence
 from pydantic import BaseModel, ConfigDict, Field, field_validator
 
 from audit.findings import ERROR, WARNING, Finding, relative
-from audit.quantities import MolarFlow
-from audit.reactions import (
-    Reaction,
-    ReactionProperties,
-    element_flows,
-    element_mass,
-    fit_extents,
-    parse_reaction,
-    reaction_properties,
-    total_species,
-)
+from audit.model.quantities import MolarFlow
 from audit.results import HeatFlow, StepResult, StreamResult
 from audit.steps.base import (
     HeatClaim,
@@ -41,6 +31,16 @@ from audit.steps.base import (
     boundary_temperature,
     finish_flow_step,
     heat_flows_from_claims,
+)
+from audit.steps.reactions import (
+    Reaction,
+    ReactionProperties,
+    element_flows,
+    element_mass,
+    fit_extents,
+    parse_reaction,
+    reaction_properties,
+    total_species,
 )
 
 

@@ -1,0 +1,361 @@
+"""Reading a balance file: safe YAML with line numbers, duplicate keys refused, aliases bounded.
+
+PyYAML composes the file into a node graph that knows where each node starts; this module builds the
+plain Python data from that graph itself, so that
+
+* only the standard YAML tags are accepted (no code-executing ``!!python/...`` tags, nor any other);
+* a key written twice in one mapping is an error naming both lines (PyYAML keeps the last silently);
+* alias expansion is counted and refused past :data:`MAX_NODES` (an "alias bomb" is refused, not
+  swallowed);
+* every value's position is recorded, by its path of keys and indices, so a validation error can be
+  mapped back to the file, line and column where the offending value was written.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+import yaml
+from yaml.constructor import SafeConstructor
+
+from audit.input import flowlines
+from audit.errors import InputError
+
+MAX_FILE_BYTES = 20 * 1024 * 1024
+"""Largest balance file read [bytes]; a real balance is a few hundred kB."""
+
+MAX_NODES = 5_000_000
+"""Most values built from one file; past it the file is refused."""
+
+MAX_ALIAS_NODES = 100_000
+"""Most values built a second time through aliases; past it the file is refused as an alias bomb
+(a legitimate balance repeats a few hundred values through anchors at most)."""
+
+_STANDARD_TAG = "tag:yaml.org,2002:"
+_ALLOWED_SCALAR_TAGS = {
+    _STANDARD_TAG + t for t in ("str", "int", "float", "bool", "null", "timestamp")
+}
+_STR_TAG = _STANDARD_TAG + "str"
+
+_FAST_LOADER = getattr(yaml, "CSafeLoader", None)
+"""libyaml's parser, when PyYAML was built with it: it composes the same nodes, with the same
+marks, about eight times faster than the pure-Python parser (benchmarks/run.py). Text it refuses,
+and text with a tab, goes to the pure-Python parser, whose errors the messages below are written
+for. (One known leniency: libyaml reads a tag followed directly by a comma in a flow collection,
+``{a: !!str, b: c}``, as a tag on an empty value, where PyYAML refuses the text.)"""
+
+Path_ = tuple[object, ...]
+
+
+@dataclass
+class Document:
+    """The plain data of a balance file and where each value was written (1-based line, column).
+
+    ``cells`` records values that came from a table (:mod:`audit.input.tables`) instead: path → (table
+    file, place in it), the place reading like ``sheet 'HB rev C', cell D14`` or ``row 14``.
+    """
+
+    data: Any
+    file: str
+    positions: dict[Path_, tuple[int, int]] = field(default_factory=dict)
+    cells: dict[Path_, tuple[str, str]] = field(default_factory=dict)
+
+    def position(self, path: Path_) -> tuple[int | None, int | None]:
+        """Line and column of the value at ``path``, or of its nearest written ancestor."""
+        path = tuple(path)
+        while path:
+            if path in self.positions:
+                return self.positions[path]
+            path = path[:-1]
+        return self.positions.get((), (None, None))
+
+    def place(self, path: Path_) -> dict[str, Any]:
+        """Where the value at ``path`` was written, as keyword arguments of
+        :class:`audit.errors.Problem`: the file with its line and column, or the table file with
+        its cell, whichever the nearest written ancestor of ``path`` is."""
+        path = tuple(path)
+        while path:
+            if path in self.cells:
+                file, cell = self.cells[path]
+                return {"file": file, "line": None, "column": None, "cell": cell}
+            if path in self.positions:
+                break
+            path = path[:-1]
+        line, column = self.position(path)
+        return {"file": self.file, "line": line, "column": column, "cell": None}
+
+
+class _Builder:
+    def __init__(self, file: str, flow_lines: dict | None = None) -> None:
+        self.file = file
+        self.flow_lines = flow_lines or {}  # mappings audit.input.flowlines read, by (line, column)
+        self.flow_lines_built: set[tuple[int, int]] = set()
+        self.count = 0
+        self.repeats = 0
+        self._seen: set[int] = set()
+        self._open: set[int] = set()  # collections being built: an alias back to one is a loop
+        self.positions: dict[Path_, tuple[int, int]] = {}
+        self._scalar = SafeConstructor()
+
+    def _fail(self, node: yaml.Node, message: str) -> InputError:
+        return InputError(
+            message, file=self.file, line=node.start_mark.line + 1,
+            column=node.start_mark.column + 1,
+        )
+
+    def build(self, node: yaml.Node, path: Path_, depth: int = 0) -> Any:
+        self.count += 1
+        if id(node) in self._seen:
+            self.repeats += 1
+            if self.repeats > MAX_ALIAS_NODES:
+                raise self._fail(
+                    node,
+                    f"aliases in the file expand to more than {MAX_ALIAS_NODES:,} repeated "
+                    "values; refusing it as an alias bomb",
+                )
+        else:
+            self._seen.add(id(node))
+        if self.count > MAX_NODES:
+            raise self._fail(node, f"the file holds more than {MAX_NODES:,} values")
+        if depth > 100:
+            raise self._fail(node, "the file nests deeper than 100 levels")
+        self.positions.setdefault(path, (node.start_mark.line + 1, node.start_mark.column + 1))
+        if isinstance(node, yaml.ScalarNode):
+            if node.tag == _STR_TAG:
+                return node.value  # what SafeConstructor makes of a string, without its calls
+            if node.tag not in _ALLOWED_SCALAR_TAGS:
+                raise self._fail(node, f"the tag '{node.tag}' is not allowed in a balance file")
+            if node.tag == _STANDARD_TAG + "timestamp":
+                return node.value  # keep dates as written (and never fail on 2024-02-30)
+            try:
+                return self._scalar.construct_object(node, deep=True)
+            except (ValueError, IndexError, KeyError) as exc:
+                # e.g. an integer of more than 4300 digits, or '!!int' with no value
+                shown = node.value if len(node.value) <= 40 else node.value[:40] + "..."
+                if "integer string conversion" in str(exc):
+                    reason = f"a number of {len(node.value):,} digits is too long to read"
+                elif isinstance(exc, ValueError):
+                    reason = str(exc)
+                else:
+                    reason = f"it is not a valid {node.tag.rsplit(':', 1)[-1]}"
+                raise self._fail(node, f"the value '{shown}' cannot be read: {reason}") from None
+        if id(node) in self._open:
+            raise self._fail(node, "an alias here refers to a collection that contains it, so "
+                             "the value would never end")
+        if isinstance(node, yaml.SequenceNode):
+            if node.tag != _STANDARD_TAG + "seq":
+                raise self._fail(node, f"the tag '{node.tag}' is not allowed in a balance file")
+            self._open.add(id(node))
+            built = [self.build(item, path + (i,), depth + 1) for i, item in enumerate(node.value)]
+            self._open.discard(id(node))
+            return built
+        if isinstance(node, yaml.MappingNode):
+            if node.tag != _STANDARD_TAG + "map":
+                raise self._fail(node, f"the tag '{node.tag}' is not allowed in a balance file")
+            if not node.value and self.flow_lines:
+                where = (node.start_mark.line, node.start_mark.column)
+                items = self.flow_lines.get(where)
+                if items is not None:
+                    self.flow_lines_built.add(where)
+                    return self._flow_line(items, where[0], path, depth)
+            self._open.add(id(node))
+            built = self._mapping(node, path, depth)
+            self._open.discard(id(node))
+            return built
+        raise self._fail(node, "unsupported YAML node")  # pragma: no cover
+
+    def _mapping(self, node: yaml.MappingNode, path: Path_, depth: int) -> dict:
+        result: dict = {}
+        seen: dict[object, int] = {}
+        merged: dict = {}
+        for key_node, value_node in node.value:
+            if key_node.tag == _STANDARD_TAG + "merge":
+                sources = value_node.value if isinstance(value_node, yaml.SequenceNode) else [
+                    value_node]
+                for source in sources:
+                    built = self.build(source, path, depth + 1)
+                    if not isinstance(built, dict):
+                        raise self._fail(source, "a merge key '<<' must name a mapping")
+                    for k, v in built.items():
+                        merged.setdefault(k, v)
+                continue
+            if not isinstance(key_node, yaml.ScalarNode):
+                raise self._fail(key_node, "a mapping key must be a plain value, not a collection")
+            key = self.build(key_node, path + ("<key>",), depth + 1)
+            line = key_node.start_mark.line + 1
+            if key in seen:
+                where = (f"on line {line}" if seen[key] == line else
+                         f"on line {seen[key]} and line {line}")
+                raise self._fail(
+                    key_node,
+                    f"the key '{key}' is written twice in the same mapping, {where}; a balance "
+                    "must say each thing once",
+                )
+            seen[key] = line
+            result[key] = self.build(value_node, path + (key,), depth + 1)
+            self.positions[path + (key,)] = (line, key_node.start_mark.column + 1)
+        for k, v in merged.items():
+            result.setdefault(k, v)
+        return result
+
+
+    def _flow_line(self, items: list, line: int, path: Path_, depth: int) -> dict:
+        """A mapping :mod:`audit.input.flowlines` read from one line, built as :meth:`_mapping` builds
+        composed nodes: the same values, positions and node count (a value's own position is
+        overwritten by its key's there, so only the key's is recorded here)."""
+        depth += 1
+        if depth > 100:
+            raise _FastPathDeclined  # the usual path words the error
+        result: dict = {}
+        positions = self.positions
+        row = line + 1
+        nodes = 0
+        for key, key_column, key_tag, first, second, tag in items:
+            if key_tag is None:
+                nodes += 1
+                if not result:
+                    positions.setdefault(path + ("<key>",), (row, key_column + 1))
+            else:
+                key = self.build(flowlines.scalar_node(key, key_tag, line, key_column),
+                                 path + ("<key>",), depth)
+                if key in result:
+                    raise _FastPathDeclined  # the usual path words the duplicate-key error
+            here = path + (key,)
+            if type(second) is list:  # a nested mapping: (column of its brace, its items)
+                nodes += 1
+                result[key] = self._flow_line(second, line, here, depth)
+            elif tag is None:  # a plain string: (text, column)
+                nodes += 1
+                result[key] = first
+            else:
+                result[key] = self.build(flowlines.scalar_node(first, tag, line, second), here,
+                                         depth)
+            positions[here] = (row, key_column + 1)
+        self.count += nodes
+        if self.count > MAX_NODES:
+            raise _FastPathDeclined  # the usual path words the error
+        return result
+
+
+class _FastPathDeclined(Exception):
+    """The fast path of :mod:`audit.input.flowlines` does not apply: read the original text."""
+
+
+def read_text(path: Path) -> str:
+    """Read a balance file as UTF-8 text, refusing folders, huge files and undecodable bytes."""
+    name = str(path)
+    if not path.exists():
+        raise InputError("no such file", file=name)
+    if path.is_dir():
+        raise InputError("is a folder, not a balance file", file=name)
+    try:
+        size = path.stat().st_size
+        if size > MAX_FILE_BYTES:
+            raise InputError(
+                f"the file is {size / 2**20:.1f} MiB, larger than the {MAX_FILE_BYTES / 2**20:.0f} "
+                "MiB a balance file may be", file=name,
+            )
+        raw = path.read_bytes()
+    except OSError as exc:  # permission denied, a device, an I/O error
+        raise InputError(f"cannot be read: {exc.strerror or exc}", file=name) from None
+    try:
+        return raw.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        line = raw[: exc.start].count(b"\n") + 1
+        raise InputError(
+            f"the file is not valid UTF-8 text (byte 0x{raw[exc.start]:02x} at offset {exc.start})",
+            file=name, line=line,
+        ) from None
+
+
+def parse_document(text: str, file: str) -> Document:
+    """Compose YAML text into plain data with positions; see the module docstring for the rules.
+
+    One-line flow mappings are read by the fast path of :mod:`audit.input.flowlines` when it applies;
+    whenever it does not (or the text has an error), the original text is read the usual way."""
+    scanned = flowlines.scan(text)
+    if scanned is not None:
+        try:
+            return _parse(scanned.text, file, scanned.mappings)
+        except (InputError, _FastPathDeclined):
+            pass
+    return _parse(text, file, None)
+
+
+def _parse(text: str, file: str, flow_lines: dict | None) -> Document:
+    try:
+        node = _compose(text)
+    except yaml.MarkedYAMLError as exc:
+        mark = exc.problem_mark or exc.context_mark
+        problem = exc.problem or "malformed YAML"
+        if exc.context:
+            context = exc.context
+            if exc.context_mark and mark and exc.context_mark.line != mark.line:
+                context += f" (begun on line {exc.context_mark.line + 1})"
+            problem = f"{context}: {problem}" if "found character '\\t'" not in problem else (
+                problem)
+        if "expected <block end>" in problem:
+            problem += " (check the indentation of this line)"
+        if "\\t" in problem or "tab" in problem.lower():
+            problem += " (YAML does not allow tabs for indentation; use spaces)"
+        raise InputError(
+            f"not valid YAML: {problem}", file=file,
+            line=mark.line + 1 if mark else None, column=mark.column + 1 if mark else None,
+        ) from None
+    except yaml.reader.ReaderError as exc:  # a control character: position is a text offset
+        line = text.count("\n", 0, exc.position) + 1
+        column = exc.position - (text.rfind("\n", 0, exc.position) + 1) + 1
+        raise InputError(
+            f"not valid YAML: the control character #x{exc.character:04x} is not allowed in a "
+            "balance file", file=file, line=line, column=column,
+        ) from None
+    except yaml.YAMLError as exc:
+        raise InputError(f"not valid YAML: {exc}", file=file) from None
+    except RecursionError:  # PyYAML composes nested collections recursively
+        raise InputError("the file nests deeper than 100 levels", file=file,
+                         **_too_deep(text)) from None
+    if node is None:
+        raise InputError("the file is empty; a balance needs 'balance', 'streams' and 'steps'",
+                         file=file, line=1)
+    builder = _Builder(file, flow_lines)
+    data = builder.build(node, ())
+    if flow_lines and len(builder.flow_lines_built) != len(flow_lines):
+        raise _FastPathDeclined  # a recognised line did not come back as a mapping where written
+    return Document(data=data, file=file, positions=builder.positions)
+
+
+def _compose(text: str) -> yaml.Node | None:
+    """The YAML node graph of ``text``: libyaml's when it reads the text, else the pure-Python
+    parser's (which raises the errors :func:`parse_document` words)."""
+    if _FAST_LOADER is not None and "\t" not in text:
+        try:
+            return yaml.compose(text, Loader=_FAST_LOADER)
+        except yaml.YAMLError:
+            pass
+    return yaml.compose(text, Loader=yaml.SafeLoader)
+
+
+def _too_deep(text: str) -> dict[str, int]:
+    """Line and column where collections first nest deeper than 100 levels (parse events are read
+    without recursion, so this works where composing the file failed)."""
+    depth = 0
+    try:
+        for event in yaml.parse(text, Loader=yaml.SafeLoader):
+            if isinstance(event, yaml.CollectionStartEvent):
+                depth += 1
+                if depth > 100:
+                    return {"line": event.start_mark.line + 1,
+                            "column": event.start_mark.column + 1}
+            elif isinstance(event, yaml.CollectionEndEvent):
+                depth -= 1
+    except yaml.YAMLError:
+        pass
+    return {}
+
+
+def load_document(path: str | Path) -> Document:
+    """Read and compose a balance file; raise :class:`InputError` naming the file and line."""
+    path = Path(path)
+    return parse_document(read_text(path), str(path))

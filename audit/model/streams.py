@@ -1,0 +1,130 @@
+"""How a balance file writes a state and a stream.
+
+A state is a fluid and exactly two of T, P, quality, h, s, in one of the pairs (T, P),
+(P, quality), (T, quality), (P, h), (P, s). A stream adds its flow and, optionally, its velocity and
+elevation (for kinetic and potential energy) and the phase the balance says it has (checked).
+"""
+
+from __future__ import annotations
+
+from typing import Literal
+
+from pydantic import BaseModel, ConfigDict, Field, model_validator
+
+from audit.model.composition import check_fractions, named_composition
+from audit.model.quantities import (
+    Length,
+    Pressure,
+    SpecificEnthalpy,
+    SpecificEntropy,
+    StreamFlow,
+    Temperature,
+    Velocity,
+)
+from audit.model.uncertainty import StreamUncertaintyField
+
+PAIRS = {
+    frozenset({"T", "P"}): "TP",
+    frozenset({"P", "quality"}): "PQ",
+    frozenset({"T", "quality"}): "TQ",
+    frozenset({"P", "h"}): "Ph",
+    frozenset({"P", "s"}): "Ps",
+}
+_PROPERTIES = ("T", "P", "quality", "h", "s")
+_PAIR_OF_GIVEN = {tuple(name in given for name in _PROPERTIES): pair for given, pair in PAIRS.items()}
+"""(T given, P given, quality given, h given, s given) -> pair: a cheap lookup per stream."""
+_INPUT_NAMES = {"TP": ("T", "P"), "PQ": ("P", "quality"), "TQ": ("T", "quality"),
+                "Ph": ("P", "h"), "Ps": ("P", "s")}
+
+
+class PropertyPair(BaseModel):
+    """Two independent intensive properties (the fluid is given elsewhere)."""
+
+    model_config = ConfigDict(extra="forbid")
+
+    T: Temperature | None = Field(None, description="temperature")
+    P: Pressure | None = Field(None, description="pressure (absolute, or gauge as 'barg')")
+    quality: float | None = Field(
+        None, ge=0.0, le=1.0, description="vapour mass fraction, 0 to 1 (two-phase states)")
+    h: SpecificEnthalpy | None = Field(
+        None, description="specific enthalpy on the fluid's usual table reference")
+    s: SpecificEntropy | None = Field(
+        None, description="specific entropy on the fluid's usual table reference")
+
+    @model_validator(mode="after")
+    def _two_properties(self) -> PropertyPair:
+        if self._given() in _PAIR_OF_GIVEN:
+            return self
+        given = frozenset(name for name in _PROPERTIES if getattr(self, name) is not None)
+        if given not in PAIRS:
+            written = ", ".join(sorted(given)) or "none"
+            raise ValueError(
+                f"a state needs exactly one of the pairs (T, P), (P, quality), (T, quality), "
+                f"(P, h) or (P, s); this one gives: {written}"
+            )
+        return self
+
+    def _given(self) -> tuple[bool, bool, bool, bool, bool]:
+        return (self.T is not None, self.P is not None, self.quality is not None,
+                self.h is not None, self.s is not None)
+
+    @property
+    def pair(self) -> str:
+        return _PAIR_OF_GIVEN[self._given()]
+
+    def inputs(self) -> tuple[str, float, float]:
+        """(pair, first value, second value) in SI, in the order the pair names them."""
+        pair = self.pair
+        names = _INPUT_NAMES[pair]
+        return pair, float(getattr(self, names[0])), float(getattr(self, names[1]))
+
+
+class StateSpec(PropertyPair):
+    """A fluid and two independent intensive properties."""
+
+    fluid: str = Field(description="CoolProp fluid name, e.g. 'Water', 'Ammonia', 'Air'")
+
+
+class StreamSpec(StateSpec):
+    """A stream: a state, a flow, and optionally velocity, elevation and a declared phase.
+
+    A gas mixture gives ``composition`` (mole fractions by formula or CoolProp name, or mass
+    fractions with ``composition_basis: mass``, or a named composition such as ``air``) instead of
+    ``fluid``, with T and P; it is evaluated as an ideal-gas mixture (:mod:`audit.properties.mixtures`).
+    """
+
+    fluid: str | None = Field(  # type: ignore[assignment]
+        None, description="CoolProp fluid name, e.g. 'Water', 'Ammonia', 'Air' (or give "
+        "'composition' for a gas mixture)")
+    composition: dict[str, float] | str | None = Field(
+        None, description="a gas mixture instead of 'fluid': fractions by species formula or "
+        "CoolProp name, e.g. {CH4: 0.97, N2: 0.02, CO2: 0.01}, summing to 1; or a named "
+        "composition: 'air' (dry air)")
+    composition_basis: Literal["mole", "mass"] = Field(
+        "mole", description="whether the composition gives mole (default) or mass fractions")
+    flow: StreamFlow = Field(description="mass, molar or volumetric flow")
+    velocity: Velocity | None = Field(None, description="mean velocity, for kinetic energy")
+    elevation: Length | None = Field(None, description="elevation, for potential energy")
+    phase: Literal["liquid", "vapour", "two-phase", "supercritical"] | None = Field(
+        None, description="the phase the balance states; checked against the computed one")
+    description: str | None = None
+    uncertainty: StreamUncertaintyField = None
+
+    @model_validator(mode="after")
+    def _fluid_or_composition(self) -> StreamSpec:
+        if (self.fluid is None) == (self.composition is None):
+            raise ValueError("a stream needs exactly one of 'fluid' (a pure fluid) or "
+                             "'composition' (a gas mixture)")
+        if self.composition is None:
+            return self
+        if isinstance(self.composition, str):
+            if self.composition_basis == "mass":
+                raise ValueError("a named composition gives mole fractions; drop "
+                                 "'composition_basis: mass'")
+            self.composition = named_composition(self.composition)
+        check_fractions(self.composition, self.composition_basis)
+        if self.pair != "TP":
+            raise ValueError("a gas mixture is written with T and P")
+        if self.phase not in (None, "vapour"):
+            raise ValueError(f"a gas mixture is a gas; it cannot be declared {self.phase}")
+        return self

@@ -1,0 +1,350 @@
+"""How a balance file declares measurement uncertainty (the schema; the propagation is
+:mod:`audit.review.uncertainty`).
+
+Three levels, each overriding the one above::
+
+    balance:
+      uncertainty:                 # defaults per kind of quantity
+        basis: measured            # or design: every value exact unless it declares its own
+        coverage: standard         # the values below are standard uncertainties (or expanded-k2)
+        coverage_factor: 2         # k of the expanded uncertainty the verdicts compare
+        temperature: 0.5 K
+        pressure: 0.25 %           # of the absolute pressure, or '0.02 bar'
+        flow: 1 %
+        quality: 0.01
+        power: 0.5 %               # shaft and electrical power, work
+        duty: 2 %                  # heat duties and heat losses
+        energy: 2 %                # batch heat and work
+        mass: 0.5 %                # a vessel's contents
+    streams:
+      S20: {..., uncertainty: {P: 0.02 bar, flow: 2 %}}   # or 'exact', or 'measured'
+    steps:
+      - {id: R1, ..., uncertainty: {duty: 3 %}}          # claims by name; or 'exact', 'measured'
+
+A spread is written as ``exact``, a relative value ``"2 %"`` (of the value it qualifies; not for
+temperatures or qualities), an absolute value with a unit (``"0.5 K"``, ``"0.02 bar"``,
+``"5 kW"``), or for a quality a plain number (``0.01``). Under ``basis: measured`` the defaults apply
+to every stream and claim that does not say otherwise; under ``basis: design`` nothing is uncertain
+unless a stream or step declares it (``uncertainty: measured`` takes the balance's defaults).
+
+A step names its claims by their field names, nested ones with dots and without list positions:
+``shaft_power``, ``duty``, ``heat.added``, ``heat.temperature``, ``initial.T``, ``mass``.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+import typing
+from collections.abc import Iterator
+from dataclasses import dataclass
+from typing import Annotated, Any, Literal
+
+from pydantic import BaseModel, ConfigDict, Field, PlainValidator, WithJsonSchema
+from pydantic_core import PydanticCustomError
+
+from audit import units
+from audit.model import quantities
+from audit.errors import UnitError
+
+EXACT_WORDS = ("exact", "measured")
+_COVERAGE = re.compile(r"^(standard|expanded-k(\d+(?:\.\d+)?))$")
+_PERCENT = re.compile(r"^\s*((?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?)\s*%\s*$")
+
+# Kind of a spread -> (kind in audit.units for an absolute value, relative allowed, example).
+SPREAD_KINDS: dict[str, tuple[str | None, bool, str]] = {
+    "temperature": ("temperature_difference", False, "'0.5 K'"),
+    "pressure": ("pressure", True, "'0.25 %' or '0.02 bar'"),
+    "flow": ("flow", True, "'1 %' or '0.05 kg/s'"),
+    "quality": (None, False, "0.01"),
+    "specific_enthalpy": ("specific_enthalpy", True, "'1 %' or '2 kJ/kg'"),
+    "specific_entropy": ("specific_entropy", True, "'1 %' or '0.01 kJ/(kg K)'"),
+    "power": ("power", True, "'0.5 %' or '5 kW'"),
+    "energy": ("energy", True, "'2 %' or '1 MJ'"),
+    "mass": ("mass", True, "'0.5 %' or '5 kg'"),
+    "length": ("length", True, "'0.1 m'"),
+    "velocity": ("velocity", True, "'2 %' or '0.5 m/s'"),
+    "voltage": ("voltage", True, "'0.5 %' or '0.01 V'"),
+    "current": ("current", True, "'0.5 %' or '5 A'"),
+    "volume": ("volume", True, "'1 %' or '0.01 m3'"),
+}
+
+
+@dataclass(frozen=True)
+class Spread:
+    """A declared uncertainty: ``value`` is a fraction of the qualified value when ``relative``,
+    else an absolute amount in SI (a flow in the SI unit of its ``flow_basis``)."""
+
+    value: float
+    relative: bool
+    text: str
+    flow_basis: str | None = None
+    flow_reference: tuple[float, float] | None = None
+
+    def standard(self, nominal: float, divisor: float) -> float:
+        """The standard uncertainty [SI] of a value ``nominal`` [SI], the declared spread divided
+        by ``divisor`` (the coverage factor it was stated with; 1 for a standard uncertainty)."""
+        amount = self.value * abs(nominal) if self.relative else self.value
+        return amount / divisor
+
+
+EXACT = Spread(0.0, False, "exact")
+
+
+def parse_spread(text: Any, kind: str) -> Spread:
+    """Read a spread of ``kind`` (a key of :data:`SPREAD_KINDS`); :class:`UnitError` if it
+    cannot be read."""
+    unit_kind, relative_ok, example = SPREAD_KINDS[kind]
+    what = kind.replace("_", " ")
+    if isinstance(text, str) and text.strip() == "exact":
+        return EXACT
+    if (isinstance(text, str) and text.strip().startswith("-")) or (
+            isinstance(text, (int, float)) and not isinstance(text, bool) and text < 0):
+        raise UnitError(f"an uncertainty is at least zero; got '{text}'")
+    if kind == "quality":
+        if isinstance(text, bool) or not isinstance(text, (int, float, str)):
+            raise UnitError(f"a quality uncertainty is a plain number such as 0.01; got {text!r}")
+        try:
+            value = float(text)
+        except ValueError:
+            raise UnitError(
+                f"a quality uncertainty is a plain number such as 0.01 (an absolute fraction), "
+                f"not '{text}'") from None
+        return _checked(value, False, str(text))
+    if isinstance(text, str):
+        match = _PERCENT.match(text)
+        if match:
+            if not relative_ok:
+                raise UnitError(
+                    f"a {what} uncertainty is absolute, such as {example}; '{text}' is relative")
+            return _checked(float(match.group(1)) / 100.0, True, text)
+    if unit_kind == "flow":
+        try:
+            flow = units.to_flow(text)
+        except UnitError as exc:
+            raise UnitError(f"a flow uncertainty is written like {example}: "
+                            f"{exc.problem.message}") from None
+        return _checked(flow.value, False, str(text), flow.basis, flow.reference)
+    try:
+        # site_pressure 0: a spread is a difference, so '0.02 barg' and '0.02 bar' agree.
+        value = units.to_si(text, unit_kind, site_pressure=0.0)  # type: ignore[arg-type]
+    except UnitError as exc:
+        raise UnitError(f"a {what} uncertainty is written like {example}: "
+                        f"{exc.problem.message}") from None
+    return _checked(value, False, str(text))
+
+
+def _checked(value: float, relative: bool, text: str, basis: str | None = None,
+             reference: tuple[float, float] | None = None) -> Spread:
+    if not math.isfinite(value):
+        raise UnitError(f"an uncertainty is a finite number; got '{text}'")
+    if value < 0.0:
+        raise UnitError(f"an uncertainty is at least zero; got '{text}'")
+    return Spread(value, relative, text, basis, reference)
+
+
+def coverage_divisor(coverage: str | None) -> float:
+    """The factor a declared spread is divided by to give a standard uncertainty: 1 for
+    ``standard``, k for ``expanded-k<k>``."""
+    if coverage is None or coverage == "standard":
+        return 1.0
+    match = _COVERAGE.match(coverage)
+    if not match or match.group(2) is None:
+        raise UnitError(f"unknown coverage '{coverage}'; write 'standard' or 'expanded-k2'")
+    return float(match.group(2))
+
+
+def _spread_type(kind: str) -> Any:
+    def validate(value: Any) -> Spread:
+        if isinstance(value, Spread):
+            return value
+        try:
+            return parse_spread(value, kind)
+        except UnitError as exc:
+            raise PydanticCustomError("uncertainty", exc.problem.message) from None
+
+    example = SPREAD_KINDS[kind][2]
+    schema: dict[str, Any] = {
+        "description": f"{kind.replace('_', ' ')} uncertainty: 'exact', or like {example}"}
+    schema.update({"type": ["number", "string"]} if kind == "quality" else {"type": "string"})
+    return Annotated[Spread, PlainValidator(validate), WithJsonSchema(schema)]
+
+
+TemperatureSpread = _spread_type("temperature")
+PressureSpread = _spread_type("pressure")
+FlowSpread = _spread_type("flow")
+QualitySpread = _spread_type("quality")
+EnthalpySpread = _spread_type("specific_enthalpy")
+EntropySpread = _spread_type("specific_entropy")
+PowerSpread = _spread_type("power")
+EnergySpread = _spread_type("energy")
+MassSpread = _spread_type("mass")
+
+def _coverage(value: Any) -> str:
+    if isinstance(value, str) and _COVERAGE.match(value.strip()):
+        return value.strip()
+    raise PydanticCustomError(
+        "uncertainty", f"unknown coverage {value!r}; write 'standard' (standard uncertainties) or "
+        "'expanded-k2' (expanded uncertainties with coverage factor k = 2)")
+
+
+Coverage = Annotated[str, PlainValidator(_coverage), WithJsonSchema({
+    "type": "string", "pattern": _COVERAGE.pattern,
+    "description": "how the spreads are stated: 'standard' (one standard uncertainty) or "
+    "'expanded-k2' (expanded with coverage factor k = 2)"})]
+
+
+class BalanceUncertainty(BaseModel):
+    """A balance's default uncertainties per kind of quantity (``balance: uncertainty:``)."""
+
+    model_config = ConfigDict(extra="forbid")
+
+    basis: Literal["measured", "design"] = Field(
+        "measured", description="'measured': the defaults apply to every stream and claim; "
+        "'design': values are exact unless a stream or step declares its own uncertainty")
+    coverage: Coverage = "standard"
+    coverage_factor: float = Field(
+        2.0, gt=0, description="coverage factor k of the expanded uncertainty the verdicts "
+        "compare (default 2, about 95 % for a normal distribution)")
+    temperature: TemperatureSpread | None = None
+    pressure: PressureSpread | None = None
+    flow: FlowSpread | None = None
+    quality: QualitySpread | None = None
+    power: PowerSpread | None = Field(None, description="shaft or electrical power and work")
+    duty: PowerSpread | None = Field(None, description="heat duties and heat losses")
+    energy: EnergySpread | None = Field(None, description="batch (vessel) heat and work")
+    mass: MassSpread | None = Field(None, description="a vessel's contents")
+
+
+class StreamUncertainty(BaseModel):
+    """A stream's own uncertainties, by the names of its properties."""
+
+    model_config = ConfigDict(extra="forbid")
+
+    coverage: Coverage | None = None
+    T: TemperatureSpread | None = None
+    P: PressureSpread | None = None
+    quality: QualitySpread | None = None
+    h: EnthalpySpread | None = None
+    s: EntropySpread | None = None
+    flow: FlowSpread | None = None
+
+
+StreamUncertaintyField = Annotated[
+    Literal["exact", "measured"] | StreamUncertainty | None,
+    Field(description="this stream's uncertainties: 'exact', 'measured' (the balance's defaults) "
+          "or a mapping such as {T: 0.2 K, flow: 2 %} over the balance's defaults"),
+]
+
+StepUncertaintyField = Annotated[
+    Literal["exact", "measured"] | dict[str, str | float] | None,
+    Field(description="this step's claim uncertainties: 'exact', 'measured' (the balance's "
+          "defaults) or a mapping of claim names to spreads, e.g. {shaft_power: 1 %, "
+          "coverage: expanded-k2}"),
+]
+
+STREAM_CATEGORY = {"T": "temperature", "P": "pressure", "quality": "quality", "flow": "flow"}
+_STREAM_KIND = {"T": "temperature", "P": "pressure", "quality": "quality",
+                "h": "specific_enthalpy", "s": "specific_entropy", "flow": "flow"}
+
+# -- the claims of a step -------------------------------------------------------------------------
+_SKIPPED = {"id", "kind", "description", "tolerances", "uncertainty"}
+_QUANTITY_TYPES: list[tuple[Any, str]] = [
+    (quantities.Temperature, "temperature"), (quantities.Pressure, "pressure"),
+    (quantities.Power, "power"), (quantities.Energy, "energy"), (quantities.Mass, "mass"),
+    (quantities.SpecificEnthalpy, "specific_enthalpy"),
+    (quantities.SpecificEntropy, "specific_entropy"), (quantities.Length, "length"),
+    (quantities.Velocity, "velocity"), (quantities.Volume, "volume"),
+    (quantities.Voltage, "voltage"), (quantities.Current, "current"),
+]
+
+
+@dataclass(frozen=True)
+class Claim:
+    """One number a step claims: its field ``path`` (names and list positions), its dotted
+    ``key`` (without positions), its kind of spread and its value [SI]."""
+
+    path: tuple[str | int, ...]
+    key: str
+    kind: str
+    value: float
+
+    @property
+    def category(self) -> str:
+        """The balance default it takes: power, duty, energy, temperature, pressure, ..."""
+        leaf = str(self.key.rsplit(".", 1)[-1])
+        if self.kind == "power":
+            return "power" if ("power" in leaf or "work" in leaf) else "duty"
+        return self.kind
+
+
+def _validator_kind() -> dict[int, str]:
+    """id of each quantity type's parsing function -> its kind (the functions are unique)."""
+    found = {}
+    for quantity_type, kind in _QUANTITY_TYPES:
+        for meta in getattr(quantity_type, "__metadata__", ()):
+            func = getattr(meta, "func", None)
+            if func is not None:
+                found[id(func)] = kind
+    return found
+
+
+_KIND_BY_VALIDATOR = _validator_kind()
+
+
+def _kind_of(annotation: Any, metadata: list[Any], name: str) -> str | None:
+    metas = list(metadata)
+    for candidate in (annotation, *typing.get_args(annotation)):
+        metas.extend(getattr(candidate, "__metadata__", ()))
+    for meta in metas:
+        kind = _KIND_BY_VALIDATOR.get(id(getattr(meta, "func", None)))
+        if kind is not None:
+            return kind
+    if name == "quality":
+        return "quality"
+    return None
+
+
+def step_claims(model: BaseModel, prefix: tuple[str | int, ...] = ()) -> Iterator[Claim]:
+    """Every number written with a unit (and every quality) in a step's claims, nested models
+    and lists of them included; identifiers, descriptions and tolerances are not claims."""
+    for name, info in type(model).model_fields.items():
+        if name in _SKIPPED and not prefix:
+            continue
+        value = getattr(model, name)
+        if value is None:
+            continue
+        if isinstance(value, BaseModel):
+            yield from step_claims(value, (*prefix, name))
+        elif isinstance(value, list):
+            for index, item in enumerate(value):
+                if isinstance(item, BaseModel):
+                    yield from step_claims(item, (*prefix, name, index))
+        elif isinstance(value, (int, float)) and not isinstance(value, bool):
+            kind = _kind_of(info.annotation, info.metadata, name)
+            if kind is not None:
+                path = (*prefix, name)
+                key = ".".join(str(p) for p in path if not isinstance(p, int))
+                yield Claim(path, key, kind, float(value))
+
+
+def step_spreads(step: BaseModel) -> tuple[str | None, dict[str, Spread], float | None]:
+    """(``'exact'``, ``'measured'`` or None; the step's own spreads by claim key; the divisor of
+    its own coverage, or None to use the balance's). Raises :class:`UnitError` naming a key that is
+    not a claim of the step, or a spread that cannot be read."""
+    declared = getattr(step, "uncertainty", None)
+    if declared is None or isinstance(declared, str):
+        return declared, {}, None
+    claims = {claim.key: claim for claim in step_claims(step)}
+    spreads: dict[str, Spread] = {}
+    divisor = None
+    for key, text in declared.items():
+        if key == "coverage":
+            divisor = coverage_divisor(str(text))
+            continue
+        if key not in claims:
+            known = ", ".join(sorted(claims)) or "none"
+            raise UnitError(f"the uncertainty names '{key}', which is not a claim this step "
+                            f"gives; its claims are: {known}")
+        spreads[key] = parse_spread(text, claims[key].kind)
+    return "declared", spreads, divisor

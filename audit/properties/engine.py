@@ -1,0 +1,532 @@
+"""The property engine: the one module of plant-audit that calls CoolProp.
+
+A stream state is a fluid and two independent intensive properties, (T, P), (P, quality),
+(T, quality), (P, h) or (P, s). The engine evaluates it with CoolProp's low-level ``AbstractState``
+on the HEOS back end (Helmholtz-energy equations of state: IAPWS-95 for water [1]) and returns a
+:class:`State` with T, P, ρ, h, s, u, phase, quality, g = h − Ts, a = u − Ts and the flow exergy
+ψ = (h − h0) − T0 (s − s0) relative to the same fluid at the dead state (T0, P0) [2].
+
+Rules the engine keeps (they come from measurements of CoolProp's behaviour, see DEVELOPERS.md):
+
+* (T, P) within ``saturation_band`` of the saturation line of a pure fluid is ambiguous: the engine
+  raises a :class:`StateError` naming the saturation temperature and asking for a quality; it never
+  guesses. Away from the band it decides the phase from T_sat(P) itself and only then imposes it.
+* T must lie within the equation's range [T_min, T_max] and 0 < P ≤ P_max: CoolProp returns numbers
+  beyond its limits, the engine refuses them. Every returned value must be finite.
+* Identical inputs are evaluated once (a cache keyed by fluid, input pair and values).
+
+Formation basis. For the species in :mod:`audit.formation`, h and s are shifted by a constant per
+fluid so that the ideal gas at 298.15 K and 1 bar has h = ΔfH° and s = S°; the other fluids keep
+CoolProp's own reference and their states say ``basis = "fluid reference"``. Values of h and s that a
+balance file gives as inputs are read on the fluid's usual table reference (CoolProp's default: the
+IAPWS convention for water, the IIR convention for refrigerants), as printed in steam and refrigerant
+tables.
+
+Gas mixtures (a stream written with ``composition:``) are ideal-gas mixtures of the pure species on
+the same formation basis, built from CoolProp's ideal-gas parts in :mod:`audit.properties.mixtures` (which
+documents the model, its verified temperature ranges and its pressure limit); their states say
+``basis = "formation (ideal-gas mixture)"`` and carry their composition. Pure species in a reaction
+(:meth:`PropertyEngine.species_molar`) are ideal gases, or the real liquid for a species written
+``(l)``.
+
+References
+----------
+.. [1] W. Wagner, A. Pruß, "The IAPWS formulation 1995 for the thermodynamic properties of ordinary
+   water substance for general and scientific use", J. Phys. Chem. Ref. Data 31 (2002) 387–535.
+.. [2] A. Bejan, G. Tsatsaronis, M. Moran, *Thermal Design and Optimization*, Wiley, 1996, ch. 3.
+.. [3] I. H. Bell, J. Wronski, S. Quoilin, V. Lemort, "Pure and pseudo-pure fluid thermophysical
+   property evaluation and the open-source thermophysical property library CoolProp",
+   Ind. Eng. Chem. Res. 53 (2014) 2498–2508.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Mapping
+from dataclasses import dataclass
+
+import CoolProp
+import CoolProp.CoolProp as CP
+
+from audit.properties import mixtures
+from audit.errors import StateError
+from audit.formation import P_STANDARD, T_STANDARD, lookup, species
+
+COOLPROP_VERSION = CoolProp.__version__
+BACKEND = "HEOS"
+GAS_CONSTANT = 8.314_462_618_153_24  # J/(mol K), exact since the 2019 SI (CODATA 2018)
+
+BASIS_FORMATION = "formation"
+BASIS_FLUID = "fluid reference"
+BASIS_MIXTURE = f"formation ({mixtures.MODEL_NAME})"
+
+_PAIRS = {
+    "TP": CP.PT_INPUTS,
+    "PQ": CP.PQ_INPUTS,
+    "TQ": CP.QT_INPUTS,
+    "Ph": CP.HmassP_INPUTS,
+    "Ps": CP.PSmass_INPUTS,
+}
+
+_PHASE_NAMES = {
+    CP.iphase_liquid: "liquid",
+    CP.iphase_gas: "vapour",
+    CP.iphase_twophase: "two-phase",
+    CP.iphase_supercritical: "supercritical",
+    CP.iphase_supercritical_gas: "gas",  # above T_crit, below P_crit: a superheated gas
+    CP.iphase_supercritical_liquid: "supercritical liquid",
+    CP.iphase_critical_point: "critical point",
+}
+
+
+@dataclass(frozen=True, slots=True)
+class State:
+    """A fluid's intensive state, SI units.
+
+    T [K], P [Pa], rho [kg/m**3], h, u, g, a, psi [J/kg], s [J/(kg K)], quality [-] (None outside
+    the two-phase region), molar_mass [kg/mol]; ``basis`` says whether h, s, u, g, a are on the
+    formation basis or the fluid's own reference. A gas mixture also carries its ``composition``
+    (mole fractions by formula) and the species that would condense at its state, as (formula,
+    partial pressure [Pa], saturation pressure [Pa]).
+    """
+
+    fluid: str
+    T: float
+    P: float
+    rho: float
+    h: float
+    s: float
+    u: float
+    phase: str
+    quality: float | None
+    g: float
+    a: float
+    psi: float
+    molar_mass: float
+    basis: str
+    composition: tuple[tuple[str, float], ...] | None = None
+    condensing: tuple[tuple[str, float, float], ...] = ()
+
+
+@dataclass(frozen=True)
+class _Fluid:
+    name: str
+    T_min: float
+    T_max: float
+    P_max: float
+    T_crit: float
+    P_crit: float
+    molar_mass: float
+    h_shift: float  # J/kg added to CoolProp's h (and u) to reach the formation basis
+    s_shift: float  # J/(kg K) added to CoolProp's s
+    basis: str
+
+
+class PropertyEngine:
+    """Evaluates and caches stream states for one balance (one dead state, one saturation band).
+
+    Parameters
+    ----------
+    dead_T : dead-state temperature T0 [K]
+    dead_P : dead-state pressure P0 [Pa]
+    saturation_band : half-width of the band around T_sat(P) in which a (T, P) state is
+        ambiguous [K]
+    """
+
+    def __init__(self, dead_T: float, dead_P: float, saturation_band: float = 0.1) -> None:
+        self.dead_T = dead_T
+        self.dead_P = dead_P
+        self.saturation_band = saturation_band
+        self._states: dict[str, CP.AbstractState] = {}
+        self._fluids: dict[str, _Fluid] = {}
+        self._cache: dict[tuple, State] = {}
+        self._dead: dict[str, tuple[float, float]] = {}
+        self._tsat: dict[tuple[str, float], float] = {}
+        self._mixtures = mixtures.IdealGasMixtures()
+        self._mixture_names: dict[str, tuple[mixtures.Component, ...]] = {}
+        self._flashes = 0
+
+    @property
+    def flash_count(self) -> int:
+        """Number of CoolProp evaluations so far (pure fluids and mixture species)."""
+        return self._flashes + self._mixtures.flash_count
+
+    @flash_count.setter
+    def flash_count(self, value: int) -> None:
+        self._flashes = value - self._mixtures.flash_count
+
+    # -- fluids -------------------------------------------------------------------------------
+    def fluid(self, name: str) -> _Fluid:
+        """Fluid constants by CoolProp name or alias; :class:`StateError` for an unknown fluid."""
+        known = self._fluids.get(name)
+        if known is not None:
+            return known
+        try:
+            state = CP.AbstractState(BACKEND, name)
+        except ValueError:
+            raise StateError(
+                f"unknown fluid '{name}': not a CoolProp fluid name (for example 'Water', "
+                "'Ammonia', 'Nitrogen', 'Air', 'CarbonDioxide', 'R134a')"
+            ) from None
+        canonical = state.fluid_names()[0]
+        if len(state.fluid_names()) != 1:
+            raise StateError(f"'{name}' is a mixture; give one pure fluid")  # pragma: no cover
+        M = state.molar_mass()
+        h_shift = s_shift = 0.0
+        basis = BASIS_FLUID
+        data = species(canonical)
+        if data is not None:
+            h_ig, s_ig = _ideal_gas_standard(state)
+            h_shift = (data.enthalpy_of_formation - h_ig) / M
+            s_shift = (data.standard_entropy - s_ig) / M
+            basis = BASIS_FORMATION
+        info = _Fluid(
+            name=canonical, T_min=state.Tmin(), T_max=state.Tmax(), P_max=state.pmax(),
+            T_crit=state.T_critical(), P_crit=state.p_critical(), molar_mass=M,
+            h_shift=h_shift, s_shift=s_shift, basis=basis,
+        )
+        self._states[canonical] = state
+        self._fluids[name] = info
+        self._fluids[canonical] = info
+        return info
+
+    def canonical_name(self, name: str) -> str:
+        return self.fluid(name).name
+
+    # -- saturation -----------------------------------------------------------------------------
+    def saturation_temperature(self, fluid: str, P: float) -> float | None:
+        """T_sat(P) [K] of a pure fluid, or None above the critical pressure (and for a gas
+        mixture, which the engine does not condense)."""
+        if fluid in self._mixture_names:
+            return None
+        info = self.fluid(fluid)
+        if P >= info.P_crit:
+            return None
+        key = (info.name, P)
+        if key not in self._tsat:
+            state = self._states[info.name]
+            try:
+                state.update(CP.PQ_INPUTS, P, 0.0)
+                self._flashes += 1
+                self._tsat[key] = state.T()
+            except ValueError:
+                self._tsat[key] = math.nan
+        value = self._tsat[key]
+        return None if math.isnan(value) else value
+
+    # -- states --------------------------------------------------------------------------------
+    def state(self, fluid: str, pair: str, a: float, b: float, table_basis: bool = True) -> State:
+        """Evaluate a state from an input pair.
+
+        Parameters
+        ----------
+        fluid : CoolProp fluid name
+        pair : ``"TP"`` (T [K], P [Pa]), ``"PQ"`` (P [Pa], quality [-]), ``"TQ"`` (T [K],
+            quality [-]), ``"Ph"`` (P [Pa], h [J/kg]) or ``"Ps"`` (P [Pa], s [J/(kg K)])
+        a, b : the two values, in the order of ``pair``
+        table_basis : for ``"Ph"`` and ``"Ps"``, whether h or s is on the fluid's table reference
+            (as written in a balance file) rather than on the basis of the returned states
+
+        Raises
+        ------
+        StateError : unknown fluid, out-of-range or non-finite input or result, ambiguous phase
+        """
+        key = (fluid, pair, a, b, table_basis)
+        cached = self._cache.get(key)
+        if cached is not None:
+            return cached
+        components = self._mixture_names.get(fluid)
+        if components is not None:
+            result = self._mixture_from_pair(components, pair, a, b)
+        else:
+            result = self._evaluate(fluid, pair, a, b, table_basis)
+        self._cache[key] = result
+        return result
+
+    def _evaluate(self, fluid: str, pair: str, a: float, b: float, table_basis: bool) -> State:
+        info = self.fluid(fluid)
+        if pair not in _PAIRS:
+            raise StateError(f"unsupported input pair '{pair}'")  # pragma: no cover
+        for value in (a, b):
+            if not math.isfinite(value):
+                raise StateError(f"a state input is not a finite number ({value})")
+        if pair in ("PQ", "TQ") and not 0.0 <= b <= 1.0:
+            raise StateError(f"quality {b:g} is outside 0 to 1")
+        T_in = a if pair in ("TP", "TQ") else None
+        P_in = a if pair in ("PQ", "Ph", "Ps") else (b if pair == "TP" else None)
+        if T_in is not None:
+            self._check_T(info, T_in)
+        if P_in is not None:
+            self._check_P(info, P_in)
+        if pair in ("Ph", "Ps") and not table_basis:
+            b = b - (info.h_shift if pair == "Ph" else info.s_shift)
+        state = self._states[info.name]
+        imposed = None
+        if pair == "TP":
+            imposed = self._phase_for_TP(info, a, b)
+        elif pair == "PQ" and a >= info.P_crit:
+            raise StateError(
+                f"a quality is given at {a / 1e5:.6g} bar, above the critical pressure "
+                f"({info.P_crit / 1e5:.6g} bar) of {info.name}, where there is no two-phase state"
+            )
+        elif pair == "TQ" and a >= info.T_crit:
+            raise StateError(
+                f"a quality is given at {a:.6g} K, above the critical temperature "
+                f"({info.T_crit:.6g} K) of {info.name}, where there is no two-phase state"
+            )
+        try:
+            if imposed is not None:
+                state.specify_phase(imposed)
+            if pair == "TP":
+                state.update(CP.PT_INPUTS, b, a)
+            elif pair == "TQ":
+                state.update(CP.QT_INPUTS, b, a)
+            elif pair == "Ph":
+                state.update(CP.HmassP_INPUTS, b, a)
+            else:
+                state.update(_PAIRS[pair], a, b)
+            self._flashes += 1
+            T, P = state.T(), state.p()
+            rho, h, s, u = state.rhomass(), state.hmass(), state.smass(), state.umass()
+            phase_index = state.phase()
+            Q = state.Q()
+        except ValueError as exc:
+            raise StateError(
+                f"the equation of state of {info.name} cannot evaluate this state "
+                f"({_inputs_text(pair, a, b)}): {_short(exc)}"
+            ) from None
+        finally:
+            if imposed is not None:
+                state.unspecify_phase()
+        isfinite = math.isfinite
+        if not (isfinite(T) and isfinite(P) and isfinite(rho) and isfinite(h) and isfinite(s)
+                and isfinite(u)):
+            raise StateError(f"the equation of state of {info.name} returned a non-finite value")
+        self._check_T(info, T)
+        self._check_P(info, P)
+        phase = _PHASE_NAMES.get(phase_index, "unknown")
+        quality = Q if phase == "two-phase" and 0.0 <= Q <= 1.0 else None
+        if pair in ("PQ", "TQ"):
+            phase, quality = "two-phase", b
+        h += info.h_shift
+        u += info.h_shift
+        s += info.s_shift
+        h0, s0 = self._dead_state(info)
+        return State(
+            fluid=info.name, T=T, P=P, rho=rho, h=h, s=s, u=u, phase=phase, quality=quality,
+            g=h - T * s, a=u - T * s, psi=(h - h0) - self.dead_T * (s - s0),
+            molar_mass=info.molar_mass, basis=info.basis,
+        )
+
+    def _phase_for_TP(self, info: _Fluid, T: float, P: float) -> int | None:
+        """Decide the phase of a (T, P) input from T_sat(P); refuse states in the band."""
+        if T >= info.T_crit or P >= info.P_crit:
+            return None
+        T_sat = self.saturation_temperature(info.name, P)
+        if T_sat is None:
+            return None
+        if abs(T - T_sat) <= self.saturation_band:
+            raise StateError(
+                f"(T, P) = ({T - 273.15:.3f} °C, {P / 1e5:.6g} bar) lies within "
+                f"{self.saturation_band:g} K of the saturation temperature "
+                f"{T_sat - 273.15:.3f} °C of {info.name} at this pressure, so its phase is "
+                "ambiguous; give a quality (0 = saturated liquid, 1 = saturated vapour) with "
+                "T or P instead"
+            )
+        return CP.iphase_liquid if T < T_sat else CP.iphase_gas
+
+    def _check_T(self, info: _Fluid, T: float) -> None:
+        if not T > 0.0:
+            raise StateError(f"temperature {T:.6g} K is not a positive absolute temperature")
+        if T < info.T_min or T > info.T_max:
+            raise StateError(
+                f"temperature {T - 273.15:.6g} °C is outside the range of the equation of state "
+                f"of {info.name} ({info.T_min - 273.15:.6g} to {info.T_max - 273.15:.6g} °C)"
+            )
+
+    def _check_P(self, info: _Fluid, P: float) -> None:
+        if not P > 0.0:
+            raise StateError(f"pressure {P:.6g} Pa is not a positive absolute pressure")
+        if P > info.P_max:
+            raise StateError(
+                f"pressure {P / 1e5:.6g} bar is above the range of the equation of state of "
+                f"{info.name} (up to {info.P_max / 1e5:.6g} bar)"
+            )
+
+    def _dead_state(self, info: _Fluid) -> tuple[float, float]:
+        """h0 [J/kg] and s0 [J/(kg K)] of the fluid at the dead state, on the returned basis."""
+        cached = self._dead.get(info.name)
+        if cached is not None:
+            return cached
+        state = self._states[info.name]
+        T0, P0 = self.dead_T, self.dead_P
+        try:
+            imposed = self._phase_for_TP(info, T0, P0)
+        except StateError:
+            imposed = None  # the dead state on the saturation line: either phase gives the same g
+        try:
+            if imposed is not None:
+                state.specify_phase(imposed)
+            state.update(CP.PT_INPUTS, P0, T0)
+            self._flashes += 1
+            value = (state.hmass() + info.h_shift, state.smass() + info.s_shift)
+        except ValueError:
+            value = (math.nan, math.nan)
+        finally:
+            if imposed is not None:
+                state.unspecify_phase()
+        self._dead[info.name] = value
+        return value
+
+    def dead_state(self, fluid: str) -> tuple[float, float]:
+        """(h0 [J/kg], s0 [J/(kg K)]) of ``fluid`` at the engine's dead state."""
+        components = self._mixture_names.get(fluid)
+        if components is not None:
+            dead = self._mixtures.state(components, self.dead_T, self.dead_P, check_ideal=False)
+            return dead.h, dead.s
+        return self._dead_state(self.fluid(fluid))
+
+    # -- gas mixtures and the species of reactions --------------------------------------------------
+    def mixture_components(self, fractions: Mapping[str, float], basis: str = "mole"
+                           ) -> tuple[mixtures.Component, ...]:
+        """The species of a composition (formulas or CoolProp names; ``basis`` ``"mole"`` or
+        ``"mass"``) as mole fractions [-] by formula; :class:`StateError` for a bad composition."""
+        return self._mixtures.components(fractions, basis)
+
+    def mixture_state(self, fractions: Mapping[str, float], T: float, P: float,
+                      basis: str = "mole") -> State:
+        """An ideal-gas mixture at T [K] and P [Pa] on the formation basis (:mod:`audit.properties.mixtures`).
+
+        ``fluid`` is a readable name such as ``mixture(N2 0.7809, O2 0.2094, ...)``, ``phase`` is
+        ``"gas"``, ψ is relative to the same mixture (as an ideal gas) at the dead state, and
+        ``condensing`` lists the species whose partial pressure exceeds their saturation pressure.
+
+        Raises
+        ------
+        StateError : a bad composition, T outside the species' verified ranges, or a pressure at
+            which the mixture is not an ideal gas
+        """
+        components = self.mixture_components(fractions, basis)
+        key = ("mixture", components, T, P)
+        cached = self._cache.get(key)
+        if cached is not None:
+            return cached
+        values = self._mixtures.state(components, T, P)
+        dead = self._mixtures.state(components, self.dead_T, self.dead_P, check_ideal=False)
+        T0 = self.dead_T
+        result = State(
+            fluid=mixtures.mixture_name(components), T=T, P=P, rho=values.rho, h=values.h,
+            s=values.s, u=values.u, phase="gas", quality=None, g=values.h - T * values.s,
+            a=values.u - T * values.s, psi=(values.h - dead.h) - T0 * (values.s - dead.s),
+            molar_mass=values.molar_mass, basis=BASIS_MIXTURE,
+            composition=tuple((c.formula, c.x) for c in components),
+            condensing=values.condensing,
+        )
+        self._cache[key] = result
+        self._mixture_names[result.fluid] = components
+        return result
+
+    def _mixture_from_pair(self, components: tuple[mixtures.Component, ...], pair: str, a: float,
+                           b: float) -> State:
+        """A mixture (already evaluated once by name) from (T, P), (P, h) or (P, s); h [J/kg] and
+        s [J/(kg K)] on the formation basis, T found by regula falsi (Illinois) on the verified
+        range, where h and s rise monotonically with T."""
+        fractions = {c.formula: c.x for c in components}
+        if pair == "TP":
+            return self.mixture_state(fractions, a, b)
+        if pair not in ("Ph", "Ps"):
+            raise StateError("a gas mixture has no quality: give it by (T, P), (P, h) or (P, s)")
+        P, target = a, b
+
+        def residual(T: float) -> float:
+            values = self._mixtures.state(components, T, P, check_ideal=False)
+            return (values.h if pair == "Ph" else values.s) - target
+
+        low = max(mixtures.VERIFIED_RANGE[c.fluid][0] for c in components)
+        high = min(mixtures.VERIFIED_RANGE[c.fluid][1] for c in components)
+        f_low, f_high = residual(low), residual(high)
+        if f_low > 0.0 or f_high < 0.0:
+            name = "h" if pair == "Ph" else "s"
+            raise StateError(
+                f"no state of this gas mixture at {P / 1e5:.6g} bar has {name} = {target:.6g} "
+                f"within its verified temperature range ({low - 273.15:.6g} to "
+                f"{high - 273.15:.6g} °C)")
+        side = 0
+        T = low
+        for _ in range(100):
+            T = (low * f_high - high * f_low) / (f_high - f_low)
+            f = residual(T)
+            if f == 0.0 or high - low < 1e-9 * T:
+                break
+            if f > 0.0:
+                high, f_high = T, f
+                if side == -1:
+                    f_low /= 2.0
+                side = -1
+            else:
+                low, f_low = T, f
+                if side == 1:
+                    f_high /= 2.0
+                side = 1
+            if abs(f) < 1e-10 * max(1.0, abs(target)):
+                break
+        return self.mixture_state(fractions, T, P)
+
+    def species_molar(self, name: str, phase: str, T: float, P: float) -> tuple[float, float]:
+        """A pure species of a reaction at T [K] and P [Pa] on the formation basis:
+        (h [J/mol], s [J/(mol K)]).
+
+        ``phase`` ``"g"``: the ideal gas (:mod:`audit.properties.mixtures`); ``"l"``: the real liquid from the
+        species' equation of state (IAPWS-95 for water), which must be liquid at (T, P).
+        """
+        data = lookup(name)
+        if data is None:
+            raise StateError(f"no formation data for '{name}'")
+        if phase == "g":
+            return self._mixtures.species_molar(data.fluid, T, P)
+        state = self.state(data.fluid, "TP", T, P)
+        if state.phase != "liquid":
+            raise StateError(
+                f"{data.formula}(l) is not liquid at {T - 273.15:.6g} °C and {P / 1e5:.6g} bar "
+                f"(it is {state.phase} there); write {data.formula}(g) or give other conditions")
+        return state.h * state.molar_mass, state.s * state.molar_mass
+
+    def species_molar_mass(self, name: str) -> float:
+        """Molar mass [kg/mol] of a species with formation data (formula or CoolProp name)."""
+        data = lookup(name)
+        if data is None:
+            raise StateError(f"no formation data for '{name}'")
+        return self.fluid(data.fluid).molar_mass
+
+    def saturation_pressure(self, fluid: str, T: float) -> float | None:
+        """p_sat(T) [Pa] of a pure fluid below its critical temperature, else None."""
+        return self._mixtures.saturation_pressure(self.canonical_name(fluid), T)
+
+
+def _ideal_gas_standard(state: CP.AbstractState) -> tuple[float, float]:
+    """CoolProp's ideal-gas h [J/mol] and s [J/(mol K)] at 298.15 K and 1 bar.
+
+    ``smolar_idealgas`` is evaluated at the state's own density, so it is read at a low density in
+    the vapour and moved to the standard pressure with the exact ideal-gas term −R ln(ρ°/ρ).
+    """
+    rho_low = 1.0e-3  # mol/m**3, far below any saturation density at 298.15 K
+    state.update(CP.DmolarT_INPUTS, rho_low, T_STANDARD)
+    h_ig = state.hmolar_idealgas()
+    rho_standard = P_STANDARD / (GAS_CONSTANT * T_STANDARD)
+    s_ig = state.smolar_idealgas() - GAS_CONSTANT * math.log(rho_standard / rho_low)
+    return h_ig, s_ig
+
+
+def _inputs_text(pair: str, a: float, b: float) -> str:
+    """A state's two inputs in engineering units, for messages: 'P = 1 bar, h = 1e+05 kJ/kg'."""
+    shown = {"T": lambda v: f"T = {v - 273.15:.6g} °C", "P": lambda v: f"P = {v / 1e5:.6g} bar",
+             "Q": lambda v: f"quality = {v:.6g}", "h": lambda v: f"h = {v / 1e3:.6g} kJ/kg",
+             "s": lambda v: f"s = {v / 1e3:.6g} kJ/(kg K)"}
+    first, second = pair[:1], pair[1:]
+    if first not in shown or second not in shown:
+        return f"{pair}: {a:.6g}, {b:.6g}"
+    return f"{shown[first](a)}, {shown[second](b)}"
+
+def _short(exc: Exception) -> str:
+    text = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
+    return text[:200]

@@ -1,0 +1,48 @@
+"""Reading a balance: the file's bytes → YAML with positions → tables merged → validated model.
+
+The one place where the file edge (:mod:`audit.input`) meets the model with every step kind
+(:data:`audit.steps.BALANCE_MODEL`). The solver never reads files; it receives what this returns.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from audit.input.document import Document, load_document, parse_document
+from audit.input.tables import resolve as resolve_tables
+from audit.model import balance as _balance
+from audit.model.balance import Balance
+from audit.steps import BALANCE_MODEL
+
+
+def validate_document(document: Document) -> Balance:
+    """Validate a read document into the balance model with every known step kind.
+
+    Raises :class:`audit.errors.InputErrors` naming the file, line and field of every problem."""
+    return _balance.validate_document(document, BALANCE_MODEL)
+
+
+def load_balance(path: str | Path) -> tuple[Balance, Document]:
+    """Read, parse and validate a balance file (its tables merged in).
+
+    Raises :class:`audit.errors.InputError` (or :class:`audit.errors.InputErrors`) whose messages
+    name the file, line, column and field path of every problem found.
+    """
+    document, _ = resolve_tables(load_document(path))
+    return validate_document(document), document
+
+
+def parse_balance(text: str, file: str = "<text>") -> tuple[Balance, Document]:
+    """As :func:`load_balance`, from text (no tables are read)."""
+    document = parse_document(text, file)
+    return validate_document(document), document
+
+
+def json_schema() -> dict:
+    """The JSON Schema of a balance file, as committed in ``schemas/``."""
+    return _balance.json_schema(BALANCE_MODEL)
+
+
+def schema_text() -> str:
+    """:func:`json_schema` as the committed text."""
+    return _balance.schema_text(BALANCE_MODEL)

@@ -1,0 +1,1 @@
+"""One module per kind of equipment, discovered by :mod:`audit.steps` (see DEVELOPERS.md)."""

@@ -1,0 +1,50 @@
+"""Compressor / fan / blower: one inlet, one outlet, shaft power absorbed.
+
+Claims: ``shaft_power`` is the power the compressor ABSORBS (omit it to infer it); ``heat_loss``
+(default 0: adiabatic; an intercooled machine writes its cooling here) at ``heat_loss_temperature``
+if declared, else T0; ``isentropic_efficiency`` optional, checked against the streams.
+
+Extra checks: η_s = (h_out,s − h_in)/(h_out − h_in) ≤ 1; outlet pressure above inlet pressure;
+liquid or two-phase fluid at the suction (error: compressors are not built to take liquid).
+"""
+
+from __future__ import annotations
+
+from typing import Literal
+
+from pydantic import Field
+
+from audit.findings import ERROR, Finding
+from audit.model.quantities import Power, Temperature
+from audit.results import StepResult
+from audit.steps.base import StepBase, StepContext, register
+from audit.steps.machines import evaluate_work_absorber
+
+
+class Compressor(StepBase):
+    kind: Literal["compressor"]
+    inlet: str
+    outlet: str
+    shaft_power: Power | None = Field(None, ge=0, description="shaft power absorbed by the compressor")
+    heat_loss: Power | None = Field(None, ge=0, description="heat removed from the gas (default 0)")
+    heat_loss_temperature: Temperature | None = None
+    isentropic_efficiency: float | None = Field(None, gt=0)
+
+    def stream_ids(self) -> tuple[list[str], list[str]]:
+        return [self.inlet], [self.outlet]
+
+
+def evaluate(step: Compressor, ctx: StepContext) -> StepResult:
+    result = evaluate_work_absorber(step, "compressor", ctx, "compressor")
+    inlet = ctx.stream(step.inlet)
+    if inlet.phase in ("liquid", "two-phase", "supercritical liquid"):
+        detail = f"quality {inlet.quality:.3f}" if inlet.quality is not None else inlet.phase
+        ctx.add(Finding(
+            ERROR, "liquid-at-suction", step.id,
+            f"the suction stream {inlet.id} is {detail}; a compressor must take dry vapour "
+            "or gas", stream=inlet.id, claimed=inlet.quality, bound=1.0, quantity="fraction",
+        ))
+    return result
+
+
+register("compressor", Compressor, evaluate, "compressor, fan or blower: shaft power absorbed")

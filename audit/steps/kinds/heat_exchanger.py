@@ -1,0 +1,235 @@
+"""Two-stream heat exchanger: a hot side that releases heat and a cold side that receives it.
+
+Claims: ``duty`` (optional) is the heat transferred from the hot side to the cold side;
+``heat_loss`` (default 0) is heat lost to ambient; ``arrangement`` is ``counter-current``
+(default) or ``co-current``.
+
+Checks, beyond the laws:
+
+* each side keeps its fluid (``side-changes-fluid``) and its mass (``mass-imbalance``);
+* the heat the hot side releases equals the heat the cold side receives plus the loss (the first
+  law of the exchanger, ``energy-imbalance``); a claimed duty matches the sides (``duty-mismatch``);
+* terminal temperatures do not cross for the arrangement (``temperature-cross``);
+* the T–Q profiles of the two sides, compared along the exchanger, do not cross inside it
+  (``internal-pinch``: phase change makes the terminals lie) and the smallest approach is not below
+  the stated ``min_approach`` (``approach-below-minimum``, warning).
+
+Method: each side is divided into equal steps of its own enthalpy change, with the pressure varying
+linearly between inlet and outlet, plus the points where it crosses its saturated-liquid and
+saturated-vapour enthalpies; T at each point from a (P, h) flash (CoolProp HEOS). The minimum
+approach is the smallest hot-minus-cold difference at equal fractions of duty [1, ch. 11].
+
+References
+----------
+.. [1] F. P. Incropera, D. P. DeWitt, T. L. Bergman, A. S. Lavine, *Fundamentals of Heat and Mass
+   Transfer*, 6th ed., Wiley, 2007, ch. 11.
+"""
+
+from __future__ import annotations
+
+from typing import Literal
+
+from pydantic import BaseModel, ConfigDict, Field
+
+from audit.errors import StateError
+from audit.findings import ERROR, WARNING, Finding, relative
+from audit.model.quantities import Power, Temperature
+from audit.results import StepResult, StreamResult
+from audit.steps.base import StepBase, StepContext, finish_flow_step, register
+from audit.steps.laws import format_power
+from audit.steps.machines import heat_loss_flow
+
+PROFILE_POINTS = 20
+
+
+class Side(BaseModel):
+    model_config = ConfigDict(extra="forbid")
+
+    inlet: str
+    outlet: str
+
+
+class HeatExchanger(StepBase):
+    kind: Literal["heat_exchanger"]
+    hot: Side
+    cold: Side
+    arrangement: Literal["counter-current", "co-current"] = "counter-current"
+    duty: Power | None = Field(None, ge=0, description="heat transferred from hot side to cold side")
+    heat_loss: Power | None = Field(None, ge=0, description="heat lost to ambient (default 0)")
+    heat_loss_temperature: Temperature | None = None
+
+    def stream_ids(self) -> tuple[list[str], list[str]]:
+        return [self.hot.inlet, self.cold.inlet], [self.hot.outlet, self.cold.outlet]
+
+
+def evaluate(step: HeatExchanger, ctx: StepContext) -> StepResult:
+    hi, ho = ctx.stream(step.hot.inlet), ctx.stream(step.hot.outlet)
+    ci, co = ctx.stream(step.cold.inlet), ctx.stream(step.cold.outlet)
+    streams = [hi, ho, ci, co]
+    heat = heat_loss_flow(step.heat_loss, step.heat_loss_temperature, ctx.T0,
+                          min(s.T for s in streams))
+    claimed = ["heat_loss" if step.heat_loss is not None else "no heat loss", "no work"]
+    if step.duty is not None:
+        claimed.append("duty")
+    result, balance = finish_flow_step(step, "heat_exchanger", ctx, [hi, ci], [ho, co], heat, 0.0,
+                                       claimed, [], check_mass=False)
+    tol = ctx.tolerances
+    released = hi.mass_flow * hi.h - ho.mass_flow * ho.h
+    received = co.mass_flow * co.h - ci.mass_flow * ci.h
+    result.extra.update({"hot_duty": released, "cold_duty": received})
+    psi_drop = hi.mass_flow * hi.psi - ho.mass_flow * ho.psi
+    psi_gain = co.mass_flow * co.psi - ci.mass_flow * ci.psi
+    result.second_law_efficiency = psi_gain / psi_drop if psi_drop > 0 and psi_gain > 0 else None
+
+    for name, inlet, outlet in (("hot", hi, ho), ("cold", ci, co)):
+        if inlet.fluid != outlet.fluid:
+            ctx.add(Finding(
+                ERROR, "side-changes-fluid", step.id,
+                f"the {name} side enters as {inlet.fluid} ({inlet.id}) and leaves as "
+                f"{outlet.fluid} ({outlet.id}); each side keeps its own fluid",
+            ))
+        residual = inlet.mass_flow - outlet.mass_flow
+        mass_tol = max(tol.mass_relative * inlet.mass_flow, tol.mass_absolute)
+        if abs(residual) > mass_tol:
+            ctx.add(Finding(
+                ERROR, "mass-imbalance", step.id,
+                f"the {name} side enters with {inlet.mass_flow:.4g} kg/s ({inlet.id}) and leaves "
+                f"with {outlet.mass_flow:.4g} kg/s ({outlet.id})",
+                claimed=residual, bound=0.0, margin=abs(residual),
+                margin_relative=relative(abs(residual), inlet.mass_flow), quantity="mass_flow",
+                tolerance=mass_tol,
+            ))
+    if step.duty is not None:
+        tol_E = result.energy_tolerance
+        # the duty is what passes from the hot side to the cold side: the hot side releases it
+        # plus the claimed heat loss
+        loss = step.heat_loss or 0.0
+        worst = max((released - loss, received), key=lambda d: abs(d - step.duty))
+        if abs(worst - step.duty) > tol_E:
+            lost = f" ({format_power(loss)} of it lost to ambient)" if loss else ""
+            ctx.add(Finding(
+                ERROR, "duty-mismatch", step.id,
+                f"the claimed duty {format_power(step.duty)} differs from the streams: the hot "
+                f"side releases {format_power(released)}{lost}, the cold side receives "
+                f"{format_power(received)}",
+                claimed=step.duty, bound=worst, margin=abs(worst - step.duty),
+                margin_relative=relative(abs(worst - step.duty), worst), quantity="power",
+                tolerance=tol_E,
+            ))
+    if released <= 0 or received <= 0:
+        ctx.add(Finding(
+            ERROR, "temperature-cross", step.id,
+            f"the hot side {'gains' if released <= 0 else 'releases'} heat "
+            f"({format_power(released)}) and the cold side "
+            f"{'loses' if received <= 0 else 'receives'} heat ({format_power(received)}): "
+            "hot and cold sides swapped?",
+            quantity="power", claimed=released, bound=0.0,
+        ))
+        return result
+    _check_temperatures(step, ctx, result, hi, ho, ci, co)
+    return result
+
+
+def _check_temperatures(step: HeatExchanger, ctx: StepContext, result: StepResult,
+                        hi: StreamResult, ho: StreamResult, ci: StreamResult,
+                        co: StreamResult) -> None:
+    counter = step.arrangement == "counter-current"
+    # Terminal differences: (end name, hot T, cold T)
+    if counter:
+        ends = [("hot end", hi, co), ("cold end", ho, ci)]
+    else:
+        ends = [("inlet end", hi, ci), ("outlet end", ho, co)]
+    for end, hot, cold in ends:
+        gap = hot.T - cold.T
+        if gap < 0:
+            ctx.add(Finding(
+                ERROR, "temperature-cross", step.id,
+                f"at the {end} of this {step.arrangement} exchanger the hot stream {hot.id} "
+                f"({hot.T - 273.15:.1f} °C) is {-gap:.1f} K colder than the cold stream "
+                f"{cold.id} ({cold.T - 273.15:.1f} °C): heat cannot flow that way",
+                claimed=cold.T, bound=hot.T, margin=-gap, quantity="temperature",
+            ))
+            return
+    try:
+        fractions, approach = approach_profile(ctx, hi, ho, ci, co, counter)
+    except StateError as exc:
+        ctx.add(Finding(
+            WARNING, "step-not-evaluated", step.id,
+            f"the temperature profiles could not be evaluated: {exc.problem.message}",
+        ))
+        return
+    i_min = min(range(len(approach)), key=approach.__getitem__)
+    minimum = approach[i_min]
+    result.extra["min_approach"] = minimum
+    result.extra["min_approach_at_duty_fraction"] = fractions[i_min]
+    terminal = min(hot.T - cold.T for _, hot, cold in ends)
+    required = ctx.tolerances.min_approach
+    if minimum < 0:
+        ctx.add(Finding(
+            ERROR, "internal-pinch", step.id,
+            f"the terminal temperatures leave {terminal:.1f} K, but inside the exchanger the "
+            f"profiles cross: at {fractions[i_min]:.0%} of the duty (from the cold inlet) the hot "
+            f"side is {-minimum:.1f} K colder than the cold side",
+            claimed=minimum, bound=max(required, 0.0), margin=max(required, 0.0) - minimum,
+            quantity="temperature_difference", tolerance=required,
+        ))
+    elif minimum < required:
+        ctx.add(Finding(
+            WARNING, "approach-below-minimum", step.id,
+            f"the smallest approach is {minimum:.2f} K (at {fractions[i_min]:.0%} of the duty "
+            f"from the cold inlet), below the stated minimum of {required:g} K",
+            claimed=minimum, bound=required, margin=required - minimum,
+            quantity="temperature_difference", tolerance=required,
+        ))
+
+
+def approach_profile(ctx: StepContext, hi: StreamResult, ho: StreamResult, ci: StreamResult,
+                     co: StreamResult, counter: bool) -> tuple[list[float], list[float]]:
+    """Hot-minus-cold temperature difference [K] at fractions of duty from the cold inlet [-]."""
+    fractions = {i / PROFILE_POINTS for i in range(PROFILE_POINTS + 1)}
+    for side_in, side_out in ((ci, co), (hi, ho)):
+        for f in _saturation_fractions(ctx, side_in, side_out):
+            # fraction along this side from its inlet; the profile coordinate runs from the
+            # cold inlet, which is the hot outlet end in counter-current flow
+            fractions.add(1.0 - f if (side_in is hi and counter) else f)
+    ordered = sorted(x for x in fractions if 0.0 <= x <= 1.0)
+    approach = []
+    for x in ordered:
+        cold_T = _side_T(ctx, ci, co, x)
+        hot_f = 1.0 - x if counter else x  # fraction along the hot side from its inlet
+        hot_T = _side_T(ctx, hi, ho, hot_f)
+        approach.append(hot_T - cold_T)
+    return ordered, approach
+
+
+def _side_T(ctx: StepContext, inlet: StreamResult, outlet: StreamResult, f: float) -> float:
+    """T [K] at fraction f of a side's enthalpy change from its inlet."""
+    if f <= 0.0:
+        return inlet.T
+    if f >= 1.0:
+        return outlet.T
+    h = inlet.h + f * (outlet.h - inlet.h)
+    P = inlet.P + f * (outlet.P - inlet.P)
+    return ctx.engine.state(inlet.fluid, "Ph", P, h, table_basis=False).T
+
+
+def _saturation_fractions(ctx: StepContext, inlet: StreamResult, outlet: StreamResult
+                          ) -> list[float]:
+    """Fractions of a side's enthalpy change at which it meets its bubble and dew points."""
+    if inlet.fluid != outlet.fluid or outlet.h == inlet.h:
+        return []
+    P = 0.5 * (inlet.P + outlet.P)
+    found = []
+    for quality in (0.0, 1.0):
+        try:
+            h_sat = ctx.engine.state(inlet.fluid, "PQ", P, quality).h
+        except StateError:
+            return []
+        f = (h_sat - inlet.h) / (outlet.h - inlet.h)
+        if 0.0 < f < 1.0:
+            found.extend([f, max(0.0, f - 1e-6), min(1.0, f + 1e-6)])
+    return found
+
+
+register("heat_exchanger", HeatExchanger, evaluate,
+         "two-stream heat exchanger: hot side releases, cold side receives")

@@ -1,0 +1,52 @@
+"""Mixer: several inlets, one outlet, adiabatic unless a heat loss is claimed (deaerators, headers,
+desuperheaters by direct contact).
+
+Claims: ``heat_loss`` (default 0) at ``heat_loss_temperature`` or, conservatively, T0.
+
+Extra check: the outlet pressure should not exceed the lowest inlet pressure (warning: a mixing point
+without a pump cannot raise pressure).
+"""
+
+from __future__ import annotations
+
+from typing import Literal
+
+from pydantic import Field
+
+from audit.findings import WARNING, Finding
+from audit.model.quantities import Power, Temperature
+from audit.results import StepResult
+from audit.steps.base import StepBase, StepContext, finish_flow_step, register
+from audit.steps.machines import heat_loss_flow
+
+
+class Mixer(StepBase):
+    kind: Literal["mixer"]
+    inlets: list[str] = Field(min_length=2)
+    outlet: str
+    heat_loss: Power | None = Field(None, ge=0)
+    heat_loss_temperature: Temperature | None = None
+
+    def stream_ids(self) -> tuple[list[str], list[str]]:
+        return list(self.inlets), [self.outlet]
+
+
+def evaluate(step: Mixer, ctx: StepContext) -> StepResult:
+    inlets = [ctx.stream(i) for i in step.inlets]
+    outlet = ctx.stream(step.outlet)
+    heat = heat_loss_flow(step.heat_loss, step.heat_loss_temperature, ctx.T0,
+                          min(s.T for s in [*inlets, outlet]))
+    claimed = ["heat_loss" if step.heat_loss is not None else "adiabatic", "no work"]
+    result, _ = finish_flow_step(step, "mixer", ctx, inlets, [outlet], heat, 0.0, claimed, [])
+    lowest = min(inlets, key=lambda s: s.P)
+    if outlet.P > lowest.P * (1.0 + ctx.tolerances.isobaric_relative):
+        ctx.add(Finding(
+            WARNING, "mixer-outlet-pressure", step.id,
+            f"the outlet pressure ({outlet.P / 1e5:.4g} bar) is above the lowest inlet pressure "
+            f"({lowest.id}, {lowest.P / 1e5:.4g} bar); mixing cannot raise pressure",
+            claimed=outlet.P, bound=lowest.P, margin=outlet.P - lowest.P, quantity="pressure",
+        ))
+    return result
+
+
+register("mixer", Mixer, evaluate, "mixer, header or deaerator: adiabatic mixing")

@@ -1,0 +1,163 @@
+"""Closed vessel (batch step): a fixed mass of one fluid goes from an initial to a final state.
+
+Claims are totals [J], not rates: ``heat`` (a list of ``added``/``removed`` amounts, each with the
+temperature of its source or sink if known) and ``work_delivered`` (work done BY the contents, e.g.
+pushing a piston) or ``work_absorbed`` (work done ON the contents, e.g. a stirrer or a compressor
+piston). Omit one of heat or work to have it inferred.
+
+Balances (design note 2.6): Q − W = m (u2 − u1); S_gen = m (s2 − s1) − Σ Q_j/T_j;
+W_rev = −(ΔU − T0 ΔS) + Σ Q_j (1 − T0/T_j), total work.
+
+Bound basis: isothermal (|T2 − T1| within ``isothermal_band`` and every declared heat temperature
+at that temperature) gives W ≤ −ΔA; isothermal and isobaric gives W_other ≤ −ΔG for the work
+other than expansion work; otherwise the closed-system exergy drop.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Literal
+
+from pydantic import BaseModel, ConfigDict, model_validator
+
+from audit.errors import StateError
+from audit.model.quantities import Energy, Mass, Temperature
+from audit.model.streams import PropertyPair
+from audit.results import HeatFlow, StepResult, StreamResult
+from audit.steps.base import (
+    CONSERVATIVE_NOTE,
+    StepBase,
+    StepContext,
+    boundary_temperature,
+    register,
+)
+from audit.steps.laws import closed_balance, energy_tolerance, law_findings
+
+
+class BatchHeat(BaseModel):
+    """A heat amount [J] written without signs."""
+
+    model_config = ConfigDict(extra="forbid")
+
+    added: Energy | None = None
+    removed: Energy | None = None
+    temperature: Temperature | None = None
+
+    @model_validator(mode="after")
+    def _one_direction(self) -> BatchHeat:
+        if (self.added is None) == (self.removed is None):
+            raise ValueError("a heat amount needs exactly one of 'added' or 'removed'")
+        for value in (self.added, self.removed):
+            if value is not None and value < 0:
+                raise ValueError("write heat as a positive amount under 'added' or 'removed'")
+        return self
+
+
+class Vessel(StepBase):
+    kind: Literal["vessel"]
+    fluid: str
+    mass: Mass
+    initial: PropertyPair
+    final: PropertyPair
+    heat: list[BatchHeat] | None = None
+    work_delivered: Energy | None = None
+    work_absorbed: Energy | None = None
+
+    @model_validator(mode="after")
+    def _one_work(self) -> Vessel:
+        if self.work_delivered is not None and self.work_absorbed is not None:
+            raise ValueError("give 'work_delivered' or 'work_absorbed', not both")
+        if self.mass <= 0:
+            raise ValueError("the vessel's mass must be positive")
+        return self
+
+    def stream_ids(self) -> tuple[list[str], list[str]]:
+        return [], []
+
+
+def _contents(step: Vessel, ctx: StepContext, which: str, spec: PropertyPair) -> StreamResult:
+    pair, a, b = spec.inputs()
+    try:
+        s = ctx.engine.state(step.fluid, pair, a, b)
+    except StateError as exc:
+        raise StateError(f"the {which} state: {exc.problem.message}") from None
+    return StreamResult(
+        id=f"{step.id}.{which}", fluid=s.fluid, T=s.T, P=s.P, rho=s.rho, h=s.h, s=s.s, u=s.u,
+        g=s.g, a=s.a, psi=s.psi, phase=s.phase, quality=s.quality, basis=s.basis,
+        mass_flow=step.mass, molar_flow=step.mass / s.molar_mass, flow_as_written="",
+    )
+
+
+def evaluate(step: Vessel, ctx: StepContext) -> StepResult:
+    initial = _contents(step, ctx, "initial", step.initial)
+    final = _contents(step, ctx, "final", step.final)
+    m = step.mass
+    dU = m * (final.u - initial.u)
+    coldest = min(initial.T, final.T)
+    claimed, inferred = [], []
+    if step.work_delivered is not None:
+        W, work_claimed = step.work_delivered, True
+    elif step.work_absorbed is not None:
+        W, work_claimed = -step.work_absorbed, True
+    else:
+        W, work_claimed = 0.0, False
+    heat: list[HeatFlow] = []
+    if step.heat is not None:
+        for claim in step.heat:
+            Q = claim.added if claim.added is not None else -float(claim.removed)  # type: ignore
+            heat.append(HeatFlow(
+                Q=Q, temperature=boundary_temperature(Q, claim.temperature, ctx.T0, coldest),
+                claimed=True,
+                note="" if claim.temperature is not None else "conservative boundary temperature",
+            ))
+        claimed.append("heat")
+        if work_claimed:
+            claimed.append("work")
+        else:
+            W = sum(q.Q for q in heat) - dU
+            inferred.append("work")
+    else:
+        Q = dU + W
+        heat.append(HeatFlow(Q=Q, temperature=boundary_temperature(Q, None, ctx.T0, coldest),
+                             claimed=False, note="inferred, conservative boundary temperature"))
+        inferred.append("heat")
+        claimed.append("work" if work_claimed else "no work")
+    balance = closed_balance(m, initial, final, heat, W, ctx.T0)
+    tol = ctx.tolerances
+    conservative = any("conservative" in q.note for q in heat)
+    for finding in law_findings(step.id, balance, tol, ctx.T0, batch=True, inlet_mass=m,
+                                conservative_note=CONSERVATIVE_NOTE if conservative else ""):
+        ctx.add(finding)
+    temps = [initial.T, final.T] + [
+        q.temperature for q in heat if q.claimed and math.isfinite(q.temperature)]
+    isothermal = max(temps) - min(temps) <= tol.isothermal_band
+    isobaric = abs(final.P - initial.P) <= tol.isobaric_relative * initial.P
+    if isothermal and isobaric:
+        basis, classical = "-ΔG other work (isothermal, isobaric closed)", -balance.dG
+    elif isothermal:
+        basis, classical = "-ΔA (isothermal closed)", -balance.dA
+    else:
+        basis, classical = "exergy drop (closed)", None
+    V1, V2 = m / initial.rho, m / final.rho
+    second = None
+    if W > 0 and balance.W_rev > 0:
+        second = W / balance.W_rev
+    elif W < 0 and balance.W_rev < 0:
+        second = balance.W_rev / W
+    return StepResult(
+        id=step.id, kind="vessel", batch=True, inlets=[], outlets=[], Q=balance.Q, W=W,
+        heat_flows=heat, H_in=balance.H_in, H_out=balance.H_out, KE_PE_in=0.0, KE_PE_out=0.0,
+        dH=balance.dH, dU=balance.dU, dS=balance.dS, dG=balance.dG, dA=balance.dA,
+        energy_residual=balance.energy_residual, mass_residual=balance.mass_residual,
+        S_gen=balance.S_gen, W_rev=balance.W_rev, exergy_destroyed=balance.exergy_destroyed,
+        energy_scale=balance.energy_scale,
+        energy_tolerance=energy_tolerance(balance, tol, batch=True), bound_basis=basis,
+        classical_bound=classical, second_law_efficiency=second, claimed=claimed,
+        inferred=inferred, notes=[CONSERVATIVE_NOTE] if conservative else [],
+        extra={"V_initial": V1, "V_final": V2,
+               "useful_work_bound": balance.W_rev - ctx.P0 * (V2 - V1)},
+        description=step.description, line=ctx.line,
+    )
+
+
+register("vessel", Vessel, evaluate, "closed vessel (batch): totals in J from state 1 to 2")

@@ -1,0 +1,296 @@
+"""The laws every step obeys: mass, first law, entropy generation, reversible work.
+
+Sign convention: Q is heat INTO the step, W is work DELIVERED BY the step.
+
+Steady flow, inlets i, outlets e, heat flows Q_j at boundary temperatures T_j [1, ch. 4, 6, 7]:
+
+* first law:  residual = Σ Q_j − W − (Σ ṁ_e e_e − Σ ṁ_i e_i),  e = h + V²/2 + g z
+* entropy generation:  Ṡ_gen = Σ ṁ_e s_e − Σ ṁ_i s_i − Σ Q_j / T_j  ≥ 0
+* reversible work:  Ẇ_rev = −(ΔĖ − T0 ΔṠ) + Σ Q_j (1 − T0 / T_j)
+  which equals Σ ṁ_i ψ_i − Σ ṁ_e ψ_e + Σ Q_j (1 − T0/T_j) whenever each fluid is conserved (the
+  dead-state terms of ψ cancel) and stays valid for reacting steps on the formation basis;
+* exergy destroyed (Gouy–Stodola):  Ẋ_d = T0 Ṡ_gen, and Ẇ_rev − W = Ẋ_d + residual.
+
+Closed (batch) step from state 1 to state 2 with mass m:
+
+* Q − W = m (u2 − u1);  S_gen = m (s2 − s1) − Σ Q_j / T_j;
+* W_rev = −(ΔU − T0 ΔS) + Σ Q_j (1 − T0 / T_j)  (total work; the useful work bound is this minus
+  P0 ΔV), which reduces to −ΔA for an isothermal step exchanging heat at its own temperature.
+
+References
+----------
+.. [1] M. J. Moran, H. N. Shapiro, D. D. Boettner, M. B. Bailey, *Fundamentals of Engineering
+   Thermodynamics*, 8th ed., Wiley, 2014.
+.. [2] A. Bejan, *Advanced Engineering Thermodynamics*, 4th ed., Wiley, 2016, ch. 3 (Gouy–Stodola).
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+from audit.findings import ERROR, Finding, relative
+from audit.model.tolerances import Tolerances
+from audit.results import HeatFlow, StreamResult
+
+
+@dataclass
+class Balance:
+    """The computed balances of one step (rates [W], [W/K] or totals [J], [J/K])."""
+
+    H_in: float
+    H_out: float
+    KE_PE_in: float
+    KE_PE_out: float
+    dH: float
+    dU: float
+    dS: float
+    dG: float
+    dA: float
+    Q: float
+    W: float
+    energy_residual: float
+    mass_residual: dict[str, float]
+    S_gen: float
+    W_rev: float
+    exergy_destroyed: float
+    energy_scale: float
+
+
+def heat_exergy_factor(T_boundary: float, T0: float) -> float:
+    """Carnot factor 1 − T0/T_j of heat crossing the boundary at T_j [K]; 1 for T_j = ∞."""
+    return 1.0 if math.isinf(T_boundary) else 1.0 - T0 / T_boundary
+
+
+def entropy_of_heat(heat_flows: Sequence[HeatFlow]) -> float:
+    """Σ Q_j / T_j [W/K] (0 for heat from an infinitely hot source)."""
+    return sum(0.0 if math.isinf(q.temperature) else q.Q / q.temperature for q in heat_flows)
+
+
+def flow_balance(
+    inlets: Sequence[StreamResult],
+    outlets: Sequence[StreamResult],
+    heat_flows: Sequence[HeatFlow],
+    W: float,
+    T0: float,
+) -> Balance:
+    """Steady-flow balances of a step; see the module docstring for the equations.
+
+    Parameters
+    ----------
+    inlets, outlets : evaluated streams
+    heat_flows : heat into the step [W] with boundary temperatures [K]
+    W : work delivered by the step [W]
+    T0 : dead-state temperature [K]
+    """
+    (H_in, U_in, S_in, G_in, A_in, KE_in), (H_out, U_out, S_out, G_out, A_out, KE_out) = (
+        _flow_totals(inlets), _flow_totals(outlets))
+    dH = H_out - H_in
+    dU = U_out - U_in
+    dS = S_out - S_in
+    dG = G_out - G_in
+    dA = A_out - A_in
+    Q = sum(q.Q for q in heat_flows) if heat_flows else 0  # as sum() of nothing
+    residual = Q - W - (dH + KE_out - KE_in)
+    mass: dict[str, float] = {}
+    for s in inlets:
+        mass[s.fluid] = mass.get(s.fluid, 0.0) + s.mass_flow
+    for s in outlets:
+        mass[s.fluid] = mass.get(s.fluid, 0.0) - s.mass_flow
+    if heat_flows:
+        S_gen = dS - entropy_of_heat(heat_flows)
+        W_rev = -(dH + KE_out - KE_in - T0 * dS) + sum(
+            q.Q * heat_exergy_factor(q.temperature, T0) for q in heat_flows)
+        heat_scale = sum(abs(q.Q) for q in heat_flows)
+    else:  # the same sums over no heat flow
+        S_gen = dS - 0
+        W_rev = -(dH + KE_out - KE_in - T0 * dS) + 0
+        heat_scale = 0
+    scale = max(abs(W), heat_scale, energy_turnover(inlets, outlets))
+    return Balance(
+        H_in=H_in, H_out=H_out, KE_PE_in=KE_in, KE_PE_out=KE_out, dH=dH, dU=dU, dS=dS, dG=dG,
+        dA=dA, Q=Q, W=W, energy_residual=residual, mass_residual=mass, S_gen=S_gen,
+        W_rev=W_rev, exergy_destroyed=T0 * S_gen, energy_scale=scale,
+    )
+
+
+def _flow_totals(streams: Sequence[StreamResult]) -> tuple[float, float, float, float, float,
+                                                             float]:
+    """Σ ṁ h, Σ ṁ u, Σ ṁ s, Σ ṁ g, Σ ṁ a [W, W/K] and Σ ṁ (V²/2 + g z) [W] of ``streams``, in one
+    pass (summed in the order given, as ``sum`` would)."""
+    H = U = S = G = A = KE = 0.0
+    for s in streams:
+        m = s.mass_flow
+        H += m * s.h
+        U += m * s.u
+        S += m * s.s
+        G += m * s.g
+        A += m * s.a
+        KE += m * s.kinetic_potential
+    return H, U, S, G, A, KE
+
+
+def energy_turnover(inlets: Sequence[StreamResult], outlets: Sequence[StreamResult]) -> float:
+    """The enthalpy a step moves between its streams [W]: Σ_i ṁ_i |e_i − ē_out| per fluid.
+
+    ē_out is the mass-weighted mean outlet energy of the same fluid (the inlet's own when the fluid
+    has no outlet). For a one-inlet, one-outlet step it is ṁ |Δe|; it is the scale of the relative
+    energy tolerance (absolute enthalpies, which depend on the reference, are never a scale).
+    """
+    flows: dict[str, list[float]] = {}
+    for s in outlets:
+        entry = flows.get(s.fluid)
+        if entry is None:
+            entry = flows[s.fluid] = [0.0, 0.0]
+        entry[0] += s.mass_flow
+        entry[1] += s.mass_flow * (s.h + s.kinetic_potential)
+    turnover = 0.0
+    for s in inlets:
+        m_out, e_out = flows.get(s.fluid, (0.0, 0.0))
+        e_mean = e_out / m_out if m_out > 0 else s.h + s.kinetic_potential
+        turnover += s.mass_flow * abs(s.h + s.kinetic_potential - e_mean)
+    return turnover
+
+
+def closed_balance(
+    mass: float,
+    initial: StreamResult,
+    final: StreamResult,
+    heat_flows: Sequence[HeatFlow],
+    W: float,
+    T0: float,
+) -> Balance:
+    """Balances of a closed step from ``initial`` to ``final`` of ``mass`` [kg]; totals [J], [J/K].
+
+    W is the total work delivered by the contents [J] (boundary and shaft work).
+    """
+    dU = mass * (final.u - initial.u)
+    dH = mass * (final.h - initial.h)
+    dS = mass * (final.s - initial.s)
+    dG = mass * (final.g - initial.g)
+    dA = mass * (final.a - initial.a)
+    Q = sum(q.Q for q in heat_flows)
+    residual = Q - W - dU
+    S_gen = dS - entropy_of_heat(heat_flows)
+    W_rev = -(dU - T0 * dS) + sum(q.Q * heat_exergy_factor(q.temperature, T0) for q in heat_flows)
+    scale = max(abs(W), sum(abs(q.Q) for q in heat_flows), abs(dU))
+    mass_residual = {initial.fluid: 0.0} if initial.fluid == final.fluid else {
+        initial.fluid: mass, final.fluid: -mass}
+    return Balance(
+        H_in=mass * initial.u, H_out=mass * final.u, KE_PE_in=0.0, KE_PE_out=0.0, dH=dH, dU=dU,
+        dS=dS, dG=dG, dA=dA, Q=Q, W=W, energy_residual=residual, mass_residual=mass_residual,
+        S_gen=S_gen, W_rev=W_rev, exergy_destroyed=T0 * S_gen, energy_scale=scale,
+    )
+
+
+def energy_tolerance(balance: Balance, tol: Tolerances, batch: bool) -> float:
+    """Allowed energy residual and work-bound margin [W] or [J]: the larger of the relative
+    tolerance times the step's energy scale and the absolute tolerance."""
+    absolute = tol.energy_absolute_batch if batch else tol.energy_absolute
+    return max(tol.energy_relative * balance.energy_scale, absolute)
+
+
+def law_findings(
+    step_id: str,
+    balance: Balance,
+    tol: Tolerances,
+    T0: float,
+    batch: bool,
+    inlet_mass: float,
+    conservative_note: str = "",
+    check_energy: bool = True,
+    energy_finding: str = "energy-imbalance",
+    check_mass: bool = True,
+) -> list[Finding]:
+    """The law checks shared by every step: mass, first law, work bound, entropy generation."""
+    findings: list[Finding] = []
+    energy_q = "energy" if batch else "power"
+    entropy_q = "entropy" if batch else "entropy_rate"
+    tol_E = energy_tolerance(balance, tol, batch)
+    note = f" {conservative_note}" if conservative_note else ""
+
+    mass_tol = max(tol.mass_relative * inlet_mass, tol.mass_absolute)
+    for fluid, residual in sorted(balance.mass_residual.items()):
+        if not check_mass:
+            break
+        if abs(residual) > mass_tol and not batch:
+            direction = "vanishes" if residual > 0 else "appears"
+            findings.append(Finding(
+                ERROR, "mass-imbalance", step_id,
+                f"{abs(residual):.4g} kg/s of {fluid} {direction} in the step: inlets carry "
+                f"{abs(residual):.4g} kg/s {'more' if residual > 0 else 'less'} than outlets",
+                claimed=residual, bound=0.0, margin=abs(residual),
+                margin_relative=relative(abs(residual), inlet_mass), quantity="mass_flow",
+                tolerance=mass_tol,
+            ))
+        elif batch and abs(residual) > 0:
+            findings.append(Finding(
+                ERROR, "mass-imbalance", step_id,
+                f"the vessel's contents change fluid ({fluid}); a closed step keeps its fluid",
+                quantity="mass", claimed=residual, bound=0.0, margin=abs(residual),
+            ))
+
+    if findings:
+        # Mass does not balance: the energy and entropy sums compare different amounts of matter
+        # (and, on the formation basis, absolute enthalpies), so their residuals say nothing more.
+        return findings
+
+    if check_energy and abs(balance.energy_residual) > tol_E:
+        r = balance.energy_residual
+        change = (balance.dU if batch else
+                  balance.dH + balance.KE_PE_out - balance.KE_PE_in)
+        findings.append(Finding(
+            ERROR, energy_finding, step_id,
+            f"the first law does not close: heat in minus work out is "
+            f"{_kw(balance.Q - balance.W, batch)}, but the "
+            f"{'contents' if batch else 'streams'}' energy changes by {_kw(change, batch)}, a "
+            f"residual of {_kw(r, batch)} (tolerance {_kw(tol_E, batch)})",
+            claimed=balance.Q - balance.W, bound=balance.dH + balance.KE_PE_out
+            - balance.KE_PE_in if not batch else balance.dU, margin=abs(r),
+            margin_relative=relative(abs(r), balance.energy_scale), quantity=energy_q,
+            tolerance=tol_E,
+        ))
+
+    excess = balance.W - balance.W_rev
+    if excess > tol_E:
+        if balance.W > 0:
+            name = "work-above-bound"
+            message = (f"claims {_kw(balance.W, batch)} of work delivered, more than the "
+                       f"{_kw(balance.W_rev, batch)} its exergy drop allows, by "
+                       f"{_kw(excess, batch)}")
+        else:
+            name = "input-below-minimum"
+            message = (f"claims {_kw(-balance.W, batch)} of work absorbed, less than the "
+                       f"reversible minimum of {_kw(-balance.W_rev, batch)}, by "
+                       f"{_kw(excess, batch)}")
+        findings.append(Finding(
+            ERROR, name, step_id, message + f"; tolerance {_kw(tol_E, batch)}.{note}",
+            claimed=balance.W, bound=balance.W_rev, margin=excess,
+            margin_relative=relative(excess, balance.W_rev or balance.W), quantity=energy_q,
+            tolerance=tol_E,
+        ))
+
+    tol_S = tol_E / T0
+    if balance.S_gen < -tol_S:
+        findings.append(Finding(
+            ERROR, "negative-entropy-generation", step_id,
+            f"entropy generation is {balance.S_gen / 1e3:.4g} {'kJ/K' if batch else 'kW/K'}, "
+            f"below zero: the step as written would destroy entropy (tolerance "
+            f"{tol_S / 1e3:.3g} {'kJ/K' if batch else 'kW/K'}).{note}",
+            claimed=balance.S_gen, bound=0.0, margin=-balance.S_gen,
+            margin_relative=relative(-balance.S_gen, balance.dS), quantity=entropy_q,
+            tolerance=tol_S,
+        ))
+    return findings
+
+
+def _kw(value: float, batch: bool) -> str:
+    if batch:
+        return f"{value / 1e3:,.4g} kJ" if abs(value) < 1e6 else f"{value / 1e6:,.4g} MJ"
+    return f"{value / 1e3:,.4g} kW" if abs(value) < 1e6 else f"{value / 1e6:,.4g} MW"
+
+
+def format_power(value: float, batch: bool = False) -> str:
+    """A power [W] (or an energy [J] for a vessel) in kW/MW (kJ/MJ) for messages."""
+    return _kw(value, batch)
