@@ -25,7 +25,7 @@ How the parts fit (data flows one way: file → model → states → step result
 * :mod:`audit.commands.main` is the thin command line; :func:`run` is the Python entry point.
 """
 
-__version__ = "0.1.0"
+from audit.version import __version__
 
 
 def run(path, **options):  # noqa: ANN001, ANN003, ANN201 - see audit.api.run for the signature

@@ -23,7 +23,7 @@ from dataclasses import dataclass, field
 from datetime import datetime, timezone
 from typing import Any
 
-from audit import __version__
+from audit.version import __version__
 from audit.errors import InputErrors, Problem, StateError
 from audit.findings import ERROR, WARNING, Finding, relative
 from audit.input.document import Document

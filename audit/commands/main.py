@@ -7,7 +7,7 @@ import argparse
 import sys
 import traceback
 
-from audit import __version__
+from audit.version import __version__
 from audit.commands import batch, check, convert, diff, history, schema, template
 from audit.errors import InputError
 from audit.exitcodes import EXIT_INPUT, EXIT_INTERNAL
