@@ -29,19 +29,13 @@ def _parser(kind: str):
     return parse
 
 
-def _quantity(kind: str) -> Any:
+def _schema(kind: str) -> WithJsonSchema:
     spec = units.KINDS[kind]
-    return Annotated[
-        float,
-        BeforeValidator(_parser(kind)),
-        WithJsonSchema(
-            {
-                "type": "string",
-                "pattern": QUANTITY_PATTERN,
-                "description": f"{kind.replace('_', ' ')} with its unit, e.g. {spec.example}",
-            }
-        ),
-    ]
+    return WithJsonSchema({
+        "type": "string",
+        "pattern": QUANTITY_PATTERN,
+        "description": f"{kind.replace('_', ' ')} with its unit, e.g. {spec.example}",
+    })
 
 
 def _parse_flow(value: Any) -> units.Flow:
@@ -53,21 +47,23 @@ def _parse_flow(value: Any) -> units.Flow:
         raise PydanticCustomError("quantity", exc.problem.message) from None
 
 
-Temperature = _quantity("temperature")
-TemperatureDifference = _quantity("temperature_difference")
-Pressure = _quantity("pressure")
-MassFlow = _quantity("mass_flow")
-MolarFlow = _quantity("molar_flow")
-Power = _quantity("power")
-Energy = _quantity("energy")
-Mass = _quantity("mass")
-SpecificEnthalpy = _quantity("specific_enthalpy")
-SpecificEntropy = _quantity("specific_entropy")
-Velocity = _quantity("velocity")
-Length = _quantity("length")
-Volume = _quantity("volume")
-Voltage = _quantity("voltage")
-Current = _quantity("current")
+# Written out one by one (not built by a factory) so that type checkers see a float, as pydantic
+# does after validation.
+Temperature = Annotated[float, BeforeValidator(_parser("temperature")), _schema("temperature")]
+TemperatureDifference = Annotated[float, BeforeValidator(_parser("temperature_difference")), _schema("temperature_difference")]
+Pressure = Annotated[float, BeforeValidator(_parser("pressure")), _schema("pressure")]
+MassFlow = Annotated[float, BeforeValidator(_parser("mass_flow")), _schema("mass_flow")]
+MolarFlow = Annotated[float, BeforeValidator(_parser("molar_flow")), _schema("molar_flow")]
+Power = Annotated[float, BeforeValidator(_parser("power")), _schema("power")]
+Energy = Annotated[float, BeforeValidator(_parser("energy")), _schema("energy")]
+Mass = Annotated[float, BeforeValidator(_parser("mass")), _schema("mass")]
+SpecificEnthalpy = Annotated[float, BeforeValidator(_parser("specific_enthalpy")), _schema("specific_enthalpy")]
+SpecificEntropy = Annotated[float, BeforeValidator(_parser("specific_entropy")), _schema("specific_entropy")]
+Velocity = Annotated[float, BeforeValidator(_parser("velocity")), _schema("velocity")]
+Length = Annotated[float, BeforeValidator(_parser("length")), _schema("length")]
+Volume = Annotated[float, BeforeValidator(_parser("volume")), _schema("volume")]
+Voltage = Annotated[float, BeforeValidator(_parser("voltage")), _schema("voltage")]
+Current = Annotated[float, BeforeValidator(_parser("current")), _schema("current")]
 
 StreamFlow = Annotated[
     units.Flow,
