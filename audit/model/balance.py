@@ -89,10 +89,10 @@ class Balance(BaseModel):
 def balance_model(step_models: Sequence[type[StepBase]]) -> type[Balance]:
     """The balance file's model whose ``steps`` hold any of ``step_models``, told apart by their
     ``kind`` (a discriminated union). :mod:`audit.steps` calls it once with every discovered kind."""
-    union = Annotated[Union[tuple(step_models)], Field(discriminator="kind")]  # noqa: UP007
-    model: type[Balance] = create_model(  # type: ignore[call-overload]
+    union: Any = Annotated[Union[tuple(step_models)], Field(discriminator="kind")]  # noqa: UP007
+    model: type[Balance] = create_model(
         "Balance", __base__=Balance, __module__=__name__,
-        steps=(list[union], Field(default_factory=list)),  # type: ignore[valid-type]
+        steps=(list[union], Field(default_factory=list)),
     )
     model.step_kinds = {
         get_args(m.model_fields["kind"].annotation)[0]: m for m in step_models}
@@ -178,7 +178,7 @@ def _where(path: tuple, data: Any) -> str | None:
     return None
 
 
-def _message(error: dict, missing: str | None, path: tuple, data: Any,
+def _message(error: Any, missing: str | None, path: tuple, data: Any,
              balance: type[Balance]) -> str:
     kind = error["type"]
     if kind == "missing":
@@ -263,7 +263,7 @@ def _allowed_fields(path: tuple, data: Any, balance: type[Balance]) -> list[str]
         model = StreamSpec
     elif path[0] == "steps" and len(path) >= 2:
         step = data["steps"][path[1]]
-        kind = balance.step_kinds.get(step.get("kind")) if isinstance(step, dict) else None
+        kind = balance.step_kinds.get(str(step.get("kind"))) if isinstance(step, dict) else None
         if kind is not None:
             model = kind
             if len(path) == 3 and path[2] == "tolerances":

@@ -154,7 +154,7 @@ def coverage_divisor(coverage: str | None) -> float:
     return float(match.group(2))
 
 
-def _spread_type(kind: str) -> Any:
+def _spread_validator(kind: str) -> PlainValidator:
     def validate(value: Any) -> Spread:
         if isinstance(value, Spread):
             return value
@@ -163,22 +163,28 @@ def _spread_type(kind: str) -> Any:
         except UnitError as exc:
             raise PydanticCustomError("uncertainty", exc.problem.message) from None
 
+    return PlainValidator(validate)
+
+
+def _spread_schema(kind: str) -> WithJsonSchema:
     example = SPREAD_KINDS[kind][2]
     schema: dict[str, Any] = {
         "description": f"{kind.replace('_', ' ')} uncertainty: 'exact', or like {example}"}
     schema.update({"type": ["number", "string"]} if kind == "quality" else {"type": "string"})
-    return Annotated[Spread, PlainValidator(validate), WithJsonSchema(schema)]
+    return WithJsonSchema(schema)
 
 
-TemperatureSpread = _spread_type("temperature")
-PressureSpread = _spread_type("pressure")
-FlowSpread = _spread_type("flow")
-QualitySpread = _spread_type("quality")
-EnthalpySpread = _spread_type("specific_enthalpy")
-EntropySpread = _spread_type("specific_entropy")
-PowerSpread = _spread_type("power")
-EnergySpread = _spread_type("energy")
-MassSpread = _spread_type("mass")
+# Written out one by one so that type checkers see a Spread, as pydantic does after validation.
+TemperatureSpread = Annotated[Spread, _spread_validator("temperature"), _spread_schema("temperature")]
+PressureSpread = Annotated[Spread, _spread_validator("pressure"), _spread_schema("pressure")]
+FlowSpread = Annotated[Spread, _spread_validator("flow"), _spread_schema("flow")]
+QualitySpread = Annotated[Spread, _spread_validator("quality"), _spread_schema("quality")]
+EnthalpySpread = Annotated[Spread, _spread_validator("specific_enthalpy"), _spread_schema("specific_enthalpy")]
+EntropySpread = Annotated[Spread, _spread_validator("specific_entropy"), _spread_schema("specific_entropy")]
+PowerSpread = Annotated[Spread, _spread_validator("power"), _spread_schema("power")]
+EnergySpread = Annotated[Spread, _spread_validator("energy"), _spread_schema("energy")]
+MassSpread = Annotated[Spread, _spread_validator("mass"), _spread_schema("mass")]
+
 
 def _coverage(value: Any) -> str:
     if isinstance(value, str) and _COVERAGE.match(value.strip()):
