@@ -27,7 +27,7 @@ from audit.commands.convert import resolved_yaml
 from audit.commands.main import main
 from audit.errors import InputError
 from audit.input.document import load_document
-from audit.input.tables import CLAIM_HEADERS, column_letter, table_rows
+from audit.input.tables import CLAIM_HEADERS, column_letter, resolve, table_rows
 from audit.model.table_columns import stream_kinds, stream_template_headers
 from audit.reading import json_schema, load_balance
 from audit.report.machine import to_dict
@@ -232,6 +232,19 @@ def test_csv_table(tmp_path):
         writer.writerow(["", "", "", "", "", "", "", ""])  # a trailing blank column, blank row
     result = audit.run(balance_file(tmp_path, "streams_from: streams.csv"))
     assert [s.id for s in result.streams] == ["W1", "W2"]
+
+
+def test_the_reader_takes_the_stream_columns_it_is_handed(tmp_path):
+    # The table reader knows no stream model: the fields a stream table may give come from the
+    # caller (audit.reading passes audit.model.table_columns.stream_kinds()).
+    write_xlsx(tmp_path / "streams.xlsx", STREAMS)
+    document = load_document(balance_file(tmp_path, "streams_from: streams.xlsx"))
+    merged, tables = resolve(document, stream_kinds())
+    assert merged.data["streams"]["W1"]["T"] == "20 degC"
+    assert [t.rows for t in tables] == [3]
+    kinds = {k: v for k, v in stream_kinds().items() if k != "phase"}
+    with pytest.raises(InputError, match=r"cell F1: unknown column header 'phase'"):
+        resolve(document, kinds)
 
 
 def test_yaml_streams_and_table_streams_together(tmp_path):
