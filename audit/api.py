@@ -18,9 +18,8 @@ from datetime import date
 from pathlib import Path
 
 from audit.input.document import Document, parse_document, read_text
-from audit.input.tables import resolve as resolve_tables
 from audit.model.balance import Balance
-from audit.reading import validate_document
+from audit.reading import resolve_tables, validate_document
 from audit.results import AuditResult
 from audit.review.acceptance import Acceptance, apply_acceptances, load_beside
 from audit.review.uncertainty import review

@@ -9,10 +9,22 @@ from __future__ import annotations
 from pathlib import Path
 
 from audit.input.document import Document, load_document, parse_document
-from audit.input.tables import resolve as resolve_tables
+from audit.input.tables import TableFile, resolve
 from audit.model import balance as _balance
 from audit.model.balance import Balance
+from audit.model.table_columns import stream_kinds
 from audit.steps import BALANCE_MODEL
+
+
+def resolve_tables(
+    document: Document, allow_outside: bool = False
+) -> tuple[Document, list[TableFile]]:
+    """Merge the streams and claims a balance takes from tables (:mod:`audit.input.tables`),
+    reading stream tables by the stream model's columns (:mod:`audit.model.table_columns`).
+
+    A table outside the balance file's folder tree is refused unless ``allow_outside`` is true.
+    Returns the merged document and the table files read."""
+    return resolve(document, stream_kinds(), allow_outside=allow_outside)
 
 
 def validate_document(document: Document) -> Balance:

@@ -253,15 +253,14 @@ def phases(path: Path) -> dict[str, float]:
     :func:`audit.api.run` runs them."""
     from audit import api
     from audit.input.document import parse_document, read_text
-    from audit.input.tables import resolve
-    from audit.reading import validate_document
+    from audit.reading import resolve_tables, validate_document
     from audit.solve import solve
 
     spent: dict[str, float] = {}
     with api._cycle_collection_paused():
         started = time.process_time()
         document = parse_document(read_text(path), str(path))
-        document, _ = resolve(document)
+        document, _ = resolve_tables(document)
         spent["read and parse"] = time.process_time() - started
         started = time.process_time()
         balance = validate_document(document)

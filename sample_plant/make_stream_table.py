@@ -24,9 +24,11 @@ from pathlib import Path
 
 from audit import units
 from audit.input.document import load_document, parse_document
-from audit.report.template import write_table_workbook
+from audit.input.tables import table_rows
 from audit.model.streams import StreamSpec
-from audit.input.tables import resolve, stream_choices, stream_template_headers, table_rows
+from audit.model.table_columns import stream_choices, stream_kinds, stream_template_headers
+from audit.reading import resolve_tables
+from audit.report.template import write_table_workbook
 
 HERE = Path(__file__).resolve().parent
 CLEAN = HERE / "quillon-bay-clean.yaml"
@@ -43,7 +45,7 @@ def write(clean: Path = CLEAN, table: Path = TABLE, balance: Path = BALANCE) -> 
     inline: set[str] = set()
     while True:
         chosen = {k: v for k, v in streams.items() if k not in inline}
-        headers, rows, left_out = table_rows(chosen, stream_template_headers())
+        headers, rows, left_out = table_rows(chosen, stream_template_headers(), stream_kinds())
         inline |= set(left_out)
         write_table_workbook(table, headers, rows, choices=stream_choices(),
                              title="Quillon Bay stream table (from quillon-bay-clean.yaml)")
@@ -95,7 +97,7 @@ def _balance_text(text: str, document, inline: list[str], table_name: str,
 
 def _mismatches(document, balance: Path) -> set[str]:
     """Streams of the table variant that do not validate to the same stream as the clean one."""
-    resolved, _ = resolve(parse_document(balance.read_text(encoding="utf-8"), str(balance)))
+    resolved, _ = resolve_tables(parse_document(balance.read_text(encoding="utf-8"), str(balance)))
     info = document.data["balance"]
     site = units.to_si(info["site_pressure"], "pressure") if info.get("site_pressure") else None
     context = {"site_pressure": site}

@@ -27,7 +27,8 @@ from audit.commands.convert import resolved_yaml
 from audit.commands.main import main
 from audit.errors import InputError
 from audit.input.document import load_document
-from audit.input.tables import CLAIM_HEADERS, column_letter, stream_template_headers, table_rows
+from audit.input.tables import CLAIM_HEADERS, column_letter, resolve, table_rows
+from audit.model.table_columns import stream_kinds, stream_template_headers
 from audit.reading import json_schema, load_balance
 from audit.report.machine import to_dict
 
@@ -137,7 +138,7 @@ def test_table_variant_keeps_in_yaml_only_what_the_table_cannot_hold():
     data = load_document(TABLE_BALANCE).data
     assert data["streams_from"] == {"file": TABLE_FILE.name, "sheet": "streams"}
     clean_streams = load_document(CLEAN).data["streams"]
-    _, rows, left_out = table_rows(clean_streams, stream_template_headers())
+    _, rows, left_out = table_rows(clean_streams, stream_template_headers(), stream_kinds())
     assert set(data.get("streams", {})) == set(left_out)
     assert len(rows) + len(left_out) == len(clean_streams)
     assert len(rows) > len(left_out)  # the table variant is mostly a table
@@ -233,6 +234,19 @@ def test_csv_table(tmp_path):
     assert [s.id for s in result.streams] == ["W1", "W2"]
 
 
+def test_the_reader_takes_the_stream_columns_it_is_handed(tmp_path):
+    # The table reader knows no stream model: the fields a stream table may give come from the
+    # caller (audit.reading passes audit.model.table_columns.stream_kinds()).
+    write_xlsx(tmp_path / "streams.xlsx", STREAMS)
+    document = load_document(balance_file(tmp_path, "streams_from: streams.xlsx"))
+    merged, tables = resolve(document, stream_kinds())
+    assert merged.data["streams"]["W1"]["T"] == "20 degC"
+    assert [t.rows for t in tables] == [3]
+    kinds = {k: v for k, v in stream_kinds().items() if k != "phase"}
+    with pytest.raises(InputError, match=r"cell F1: unknown column header 'phase'"):
+        resolve(document, kinds)
+
+
 def test_yaml_streams_and_table_streams_together(tmp_path):
     write_xlsx(tmp_path / "streams.xlsx", STREAMS)
     body = "streams:\n  W3: {fluid: Water, T: 30 degC, P: 5 bar, flow: 1 kg/s}\n"
@@ -293,7 +307,8 @@ def test_table_rows_lay_out_streams_and_leave_out_what_a_table_cannot_hold():
         "W1": {"fluid": "Water", "T": "20 degC", "P": "5 barg", "flow": "3 kg/s",
                "uncertainty": {"T": "0.2 K"}},  # a mapping of its own: stays in the YAML file
     }
-    headers, rows, left_out = table_rows(streams, ["id", "fluid", "T [degC]", "P [barg]"])
+    headers, rows, left_out = table_rows(streams, ["id", "fluid", "T [degC]", "P [barg]"],
+                                         stream_kinds())
     assert left_out == ["W1"]
     assert headers == ["id", "fluid", "T [degC]", "P [barg]", "P [bar]", "composition",
                        "flow [Nm3/h]"]
@@ -637,7 +652,8 @@ def test_template_filled_with_the_sample_streams_audits_cleanly(tmp_path):
     wb = openpyxl.load_workbook(target)
     ws = wb["streams"]
     template_headers = [c.value for c in ws[1]]
-    headers, rows, left_out = table_rows(load_document(CLEAN).data["streams"], template_headers)
+    headers, rows, left_out = table_rows(load_document(CLEAN).data["streams"], template_headers,
+                                         stream_kinds())
     assert left_out == []
     ws.delete_rows(1)
     ws.append(headers)  # the template's headers, with a column for each further unit

@@ -57,8 +57,7 @@ def resolved_yaml(path: str | Path, allow_outside: bool = False,
     """
     from audit.input.document import parse_document, read_text
     from audit.input.tables import SOURCE_KEYS
-    from audit.input.tables import resolve as resolve_tables
-    from audit.reading import json_schema, validate_document
+    from audit.reading import json_schema, resolve_tables, validate_document
 
     path = Path(path)
     text = read_text(path)

@@ -22,7 +22,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from audit.input.tables import CLAIM_HEADERS, stream_choices, stream_template_headers
+    from audit.input.tables import CLAIM_HEADERS
+    from audit.model.table_columns import stream_choices, stream_template_headers
     from audit.report.template import write_table_workbook
 
     path: Path = args.streams

@@ -20,8 +20,8 @@ from typing import Any
 import yaml
 from yaml.constructor import SafeConstructor
 
-from audit.input import flowlines
 from audit.errors import InputError
+from audit.input import flowlines
 
 MAX_FILE_BYTES = 20 * 1024 * 1024
 """Largest balance file read [bytes]; a real balance is a few hundred kB."""
@@ -161,9 +161,9 @@ class _Builder:
                     self.flow_lines_built.add(where)
                     return self._flow_line(items, where[0], path, depth)
             self._open.add(id(node))
-            built = self._mapping(node, path, depth)
+            mapping = self._mapping(node, path, depth)
             self._open.discard(id(node))
-            return built
+            return mapping
         raise self._fail(node, "unsupported YAML node")  # pragma: no cover
 
     def _mapping(self, node: yaml.MappingNode, path: Path_, depth: int) -> dict:
