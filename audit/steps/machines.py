@@ -6,7 +6,7 @@ from __future__ import annotations
 from audit.errors import StateError
 from audit.findings import ERROR, WARNING, Finding
 from audit.results import HeatFlow, StreamResult
-from audit.steps.base import StepContext, boundary_temperature
+from audit.steps.base import StepContext, heat_flow
 
 EFFICIENCY_MATCH = 0.01
 """A claimed isentropic efficiency may differ from the computed one by this much [-]."""
@@ -19,9 +19,7 @@ def heat_loss_flow(
     (or the coldest stream, when that is colder)."""
     if loss is None:
         return []
-    note = "heat loss" + ("" if temperature is not None else ", conservative boundary temperature")
-    return [HeatFlow(Q=-loss, temperature=boundary_temperature(-loss, temperature, T0, coldest),
-                     claimed=True, note=note)]
+    return [heat_flow(-loss, temperature, T0, claimed=True, label="heat loss", coldest=coldest)]
 
 
 def isentropic_outlet_enthalpy(

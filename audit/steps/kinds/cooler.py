@@ -17,8 +17,8 @@ from pydantic import Field
 
 from audit.findings import ERROR, Finding
 from audit.model.quantities import Power, Temperature
-from audit.results import HeatFlow, StepResult
-from audit.steps.base import StepBase, StepContext, boundary_temperature, finish_flow_step, register
+from audit.results import StepResult
+from audit.steps.base import StepBase, StepContext, finish_flow_step, heat_flow, register
 
 
 class Cooler(StepBase):
@@ -40,9 +40,8 @@ def evaluate(step: Cooler, ctx: StepContext) -> StepResult:
         Q = (outlet.mass_flow * (outlet.h + outlet.kinetic_potential)
              - inlet.mass_flow * (inlet.h + inlet.kinetic_potential))
         claimed, inferred = [], ["duty"]
-    T_b = boundary_temperature(Q, step.sink_temperature, ctx.T0, min(inlet.T, outlet.T))
-    note = "" if step.sink_temperature is not None else "conservative boundary temperature"
-    heat = [HeatFlow(Q=Q, temperature=T_b, claimed=step.duty is not None, note=note)]
+    heat = [heat_flow(Q, step.sink_temperature, ctx.T0, claimed=step.duty is not None,
+                      coldest=min(inlet.T, outlet.T))]
     result, _ = finish_flow_step(step, "cooler", ctx, [inlet], [outlet], heat, 0.0,
                                  claimed + ["no work"], inferred)
     if step.sink_temperature is not None and step.sink_temperature > outlet.T:

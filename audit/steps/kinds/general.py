@@ -14,13 +14,13 @@ from typing import Literal
 from pydantic import Field, model_validator
 
 from audit.model.quantities import Power, Temperature
-from audit.results import HeatFlow, StepResult
+from audit.results import StepResult
 from audit.steps.base import (
     HeatClaim,
     StepBase,
     StepContext,
-    boundary_temperature,
     finish_flow_step,
+    heat_flow,
     heat_flows_from_claims,
     register,
 )
@@ -69,10 +69,7 @@ def evaluate(step: GeneralStep, ctx: StepContext) -> StepResult:
     else:
         Q = dE + W
         declared = step.heat_temperature
-        heat = [HeatFlow(Q=Q, temperature=boundary_temperature(Q, declared, ctx.T0, coldest),
-                         claimed=False,
-                         note="inferred" + ("" if declared else
-                                            ", conservative boundary temperature"))]
+        heat = [heat_flow(Q, declared, ctx.T0, claimed=False, label="inferred", coldest=coldest)]
         inferred.append("heat")
         claimed.append("work" if work_given else "no work")
     result, _ = finish_flow_step(step, "general", ctx, inlets, outlets, heat, W, claimed, inferred)
