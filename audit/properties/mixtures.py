@@ -53,11 +53,11 @@ from dataclasses import dataclass
 
 import CoolProp.CoolProp as CP
 
+from audit.constants import GAS_CONSTANT
 from audit.errors import StateError
 from audit.formation import P_STANDARD, SPECIES, T_STANDARD, lookup
 from audit.model.composition import check_fractions
 
-GAS_CONSTANT = 8.314_462_618_153_24  # J/(mol K), exact since the 2019 SI (CODATA 2018)
 BACKEND = "HEOS"
 
 # Temperatures [K] over which CoolProp's ideal-gas part of each species was checked against

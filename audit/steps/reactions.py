@@ -15,7 +15,8 @@ Heating values are the enthalpy of complete combustion at 25 °C and 1 bar [1, �
 carbon burnt to CO2, the hydrogen to H2O (liquid for the higher, vapour for the lower heating value)
 and nitrogen released as N2; CO2, H2O, N2, O2 and Ar in a fuel are inert.
 
-Faraday constant F = N_A e [2], exact since the 2019 revision of the SI.
+The Faraday constant F = N_A e [2] (exact since the 2019 revision of the SI) is
+:data:`audit.constants.FARADAY`.
 
 References
 ----------
@@ -36,14 +37,11 @@ from fractions import Fraction
 
 import numpy as np
 
+from audit.constants import FARADAY  # noqa: F401  (read here by older code and tests)
 from audit.errors import StateError
 from audit.formation import ATOMIC_WEIGHTS, P_STANDARD, SPECIES, T_STANDARD, lookup, species
 from audit.properties.engine import PropertyEngine
 from audit.results import StreamResult
-
-AVOGADRO = 6.022_140_76e23  # 1/mol, exact (2019 SI)
-ELEMENTARY_CHARGE = 1.602_176_634e-19  # C, exact (2019 SI)
-FARADAY = AVOGADRO * ELEMENTARY_CHARGE  # C/mol = 96 485.332 123 310 0... (CODATA 2018, exact)
 
 _ARROWS = ("->", "→", "=>")
 _TERM = re.compile(

@@ -41,10 +41,10 @@ from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, WithJsonSche
 from pydantic_core import PydanticCustomError
 
 from audit import units
+from audit.constants import GAS_CONSTANT
 from audit.errors import UnitError
 from audit.findings import ERROR, Finding, relative
 from audit.model.quantities import QUANTITY_PATTERN, Power, Temperature
-from audit.properties.mixtures import GAS_CONSTANT
 from audit.results import StepResult, StreamResult
 from audit.steps.base import StepBase, StepContext, register
 from audit.steps.laws import format_power

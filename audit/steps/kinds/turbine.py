@@ -25,6 +25,7 @@ from pydantic import Field
 
 from audit.findings import ERROR, WARNING, Finding
 from audit.model.quantities import Power, Temperature
+from audit.physics.efficiency import isentropic_efficiency_expansion
 from audit.results import StepResult
 from audit.steps.base import StepBase, StepContext, finish_flow_step, register
 from audit.steps.machines import efficiency_findings, heat_loss_flow, isentropic_outlet_enthalpy
@@ -70,7 +71,7 @@ def evaluate(step: Turbine, ctx: StepContext) -> StepResult:
         ))
     h_s = isentropic_outlet_enthalpy(step.id, inlet, outlet, ctx)
     if h_s is not None and inlet.h - h_s > 0:
-        eta = (inlet.h - outlet.h) / (inlet.h - h_s)
+        eta = isentropic_efficiency_expansion(inlet.h, outlet.h, h_s)
         efficiency_findings(step, result, ctx, eta, h_s, "turbine")
     if outlet.quality is not None and 1.0 - outlet.quality > tol.exhaust_moisture_max:
         moisture = 1.0 - outlet.quality
