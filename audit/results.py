@@ -12,7 +12,7 @@ from dataclasses import asdict, dataclass, field, fields, is_dataclass
 from enum import Enum
 from typing import Any
 
-import pandas as pd
+import pandas as pd  # type: ignore[import-untyped]  # no stubs installed
 
 from audit.findings import SEVERITY_RANK, Finding, at_or_above
 

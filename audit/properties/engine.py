@@ -247,7 +247,7 @@ class PropertyEngine:
             molar_mass=info.molar_mass, basis=info.basis,
         )
 
-    def _phase_for_TP(self, info: Fluid, T: float, P: float) -> int | None:
+    def _phase_for_TP(self, info: Fluid, T: float, P: float) -> CP.phases | None:
         """Decide the phase of a (T, P) input from T_sat(P); refuse states in the band."""
         if T >= info.T_crit or P >= info.P_crit:
             return None

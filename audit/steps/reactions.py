@@ -42,6 +42,7 @@ from audit.errors import StateError
 from audit.formation import ATOMIC_WEIGHTS, P_STANDARD, SPECIES, T_STANDARD, lookup, species
 from audit.properties.engine import PropertyEngine
 from audit.results import StreamResult
+from audit.wording import to_bar, to_celsius
 
 _ARROWS = ("->", "→", "=>")
 _TERM = re.compile(
@@ -225,7 +226,7 @@ def reaction_properties(engine: PropertyEngine, reaction: Reaction, T: float, P:
             h, s = engine.species_molar(term.formula, term.phase, T, P)
         except StateError as exc:
             raise StateError(
-                f"the reaction '{reaction.equation}' at {T - 273.15:.6g} °C and {P / 1e5:.6g} "
+                f"the reaction '{reaction.equation}' at {to_celsius(T):.6g} °C and {to_bar(P):.6g} "
                 f"bar: {exc.problem.message}") from None
         dH += nu * h
         dS += nu * s

@@ -19,6 +19,7 @@ from audit.findings import ERROR, Finding
 from audit.model.quantities import Power, Temperature
 from audit.results import StepResult
 from audit.steps.base import StepBase, StepContext, finish_flow_step, heat_flow, register
+from audit.wording import to_celsius
 
 
 class Cooler(StepBase):
@@ -48,8 +49,8 @@ def evaluate(step: Cooler, ctx: StepContext) -> StepResult:
         gap = step.sink_temperature - outlet.T
         ctx.add(Finding(
             ERROR, "sink-too-hot", step.id,
-            f"the heat sink at {step.sink_temperature - 273.15:.1f} °C is {gap:.1f} K hotter than "
-            f"the outlet {outlet.id} ({outlet.T - 273.15:.1f} °C) it is said to cool",
+            f"the heat sink at {to_celsius(step.sink_temperature):.1f} °C is {gap:.1f} K hotter than "
+            f"the outlet {outlet.id} ({to_celsius(outlet.T):.1f} °C) it is said to cool",
             claimed=step.sink_temperature, bound=outlet.T, margin=gap,
             quantity="temperature",
         ))

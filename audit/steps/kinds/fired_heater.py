@@ -51,6 +51,7 @@ from audit.steps.laws import format_power
 from audit.steps.machines import heat_loss_flow
 from audit.steps.reacting import element_findings, finish_reacting_step
 from audit.steps.reactions import heating_values, species_flows
+from audit.wording import to_celsius
 
 _PER_VOLUME = re.compile(r"^(.*?)/\s*([NS])m(?:3|\^3|\*\*3|³)\s*$")
 
@@ -181,8 +182,8 @@ def evaluate(step: FiredHeater, ctx: StepContext) -> StepResult:
         gap = hin.T - flue.T
         ctx.add(Finding(
             ERROR, "temperature-cross", step.id,
-            f"the flue gas {flue.id} leaves at {flue.T - 273.15:.1f} °C, {gap:.1f} K colder than "
-            f"the heated stream {hin.id} enters ({hin.T - 273.15:.1f} °C): the gas cannot heat "
+            f"the flue gas {flue.id} leaves at {to_celsius(flue.T):.1f} °C, {gap:.1f} K colder than "
+            f"the heated stream {hin.id} enters ({to_celsius(hin.T):.1f} °C): the gas cannot heat "
             "it at that end",
             claimed=flue.T, bound=hin.T, margin=gap, quantity="temperature_difference",
         ))

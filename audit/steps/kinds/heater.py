@@ -20,6 +20,7 @@ from audit.findings import ERROR, Finding
 from audit.model.quantities import Power, Temperature
 from audit.results import StepResult
 from audit.steps.base import StepBase, StepContext, finish_flow_step, heat_flow, register
+from audit.wording import to_celsius
 
 
 class Heater(StepBase):
@@ -50,8 +51,8 @@ def evaluate(step: Heater, ctx: StepContext) -> StepResult:
         gap = outlet.T - step.source_temperature
         ctx.add(Finding(
             ERROR, "source-too-cold", step.id,
-            f"the heat source at {step.source_temperature - 273.15:.1f} °C is {gap:.1f} K colder "
-            f"than the outlet {outlet.id} ({outlet.T - 273.15:.1f} °C) it is said to heat",
+            f"the heat source at {to_celsius(step.source_temperature):.1f} °C is {gap:.1f} K colder "
+            f"than the outlet {outlet.id} ({to_celsius(outlet.T):.1f} °C) it is said to heat",
             claimed=step.source_temperature, bound=outlet.T, margin=gap,
             quantity="temperature",
         ))

@@ -18,6 +18,7 @@ from audit.model.quantities import Power, Temperature
 from audit.results import StepResult
 from audit.steps.base import StepBase, StepContext, finish_flow_step, register
 from audit.steps.machines import heat_loss_flow
+from audit.wording import to_bar
 
 
 class Mixer(StepBase):
@@ -42,8 +43,8 @@ def evaluate(step: Mixer, ctx: StepContext) -> StepResult:
     if outlet.P > lowest.P * (1.0 + ctx.tolerances.isobaric_relative):
         ctx.add(Finding(
             WARNING, "mixer-outlet-pressure", step.id,
-            f"the outlet pressure ({outlet.P / 1e5:.4g} bar) is above the lowest inlet pressure "
-            f"({lowest.id}, {lowest.P / 1e5:.4g} bar); mixing cannot raise pressure",
+            f"the outlet pressure ({to_bar(outlet.P):.4g} bar) is above the lowest inlet pressure "
+            f"({lowest.id}, {to_bar(lowest.P):.4g} bar); mixing cannot raise pressure",
             claimed=outlet.P, bound=lowest.P, margin=outlet.P - lowest.P, quantity="pressure",
         ))
     return result

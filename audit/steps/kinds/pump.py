@@ -19,6 +19,7 @@ from audit.model.quantities import Power, Temperature
 from audit.results import StepResult
 from audit.steps.base import StepBase, StepContext, register
 from audit.steps.machines import evaluate_work_absorber
+from audit.wording import to_celsius
 
 
 class Pump(StepBase):
@@ -54,7 +55,7 @@ def evaluate(step: Pump, ctx: StepContext) -> StepResult:
             ctx.add(Finding(
                 WARNING, "pump-near-saturation", step.id,
                 f"the pump inlet {inlet.id} is only {subcooling:.2f} K below its saturation "
-                f"temperature ({T_sat - 273.15:.2f} °C): cavitation risk (minimum "
+                f"temperature ({to_celsius(T_sat):.2f} °C): cavitation risk (minimum "
                 f"{minimum:g} K, common practice)",
                 claimed=subcooling, bound=minimum, margin=minimum - subcooling,
                 quantity="temperature_difference", tolerance=minimum, stream=inlet.id,

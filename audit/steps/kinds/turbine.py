@@ -29,6 +29,7 @@ from audit.physics.efficiency import isentropic_efficiency_expansion
 from audit.results import StepResult
 from audit.steps.base import StepBase, StepContext, finish_flow_step, register
 from audit.steps.machines import efficiency_findings, heat_loss_flow, isentropic_outlet_enthalpy
+from audit.wording import to_bar
 
 
 class Turbine(StepBase):
@@ -65,8 +66,8 @@ def evaluate(step: Turbine, ctx: StepContext) -> StepResult:
     if outlet.P >= inlet.P:
         ctx.add(Finding(
             ERROR, "pressure-wrong-way", step.id,
-            f"the outlet pressure ({outlet.P / 1e5:.4g} bar) is not below the inlet pressure "
-            f"({inlet.P / 1e5:.4g} bar); a turbine expands its fluid (inlet and outlet swapped?)",
+            f"the outlet pressure ({to_bar(outlet.P):.4g} bar) is not below the inlet pressure "
+            f"({to_bar(inlet.P):.4g} bar); a turbine expands its fluid (inlet and outlet swapped?)",
             claimed=outlet.P, bound=inlet.P, margin=outlet.P - inlet.P, quantity="pressure",
         ))
     h_s = isentropic_outlet_enthalpy(step.id, inlet, outlet, ctx)

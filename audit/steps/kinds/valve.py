@@ -12,6 +12,7 @@ from typing import Literal
 from audit.findings import ERROR, Finding
 from audit.results import StepResult
 from audit.steps.base import StepBase, StepContext, finish_flow_step, register
+from audit.wording import to_bar
 
 
 class Valve(StepBase):
@@ -32,8 +33,8 @@ def evaluate(step: Valve, ctx: StepContext) -> StepResult:
     if outlet.P >= inlet.P:
         ctx.add(Finding(
             ERROR, "pressure-wrong-way", step.id,
-            f"the outlet pressure ({outlet.P / 1e5:.4g} bar) is not below the inlet pressure "
-            f"({inlet.P / 1e5:.4g} bar); a throttle valve only lowers pressure",
+            f"the outlet pressure ({to_bar(outlet.P):.4g} bar) is not below the inlet pressure "
+            f"({to_bar(inlet.P):.4g} bar); a throttle valve only lowers pressure",
             claimed=outlet.P, bound=inlet.P, margin=outlet.P - inlet.P, quantity="pressure",
         ))
     return result
