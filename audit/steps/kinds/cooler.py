@@ -34,6 +34,12 @@ class Cooler(StepBase):
 
 
 def evaluate(step: Cooler, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to a cooler
+    with no work; a declared heat sink must be colder than the outlet (``sink-too-hot``).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step: the duty rejected is
+    Q = −duty < 0; W = 0.
+    """
     inlet, outlet = ctx.stream(step.inlet), ctx.stream(step.outlet)
     if step.duty is not None:
         Q, claimed, inferred = -step.duty, ["duty"], []

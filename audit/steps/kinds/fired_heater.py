@@ -129,6 +129,16 @@ class FiredHeater(StepBase):
 
 
 def evaluate(step: FiredHeater, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to a fired
+    heater (the element balance of the combustion side in place of the per-fluid mass balance), then
+    its own checks: the heated side keeps its fluid and mass (``side-changes-fluid``,
+    ``mass-imbalance``), the duty and heating value agree with the streams (``duty-mismatch``,
+    ``heating-value-mismatch``), the flue gas is not colder than the heated stream's inlet
+    (``temperature-cross``).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step: the casing's heat
+    loss is Q < 0; no work.
+    """
     fuel, air, flue = ctx.stream(step.fuel), ctx.stream(step.air), ctx.stream(step.flue_gas)
     hin, hout = ctx.stream(step.heated.inlet), ctx.stream(step.heated.outlet)
     tol = ctx.tolerances

@@ -49,6 +49,13 @@ class GeneralStep(StepBase):
 
 
 def evaluate(step: GeneralStep, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to a step of
+    any streams, heat flows and work, inferring whichever of heat or work is not claimed from the
+    first law.
+
+    Sign convention: Q is heat into the step, W is work delivered by the step; claimed heat is read
+    as written ``added``/``removed``.
+    """
     inlets = [ctx.stream(i) for i in step.inlets]
     outlets = [ctx.stream(o) for o in step.outlets]
     coldest = min(s.T for s in [*inlets, *outlets])

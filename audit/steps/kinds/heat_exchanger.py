@@ -64,6 +64,15 @@ class HeatExchanger(StepBase):
 
 
 def evaluate(step: HeatExchanger, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to a two-sided
+    heat exchanger, then its own checks: each side keeps its fluid and mass (``side-changes-fluid``,
+    ``mass-imbalance``), the claimed duty agrees with the sides (``duty-mismatch``), heat flows from
+    hot to cold (``temperature-cross``), and the approach and internal pinch stay above the minimum
+    (``approach-below-minimum``, ``internal-pinch``).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step: only the heat loss to
+    ambient crosses the boundary (Q < 0); W = 0.
+    """
     hi, ho = ctx.stream(step.hot.inlet), ctx.stream(step.hot.outlet)
     ci, co = ctx.stream(step.cold.inlet), ctx.stream(step.cold.outlet)
     streams = [hi, ho, ci, co]

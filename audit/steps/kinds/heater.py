@@ -36,6 +36,12 @@ class Heater(StepBase):
 
 
 def evaluate(step: Heater, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to a heater
+    with no work; a declared heat source must be hotter than the outlet (``source-too-cold``).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step: the duty received is
+    Q = duty > 0; W = 0.
+    """
     inlet, outlet = ctx.stream(step.inlet), ctx.stream(step.outlet)
     if step.duty is not None:
         Q, claimed, inferred = step.duty, ["duty"], []

@@ -33,6 +33,12 @@ class Mixer(StepBase):
 
 
 def evaluate(step: Mixer, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to an
+    adiabatic mixer with no work; the outlet pressure must not exceed the lowest inlet pressure
+    (``mixer-outlet-pressure``).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step: Q = 0 and W = 0.
+    """
     inlets = [ctx.stream(i) for i in step.inlets]
     outlet = ctx.stream(step.outlet)
     heat = heat_loss_flow(step.heat_loss, step.heat_loss_temperature, ctx.T0,

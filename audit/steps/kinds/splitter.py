@@ -29,6 +29,11 @@ class Splitter(StepBase):
 
 
 def evaluate(step: Splitter, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to a splitter
+    with no heat or work; every outlet must have the inlet's state (``splitter-state-differs``).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step: Q = 0 and W = 0.
+    """
     inlet = ctx.stream(step.inlet)
     outlets = [ctx.stream(o) for o in step.outlets]
     result, _ = finish_flow_step(step, "splitter", ctx, [inlet], outlets, [], 0.0,

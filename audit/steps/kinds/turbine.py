@@ -46,6 +46,14 @@ class Turbine(StepBase):
 
 
 def evaluate(step: Turbine, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to a turbine,
+    then its own checks: outlet pressure below inlet (``pressure-wrong-way``), isentropic efficiency
+    at most 1 and equal to a claimed one (``efficiency-above-one``, ``efficiency-mismatch``),
+    exhaust moisture below the limit (``wet-exhaust``).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step: the shaft power
+    delivered is W > 0; a claimed heat loss is Q < 0.
+    """
     inlet, outlet = ctx.stream(step.inlet), ctx.stream(step.outlet)
     heat = heat_loss_flow(step.heat_loss, step.heat_loss_temperature, ctx.T0,
                           min(inlet.T, outlet.T))

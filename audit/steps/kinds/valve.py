@@ -25,6 +25,12 @@ class Valve(StepBase):
 
 
 def evaluate(step: Valve, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to a throttle
+    valve with no heat or work; the outlet pressure must be below the inlet's and the enthalpy
+    unchanged (``pressure-wrong-way``, ``valve-not-isenthalpic``).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step: Q = 0 and W = 0.
+    """
     inlet, outlet = ctx.stream(step.inlet), ctx.stream(step.outlet)
     result, _ = finish_flow_step(
         step, "valve", ctx, [inlet], [outlet], [], 0.0, ["adiabatic", "no work"], [],

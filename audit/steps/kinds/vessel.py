@@ -85,6 +85,13 @@ def _contents(step: Vessel, ctx: StepContext, which: str, spec: PropertyPair) ->
 
 
 def evaluate(step: Vessel, ctx: StepContext) -> StepResult:
+    """Apply the laws of a closed step from the initial to the final contents (mass, first law, work
+    bound, entropy generation; totals in J and J/K) and choose the classical bound (−ΔA isothermal,
+    −ΔG of other work isothermal and isobaric, else the exergy drop).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step, both totals over the
+    process; heat not claimed is inferred.
+    """
     initial = _contents(step, ctx, "initial", step.initial)
     final = _contents(step, ctx, "final", step.final)
     m = step.mass
