@@ -104,7 +104,8 @@ class Finding:
     quantity: str | None = None
     tolerance: float | None = None
     stream: str | None = None
-    accepted: str | None = None  # a reviewer's acceptance (reason, who, until); see audit.review.acceptance
+    # A reviewer's acceptance (reason, who, until); see audit.review.acceptance.
+    accepted: str | None = None
     # With declared uncertainties (audit.review.uncertainty): the expanded uncertainty of the margin
     # [its unit], the coverage factor k, the verdict (VERDICTS), the largest contributors and,
     # as a cross-check, the Monte Carlo expanded uncertainty (k times the sample deviation).

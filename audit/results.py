@@ -6,11 +6,13 @@ DataFrames of streams, steps and findings for use from a notebook.
 
 from __future__ import annotations
 
+import copy
 import math
-from dataclasses import asdict, dataclass, field
+from dataclasses import asdict, dataclass, field, fields, is_dataclass
+from enum import Enum
 from typing import Any
 
-import pandas as pd
+import pandas as pd  # type: ignore[import-untyped]  # no stubs installed
 
 from audit.findings import SEVERITY_RANK, Finding, at_or_above
 
@@ -54,33 +56,40 @@ class StreamResult:
         return 0.5 * self.velocity**2 + STANDARD_GRAVITY * self.elevation
 
 
+class BoundaryChoice(Enum):
+    """How the boundary temperature of a heat flow was chosen."""
+
+    DECLARED = "declared"
+    """Written in the balance file."""
+    CONSERVATIVE = "conservative"
+    """Not written: heat in from an infinitely hot source, heat out at the dead state (or the
+    coldest stream), the choice least likely to flag a violation."""
+
+
 @dataclass(slots=True)  # one per stream or step: no per-instance dict
 class HeatFlow:
     """A heat flow INTO the step [W] (or [J] for a vessel) crossing the boundary at
     ``temperature`` [K] (math.inf: an infinitely hot source). ``claimed`` is False when the
-    balance inferred it from the first law."""
+    balance inferred it from the first law; ``boundary`` says whether ``temperature`` was
+    declared or chosen conservatively; ``note`` is the text shown with it."""
 
     Q: float
     temperature: float
     claimed: bool
     note: str = ""
+    boundary: BoundaryChoice = BoundaryChoice.DECLARED
+
+    @property
+    def conservative(self) -> bool:
+        """True when the boundary temperature was chosen conservatively, not declared."""
+        return self.boundary is BoundaryChoice.CONSERVATIVE
 
 
-@dataclass(slots=True)  # one per stream or step: no per-instance dict
-class StepResult:
-    """Everything computed for one step. Flow steps: rates [W], [W/K]; vessels: totals [J], [J/K].
+@dataclass(slots=True)
+class Balance:
+    """The computed balances of one step (rates [W], [W/K] or totals [J], [J/K]); the equations
+    are in :mod:`audit.steps.laws` and :mod:`audit.physics.bounds`."""
 
-    Sign convention: Q is heat into the step, W is work delivered by the step.
-    """
-
-    id: str
-    kind: str
-    batch: bool
-    inlets: list[str]
-    outlets: list[str]
-    Q: float
-    W: float
-    heat_flows: list[HeatFlow]
     H_in: float
     H_out: float
     KE_PE_in: float
@@ -90,12 +99,33 @@ class StepResult:
     dS: float
     dG: float
     dA: float
+    Q: float
+    W: float
     energy_residual: float
     mass_residual: dict[str, float]
     S_gen: float
     W_rev: float
     exergy_destroyed: float
     energy_scale: float
+
+
+@dataclass(slots=True)  # one per stream or step: no per-instance dict
+class StepResult:
+    """Everything computed for one step. Flow steps: rates [W], [W/K]; vessels: totals [J], [J/K].
+
+    Sign convention: Q is heat into the step, W is work delivered by the step. The step's
+    :class:`Balance` is held in ``balance``; its values read as attributes of the step too
+    (``result.dH``, ``result.S_gen``...). :data:`STEP_FIELDS` lists the published fields in
+    order and :func:`as_record` gives them as a dict.
+    """
+
+    id: str
+    kind: str
+    batch: bool
+    inlets: list[str]
+    outlets: list[str]
+    balance: Balance
+    heat_flows: list[HeatFlow]
     energy_tolerance: float
     bound_basis: str
     classical_bound: float | None
@@ -107,6 +137,92 @@ class StepResult:
     extra: dict[str, Any] = field(default_factory=dict)
     description: str | None = None
     line: int | None = None
+
+    # -- the balance's values, read as the step's own (reports read them by name) --
+    @property
+    def Q(self) -> float:
+        """Heat into the step [W] or [J]."""
+        return self.balance.Q
+
+    @property
+    def W(self) -> float:
+        """Work delivered by the step [W] or [J]."""
+        return self.balance.W
+
+    @property
+    def H_in(self) -> float:
+        """Σ ṁ h of the inlets [W] (vessel: m u1 [J])."""
+        return self.balance.H_in
+
+    @property
+    def H_out(self) -> float:
+        """Σ ṁ h of the outlets [W] (vessel: m u2 [J])."""
+        return self.balance.H_out
+
+    @property
+    def KE_PE_in(self) -> float:
+        """Kinetic and potential energy in [W]."""
+        return self.balance.KE_PE_in
+
+    @property
+    def KE_PE_out(self) -> float:
+        """Kinetic and potential energy out [W]."""
+        return self.balance.KE_PE_out
+
+    @property
+    def dH(self) -> float:
+        """Enthalpy change, out minus in [W] or [J]."""
+        return self.balance.dH
+
+    @property
+    def dU(self) -> float:
+        """Internal-energy change [W] or [J]."""
+        return self.balance.dU
+
+    @property
+    def dS(self) -> float:
+        """Entropy change [W/K] or [J/K]."""
+        return self.balance.dS
+
+    @property
+    def dG(self) -> float:
+        """Gibbs-function change [W] or [J]."""
+        return self.balance.dG
+
+    @property
+    def dA(self) -> float:
+        """Helmholtz-function change [W] or [J]."""
+        return self.balance.dA
+
+    @property
+    def energy_residual(self) -> float:
+        """First-law residual [W] or [J]."""
+        return self.balance.energy_residual
+
+    @property
+    def mass_residual(self) -> dict[str, float]:
+        """Mass residual per fluid or element [kg/s]."""
+        return self.balance.mass_residual
+
+    @property
+    def S_gen(self) -> float:
+        """Entropy generated [W/K] or [J/K]."""
+        return self.balance.S_gen
+
+    @property
+    def W_rev(self) -> float:
+        """Reversible work delivered [W] or [J]."""
+        return self.balance.W_rev
+
+    @property
+    def exergy_destroyed(self) -> float:
+        """T0 S_gen [W] or [J]."""
+        return self.balance.exergy_destroyed
+
+    @property
+    def energy_scale(self) -> float:
+        """Scale of the relative energy tolerance."""
+        return self.balance.energy_scale
 
 
 @dataclass
@@ -163,13 +279,13 @@ class AuditResult:
     # -- tables --------------------------------------------------------------------------------
     def streams_frame(self) -> pd.DataFrame:
         """One row per stream, SI units."""
-        return pd.DataFrame([asdict(s) for s in self.streams]).set_index("id")
+        return pd.DataFrame([as_record(s) for s in self.streams]).set_index("id")
 
     def steps_frame(self) -> pd.DataFrame:
         """One row per step, SI units (Q in, W out)."""
         rows = []
         for step in self.steps:
-            row = asdict(step)
+            row = as_record(step)
             row.pop("heat_flows")
             row["mass_residual"] = max(
                 (abs(v) for v in step.mass_residual.values()), default=0.0)
@@ -203,3 +319,36 @@ def finite_or_none(value: float | None) -> float | None:
     if value is None or not math.isfinite(value):
         return None
     return value
+
+
+HEAT_FLOW_FIELDS = ("Q", "temperature", "claimed", "note")
+"""The published fields of a :class:`HeatFlow`, in order (``boundary`` shows in ``note``)."""
+
+STEP_FIELDS = (
+    "id", "kind", "batch", "inlets", "outlets", "Q", "W", "heat_flows", "H_in", "H_out",
+    "KE_PE_in", "KE_PE_out", "dH", "dU", "dS", "dG", "dA", "energy_residual", "mass_residual",
+    "S_gen", "W_rev", "exergy_destroyed", "energy_scale", "energy_tolerance", "bound_basis",
+    "classical_bound", "second_law_efficiency", "isentropic_efficiency", "claimed", "inferred",
+    "notes", "extra", "description", "line",
+)
+"""The published fields of a :class:`StepResult`, in order: the keys of its JSON object and the
+columns of the steps table (the balance's values appear flat, as attributes of the step)."""
+
+_PUBLISHED: dict[type, tuple[str, ...]] = {StepResult: STEP_FIELDS, HeatFlow: HEAT_FLOW_FIELDS}
+
+
+def as_record(value: Any) -> Any:
+    """``value`` as plain data for JSON and tables, like :func:`dataclasses.asdict`: a result
+    object becomes a dict of its published fields in order (:data:`STEP_FIELDS`,
+    :data:`HEAT_FLOW_FIELDS`; every field for the other records), recursively; lists, tuples and
+    dicts are copied."""
+    published = _PUBLISHED.get(type(value))
+    if published is not None:
+        return {name: as_record(getattr(value, name)) for name in published}
+    if is_dataclass(value) and not isinstance(value, type):
+        return {name: as_record(getattr(value, name)) for name in (f.name for f in fields(value))}
+    if isinstance(value, (list, tuple)):
+        return type(value)(as_record(v) for v in value)
+    if isinstance(value, dict):
+        return {k: as_record(v) for k, v in value.items()}
+    return copy.deepcopy(value)

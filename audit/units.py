@@ -27,16 +27,17 @@ from functools import lru_cache
 
 import pint
 
+from audit import constants
 from audit.errors import UnitError
 
-UREG = pint.UnitRegistry()
+UREG: pint.UnitRegistry = pint.UnitRegistry()
 """The one pint registry of plant-audit."""
 
-STANDARD_ATMOSPHERE = 101_325.0  # Pa, exact by definition (CGPM 1954)
-
-# Reference conditions of volumetric gas flows [K, Pa].
-NORMAL_CONDITIONS = (273.15, 101_325.0)  # "normal" cubic metre, 0 °C and 1 atm (DIN 1343)
-STANDARD_CONDITIONS = (288.15, 101_325.0)  # "standard" cubic metre, 15 °C and 1 atm (ISO 13443)
+# One standard atmosphere [Pa] and the reference conditions of volumetric gas flows [K, Pa]
+# ("normal" cubic metre: 0 °C, 1 atm, DIN 1343; "standard": 15 °C, 1 atm, ISO 13443).
+STANDARD_ATMOSPHERE = constants.STANDARD_ATMOSPHERE
+NORMAL_CONDITIONS = constants.NORMAL_CONDITIONS
+STANDARD_CONDITIONS = constants.STANDARD_CONDITIONS
 
 _NUMBER = re.compile(r"^\s*([-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
 _GAUGE = re.compile(r"^(mbar|bar|Pa|kPa|MPa|psi)(?:g|\(g\))$")

@@ -23,11 +23,11 @@ IAPWS convention for water, the IIR convention for refrigerants), as printed in 
 tables.
 
 Gas mixtures (a stream written with ``composition:``) are ideal-gas mixtures of the pure species on
-the same formation basis, built from CoolProp's ideal-gas parts in :mod:`audit.properties.mixtures` (which
-documents the model, its verified temperature ranges and its pressure limit); their states say
-``basis = "formation (ideal-gas mixture)"`` and carry their composition. Pure species in a reaction
-(:meth:`PropertyEngine.species_molar`) are ideal gases, or the real liquid for a species written
-``(l)``.
+the same formation basis, built from CoolProp's ideal-gas parts in :mod:`audit.properties.mixtures`
+(which documents the model, its verified temperature ranges and its pressure limit); their states
+say ``basis = "formation (ideal-gas mixture)"`` and carry their composition. Pure species in a
+reaction (:meth:`PropertyEngine.species_molar`) are ideal gases, or the real liquid for a species
+written ``(l)``.
 
 References
 ----------
@@ -43,83 +43,35 @@ from __future__ import annotations
 
 import math
 from collections.abc import Mapping
-from dataclasses import dataclass
 
 import CoolProp
 import CoolProp.CoolProp as CP
 
-from audit.properties import mixtures
+from audit.constants import GAS_CONSTANT
 from audit.errors import StateError
-from audit.formation import P_STANDARD, T_STANDARD, lookup, species
+from audit.formation import lookup
+from audit.properties import mixtures
+from audit.properties.fluids import (
+    BACKEND,
+    PAIRS,
+    PHASE_NAMES,
+    Fluid,
+    check_pressure,
+    check_temperature,
+    inputs_text,
+    open_fluid,
+    short_reason,
+)
+from audit.properties.inversion import rising_root
+from audit.properties.state import BASIS_FLUID, BASIS_FORMATION, BASIS_MIXTURE, State
+from audit.wording import to_bar, to_celsius
+
+__all__ = [
+    "BACKEND", "BASIS_FLUID", "BASIS_FORMATION", "BASIS_MIXTURE", "COOLPROP_VERSION",
+    "GAS_CONSTANT", "PropertyEngine", "State",
+]
 
 COOLPROP_VERSION = CoolProp.__version__
-BACKEND = "HEOS"
-GAS_CONSTANT = 8.314_462_618_153_24  # J/(mol K), exact since the 2019 SI (CODATA 2018)
-
-BASIS_FORMATION = "formation"
-BASIS_FLUID = "fluid reference"
-BASIS_MIXTURE = f"formation ({mixtures.MODEL_NAME})"
-
-_PAIRS = {
-    "TP": CP.PT_INPUTS,
-    "PQ": CP.PQ_INPUTS,
-    "TQ": CP.QT_INPUTS,
-    "Ph": CP.HmassP_INPUTS,
-    "Ps": CP.PSmass_INPUTS,
-}
-
-_PHASE_NAMES = {
-    CP.iphase_liquid: "liquid",
-    CP.iphase_gas: "vapour",
-    CP.iphase_twophase: "two-phase",
-    CP.iphase_supercritical: "supercritical",
-    CP.iphase_supercritical_gas: "gas",  # above T_crit, below P_crit: a superheated gas
-    CP.iphase_supercritical_liquid: "supercritical liquid",
-    CP.iphase_critical_point: "critical point",
-}
-
-
-@dataclass(frozen=True, slots=True)
-class State:
-    """A fluid's intensive state, SI units.
-
-    T [K], P [Pa], rho [kg/m**3], h, u, g, a, psi [J/kg], s [J/(kg K)], quality [-] (None outside
-    the two-phase region), molar_mass [kg/mol]; ``basis`` says whether h, s, u, g, a are on the
-    formation basis or the fluid's own reference. A gas mixture also carries its ``composition``
-    (mole fractions by formula) and the species that would condense at its state, as (formula,
-    partial pressure [Pa], saturation pressure [Pa]).
-    """
-
-    fluid: str
-    T: float
-    P: float
-    rho: float
-    h: float
-    s: float
-    u: float
-    phase: str
-    quality: float | None
-    g: float
-    a: float
-    psi: float
-    molar_mass: float
-    basis: str
-    composition: tuple[tuple[str, float], ...] | None = None
-    condensing: tuple[tuple[str, float, float], ...] = ()
-
-
-@dataclass(frozen=True)
-class _Fluid:
-    name: str
-    T_min: float
-    T_max: float
-    P_max: float
-    T_crit: float
-    P_crit: float
-    molar_mass: float
-    h_shift: float  # J/kg added to CoolProp's h (and u) to reach the formation basis
-    s_shift: float  # J/(kg K) added to CoolProp's s
-    basis: str
 
 
 class PropertyEngine:
@@ -138,7 +90,7 @@ class PropertyEngine:
         self.dead_P = dead_P
         self.saturation_band = saturation_band
         self._states: dict[str, CP.AbstractState] = {}
-        self._fluids: dict[str, _Fluid] = {}
+        self._fluids: dict[str, Fluid] = {}
         self._cache: dict[tuple, State] = {}
         self._dead: dict[str, tuple[float, float]] = {}
         self._tsat: dict[tuple[str, float], float] = {}
@@ -156,38 +108,15 @@ class PropertyEngine:
         self._flashes = value - self._mixtures.flash_count
 
     # -- fluids -------------------------------------------------------------------------------
-    def fluid(self, name: str) -> _Fluid:
+    def fluid(self, name: str) -> Fluid:
         """Fluid constants by CoolProp name or alias; :class:`StateError` for an unknown fluid."""
         known = self._fluids.get(name)
         if known is not None:
             return known
-        try:
-            state = CP.AbstractState(BACKEND, name)
-        except ValueError:
-            raise StateError(
-                f"unknown fluid '{name}': not a CoolProp fluid name (for example 'Water', "
-                "'Ammonia', 'Nitrogen', 'Air', 'CarbonDioxide', 'R134a')"
-            ) from None
-        canonical = state.fluid_names()[0]
-        if len(state.fluid_names()) != 1:
-            raise StateError(f"'{name}' is a mixture; give one pure fluid")  # pragma: no cover
-        M = state.molar_mass()
-        h_shift = s_shift = 0.0
-        basis = BASIS_FLUID
-        data = species(canonical)
-        if data is not None:
-            h_ig, s_ig = _ideal_gas_standard(state)
-            h_shift = (data.enthalpy_of_formation - h_ig) / M
-            s_shift = (data.standard_entropy - s_ig) / M
-            basis = BASIS_FORMATION
-        info = _Fluid(
-            name=canonical, T_min=state.Tmin(), T_max=state.Tmax(), P_max=state.pmax(),
-            T_crit=state.T_critical(), P_crit=state.p_critical(), molar_mass=M,
-            h_shift=h_shift, s_shift=s_shift, basis=basis,
-        )
-        self._states[canonical] = state
+        info, state = open_fluid(name)
+        self._states[info.name] = state
         self._fluids[name] = info
-        self._fluids[canonical] = info
+        self._fluids[info.name] = info
         return info
 
     def canonical_name(self, name: str) -> str:
@@ -245,7 +174,7 @@ class PropertyEngine:
 
     def _evaluate(self, fluid: str, pair: str, a: float, b: float, table_basis: bool) -> State:
         info = self.fluid(fluid)
-        if pair not in _PAIRS:
+        if pair not in PAIRS:
             raise StateError(f"unsupported input pair '{pair}'")  # pragma: no cover
         for value in (a, b):
             if not math.isfinite(value):
@@ -255,9 +184,9 @@ class PropertyEngine:
         T_in = a if pair in ("TP", "TQ") else None
         P_in = a if pair in ("PQ", "Ph", "Ps") else (b if pair == "TP" else None)
         if T_in is not None:
-            self._check_T(info, T_in)
+            check_temperature(info, T_in)
         if P_in is not None:
-            self._check_P(info, P_in)
+            check_pressure(info, P_in)
         if pair in ("Ph", "Ps") and not table_basis:
             b = b - (info.h_shift if pair == "Ph" else info.s_shift)
         state = self._states[info.name]
@@ -266,8 +195,8 @@ class PropertyEngine:
             imposed = self._phase_for_TP(info, a, b)
         elif pair == "PQ" and a >= info.P_crit:
             raise StateError(
-                f"a quality is given at {a / 1e5:.6g} bar, above the critical pressure "
-                f"({info.P_crit / 1e5:.6g} bar) of {info.name}, where there is no two-phase state"
+                f"a quality is given at {to_bar(a):.6g} bar, above the critical pressure "
+                f"({to_bar(info.P_crit):.6g} bar) of {info.name}, where there is no two-phase state"
             )
         elif pair == "TQ" and a >= info.T_crit:
             raise StateError(
@@ -284,7 +213,7 @@ class PropertyEngine:
             elif pair == "Ph":
                 state.update(CP.HmassP_INPUTS, b, a)
             else:
-                state.update(_PAIRS[pair], a, b)
+                state.update(PAIRS[pair], a, b)
             self._flashes += 1
             T, P = state.T(), state.p()
             rho, h, s, u = state.rhomass(), state.hmass(), state.smass(), state.umass()
@@ -293,7 +222,7 @@ class PropertyEngine:
         except ValueError as exc:
             raise StateError(
                 f"the equation of state of {info.name} cannot evaluate this state "
-                f"({_inputs_text(pair, a, b)}): {_short(exc)}"
+                f"({inputs_text(pair, a, b)}): {short_reason(exc)}"
             ) from None
         finally:
             if imposed is not None:
@@ -302,9 +231,9 @@ class PropertyEngine:
         if not (isfinite(T) and isfinite(P) and isfinite(rho) and isfinite(h) and isfinite(s)
                 and isfinite(u)):
             raise StateError(f"the equation of state of {info.name} returned a non-finite value")
-        self._check_T(info, T)
-        self._check_P(info, P)
-        phase = _PHASE_NAMES.get(phase_index, "unknown")
+        check_temperature(info, T)
+        check_pressure(info, P)
+        phase = PHASE_NAMES.get(phase_index, "unknown")
         quality = Q if phase == "two-phase" and 0.0 <= Q <= 1.0 else None
         if pair in ("PQ", "TQ"):
             phase, quality = "two-phase", b
@@ -318,7 +247,7 @@ class PropertyEngine:
             molar_mass=info.molar_mass, basis=info.basis,
         )
 
-    def _phase_for_TP(self, info: _Fluid, T: float, P: float) -> int | None:
+    def _phase_for_TP(self, info: Fluid, T: float, P: float) -> CP.phases | None:
         """Decide the phase of a (T, P) input from T_sat(P); refuse states in the band."""
         if T >= info.T_crit or P >= info.P_crit:
             return None
@@ -327,33 +256,15 @@ class PropertyEngine:
             return None
         if abs(T - T_sat) <= self.saturation_band:
             raise StateError(
-                f"(T, P) = ({T - 273.15:.3f} °C, {P / 1e5:.6g} bar) lies within "
+                f"(T, P) = ({to_celsius(T):.3f} °C, {to_bar(P):.6g} bar) lies within "
                 f"{self.saturation_band:g} K of the saturation temperature "
-                f"{T_sat - 273.15:.3f} °C of {info.name} at this pressure, so its phase is "
+                f"{to_celsius(T_sat):.3f} °C of {info.name} at this pressure, so its phase is "
                 "ambiguous; give a quality (0 = saturated liquid, 1 = saturated vapour) with "
                 "T or P instead"
             )
         return CP.iphase_liquid if T < T_sat else CP.iphase_gas
 
-    def _check_T(self, info: _Fluid, T: float) -> None:
-        if not T > 0.0:
-            raise StateError(f"temperature {T:.6g} K is not a positive absolute temperature")
-        if T < info.T_min or T > info.T_max:
-            raise StateError(
-                f"temperature {T - 273.15:.6g} °C is outside the range of the equation of state "
-                f"of {info.name} ({info.T_min - 273.15:.6g} to {info.T_max - 273.15:.6g} °C)"
-            )
-
-    def _check_P(self, info: _Fluid, P: float) -> None:
-        if not P > 0.0:
-            raise StateError(f"pressure {P:.6g} Pa is not a positive absolute pressure")
-        if P > info.P_max:
-            raise StateError(
-                f"pressure {P / 1e5:.6g} bar is above the range of the equation of state of "
-                f"{info.name} (up to {info.P_max / 1e5:.6g} bar)"
-            )
-
-    def _dead_state(self, info: _Fluid) -> tuple[float, float]:
+    def _dead_state(self, info: Fluid) -> tuple[float, float]:
         """h0 [J/kg] and s0 [J/(kg K)] of the fluid at the dead state, on the returned basis."""
         cached = self._dead.get(info.name)
         if cached is not None:
@@ -395,7 +306,8 @@ class PropertyEngine:
 
     def mixture_state(self, fractions: Mapping[str, float], T: float, P: float,
                       basis: str = "mole") -> State:
-        """An ideal-gas mixture at T [K] and P [Pa] on the formation basis (:mod:`audit.properties.mixtures`).
+        """An ideal-gas mixture at T [K] and P [Pa] on the formation basis
+        (:mod:`audit.properties.mixtures`).
 
         ``fluid`` is a readable name such as ``mixture(N2 0.7809, O2 0.2094, ...)``, ``phase`` is
         ``"gas"``, ψ is relative to the same mixture (as an ideal gas) at the dead state, and
@@ -448,36 +360,18 @@ class PropertyEngine:
         if f_low > 0.0 or f_high < 0.0:
             name = "h" if pair == "Ph" else "s"
             raise StateError(
-                f"no state of this gas mixture at {P / 1e5:.6g} bar has {name} = {target:.6g} "
-                f"within its verified temperature range ({low - 273.15:.6g} to "
-                f"{high - 273.15:.6g} °C)")
-        side = 0
-        T = low
-        for _ in range(100):
-            T = (low * f_high - high * f_low) / (f_high - f_low)
-            f = residual(T)
-            if f == 0.0 or high - low < 1e-9 * T:
-                break
-            if f > 0.0:
-                high, f_high = T, f
-                if side == -1:
-                    f_low /= 2.0
-                side = -1
-            else:
-                low, f_low = T, f
-                if side == 1:
-                    f_high /= 2.0
-                side = 1
-            if abs(f) < 1e-10 * max(1.0, abs(target)):
-                break
+                f"no state of this gas mixture at {to_bar(P):.6g} bar has {name} = {target:.6g} "
+                f"within its verified temperature range ({to_celsius(low):.6g} to "
+                f"{to_celsius(high):.6g} °C)")
+        T = rising_root(residual, low, high, f_low, f_high, target)
         return self.mixture_state(fractions, T, P)
 
     def species_molar(self, name: str, phase: str, T: float, P: float) -> tuple[float, float]:
         """A pure species of a reaction at T [K] and P [Pa] on the formation basis:
         (h [J/mol], s [J/(mol K)]).
 
-        ``phase`` ``"g"``: the ideal gas (:mod:`audit.properties.mixtures`); ``"l"``: the real liquid from the
-        species' equation of state (IAPWS-95 for water), which must be liquid at (T, P).
+        ``phase`` ``"g"``: the ideal gas (:mod:`audit.properties.mixtures`); ``"l"``: the real
+        liquid from the species' equation of state (IAPWS-95 for water), which must be liquid at (T, P).
         """
         data = lookup(name)
         if data is None:
@@ -487,7 +381,7 @@ class PropertyEngine:
         state = self.state(data.fluid, "TP", T, P)
         if state.phase != "liquid":
             raise StateError(
-                f"{data.formula}(l) is not liquid at {T - 273.15:.6g} °C and {P / 1e5:.6g} bar "
+                f"{data.formula}(l) is not liquid at {to_celsius(T):.6g} °C and {to_bar(P):.6g} bar "
                 f"(it is {state.phase} there); write {data.formula}(g) or give other conditions")
         return state.h * state.molar_mass, state.s * state.molar_mass
 
@@ -503,30 +397,3 @@ class PropertyEngine:
         return self._mixtures.saturation_pressure(self.canonical_name(fluid), T)
 
 
-def _ideal_gas_standard(state: CP.AbstractState) -> tuple[float, float]:
-    """CoolProp's ideal-gas h [J/mol] and s [J/(mol K)] at 298.15 K and 1 bar.
-
-    ``smolar_idealgas`` is evaluated at the state's own density, so it is read at a low density in
-    the vapour and moved to the standard pressure with the exact ideal-gas term −R ln(ρ°/ρ).
-    """
-    rho_low = 1.0e-3  # mol/m**3, far below any saturation density at 298.15 K
-    state.update(CP.DmolarT_INPUTS, rho_low, T_STANDARD)
-    h_ig = state.hmolar_idealgas()
-    rho_standard = P_STANDARD / (GAS_CONSTANT * T_STANDARD)
-    s_ig = state.smolar_idealgas() - GAS_CONSTANT * math.log(rho_standard / rho_low)
-    return h_ig, s_ig
-
-
-def _inputs_text(pair: str, a: float, b: float) -> str:
-    """A state's two inputs in engineering units, for messages: 'P = 1 bar, h = 1e+05 kJ/kg'."""
-    shown = {"T": lambda v: f"T = {v - 273.15:.6g} °C", "P": lambda v: f"P = {v / 1e5:.6g} bar",
-             "Q": lambda v: f"quality = {v:.6g}", "h": lambda v: f"h = {v / 1e3:.6g} kJ/kg",
-             "s": lambda v: f"s = {v / 1e3:.6g} kJ/(kg K)"}
-    first, second = pair[:1], pair[1:]
-    if first not in shown or second not in shown:
-        return f"{pair}: {a:.6g}, {b:.6g}"
-    return f"{shown[first](a)}, {shown[second](b)}"
-
-def _short(exc: Exception) -> str:
-    text = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
-    return text[:200]

@@ -53,11 +53,12 @@ from dataclasses import dataclass
 
 import CoolProp.CoolProp as CP
 
+from audit.constants import GAS_CONSTANT
 from audit.errors import StateError
 from audit.formation import P_STANDARD, SPECIES, T_STANDARD, lookup
 from audit.model.composition import check_fractions
+from audit.wording import to_bar, to_celsius
 
-GAS_CONSTANT = 8.314_462_618_153_24  # J/(mol K), exact since the 2019 SI (CODATA 2018)
 BACKEND = "HEOS"
 
 # Temperatures [K] over which CoolProp's ideal-gas part of each species was checked against
@@ -178,10 +179,11 @@ class IdealGasMixtures:
         z = self.z_estimate(components, T, P)
         if check_ideal and abs(z - 1.0) > IDEAL_GAS_Z_LIMIT:
             raise StateError(
-                f"at {T - 273.15:.6g} °C and {P / 1e5:.6g} bar this gas mixture is not an ideal gas "
-                f"(compressibility Z ≈ {z:.4f} by its second virial coefficient; the ideal-gas "
-                f"mixture model is used only while |Z − 1| ≤ {IDEAL_GAS_Z_LIMIT:g}); real-fluid "
-                "mixtures are not supported: give the stream at a lower pressure or as a pure fluid")
+                f"at {to_celsius(T):.6g} °C and {to_bar(P):.6g} bar this gas mixture is not an "
+                f"ideal gas (compressibility Z ≈ {z:.4f} by its second virial coefficient; the "
+                f"ideal-gas mixture model is used only while |Z − 1| ≤ {IDEAL_GAS_Z_LIMIT:g}); "
+                "real-fluid mixtures are not supported: give the stream at a lower pressure or as "
+                "a pure fluid")
         h = s = 0.0
         for c in components:
             h_i, s_i = self._standard(c.fluid, T)
@@ -292,6 +294,6 @@ class IdealGasMixtures:
                              "gas mixture")
         if not low <= T <= high:
             raise StateError(
-                f"temperature {T - 273.15:.6g} °C is outside the range over which the ideal-gas "
-                f"properties of {formula} were verified ({low - 273.15:.6g} to "
-                f"{high - 273.15:.6g} °C, against NIST-JANAF)")
+                f"temperature {to_celsius(T):.6g} °C is outside the range over which the ideal-gas "
+                f"properties of {formula} were verified ({to_celsius(low):.6g} to "
+                f"{to_celsius(high):.6g} °C, against NIST-JANAF)")

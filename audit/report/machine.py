@@ -30,7 +30,7 @@ from dataclasses import asdict
 from pathlib import Path
 from typing import Any
 
-from audit.results import AuditResult
+from audit.results import AuditResult, as_record
 
 JSON_VERSION = "1"
 
@@ -69,7 +69,7 @@ def to_dict(result: AuditResult) -> dict:
         "verdict": {"counts": result.counts()},
         "units": UNITS,
         "streams": [asdict(s) for s in result.streams],
-        "steps": [asdict(s) for s in result.steps],
+        "steps": [as_record(s) for s in result.steps],
         "findings": [asdict(f) for f in result.findings],
         "plant": asdict(result.plant),
     })

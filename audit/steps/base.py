@@ -1,9 +1,10 @@
 """What every step kind shares: the evaluation context, the registry and the finishing helper.
 
 A step kind is one module in :mod:`audit.steps.kinds` that defines a pydantic model (a subclass of
-:class:`audit.model.steps.StepBase` with ``kind: Literal["..."]``) and an ``evaluate(step, ctx)`` function, and calls
-:func:`register` once. ``evaluate`` turns the step's claims into heat flows into the step and work
-delivered by the step, lets :func:`finish_flow_step` apply the laws, and adds the kind's own checks.
+:class:`audit.model.steps.StepBase` with ``kind: Literal["..."]``) and an ``evaluate(step, ctx)``
+function, and calls :func:`register` once. ``evaluate`` turns the step's claims into heat flows into
+the step and work delivered by the step, lets :func:`finish_flow_step` apply the laws, and adds the
+kind's own checks.
 """
 
 from __future__ import annotations
@@ -16,9 +17,14 @@ from typing import Any
 from audit.findings import Finding
 from audit.model.steps import HeatClaim, StepBase
 from audit.model.tolerances import Tolerances
+from audit.physics.bounds import isothermal_flow_work_bound
+from audit.physics.efficiency import second_law_efficiency
 from audit.properties.engine import PropertyEngine
-from audit.results import HeatFlow, StepResult, StreamResult
-from audit.steps.laws import Balance, energy_tolerance, flow_balance, law_findings
+from audit.results import Balance, BoundaryChoice, HeatFlow, StepResult, StreamResult
+from audit.steps.laws import energy_tolerance, flow_balance, law_findings
+
+CONSERVATIVE_WORDS = "conservative boundary temperature"
+"""What the note of a heat flow says when its boundary temperature was not declared."""
 
 CONSERVATIVE_NOTE = (
     "Heat with no declared boundary temperature is taken as received from an infinitely hot "
@@ -101,7 +107,7 @@ def bound_basis_flow(
     temperatures = [s.T for s in streams] + [
         q.temperature for q in heat_flows if q.claimed and math.isfinite(q.temperature)]
     if temperatures and max(temperatures) - min(temperatures) <= tol.isothermal_band:
-        return "-ΔG (isothermal flow)", -dG
+        return "-ΔG (isothermal flow)", isothermal_flow_work_bound(dG)
     return "exergy drop", None
 
 
@@ -129,7 +135,7 @@ def finish_flow_step(
     tol = ctx.tolerances
     balance = flow_balance(inlets, outlets, heat_flows, W, ctx.T0)
     balance.energy_scale = max(balance.energy_scale, energy_scale_floor)
-    conservative = any("conservative" in q.note for q in heat_flows)
+    conservative = any(q.conservative for q in heat_flows)
     inlet_mass = sum(s.mass_flow for s in inlets)
     for finding in law_findings(
         step.id, balance, tol, ctx.T0, batch=False, inlet_mass=inlet_mass,
@@ -140,12 +146,7 @@ def finish_flow_step(
     basis, classical = bound_basis_flow([*inlets, *outlets], heat_flows, tol, balance.dG)
     result = StepResult(
         id=step.id, kind=kind, batch=False, inlets=[s.id for s in inlets],
-        outlets=[s.id for s in outlets], Q=balance.Q, W=W, heat_flows=heat_flows,
-        H_in=balance.H_in, H_out=balance.H_out, KE_PE_in=balance.KE_PE_in,
-        KE_PE_out=balance.KE_PE_out, dH=balance.dH, dU=balance.dU, dS=balance.dS,
-        dG=balance.dG, dA=balance.dA, energy_residual=balance.energy_residual,
-        mass_residual=balance.mass_residual, S_gen=balance.S_gen, W_rev=balance.W_rev,
-        exergy_destroyed=balance.exergy_destroyed, energy_scale=balance.energy_scale,
+        outlets=[s.id for s in outlets], balance=balance, heat_flows=heat_flows,
         energy_tolerance=energy_tolerance(balance, tol, batch=False), bound_basis=basis,
         classical_bound=classical, second_law_efficiency=second_law_efficiency(W, balance.W_rev),
         claimed=claimed, inferred=inferred, notes=list(notes), description=step.description,
@@ -156,25 +157,24 @@ def finish_flow_step(
     return result, balance
 
 
-def second_law_efficiency(W: float, W_rev: float) -> float | None:
-    """W / Ẇ_rev for a work producer, Ẇ_rev / W for a consumer (both as magnitudes) [-]."""
-    if W > 0 and W_rev > 0:
-        return W / W_rev
-    if W < 0 and W_rev < 0:
-        return W_rev / W
-    return None
-
-
 def heat_flows_from_claims(
     claims: Sequence[HeatClaim], T0: float, coldest: float | None = None
 ) -> list[HeatFlow]:
     """Heat flows into the step from written claims, with conservative boundary temperatures."""
-    flows = []
-    for claim in claims:
-        Q = claim.into_step
-        flows.append(HeatFlow(
-            Q=Q, temperature=boundary_temperature(Q, claim.temperature, T0, coldest),
-            claimed=True,
-            note="" if claim.temperature is not None else "conservative boundary temperature",
-        ))
-    return flows
+    return [heat_flow(claim.into_step, claim.temperature, T0, claimed=True, coldest=coldest)
+            for claim in claims]
+
+
+def heat_flow(
+    Q: float, declared: float | None, T0: float, claimed: bool, label: str = "",
+    coldest: float | None = None,
+) -> HeatFlow:
+    """A heat flow Q [W] into the step at the ``declared`` boundary temperature [K] or, when there
+    is none, at the conservative one of :func:`boundary_temperature`; ``label`` (``"inferred"``,
+    ``"heat loss"``) begins its note, which also says when the boundary is conservative."""
+    boundary = BoundaryChoice.DECLARED if declared is not None else BoundaryChoice.CONSERVATIVE
+    note = label
+    if boundary is BoundaryChoice.CONSERVATIVE:
+        note = f"{label}, {CONSERVATIVE_WORDS}" if label else CONSERVATIVE_WORDS
+    return HeatFlow(Q=Q, temperature=boundary_temperature(Q, declared, T0, coldest),
+                    claimed=claimed, note=note, boundary=boundary)

@@ -49,6 +49,12 @@ from pydantic import Field, field_validator, model_validator
 from audit.findings import ERROR, Finding, relative
 from audit.formation import species
 from audit.model.quantities import Current, Power, Pressure, Temperature, Voltage
+from audit.physics.electrochemistry import (
+    faradaic_efficiency,
+    faraday_current,
+    reversible_voltage,
+    thermoneutral_voltage,
+)
 from audit.results import StepResult, StreamResult
 from audit.steps.base import HeatClaim, StepBase, StepContext
 from audit.steps.laws import format_power
@@ -60,7 +66,7 @@ from audit.steps.reacting import (
     properties_at,
     step_conditions,
 )
-from audit.steps.reactions import FARADAY, Reaction, ReactionProperties, parse_reaction
+from audit.steps.reactions import Reaction, ReactionProperties, parse_reaction
 
 ELECTROLYSER = "electrolyser"
 FUEL_CELL = "fuel_cell"
@@ -181,19 +187,19 @@ def evaluate_cell(step: CellStep, ctx: StepContext, kind: str) -> StepResult:
             ctx.add(finding)
 
     corners = _corners(ctx, reaction, step, [*inlets, *outlets])
-    E_rev = [sign * p.dG / (n * FARADAY) for p in corners]
-    E_tn = [sign * p.dH / (n * FARADAY) for p in corners]
+    E_rev = [reversible_voltage(-sign * p.dG, n) for p in corners]
+    E_tn = [thermoneutral_voltage(-sign * p.dH, n) for p in corners]
     E_rev_checked = min(E_rev) if driven else max(E_rev)
     E_tn_checked = min(E_tn)
     charge = step.current * step.cells if step.current is not None else None
     efficiency = None
     if charge is not None and xi > 0.0:
-        efficiency = n * FARADAY * xi / charge if driven else charge / (n * FARADAY * xi)
+        efficiency = faradaic_efficiency(n, xi, charge, electrolytic=driven)
     result.extra.update({
         "reaction": reaction.equation, "electrons": n, "extent": xi,
         "reaction_T": T_rep, "reaction_P": P_rep, "dH_rxn": reported.dH, "dS_rxn": reported.dS,
-        "dG_rxn": reported.dG, "E_rev": sign * reported.dG / (n * FARADAY),
-        "E_tn": sign * reported.dH / (n * FARADAY), "E_rev_checked": E_rev_checked,
+        "dG_rxn": reported.dG, "E_rev": reversible_voltage(-sign * reported.dG, n),
+        "E_tn": thermoneutral_voltage(-sign * reported.dH, n), "E_rev_checked": E_rev_checked,
         "E_tn_checked": E_tn_checked, "gibbs_work": sign * xi * reported.dG,
         "electrical_power": electrical, "stack_power": stack, "charge_rate": charge,
         "faradaic_efficiency": efficiency,
@@ -245,7 +251,7 @@ def _cell_findings(step: CellStep, ctx: StepContext, result: StepResult, driven:
         ))
     if (V is not None and driven and step.heat is not None and xi > 0.0
             and V < E_tn - tol.energy_relative * E_tn):
-        needed = n * FARADAY * xi * (E_tn - V)
+        needed = faraday_current(n, xi) * (E_tn - V)
         shown = sum(q.Q for q in heat if q.claimed)
         if shown < needed - result.energy_tolerance:
             found.append(Finding(
@@ -268,7 +274,7 @@ def _cell_findings(step: CellStep, ctx: StepContext, result: StepResult, driven:
                 claimed=charge, bound=0.0, quantity="fraction",
             ))
         elif efficiency is not None:
-            made = n * FARADAY * xi
+            made = faraday_current(n, xi)
             if efficiency > 1.0 + tol.energy_relative:
                 words = (f"the streams show {xi:.4g} mol/s of reaction, which needs "
                          f"{made:.5g} A of charge (n F ξ̇), more than the {charge:.5g} A "

@@ -26,46 +26,30 @@ References
 
 from __future__ import annotations
 
-import math
 from collections.abc import Sequence
-from dataclasses import dataclass
 
 from audit.findings import ERROR, Finding, relative
 from audit.model.tolerances import Tolerances
-from audit.results import HeatFlow, StreamResult
-
-
-@dataclass
-class Balance:
-    """The computed balances of one step (rates [W], [W/K] or totals [J], [J/K])."""
-
-    H_in: float
-    H_out: float
-    KE_PE_in: float
-    KE_PE_out: float
-    dH: float
-    dU: float
-    dS: float
-    dG: float
-    dA: float
-    Q: float
-    W: float
-    energy_residual: float
-    mass_residual: dict[str, float]
-    S_gen: float
-    W_rev: float
-    exergy_destroyed: float
-    energy_scale: float
+from audit.physics.bounds import energy_residual, entropy_generation, reversible_work
+from audit.physics.exergy import carnot_factor, exergy_destroyed, heat_exergy
+from audit.physics.exergy import entropy_of_heat as heat_entropy
+from audit.results import Balance, HeatFlow, StreamResult
 
 
 def heat_exergy_factor(T_boundary: float, T0: float) -> float:
-    """Carnot factor 1 − T0/T_j of heat crossing the boundary at T_j [K]; 1 for T_j = ∞."""
-    return 1.0 if math.isinf(T_boundary) else 1.0 - T0 / T_boundary
+    """Carnot factor 1 − T0/T_j of heat crossing the boundary at T_j [K]; 1 for T_j = ∞
+    (:func:`audit.physics.exergy.carnot_factor`)."""
+    return carnot_factor(T_boundary, T0)
 
 
 def entropy_of_heat(heat_flows: Sequence[HeatFlow]) -> float:
     """Σ Q_j / T_j [W/K] (0 for heat from an infinitely hot source)."""
-    return sum(0.0 if math.isinf(q.temperature) else q.Q / q.temperature for q in heat_flows)
+    return sum(heat_entropy(q.Q, q.temperature) for q in heat_flows)
+
+
+def exergy_of_heat(heat_flows: Sequence[HeatFlow], T0: float) -> float:
+    """Σ Q_j (1 − T0/T_j) [W] over the heat flows into the step."""
+    return sum(heat_exergy(q.Q, q.temperature, T0) for q in heat_flows)
 
 
 def flow_balance(
@@ -92,26 +76,21 @@ def flow_balance(
     dG = G_out - G_in
     dA = A_out - A_in
     Q = sum(q.Q for q in heat_flows) if heat_flows else 0  # as sum() of nothing
-    residual = Q - W - (dH + KE_out - KE_in)
+    dE = dH + KE_out - KE_in
+    residual = energy_residual(Q, W, dE)
     mass: dict[str, float] = {}
     for s in inlets:
         mass[s.fluid] = mass.get(s.fluid, 0.0) + s.mass_flow
     for s in outlets:
         mass[s.fluid] = mass.get(s.fluid, 0.0) - s.mass_flow
-    if heat_flows:
-        S_gen = dS - entropy_of_heat(heat_flows)
-        W_rev = -(dH + KE_out - KE_in - T0 * dS) + sum(
-            q.Q * heat_exergy_factor(q.temperature, T0) for q in heat_flows)
-        heat_scale = sum(abs(q.Q) for q in heat_flows)
-    else:  # the same sums over no heat flow
-        S_gen = dS - 0
-        W_rev = -(dH + KE_out - KE_in - T0 * dS) + 0
-        heat_scale = 0
+    S_gen = entropy_generation(dS, entropy_of_heat(heat_flows))
+    W_rev = reversible_work(dE, dS, T0, exergy_of_heat(heat_flows, T0))
+    heat_scale = sum(abs(q.Q) for q in heat_flows)
     scale = max(abs(W), heat_scale, energy_turnover(inlets, outlets))
     return Balance(
         H_in=H_in, H_out=H_out, KE_PE_in=KE_in, KE_PE_out=KE_out, dH=dH, dU=dU, dS=dS, dG=dG,
         dA=dA, Q=Q, W=W, energy_residual=residual, mass_residual=mass, S_gen=S_gen,
-        W_rev=W_rev, exergy_destroyed=T0 * S_gen, energy_scale=scale,
+        W_rev=W_rev, exergy_destroyed=exergy_destroyed(S_gen, T0), energy_scale=scale,
     )
 
 
@@ -171,16 +150,17 @@ def closed_balance(
     dG = mass * (final.g - initial.g)
     dA = mass * (final.a - initial.a)
     Q = sum(q.Q for q in heat_flows)
-    residual = Q - W - dU
-    S_gen = dS - entropy_of_heat(heat_flows)
-    W_rev = -(dU - T0 * dS) + sum(q.Q * heat_exergy_factor(q.temperature, T0) for q in heat_flows)
+    residual = energy_residual(Q, W, dU)
+    S_gen = entropy_generation(dS, entropy_of_heat(heat_flows))
+    W_rev = reversible_work(dU, dS, T0, exergy_of_heat(heat_flows, T0))
     scale = max(abs(W), sum(abs(q.Q) for q in heat_flows), abs(dU))
     mass_residual = {initial.fluid: 0.0} if initial.fluid == final.fluid else {
         initial.fluid: mass, final.fluid: -mass}
     return Balance(
         H_in=mass * initial.u, H_out=mass * final.u, KE_PE_in=0.0, KE_PE_out=0.0, dH=dH, dU=dU,
         dS=dS, dG=dG, dA=dA, Q=Q, W=W, energy_residual=residual, mass_residual=mass_residual,
-        S_gen=S_gen, W_rev=W_rev, exergy_destroyed=T0 * S_gen, energy_scale=scale,
+        S_gen=S_gen, W_rev=W_rev, exergy_destroyed=exergy_destroyed(S_gen, T0),
+        energy_scale=scale,
     )
 
 

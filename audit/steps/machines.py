@@ -5,8 +5,13 @@ from __future__ import annotations
 
 from audit.errors import StateError
 from audit.findings import ERROR, WARNING, Finding
+from audit.physics.efficiency import (
+    isentropic_efficiency_compression,
+    isentropic_efficiency_cooled_compression,
+)
 from audit.results import HeatFlow, StreamResult
-from audit.steps.base import StepContext, boundary_temperature
+from audit.steps.base import StepContext, heat_flow
+from audit.wording import to_bar
 
 EFFICIENCY_MATCH = 0.01
 """A claimed isentropic efficiency may differ from the computed one by this much [-]."""
@@ -19,9 +24,7 @@ def heat_loss_flow(
     (or the coldest stream, when that is colder)."""
     if loss is None:
         return []
-    note = "heat loss" + ("" if temperature is not None else ", conservative boundary temperature")
-    return [HeatFlow(Q=-loss, temperature=boundary_temperature(-loss, temperature, T0, coldest),
-                     claimed=True, note=note)]
+    return [heat_flow(-loss, temperature, T0, claimed=True, label="heat loss", coldest=coldest)]
 
 
 def isentropic_outlet_enthalpy(
@@ -70,8 +73,8 @@ def evaluate_work_absorber(step, kind: str, ctx: StepContext, noun: str):
     if outlet.P <= inlet.P:
         ctx.add(Finding(
             ERROR, "pressure-wrong-way", step.id,
-            f"the outlet pressure ({outlet.P / 1e5:.4g} bar) is not above the inlet pressure "
-            f"({inlet.P / 1e5:.4g} bar); a {noun} raises the pressure (inlet and outlet swapped?)",
+            f"the outlet pressure ({to_bar(outlet.P):.4g} bar) is not above the inlet pressure "
+            f"({to_bar(inlet.P):.4g} bar); a {noun} raises the pressure (inlet and outlet swapped?)",
             claimed=outlet.P, bound=inlet.P, margin=inlet.P - outlet.P, quantity="pressure",
         ))
         return result
@@ -79,9 +82,9 @@ def evaluate_work_absorber(step, kind: str, ctx: StepContext, noun: str):
     cooled = step.heat_loss is not None and step.shaft_power is not None
     if h_s is not None and cooled and W < 0:
         # A cooled machine: the efficiency is the isentropic power over the shaft power.
-        eta = inlet.mass_flow * (h_s - inlet.h) / -W
+        eta = isentropic_efficiency_cooled_compression(inlet.mass_flow, inlet.h, h_s, -W)
     elif h_s is not None and outlet.h - inlet.h > 0:
-        eta = (h_s - inlet.h) / (outlet.h - inlet.h)
+        eta = isentropic_efficiency_compression(inlet.h, outlet.h, h_s)
     else:
         eta = None
     if eta is not None and h_s is not None:

@@ -28,8 +28,8 @@ from audit.steps.base import (
     HeatClaim,
     StepBase,
     StepContext,
-    boundary_temperature,
     finish_flow_step,
+    heat_flow,
     heat_flows_from_claims,
 )
 from audit.steps.reactions import (
@@ -187,9 +187,8 @@ def heat_and_work(
     work = 0.0 if W is None else W
     claimed.append("no work" if W is None else "work")
     Q = dE + work
-    note = "inferred" + ("" if heat_temperature else ", conservative boundary temperature")
-    flows = [HeatFlow(Q=Q, temperature=boundary_temperature(Q, heat_temperature, ctx.T0, coldest),
-                      claimed=False, note=note)]
+    flows = [heat_flow(Q, heat_temperature, ctx.T0, claimed=False, label="inferred",
+                       coldest=coldest)]
     inferred.append("heat")
     return flows, work, claimed, inferred
 
@@ -210,7 +209,7 @@ def finish_reacting_step(
         check_mass=False, energy_scale_floor=energy_scale_floor)
     for finding in element_problems:
         ctx.add(finding)
-    result.mass_residual = residuals
+    result.balance.mass_residual = residuals
     if element_problems:
         result.notes.append("The elements do not balance, so the energy and entropy checks were "
                             "not applied.")

@@ -15,7 +15,8 @@ Heating values are the enthalpy of complete combustion at 25 °C and 1 bar [1, �
 carbon burnt to CO2, the hydrogen to H2O (liquid for the higher, vapour for the lower heating value)
 and nitrogen released as N2; CO2, H2O, N2, O2 and Ar in a fuel are inert.
 
-Faraday constant F = N_A e [2], exact since the 2019 revision of the SI.
+The Faraday constant F = N_A e [2] (exact since the 2019 revision of the SI) is
+:data:`audit.constants.FARADAY`.
 
 References
 ----------
@@ -36,14 +37,12 @@ from fractions import Fraction
 
 import numpy as np
 
+from audit.constants import FARADAY  # noqa: F401  (read here by older code and tests)
 from audit.errors import StateError
 from audit.formation import ATOMIC_WEIGHTS, P_STANDARD, SPECIES, T_STANDARD, lookup, species
 from audit.properties.engine import PropertyEngine
 from audit.results import StreamResult
-
-AVOGADRO = 6.022_140_76e23  # 1/mol, exact (2019 SI)
-ELEMENTARY_CHARGE = 1.602_176_634e-19  # C, exact (2019 SI)
-FARADAY = AVOGADRO * ELEMENTARY_CHARGE  # C/mol = 96 485.332 123 310 0... (CODATA 2018, exact)
+from audit.wording import to_bar, to_celsius
 
 _ARROWS = ("->", "→", "=>")
 _TERM = re.compile(
@@ -227,7 +226,7 @@ def reaction_properties(engine: PropertyEngine, reaction: Reaction, T: float, P:
             h, s = engine.species_molar(term.formula, term.phase, T, P)
         except StateError as exc:
             raise StateError(
-                f"the reaction '{reaction.equation}' at {T - 273.15:.6g} °C and {P / 1e5:.6g} "
+                f"the reaction '{reaction.equation}' at {to_celsius(T):.6g} °C and {to_bar(P):.6g} "
                 f"bar: {exc.problem.message}") from None
         dH += nu * h
         dS += nu * s

@@ -35,6 +35,14 @@ class Compressor(StepBase):
 
 
 def evaluate(step: Compressor, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to a
+    compressor, then its own checks: outlet pressure above inlet (``pressure-wrong-way``),
+    isentropic efficiency at most 1 and equal to a claimed one (``efficiency-above-one``,
+    ``efficiency-mismatch``), dry vapour or gas at suction (``liquid-at-suction``).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step: the shaft power
+    absorbed is W < 0; a claimed heat loss is Q < 0.
+    """
     result = evaluate_work_absorber(step, "compressor", ctx, "compressor")
     inlet = ctx.stream(step.inlet)
     if inlet.phase in ("liquid", "two-phase", "supercritical liquid"):

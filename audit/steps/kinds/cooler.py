@@ -17,8 +17,9 @@ from pydantic import Field
 
 from audit.findings import ERROR, Finding
 from audit.model.quantities import Power, Temperature
-from audit.results import HeatFlow, StepResult
-from audit.steps.base import StepBase, StepContext, boundary_temperature, finish_flow_step, register
+from audit.results import StepResult
+from audit.steps.base import StepBase, StepContext, finish_flow_step, heat_flow, register
+from audit.wording import to_celsius
 
 
 class Cooler(StepBase):
@@ -33,6 +34,12 @@ class Cooler(StepBase):
 
 
 def evaluate(step: Cooler, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to a cooler
+    with no work; a declared heat sink must be colder than the outlet (``sink-too-hot``).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step: the duty rejected is
+    Q = −duty < 0; W = 0.
+    """
     inlet, outlet = ctx.stream(step.inlet), ctx.stream(step.outlet)
     if step.duty is not None:
         Q, claimed, inferred = -step.duty, ["duty"], []
@@ -40,17 +47,16 @@ def evaluate(step: Cooler, ctx: StepContext) -> StepResult:
         Q = (outlet.mass_flow * (outlet.h + outlet.kinetic_potential)
              - inlet.mass_flow * (inlet.h + inlet.kinetic_potential))
         claimed, inferred = [], ["duty"]
-    T_b = boundary_temperature(Q, step.sink_temperature, ctx.T0, min(inlet.T, outlet.T))
-    note = "" if step.sink_temperature is not None else "conservative boundary temperature"
-    heat = [HeatFlow(Q=Q, temperature=T_b, claimed=step.duty is not None, note=note)]
+    heat = [heat_flow(Q, step.sink_temperature, ctx.T0, claimed=step.duty is not None,
+                      coldest=min(inlet.T, outlet.T))]
     result, _ = finish_flow_step(step, "cooler", ctx, [inlet], [outlet], heat, 0.0,
                                  claimed + ["no work"], inferred)
     if step.sink_temperature is not None and step.sink_temperature > outlet.T:
         gap = step.sink_temperature - outlet.T
         ctx.add(Finding(
             ERROR, "sink-too-hot", step.id,
-            f"the heat sink at {step.sink_temperature - 273.15:.1f} °C is {gap:.1f} K hotter than "
-            f"the outlet {outlet.id} ({outlet.T - 273.15:.1f} °C) it is said to cool",
+            f"the heat sink at {to_celsius(step.sink_temperature):.1f} °C is {gap:.1f} K hotter than "
+            f"the outlet {outlet.id} ({to_celsius(outlet.T):.1f} °C) it is said to cool",
             claimed=step.sink_temperature, bound=outlet.T, margin=gap,
             quantity="temperature",
         ))

@@ -27,6 +27,13 @@ class Electrolyser(CellStep):
 
 
 def evaluate(step: Electrolyser, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) on the
+    formation basis and the cell checks of :mod:`audit.steps.cells` (voltage against the reversible
+    voltage, heat below the thermoneutral voltage, Faraday's law, power = V I N) to an electrolyser.
+
+    Sign convention: Q is heat into the step, W is work delivered by the step: the electrical power
+    absorbed is W < 0.
+    """
     return evaluate_cell(step, ctx, ELECTROLYSER)
 
 

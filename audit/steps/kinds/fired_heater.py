@@ -41,16 +41,17 @@ from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, WithJsonSche
 from pydantic_core import PydanticCustomError
 
 from audit import units
+from audit.constants import GAS_CONSTANT
 from audit.errors import UnitError
 from audit.findings import ERROR, Finding, relative
 from audit.model.quantities import QUANTITY_PATTERN, Power, Temperature
-from audit.properties.mixtures import GAS_CONSTANT
 from audit.results import StepResult, StreamResult
 from audit.steps.base import StepBase, StepContext, register
 from audit.steps.laws import format_power
 from audit.steps.machines import heat_loss_flow
 from audit.steps.reacting import element_findings, finish_reacting_step
 from audit.steps.reactions import heating_values, species_flows
+from audit.wording import to_celsius
 
 _PER_VOLUME = re.compile(r"^(.*?)/\s*([NS])m(?:3|\^3|\*\*3|³)\s*$")
 
@@ -128,6 +129,16 @@ class FiredHeater(StepBase):
 
 
 def evaluate(step: FiredHeater, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to a fired
+    heater (the element balance of the combustion side in place of the per-fluid mass balance), then
+    its own checks: the heated side keeps its fluid and mass (``side-changes-fluid``,
+    ``mass-imbalance``), the duty and heating value agree with the streams (``duty-mismatch``,
+    ``heating-value-mismatch``), the flue gas is not colder than the heated stream's inlet
+    (``temperature-cross``).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step: the casing's heat
+    loss is Q < 0; no work.
+    """
     fuel, air, flue = ctx.stream(step.fuel), ctx.stream(step.air), ctx.stream(step.flue_gas)
     hin, hout = ctx.stream(step.heated.inlet), ctx.stream(step.heated.outlet)
     tol = ctx.tolerances
@@ -181,8 +192,8 @@ def evaluate(step: FiredHeater, ctx: StepContext) -> StepResult:
         gap = hin.T - flue.T
         ctx.add(Finding(
             ERROR, "temperature-cross", step.id,
-            f"the flue gas {flue.id} leaves at {flue.T - 273.15:.1f} °C, {gap:.1f} K colder than "
-            f"the heated stream {hin.id} enters ({hin.T - 273.15:.1f} °C): the gas cannot heat "
+            f"the flue gas {flue.id} leaves at {to_celsius(flue.T):.1f} °C, {gap:.1f} K colder than "
+            f"the heated stream {hin.id} enters ({to_celsius(hin.T):.1f} °C): the gas cannot heat "
             "it at that end",
             claimed=flue.T, bound=hin.T, margin=gap, quantity="temperature_difference",
         ))

@@ -14,13 +14,13 @@ from typing import Literal
 from pydantic import Field, model_validator
 
 from audit.model.quantities import Power, Temperature
-from audit.results import HeatFlow, StepResult
+from audit.results import StepResult
 from audit.steps.base import (
     HeatClaim,
     StepBase,
     StepContext,
-    boundary_temperature,
     finish_flow_step,
+    heat_flow,
     heat_flows_from_claims,
     register,
 )
@@ -49,6 +49,13 @@ class GeneralStep(StepBase):
 
 
 def evaluate(step: GeneralStep, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to a step of
+    any streams, heat flows and work, inferring whichever of heat or work is not claimed from the
+    first law.
+
+    Sign convention: Q is heat into the step, W is work delivered by the step; claimed heat is read
+    as written ``added``/``removed``.
+    """
     inlets = [ctx.stream(i) for i in step.inlets]
     outlets = [ctx.stream(o) for o in step.outlets]
     coldest = min(s.T for s in [*inlets, *outlets])
@@ -69,10 +76,7 @@ def evaluate(step: GeneralStep, ctx: StepContext) -> StepResult:
     else:
         Q = dE + W
         declared = step.heat_temperature
-        heat = [HeatFlow(Q=Q, temperature=boundary_temperature(Q, declared, ctx.T0, coldest),
-                         claimed=False,
-                         note="inferred" + ("" if declared else
-                                            ", conservative boundary temperature"))]
+        heat = [heat_flow(Q, declared, ctx.T0, claimed=False, label="inferred", coldest=coldest)]
         inferred.append("heat")
         claimed.append("work" if work_given else "no work")
     result, _ = finish_flow_step(step, "general", ctx, inlets, outlets, heat, W, claimed, inferred)

@@ -38,6 +38,7 @@ from audit.results import StepResult, StreamResult
 from audit.steps.base import StepBase, StepContext, finish_flow_step, register
 from audit.steps.laws import format_power
 from audit.steps.machines import heat_loss_flow
+from audit.wording import to_celsius
 
 PROFILE_POINTS = 20
 
@@ -63,6 +64,15 @@ class HeatExchanger(StepBase):
 
 
 def evaluate(step: HeatExchanger, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to a two-sided
+    heat exchanger, then its own checks: each side keeps its fluid and mass (``side-changes-fluid``,
+    ``mass-imbalance``), the claimed duty agrees with the sides (``duty-mismatch``), heat flows from
+    hot to cold (``temperature-cross``), and the approach and internal pinch stay above the minimum
+    (``approach-below-minimum``, ``internal-pinch``).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step: only the heat loss to
+    ambient crosses the boundary (Q < 0); W = 0.
+    """
     hi, ho = ctx.stream(step.hot.inlet), ctx.stream(step.hot.outlet)
     ci, co = ctx.stream(step.cold.inlet), ctx.stream(step.cold.outlet)
     streams = [hi, ho, ci, co]
@@ -99,21 +109,22 @@ def evaluate(step: HeatExchanger, ctx: StepContext) -> StepResult:
                 margin_relative=relative(abs(residual), inlet.mass_flow), quantity="mass_flow",
                 tolerance=mass_tol,
             ))
-    if step.duty is not None:
+    duty = step.duty
+    if duty is not None:
         tol_E = result.energy_tolerance
         # the duty is what passes from the hot side to the cold side: the hot side releases it
         # plus the claimed heat loss
         loss = step.heat_loss or 0.0
-        worst = max((released - loss, received), key=lambda d: abs(d - step.duty))
-        if abs(worst - step.duty) > tol_E:
+        worst = max((released - loss, received), key=lambda d: abs(d - duty))
+        if abs(worst - duty) > tol_E:
             lost = f" ({format_power(loss)} of it lost to ambient)" if loss else ""
             ctx.add(Finding(
                 ERROR, "duty-mismatch", step.id,
-                f"the claimed duty {format_power(step.duty)} differs from the streams: the hot "
+                f"the claimed duty {format_power(duty)} differs from the streams: the hot "
                 f"side releases {format_power(released)}{lost}, the cold side receives "
                 f"{format_power(received)}",
-                claimed=step.duty, bound=worst, margin=abs(worst - step.duty),
-                margin_relative=relative(abs(worst - step.duty), worst), quantity="power",
+                claimed=duty, bound=worst, margin=abs(worst - duty),
+                margin_relative=relative(abs(worst - duty), worst), quantity="power",
                 tolerance=tol_E,
             ))
     if released <= 0 or received <= 0:
@@ -145,8 +156,8 @@ def _check_temperatures(step: HeatExchanger, ctx: StepContext, result: StepResul
             ctx.add(Finding(
                 ERROR, "temperature-cross", step.id,
                 f"at the {end} of this {step.arrangement} exchanger the hot stream {hot.id} "
-                f"({hot.T - 273.15:.1f} °C) is {-gap:.1f} K colder than the cold stream "
-                f"{cold.id} ({cold.T - 273.15:.1f} °C): heat cannot flow that way",
+                f"({to_celsius(hot.T):.1f} °C) is {-gap:.1f} K colder than the cold stream "
+                f"{cold.id} ({to_celsius(cold.T):.1f} °C): heat cannot flow that way",
                 claimed=cold.T, bound=hot.T, margin=-gap, quantity="temperature",
             ))
             return

@@ -18,8 +18,9 @@ from pydantic import Field
 
 from audit.findings import ERROR, Finding
 from audit.model.quantities import Power, Temperature
-from audit.results import HeatFlow, StepResult
-from audit.steps.base import StepBase, StepContext, boundary_temperature, finish_flow_step, register
+from audit.results import StepResult
+from audit.steps.base import StepBase, StepContext, finish_flow_step, heat_flow, register
+from audit.wording import to_celsius
 
 
 class Heater(StepBase):
@@ -35,6 +36,12 @@ class Heater(StepBase):
 
 
 def evaluate(step: Heater, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to a heater
+    with no work; a declared heat source must be hotter than the outlet (``source-too-cold``).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step: the duty received is
+    Q = duty > 0; W = 0.
+    """
     inlet, outlet = ctx.stream(step.inlet), ctx.stream(step.outlet)
     if step.duty is not None:
         Q, claimed, inferred = step.duty, ["duty"], []
@@ -42,17 +49,16 @@ def evaluate(step: Heater, ctx: StepContext) -> StepResult:
         Q = (outlet.mass_flow * (outlet.h + outlet.kinetic_potential)
              - inlet.mass_flow * (inlet.h + inlet.kinetic_potential))
         claimed, inferred = [], ["duty"]
-    T_b = boundary_temperature(Q, step.source_temperature, ctx.T0, min(inlet.T, outlet.T))
-    note = "" if step.source_temperature is not None else "conservative boundary temperature"
-    heat = [HeatFlow(Q=Q, temperature=T_b, claimed=step.duty is not None, note=note)]
+    heat = [heat_flow(Q, step.source_temperature, ctx.T0, claimed=step.duty is not None,
+                      coldest=min(inlet.T, outlet.T))]
     result, _ = finish_flow_step(step, "heater", ctx, [inlet], [outlet], heat, 0.0,
                                  claimed + ["no work"], inferred)
     if step.source_temperature is not None and step.source_temperature < outlet.T:
         gap = outlet.T - step.source_temperature
         ctx.add(Finding(
             ERROR, "source-too-cold", step.id,
-            f"the heat source at {step.source_temperature - 273.15:.1f} °C is {gap:.1f} K colder "
-            f"than the outlet {outlet.id} ({outlet.T - 273.15:.1f} °C) it is said to heat",
+            f"the heat source at {to_celsius(step.source_temperature):.1f} °C is {gap:.1f} K colder "
+            f"than the outlet {outlet.id} ({to_celsius(outlet.T):.1f} °C) it is said to heat",
             claimed=step.source_temperature, bound=outlet.T, margin=gap,
             quantity="temperature",
         ))

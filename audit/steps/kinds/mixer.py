@@ -18,6 +18,7 @@ from audit.model.quantities import Power, Temperature
 from audit.results import StepResult
 from audit.steps.base import StepBase, StepContext, finish_flow_step, register
 from audit.steps.machines import heat_loss_flow
+from audit.wording import to_bar
 
 
 class Mixer(StepBase):
@@ -32,6 +33,12 @@ class Mixer(StepBase):
 
 
 def evaluate(step: Mixer, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to an
+    adiabatic mixer with no work; the outlet pressure must not exceed the lowest inlet pressure
+    (``mixer-outlet-pressure``).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step: Q = 0 and W = 0.
+    """
     inlets = [ctx.stream(i) for i in step.inlets]
     outlet = ctx.stream(step.outlet)
     heat = heat_loss_flow(step.heat_loss, step.heat_loss_temperature, ctx.T0,
@@ -42,8 +49,8 @@ def evaluate(step: Mixer, ctx: StepContext) -> StepResult:
     if outlet.P > lowest.P * (1.0 + ctx.tolerances.isobaric_relative):
         ctx.add(Finding(
             WARNING, "mixer-outlet-pressure", step.id,
-            f"the outlet pressure ({outlet.P / 1e5:.4g} bar) is above the lowest inlet pressure "
-            f"({lowest.id}, {lowest.P / 1e5:.4g} bar); mixing cannot raise pressure",
+            f"the outlet pressure ({to_bar(outlet.P):.4g} bar) is above the lowest inlet pressure "
+            f"({lowest.id}, {to_bar(lowest.P):.4g} bar); mixing cannot raise pressure",
             claimed=outlet.P, bound=lowest.P, margin=outlet.P - lowest.P, quantity="pressure",
         ))
     return result

@@ -19,6 +19,7 @@ from audit.model.quantities import Power, Temperature
 from audit.results import StepResult
 from audit.steps.base import StepBase, StepContext, register
 from audit.steps.machines import evaluate_work_absorber
+from audit.wording import to_celsius
 
 
 class Pump(StepBase):
@@ -35,6 +36,14 @@ class Pump(StepBase):
 
 
 def evaluate(step: Pump, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to a pump,
+    then its own checks: outlet pressure above inlet (``pressure-wrong-way``), isentropic efficiency
+    at most 1 and equal to a claimed one (``efficiency-above-one``, ``efficiency-mismatch``), liquid
+    at the inlet (``pump-inlet-not-liquid``) with enough subcooling (``pump-near-saturation``).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step: the shaft power
+    absorbed is W < 0; a claimed heat loss is Q < 0.
+    """
     result = evaluate_work_absorber(step, "pump", ctx, "pump")
     inlet = ctx.stream(step.inlet)
     saturated_liquid = inlet.phase == "two-phase" and (inlet.quality or 0.0) <= 1e-9
@@ -54,7 +63,7 @@ def evaluate(step: Pump, ctx: StepContext) -> StepResult:
             ctx.add(Finding(
                 WARNING, "pump-near-saturation", step.id,
                 f"the pump inlet {inlet.id} is only {subcooling:.2f} K below its saturation "
-                f"temperature ({T_sat - 273.15:.2f} °C): cavitation risk (minimum "
+                f"temperature ({to_celsius(T_sat):.2f} °C): cavitation risk (minimum "
                 f"{minimum:g} K, common practice)",
                 claimed=subcooling, bound=minimum, margin=minimum - subcooling,
                 quantity="temperature_difference", tolerance=minimum, stream=inlet.id,

@@ -75,6 +75,14 @@ class Reactor(StepBase):
 
 
 def evaluate(step: Reactor, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) on the
+    formation basis to a reactor, with the element balance in place of the per-fluid mass balance
+    and the written reactions' extents checked against the streams (``element-imbalance``,
+    ``species-imbalance``).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step; heat not claimed is
+    inferred from the first law.
+    """
     inlets = [ctx.stream(i) for i in step.inlets]
     outlets = [ctx.stream(o) for o in step.outlets]
     elements = element_findings(step.id, ctx, inlets, outlets)

@@ -25,9 +25,11 @@ from pydantic import Field
 
 from audit.findings import ERROR, WARNING, Finding
 from audit.model.quantities import Power, Temperature
+from audit.physics.efficiency import isentropic_efficiency_expansion
 from audit.results import StepResult
 from audit.steps.base import StepBase, StepContext, finish_flow_step, register
 from audit.steps.machines import efficiency_findings, heat_loss_flow, isentropic_outlet_enthalpy
+from audit.wording import to_bar
 
 
 class Turbine(StepBase):
@@ -44,6 +46,14 @@ class Turbine(StepBase):
 
 
 def evaluate(step: Turbine, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to a turbine,
+    then its own checks: outlet pressure below inlet (``pressure-wrong-way``), isentropic efficiency
+    at most 1 and equal to a claimed one (``efficiency-above-one``, ``efficiency-mismatch``),
+    exhaust moisture below the limit (``wet-exhaust``).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step: the shaft power
+    delivered is W > 0; a claimed heat loss is Q < 0.
+    """
     inlet, outlet = ctx.stream(step.inlet), ctx.stream(step.outlet)
     heat = heat_loss_flow(step.heat_loss, step.heat_loss_temperature, ctx.T0,
                           min(inlet.T, outlet.T))
@@ -64,13 +74,13 @@ def evaluate(step: Turbine, ctx: StepContext) -> StepResult:
     if outlet.P >= inlet.P:
         ctx.add(Finding(
             ERROR, "pressure-wrong-way", step.id,
-            f"the outlet pressure ({outlet.P / 1e5:.4g} bar) is not below the inlet pressure "
-            f"({inlet.P / 1e5:.4g} bar); a turbine expands its fluid (inlet and outlet swapped?)",
+            f"the outlet pressure ({to_bar(outlet.P):.4g} bar) is not below the inlet pressure "
+            f"({to_bar(inlet.P):.4g} bar); a turbine expands its fluid (inlet and outlet swapped?)",
             claimed=outlet.P, bound=inlet.P, margin=outlet.P - inlet.P, quantity="pressure",
         ))
     h_s = isentropic_outlet_enthalpy(step.id, inlet, outlet, ctx)
     if h_s is not None and inlet.h - h_s > 0:
-        eta = (inlet.h - outlet.h) / (inlet.h - h_s)
+        eta = isentropic_efficiency_expansion(inlet.h, outlet.h, h_s)
         efficiency_findings(step, result, ctx, eta, h_s, "turbine")
     if outlet.quality is not None and 1.0 - outlet.quality > tol.exhaust_moisture_max:
         moisture = 1.0 - outlet.quality

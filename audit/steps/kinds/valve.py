@@ -12,6 +12,7 @@ from typing import Literal
 from audit.findings import ERROR, Finding
 from audit.results import StepResult
 from audit.steps.base import StepBase, StepContext, finish_flow_step, register
+from audit.wording import to_bar
 
 
 class Valve(StepBase):
@@ -24,6 +25,12 @@ class Valve(StepBase):
 
 
 def evaluate(step: Valve, ctx: StepContext) -> StepResult:
+    """Apply the laws of every step (mass, first law, work bound, entropy generation) to a throttle
+    valve with no heat or work; the outlet pressure must be below the inlet's and the enthalpy
+    unchanged (``pressure-wrong-way``, ``valve-not-isenthalpic``).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step: Q = 0 and W = 0.
+    """
     inlet, outlet = ctx.stream(step.inlet), ctx.stream(step.outlet)
     result, _ = finish_flow_step(
         step, "valve", ctx, [inlet], [outlet], [], 0.0, ["adiabatic", "no work"], [],
@@ -32,8 +39,8 @@ def evaluate(step: Valve, ctx: StepContext) -> StepResult:
     if outlet.P >= inlet.P:
         ctx.add(Finding(
             ERROR, "pressure-wrong-way", step.id,
-            f"the outlet pressure ({outlet.P / 1e5:.4g} bar) is not below the inlet pressure "
-            f"({inlet.P / 1e5:.4g} bar); a throttle valve only lowers pressure",
+            f"the outlet pressure ({to_bar(outlet.P):.4g} bar) is not below the inlet pressure "
+            f"({to_bar(inlet.P):.4g} bar); a throttle valve only lowers pressure",
             claimed=outlet.P, bound=inlet.P, margin=outlet.P - inlet.P, quantity="pressure",
         ))
     return result

@@ -23,14 +23,10 @@ from pydantic import BaseModel, ConfigDict, model_validator
 from audit.errors import StateError
 from audit.model.quantities import Energy, Mass, Temperature
 from audit.model.streams import PropertyPair
+from audit.physics.bounds import isothermal_closed_work_bound, isothermal_flow_work_bound
+from audit.physics.efficiency import second_law_efficiency
 from audit.results import HeatFlow, StepResult, StreamResult
-from audit.steps.base import (
-    CONSERVATIVE_NOTE,
-    StepBase,
-    StepContext,
-    boundary_temperature,
-    register,
-)
+from audit.steps.base import CONSERVATIVE_NOTE, StepBase, StepContext, heat_flow, register
 from audit.steps.laws import closed_balance, energy_tolerance, law_findings
 
 
@@ -89,6 +85,13 @@ def _contents(step: Vessel, ctx: StepContext, which: str, spec: PropertyPair) ->
 
 
 def evaluate(step: Vessel, ctx: StepContext) -> StepResult:
+    """Apply the laws of a closed step from the initial to the final contents (mass, first law, work
+    bound, entropy generation; totals in J and J/K) and choose the classical bound (−ΔA isothermal,
+    −ΔG of other work isothermal and isobaric, else the exergy drop).
+
+    Sign convention: Q is heat into the step, W is work delivered by the step, both totals over the
+    process; heat not claimed is inferred.
+    """
     initial = _contents(step, ctx, "initial", step.initial)
     final = _contents(step, ctx, "final", step.final)
     m = step.mass
@@ -105,11 +108,7 @@ def evaluate(step: Vessel, ctx: StepContext) -> StepResult:
     if step.heat is not None:
         for claim in step.heat:
             Q = claim.added if claim.added is not None else -float(claim.removed)  # type: ignore
-            heat.append(HeatFlow(
-                Q=Q, temperature=boundary_temperature(Q, claim.temperature, ctx.T0, coldest),
-                claimed=True,
-                note="" if claim.temperature is not None else "conservative boundary temperature",
-            ))
+            heat.append(heat_flow(Q, claim.temperature, ctx.T0, claimed=True, coldest=coldest))
         claimed.append("heat")
         if work_claimed:
             claimed.append("work")
@@ -118,13 +117,12 @@ def evaluate(step: Vessel, ctx: StepContext) -> StepResult:
             inferred.append("work")
     else:
         Q = dU + W
-        heat.append(HeatFlow(Q=Q, temperature=boundary_temperature(Q, None, ctx.T0, coldest),
-                             claimed=False, note="inferred, conservative boundary temperature"))
+        heat.append(heat_flow(Q, None, ctx.T0, claimed=False, label="inferred", coldest=coldest))
         inferred.append("heat")
         claimed.append("work" if work_claimed else "no work")
     balance = closed_balance(m, initial, final, heat, W, ctx.T0)
     tol = ctx.tolerances
-    conservative = any("conservative" in q.note for q in heat)
+    conservative = any(q.conservative for q in heat)
     for finding in law_findings(step.id, balance, tol, ctx.T0, batch=True, inlet_mass=m,
                                 conservative_note=CONSERVATIVE_NOTE if conservative else ""):
         ctx.add(finding)
@@ -133,25 +131,17 @@ def evaluate(step: Vessel, ctx: StepContext) -> StepResult:
     isothermal = max(temps) - min(temps) <= tol.isothermal_band
     isobaric = abs(final.P - initial.P) <= tol.isobaric_relative * initial.P
     if isothermal and isobaric:
-        basis, classical = "-ΔG other work (isothermal, isobaric closed)", -balance.dG
+        basis, classical = ("-ΔG other work (isothermal, isobaric closed)",
+                            isothermal_flow_work_bound(balance.dG))
     elif isothermal:
-        basis, classical = "-ΔA (isothermal closed)", -balance.dA
+        basis, classical = "-ΔA (isothermal closed)", isothermal_closed_work_bound(balance.dA)
     else:
         basis, classical = "exergy drop (closed)", None
     V1, V2 = m / initial.rho, m / final.rho
-    second = None
-    if W > 0 and balance.W_rev > 0:
-        second = W / balance.W_rev
-    elif W < 0 and balance.W_rev < 0:
-        second = balance.W_rev / W
+    second = second_law_efficiency(W, balance.W_rev)
     return StepResult(
-        id=step.id, kind="vessel", batch=True, inlets=[], outlets=[], Q=balance.Q, W=W,
-        heat_flows=heat, H_in=balance.H_in, H_out=balance.H_out, KE_PE_in=0.0, KE_PE_out=0.0,
-        dH=balance.dH, dU=balance.dU, dS=balance.dS, dG=balance.dG, dA=balance.dA,
-        energy_residual=balance.energy_residual, mass_residual=balance.mass_residual,
-        S_gen=balance.S_gen, W_rev=balance.W_rev, exergy_destroyed=balance.exergy_destroyed,
-        energy_scale=balance.energy_scale,
-        energy_tolerance=energy_tolerance(balance, tol, batch=True), bound_basis=basis,
+        id=step.id, kind="vessel", batch=True, inlets=[], outlets=[], balance=balance,
+        heat_flows=heat, energy_tolerance=energy_tolerance(balance, tol, batch=True), bound_basis=basis,
         classical_bound=classical, second_law_efficiency=second, claimed=claimed,
         inferred=inferred, notes=[CONSERVATIVE_NOTE] if conservative else [],
         extra={"V_initial": V1, "V_final": V2,
