@@ -35,9 +35,6 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-T_STANDARD = 298.15  # K, standard reference temperature
-P_STANDARD = 1.0e5  # Pa, standard-state pressure (1 bar, IUPAC since 1982)
-
 
 @dataclass(frozen=True)
 class Species:

@@ -23,7 +23,6 @@ from dataclasses import dataclass, field
 from datetime import datetime, timezone
 from typing import Any
 
-from audit.version import __version__
 from audit.errors import InputErrors, Problem, StateError
 from audit.findings import ERROR, WARNING, Finding, relative
 from audit.input.document import Document
@@ -34,6 +33,7 @@ from audit.properties.engine import BACKEND, COOLPROP_VERSION, GAS_CONSTANT, Pro
 from audit.results import AuditResult, PlantTotals, StepResult, StreamResult
 from audit.steps import REGISTRY, StepContext
 from audit.units import Flow
+from audit.version import __version__
 
 _PHASE_MATCH = {
     "liquid": {"liquid"},

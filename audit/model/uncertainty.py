@@ -44,8 +44,8 @@ from pydantic import BaseModel, ConfigDict, Field, PlainValidator, WithJsonSchem
 from pydantic_core import PydanticCustomError
 
 from audit import units
-from audit.model import quantities
 from audit.errors import UnitError
+from audit.model import quantities
 
 EXACT_WORDS = ("exact", "measured")
 _COVERAGE = re.compile(r"^(standard|expanded-k(\d+(?:\.\d+)?))$")

@@ -14,9 +14,9 @@ from dataclasses import dataclass
 
 import CoolProp.CoolProp as CP
 
-from audit.constants import GAS_CONSTANT
+from audit.constants import GAS_CONSTANT, P_STANDARD, T_STANDARD
 from audit.errors import StateError
-from audit.formation import P_STANDARD, T_STANDARD, species
+from audit.formation import species
 from audit.properties.state import BASIS_FLUID, BASIS_FORMATION
 from audit.wording import to_bar, to_celsius
 

@@ -53,9 +53,9 @@ from dataclasses import dataclass
 
 import CoolProp.CoolProp as CP
 
-from audit.constants import GAS_CONSTANT
+from audit.constants import GAS_CONSTANT, P_STANDARD, T_STANDARD
 from audit.errors import StateError
-from audit.formation import P_STANDARD, SPECIES, T_STANDARD, lookup
+from audit.formation import SPECIES, lookup
 from audit.model.composition import check_fractions
 from audit.wording import to_bar, to_celsius
 

@@ -37,9 +37,13 @@ from fractions import Fraction
 
 import numpy as np
 
-from audit.constants import FARADAY  # noqa: F401  (read here by older code and tests)
+from audit.constants import (
+    FARADAY,  # noqa: F401  (read here by older code and tests)
+    P_STANDARD,
+    T_STANDARD,
+)
 from audit.errors import StateError
-from audit.formation import ATOMIC_WEIGHTS, P_STANDARD, SPECIES, T_STANDARD, lookup, species
+from audit.formation import ATOMIC_WEIGHTS, SPECIES, lookup, species
 from audit.properties.engine import PropertyEngine
 from audit.results import StreamResult
 from audit.wording import to_bar, to_celsius

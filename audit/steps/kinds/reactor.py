@@ -23,8 +23,8 @@ from typing import Any, Literal
 
 from pydantic import Field, field_validator, model_validator
 
+from audit.constants import P_STANDARD, T_STANDARD
 from audit.errors import StateError
-from audit.formation import P_STANDARD, T_STANDARD
 from audit.model.quantities import Power, Pressure, Temperature
 from audit.results import StepResult
 from audit.steps.base import HeatClaim, StepBase, StepContext, register
