@@ -24,10 +24,10 @@ from dataclasses import dataclass
 from datetime import datetime, timezone
 from pathlib import Path
 
-from audit.version import __version__
 from audit.errors import InputError
 from audit.findings import ERROR, INFO, WARNING
 from audit.outcomes import FileOutcome, FindingKey, finding_key
+from audit.version import __version__
 
 SCHEMA_VERSION = 1
 

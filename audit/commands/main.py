@@ -7,10 +7,10 @@ import argparse
 import sys
 import traceback
 
-from audit.version import __version__
 from audit.commands import batch, check, convert, diff, history, schema, template
 from audit.errors import InputError
 from audit.exitcodes import EXIT_INPUT, EXIT_INTERNAL
+from audit.version import __version__
 
 COMMANDS = [check, batch, diff, history, schema, template, convert]
 

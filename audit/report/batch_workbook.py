@@ -8,14 +8,13 @@ Sheets:
   workbook, and the problems of an invalid file or an internal error;
 * ``Findings``: one row per finding of every audited file, accepted ones marked.
 
-Written atomically (a temporary file in the same folder, then renamed).
+Written atomically by :func:`audit.report.files.write_atomically`.
 """
 
 from __future__ import annotations
 
 import math
 import os
-import tempfile
 from collections import Counter
 from datetime import datetime, timezone
 from pathlib import Path
@@ -29,6 +28,7 @@ from openpyxl.worksheet.worksheet import Worksheet
 from audit.findings import ERROR, INFO, WARNING
 from audit.outcomes import FAIL, PASS, VERDICT_INTERNAL, VERDICT_INVALID, FileOutcome, finding_key
 from audit.report.display import shown, unit
+from audit.report.files import write_atomically
 
 CAUTION = ("The audit checks thermodynamic consistency only; it is not a safety or "
            "code-compliance review. Defer to local codes and licensed engineers.")
@@ -88,7 +88,8 @@ def summary_rows(outcomes: list[FileOutcome], output: str | Path | None = None,
 
 def write_batch_workbook(outcomes: list[FileOutcome], path: str | Path, fail_on: str = "error",
                          run_at: datetime | None = None) -> Path:
-    """Write the batch summary workbook to ``path`` (atomically); return the path."""
+    """Write the batch summary workbook to ``path`` (atomically); return the path. Raises
+    :class:`audit.errors.ReportError` when the file cannot be written."""
     path = Path(path)
     book = Workbook()
     sheet = book.active
@@ -141,7 +142,7 @@ def write_batch_workbook(outcomes: list[FileOutcome], path: str | Path, fail_on:
     findings.auto_filter.ref = f"A1:{get_column_letter(len(FINDING_COLUMNS))}{findings.max_row}"
     append_row(findings, [])
     append_row(findings, [CAUTION])
-    save_atomically(book, path)
+    write_atomically(path, book.save, "the batch summary workbook")
     return path
 
 
@@ -175,22 +176,3 @@ def append_row(sheet: Worksheet, values: list[object]) -> int:
         else:
             cell.value = value
     return row
-
-
-def save_atomically(book: Workbook, path: Path) -> None:
-    """Save through a temporary file in the same folder, then rename over ``path`` (a crash
-    leaves the previous file as it was); the file gets the usual permissions (umask)."""
-    path.parent.mkdir(parents=True, exist_ok=True)
-    handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-    try:
-        with os.fdopen(handle, "wb") as stream:
-            book.save(stream)
-            stream.flush()
-            os.fsync(stream.fileno())
-        mask = os.umask(0)
-        os.umask(mask)
-        os.chmod(temporary, 0o666 & ~mask)
-        os.replace(temporary, path)
-    except BaseException:
-        Path(temporary).unlink(missing_ok=True)
-        raise

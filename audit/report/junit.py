@@ -16,7 +16,7 @@ from pathlib import Path
 
 from audit.findings import Finding, at_or_above
 from audit.outcomes import INTERNAL, INVALID, FileOutcome
-from audit.report.machine import atomic_write_text
+from audit.report.files import write_text
 
 PLANT_CASE = "plant and streams"
 LOAD_CASE = "load and validate"
@@ -85,4 +85,4 @@ def write_junit(outcomes: list[FileOutcome], path: str | Path, fail_on: str = "e
     """Write the JUnit XML of ``outcomes`` to ``path`` atomically."""
     text = ET.tostring(junit_tree(outcomes, fail_on).getroot(), encoding="unicode",
                        xml_declaration=True)
-    atomic_write_text(Path(path), text + "\n")
+    write_text(path, text + "\n", "the JUnit XML")
