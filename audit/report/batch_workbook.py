@@ -26,7 +26,15 @@ from openpyxl.utils import get_column_letter
 from openpyxl.worksheet.worksheet import Worksheet
 
 from audit.findings import ERROR, INFO, WARNING
-from audit.outcomes import FAIL, PASS, VERDICT_INTERNAL, VERDICT_INVALID, FileOutcome, finding_key
+from audit.outcomes import (
+    FAIL,
+    PASS,
+    VERDICT_INTERNAL,
+    VERDICT_INVALID,
+    VERDICT_UNWRITTEN,
+    FileOutcome,
+    finding_key,
+)
 from audit.report.display import shown, unit
 from audit.report.files import write_atomically
 
@@ -40,6 +48,7 @@ _VERDICT_FILL = {
     FAIL: PatternFill("solid", fgColor="F6D5D1"),
     VERDICT_INVALID: PatternFill("solid", fgColor="FBE8C8"),
     VERDICT_INTERNAL: PatternFill("solid", fgColor="E0D4EC"),
+    VERDICT_UNWRITTEN: PatternFill("solid", fgColor="E0D4EC"),
 }
 
 SUMMARY_COLUMNS = [
@@ -101,7 +110,8 @@ def write_batch_workbook(outcomes: list[FileOutcome], path: str | Path, fail_on:
     append_row(sheet, ["Run at (UTC)", when.strftime("%Y-%m-%d %H:%M:%S")])
     append_row(sheet, ["Fails on", f"findings at or above '{fail_on}' that no reviewer accepted"])
     append_row(sheet, ["Files", f"{len(outcomes)}: " + ", ".join(
-        f"{verdicts[v]} {v.lower()}" for v in (PASS, FAIL, VERDICT_INVALID, VERDICT_INTERNAL))])
+        f"{verdicts[v]} {v.lower()}" for v in (PASS, FAIL, VERDICT_INVALID, VERDICT_INTERNAL)
+        + ((VERDICT_UNWRITTEN,) if verdicts[VERDICT_UNWRITTEN] else ()))])
     append_row(sheet, ["Caution", CAUTION])
     append_row(sheet, [])
     write_header(sheet, SUMMARY_COLUMNS)

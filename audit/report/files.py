@@ -30,6 +30,11 @@ def write_atomically(path: str | Path, write: Callable[[BinaryIO], None], what: 
     temporary: Path | None = None
     try:
         path.parent.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        blocker = _file_in_the_way(path)
+        reason = f"{blocker} is a file, not a folder" if blocker else exc.strerror or str(exc)
+        raise ReportError(str(path), what, reason) from exc
+    try:
         handle, name = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
         temporary = Path(name)
         with os.fdopen(handle, "wb") as stream:
@@ -61,6 +66,14 @@ def write_bytes(path: str | Path, data: bytes, what: str) -> None:
         stream.write(data)
 
     write_atomically(path, write, what)
+
+
+def _file_in_the_way(path: Path) -> Path | None:
+    """The first folder of ``path`` that is a file instead, if any."""
+    for folder in reversed(path.parents):
+        if folder.exists() and not folder.is_dir():
+            return folder
+    return None
 
 
 def _umask() -> int:
