@@ -9,7 +9,7 @@ from __future__ import annotations
 import argparse
 import sys
 from pathlib import Path
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 if TYPE_CHECKING:
     from audit.outcomes import FileOutcome
@@ -115,8 +115,8 @@ class _Progress:
 
     def __init__(self, enabled: bool) -> None:
         self.enabled = enabled
-        self._bar = None
-        self._task = None
+        self._bar: Any = None  # a rich Progress once started
+        self._task: Any = None
 
     def __enter__(self) -> _Progress:
         return self

@@ -18,6 +18,7 @@ import os
 from collections import Counter
 from datetime import datetime, timezone
 from pathlib import Path
+from typing import Any
 
 from openpyxl import Workbook
 from openpyxl.cell.cell import ILLEGAL_CHARACTERS_RE
@@ -64,7 +65,7 @@ FINDING_COLUMNS = [
 
 
 def summary_rows(outcomes: list[FileOutcome], output: str | Path | None = None,
-                 fail_on: str = "error") -> list[list[object]]:
+                 fail_on: str = "error") -> list[list[Any]]:
     """The Summary sheet's rows (one per file), as plain values; the workbook column is the
     workbook's path relative to ``output``."""
     rows = []

@@ -93,6 +93,7 @@ def junit_tree(outcomes: list[FileOutcome], fail_on: str = "error") -> ET.Elemen
 
 def write_junit(outcomes: list[FileOutcome], path: str | Path, fail_on: str = "error") -> None:
     """Write the JUnit XML of ``outcomes`` to ``path`` atomically."""
-    text = ET.tostring(junit_tree(outcomes, fail_on).getroot(), encoding="unicode",
-                       xml_declaration=True)
+    root = junit_tree(outcomes, fail_on).getroot()
+    assert root is not None
+    text = ET.tostring(root, encoding="unicode", xml_declaration=True)
     write_text(path, text + "\n", "the JUnit XML")

@@ -30,7 +30,7 @@ from dataclasses import asdict
 from pathlib import Path
 from typing import Any
 
-import pandas as pd
+import pandas as pd  # type: ignore[import-untyped]
 
 from audit.report.columns import FINDINGS, STEPS, STREAMS, Table
 from audit.report.files import write_text

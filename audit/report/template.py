@@ -15,7 +15,7 @@ from __future__ import annotations
 
 import io
 import zipfile
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from datetime import datetime
 from pathlib import Path
 from typing import Any
@@ -75,7 +75,7 @@ def write_table_workbook(path: str | Path, stream_headers: Sequence[str],
                          stream_rows: Sequence[Sequence[Any]] = (),
                          claim_headers: Sequence[str] = (),
                          claim_rows: Sequence[Sequence[Any]] = (),
-                         choices: dict[str, Sequence[str]] | None = None,
+                         choices: Mapping[str, Sequence[str]] | None = None,
                          title: str | None = None) -> None:
     """Write a stream-table workbook to ``path`` (an .xlsx file), atomically.
 
@@ -113,7 +113,7 @@ def _put(ws: Worksheet, row: int, col: int, value: Any) -> None:
 
 
 def _table(ws: Worksheet, headers: Sequence[str], rows: Sequence[Sequence[Any]],
-           choices: dict[str, Sequence[str]]) -> None:
+           choices: Mapping[str, Sequence[str]]) -> None:
     widths = [len(h) for h in headers]
     for col, header in enumerate(headers, start=1):
         _put(ws, 1, col, header)
