@@ -7,9 +7,9 @@ path and free of collisions; :func:`run_batch` audits them all through an execut
 (:mod:`audit.executors`) and returns one :class:`audit.outcomes.FileOutcome` per file, in the order
 of the files whatever the order they finished in.
 
-A file that cannot be read or validated is *invalid*; a file on which plant-audit fails (an
-unexpected exception, a worker process that dies) is an *internal* error of that file; neither stops
-the others.
+A file that cannot be read or validated is *invalid*; a file whose own workbook cannot be written
+is *unwritten*; a file on which plant-audit fails (an unexpected exception, a worker process that
+dies) is an *internal* error of that file; none of them stops the others.
 """
 
 from __future__ import annotations
@@ -24,9 +24,9 @@ from collections.abc import Callable, Iterable
 from dataclasses import dataclass
 from pathlib import Path
 
-from audit.errors import InputError
+from audit.errors import InputError, ReportError
 from audit.executors import Executor, LocalProcesses, TaskFailed
-from audit.outcomes import AUDITED, INTERNAL, INVALID, FileOutcome
+from audit.outcomes import AUDITED, INTERNAL, INVALID, UNWRITTEN, FileOutcome
 from audit.review.acceptance import is_acceptance_file
 
 BALANCE_SUFFIXES = (".yaml", ".yml")
@@ -124,7 +124,8 @@ class Job:
 def audit_job(job: Job) -> FileOutcome:
     """Audit one file and write its workbook (runs in a worker; never raises).
 
-    InputError → an invalid outcome; any other exception → an internal error of this file."""
+    InputError → an invalid outcome; a workbook that cannot be written (ReportError) → an
+    unwritten outcome; any other exception → an internal error of this file."""
     started = time.perf_counter()
     outcome = FileOutcome(path=job.path, status=AUDITED)
     try:
@@ -148,6 +149,9 @@ def audit_job(job: Job) -> FileOutcome:
 
             write_workbook(outcome.result, job.workbook, fail_on=job.fail_on)
             outcome.workbook = job.workbook
+        except ReportError as exc:
+            outcome.status = UNWRITTEN
+            outcome.problems = [str(exc)]
         except Exception as exc:  # noqa: BLE001
             outcome.status = INTERNAL
             outcome.problems = [f"the file's workbook could not be written: {exc!r}"]

@@ -146,20 +146,20 @@ def compare(old: AuditResult, new: AuditResult, rtol: float = DEFAULT_RTOL) -> R
     new_steps = {s.id: s for s in new.steps}
     diff.steps_added = [i for i in new_steps if i not in old_steps]
     diff.steps_removed = [i for i in old_steps if i not in new_steps]
-    for step_id, after in new_steps.items():
-        before = old_steps.get(step_id)
-        if before is None:
+    for step_id, after_step in new_steps.items():
+        before_step = old_steps.get(step_id)
+        if before_step is None:
             continue
-        energy = "energy" if after.batch else "power"
-        texts = [("kind", before.kind, after.kind),
-                 ("inlets", ", ".join(before.inlets), ", ".join(after.inlets)),
-                 ("outlets", ", ".join(before.outlets), ", ".join(after.outlets)),
-                 ("claimed", ", ".join(before.claimed), ", ".join(after.claimed))]
+        energy = "energy" if after_step.batch else "power"
+        texts = [("kind", before_step.kind, after_step.kind),
+                 ("inlets", ", ".join(before_step.inlets), ", ".join(after_step.inlets)),
+                 ("outlets", ", ".join(before_step.outlets), ", ".join(after_step.outlets)),
+                 ("claimed", ", ".join(before_step.claimed), ", ".join(after_step.claimed))]
         for name, a, b in texts:
             if a != b:
                 diff.changes.append(ValueChange("step", step_id, name, a, b))
         for name in ("Q", "W"):
-            a, b = getattr(before, name), getattr(after, name)
+            a, b = getattr(before_step, name), getattr(after_step, name)
             if differs(a, b, energy, rtol):
                 diff.changes.append(ValueChange("step", step_id, name, a, b, energy))
     return diff

@@ -89,3 +89,18 @@ class InputErrors(InputError):
 
 class InternalError(AuditError, RuntimeError):
     """A bug in plant-audit itself: exit code 3."""
+
+
+class ReportError(AuditError, OSError):
+    """A report (or another output file) that could not be written: exit code 4. ``path`` is the
+    file, ``what`` names the report ("the JSON results") and ``reason`` is the operating system's
+    reason ("Permission denied")."""
+
+    def __init__(self, path: str, what: str, reason: str) -> None:
+        self.path = path
+        self.what = what
+        self.reason = reason
+        super().__init__(f"{path}: cannot write {what}: {reason}")
+
+    def __str__(self) -> str:
+        return f"{self.path}: cannot write {self.what}: {self.reason}"

@@ -1,29 +1,37 @@
 """What happened to one file of a batch (or of ``check``): plain, picklable data for the reports.
 
 A file is *audited* (it has an :class:`audit.results.AuditResult`, which passes or fails the gate),
-*invalid* (an :class:`audit.errors.InputError`: the problems name file, line and field) or an
-*internal* error (plant-audit itself failed on it: an unexpected exception or a crashed worker).
+*invalid* (an :class:`audit.errors.InputError`: the problems name file, line and field), an
+*internal* error (plant-audit itself failed on it: an unexpected exception or a crashed worker), or
+*unwritten*: audited, but its own workbook could not be written (an
+:class:`audit.errors.ReportError`: the problem names the path and the reason).
 
 Exit codes follow :mod:`audit.exitcodes`; a batch exits with the worst of its files, in the order
-internal error (3) > invalid input (2) > findings at or above ``--fail-on`` (1) > pass (0).
+internal error (3) > report not written (4) > invalid input (2) > findings at or above
+``--fail-on`` (1) > pass (0).
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass, field
 
-from audit.exitcodes import EXIT_FINDINGS, EXIT_INPUT, EXIT_INTERNAL, EXIT_PASS
+from audit.exitcodes import EXIT_FINDINGS, EXIT_INPUT, EXIT_INTERNAL, EXIT_PASS, EXIT_REPORT
 from audit.findings import SEVERITY_RANK, Finding, at_or_above
 from audit.results import AuditResult
 
 AUDITED = "audited"
 INVALID = "invalid"
 INTERNAL = "internal"
+UNWRITTEN = "unwritten"
 
 PASS = "PASS"
 FAIL = "FAIL"
 VERDICT_INVALID = "INVALID"
 VERDICT_INTERNAL = "INTERNAL ERROR"
+VERDICT_UNWRITTEN = "REPORT NOT WRITTEN"
+
+WORST_LAST = (EXIT_PASS, EXIT_FINDINGS, EXIT_INPUT, EXIT_REPORT, EXIT_INTERNAL)
+"""Exit codes from the best to the worst outcome (a batch exits with its worst file's)."""
 
 FindingKey = tuple[str, str, str]
 """(step, stream, finding name), with '' for a missing step or stream: how findings are matched
@@ -64,12 +72,15 @@ class FileOutcome:
             return EXIT_INTERNAL
         if self.status == INVALID:
             return EXIT_INPUT
+        if self.status == UNWRITTEN:
+            return EXIT_REPORT
         assert self.result is not None
         return EXIT_FINDINGS if self.result.fails(fail_on) else EXIT_PASS
 
     def verdict(self, fail_on: str = "error") -> str:
         return {EXIT_PASS: PASS, EXIT_FINDINGS: FAIL, EXIT_INPUT: VERDICT_INVALID,
-                EXIT_INTERNAL: VERDICT_INTERNAL}[self.exit_code(fail_on)]
+                EXIT_INTERNAL: VERDICT_INTERNAL,
+                EXIT_REPORT: VERDICT_UNWRITTEN}[self.exit_code(fail_on)]
 
     def failing(self, fail_on: str = "error") -> list[Finding]:
         """The findings that fail the gate: at or above ``fail_on`` and not accepted."""
@@ -107,5 +118,6 @@ class FileOutcome:
 
 
 def batch_exit_code(outcomes: list[FileOutcome], fail_on: str = "error") -> int:
-    """The exit code of a batch: the worst of its files (3 > 2 > 1 > 0); 0 for no files."""
-    return max((o.exit_code(fail_on) for o in outcomes), default=EXIT_PASS)
+    """The exit code of a batch: the worst of its files (3 > 4 > 2 > 1 > 0, see
+    :data:`WORST_LAST`); 0 for no files."""
+    return max((o.exit_code(fail_on) for o in outcomes), key=WORST_LAST.index, default=EXIT_PASS)

@@ -27,7 +27,7 @@ import pytest
 from conftest import SAMPLE
 
 import audit
-from audit.errors import InputError
+from audit.errors import ReportError
 from audit.findings import ERROR, SEVERITY_RANK, WARNING
 from audit.formation import SPECIES
 from audit.model.tolerances import Tolerances
@@ -672,17 +672,17 @@ def test_interrupted_write_keeps_the_old_file(seeded, tmp_path, monkeypatch, fai
         raise failure
 
     monkeypatch.setattr(workbook_file, "cache_formula_values", crash)
-    with pytest.raises((InputError, KeyboardInterrupt)):
+    with pytest.raises((ReportError, KeyboardInterrupt)):
         write_workbook(seeded, path)
     assert seen and seen[0].startswith(".findings.xlsx.")
     assert path.read_bytes() == b"the previous report"
     assert sorted(p.name for p in tmp_path.iterdir()) == ["findings.xlsx"]
 
 
-def test_unwritable_target_is_an_input_error(seeded, tmp_path):
+def test_unwritable_target_is_a_report_error(seeded, tmp_path):
     target = tmp_path / "taken.xlsx"
     target.mkdir()
-    with pytest.raises(InputError, match="cannot write the workbook: Is a directory"):
+    with pytest.raises(ReportError, match="taken.xlsx: cannot write the workbook: Is a directory"):
         write_workbook(seeded, target)
     assert sorted(p.name for p in tmp_path.iterdir()) == ["taken.xlsx"]
 

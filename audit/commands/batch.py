@@ -1,14 +1,15 @@
 """``plant-audit batch PATHS...``: audit every balance in folders (recursively), globs and files,
 in parallel worker processes, and exit with the worst file's code: 3 (an internal error on some
-file) > 2 (an invalid file) > 1 (findings at or above ``--fail-on`` that no reviewer accepted) > 0
-(every file passes). A broken file is reported and never stops the others."""
+file) > 4 (a report that could not be written) > 2 (an invalid file) > 1 (findings at or above
+``--fail-on`` that no reviewer accepted) > 0 (every file passes). A broken file is reported and
+never stops the others."""
 
 from __future__ import annotations
 
 import argparse
 import sys
 from pathlib import Path
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 if TYPE_CHECKING:
     from audit.outcomes import FileOutcome
@@ -97,13 +98,14 @@ def _line(outcome: FileOutcome, fail_on: str) -> str:
     text = (f"{verdict:<14} {outcome.path}{revision}: {counts['error']} error, "
             f"{counts['warning']} warning" + (f", {accepted} accepted" if accepted else ""))
     note = outcome.history_note()
-    return text + (f"; {note}" if note else "")
+    problem = f"; {outcome.problems[0]}" if outcome.problems else ""  # its workbook not written
+    return text + (f"; {note}" if note else "") + problem
 
 
 def _verdict(outcomes: list[FileOutcome], fail_on: str, code: int) -> str:
     verdicts = [o.verdict(fail_on) for o in outcomes]
     parts = ", ".join(f"{verdicts.count(v)} {v.lower()}" for v in dict.fromkeys(
-        ["PASS", "FAIL", "INVALID", "INTERNAL ERROR"]) if verdicts.count(v))
+        ["PASS", "FAIL", "INVALID", "INTERNAL ERROR", "REPORT NOT WRITTEN"]) if verdicts.count(v))
     return (f"Batch: {len(outcomes)} files ({parts}); exit code {code}. Consistency check only: "
             "not a safety or code-compliance review; defer to local codes and licensed engineers.")
 
@@ -113,8 +115,8 @@ class _Progress:
 
     def __init__(self, enabled: bool) -> None:
         self.enabled = enabled
-        self._bar = None
-        self._task = None
+        self._bar: Any = None  # a rich Progress once started
+        self._task: Any = None
 
     def __enter__(self) -> _Progress:
         return self

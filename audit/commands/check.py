@@ -1,6 +1,6 @@
 """``plant-audit check FILE``: audit one balance, print the stream table and the findings, write
-the requested reports, and exit 0 (pass), 1 (findings at or above ``--fail-on``) or 2 (invalid
-input)."""
+the requested reports, and exit 0 (pass), 1 (findings at or above ``--fail-on``), 2 (invalid
+input) or 4 (a report could not be written)."""
 
 from __future__ import annotations
 

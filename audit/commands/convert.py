@@ -38,9 +38,9 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 def run(args: argparse.Namespace) -> int:
     text = resolved_yaml(args.file, allow_outside=args.allow_outside, output=args.output)
     if args.output:
-        from audit.report.machine import atomic_write_text
+        from audit.report.files import write_text
 
-        atomic_write_text(args.output, text)
+        write_text(args.output, text, "the converted balance")
         print(f"wrote {args.output}")
     else:
         sys.stdout.write(text)

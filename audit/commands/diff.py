@@ -81,11 +81,12 @@ def summary(diff: RevisionDiff, fail_on: str = "error") -> str:
         if ids:
             lines.append(f"{label}: {', '.join(ids)}")
     for where in ("stream", "step"):
-        changes = [c for c in diff.changes if c.where == where]
         by_id: dict[str, list[str]] = {}
-        for c in changes:
-            by_id.setdefault(c.id, []).append(f"{c.field} {_value(c.old, c.quantity)} → "
-                                              f"{_value(c.new, c.quantity)}")
+        for value in diff.changes:
+            if value.where == where:
+                by_id.setdefault(value.id, []).append(
+                    f"{value.field} {_value(value.old, value.quantity)} → "
+                    f"{_value(value.new, value.quantity)}")
         if by_id:
             lines.append(f"{where.capitalize()}s changed ({len(by_id)}):")
             lines.extend(f"  {i}: " + "; ".join(parts) for i, parts in by_id.items())

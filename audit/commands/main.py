@@ -8,8 +8,8 @@ import sys
 import traceback
 
 from audit.commands import batch, check, convert, diff, history, schema, template
-from audit.errors import InputError
-from audit.exitcodes import EXIT_INPUT, EXIT_INTERNAL
+from audit.errors import InputError, ReportError
+from audit.exitcodes import EXIT_INPUT, EXIT_INTERNAL, EXIT_REPORT
 from audit.version import __version__
 
 COMMANDS = [check, batch, diff, history, schema, template, convert]
@@ -34,6 +34,9 @@ def main(argv: list[str] | None = None) -> int:
     args = _parser().parse_args(argv)
     try:
         return args.handler(args)
+    except ReportError as exc:
+        print(f"error: {exc} (a report could not be written)", file=sys.stderr)
+        return EXIT_REPORT
     except InputError as exc:
         for problem in exc.problems:
             print(f"error: {problem}", file=sys.stderr)

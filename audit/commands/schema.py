@@ -21,9 +21,9 @@ def run(args: argparse.Namespace) -> int:
 
     text = schema_text()
     if args.output:
-        from audit.report.machine import atomic_write_text
+        from audit.report.files import write_text
 
-        atomic_write_text(args.output, text)
+        write_text(args.output, text, "the JSON Schema")
     else:
         sys.stdout.write(text)
     return EXIT_PASS

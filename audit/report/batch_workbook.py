@@ -8,17 +8,17 @@ Sheets:
   workbook, and the problems of an invalid file or an internal error;
 * ``Findings``: one row per finding of every audited file, accepted ones marked.
 
-Written atomically (a temporary file in the same folder, then renamed).
+Written atomically by :func:`audit.report.files.write_atomically`.
 """
 
 from __future__ import annotations
 
 import math
 import os
-import tempfile
 from collections import Counter
 from datetime import datetime, timezone
 from pathlib import Path
+from typing import Any
 
 from openpyxl import Workbook
 from openpyxl.cell.cell import ILLEGAL_CHARACTERS_RE
@@ -27,8 +27,17 @@ from openpyxl.utils import get_column_letter
 from openpyxl.worksheet.worksheet import Worksheet
 
 from audit.findings import ERROR, INFO, WARNING
-from audit.outcomes import FAIL, PASS, VERDICT_INTERNAL, VERDICT_INVALID, FileOutcome, finding_key
+from audit.outcomes import (
+    FAIL,
+    PASS,
+    VERDICT_INTERNAL,
+    VERDICT_INVALID,
+    VERDICT_UNWRITTEN,
+    FileOutcome,
+    finding_key,
+)
 from audit.report.display import shown, unit
+from audit.report.files import write_atomically
 
 CAUTION = ("The audit checks thermodynamic consistency only; it is not a safety or "
            "code-compliance review. Defer to local codes and licensed engineers.")
@@ -40,6 +49,7 @@ _VERDICT_FILL = {
     FAIL: PatternFill("solid", fgColor="F6D5D1"),
     VERDICT_INVALID: PatternFill("solid", fgColor="FBE8C8"),
     VERDICT_INTERNAL: PatternFill("solid", fgColor="E0D4EC"),
+    VERDICT_UNWRITTEN: PatternFill("solid", fgColor="E0D4EC"),
 }
 
 SUMMARY_COLUMNS = [
@@ -55,7 +65,7 @@ FINDING_COLUMNS = [
 
 
 def summary_rows(outcomes: list[FileOutcome], output: str | Path | None = None,
-                 fail_on: str = "error") -> list[list[object]]:
+                 fail_on: str = "error") -> list[list[Any]]:
     """The Summary sheet's rows (one per file), as plain values; the workbook column is the
     workbook's path relative to ``output``."""
     rows = []
@@ -88,7 +98,8 @@ def summary_rows(outcomes: list[FileOutcome], output: str | Path | None = None,
 
 def write_batch_workbook(outcomes: list[FileOutcome], path: str | Path, fail_on: str = "error",
                          run_at: datetime | None = None) -> Path:
-    """Write the batch summary workbook to ``path`` (atomically); return the path."""
+    """Write the batch summary workbook to ``path`` (atomically); return the path. Raises
+    :class:`audit.errors.ReportError` when the file cannot be written."""
     path = Path(path)
     book = Workbook()
     sheet = book.active
@@ -100,7 +111,8 @@ def write_batch_workbook(outcomes: list[FileOutcome], path: str | Path, fail_on:
     append_row(sheet, ["Run at (UTC)", when.strftime("%Y-%m-%d %H:%M:%S")])
     append_row(sheet, ["Fails on", f"findings at or above '{fail_on}' that no reviewer accepted"])
     append_row(sheet, ["Files", f"{len(outcomes)}: " + ", ".join(
-        f"{verdicts[v]} {v.lower()}" for v in (PASS, FAIL, VERDICT_INVALID, VERDICT_INTERNAL))])
+        f"{verdicts[v]} {v.lower()}" for v in (PASS, FAIL, VERDICT_INVALID, VERDICT_INTERNAL)
+        + ((VERDICT_UNWRITTEN,) if verdicts[VERDICT_UNWRITTEN] else ()))])
     append_row(sheet, ["Caution", CAUTION])
     append_row(sheet, [])
     write_header(sheet, SUMMARY_COLUMNS)
@@ -141,7 +153,7 @@ def write_batch_workbook(outcomes: list[FileOutcome], path: str | Path, fail_on:
     findings.auto_filter.ref = f"A1:{get_column_letter(len(FINDING_COLUMNS))}{findings.max_row}"
     append_row(findings, [])
     append_row(findings, [CAUTION])
-    save_atomically(book, path)
+    write_atomically(path, book.save, "the batch summary workbook")
     return path
 
 
@@ -175,22 +187,3 @@ def append_row(sheet: Worksheet, values: list[object]) -> int:
         else:
             cell.value = value
     return row
-
-
-def save_atomically(book: Workbook, path: Path) -> None:
-    """Save through a temporary file in the same folder, then rename over ``path`` (a crash
-    leaves the previous file as it was); the file gets the usual permissions (umask)."""
-    path.parent.mkdir(parents=True, exist_ok=True)
-    handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-    try:
-        with os.fdopen(handle, "wb") as stream:
-            book.save(stream)
-            stream.flush()
-            os.fsync(stream.fileno())
-        mask = os.umask(0)
-        os.umask(mask)
-        os.chmod(temporary, 0o666 & ~mask)
-        os.replace(temporary, path)
-    except BaseException:
-        Path(temporary).unlink(missing_ok=True)
-        raise

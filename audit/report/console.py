@@ -5,6 +5,7 @@ from __future__ import annotations
 from audit.findings import SEVERITY_RANK, Finding
 from audit.report.display import shown, unit
 from audit.results import AuditResult
+from audit.wording import to_bar, to_celsius
 
 
 def stream_table(result: AuditResult) -> str:
@@ -16,7 +17,7 @@ def stream_table(result: AuditResult) -> str:
     for s in result.streams:
         quality = f"{s.quality:.4f}" if s.quality is not None else ""
         lines.append(
-            f"{s.id:<8} {s.T - 273.15:>9.2f} {s.P / 1e5:>9.4f} {s.phase:<13} "
+            f"{s.id:<8} {to_celsius(s.T):>9.2f} {to_bar(s.P):>9.4f} {s.phase:<13} "
             f"{quality:>7} {s.mass_flow:>11.4f} {s.h / 1e3:>11.2f} {s.s / 1e3:>13.5f} "
             f"{s.psi / 1e3:>10.2f}  {s.basis:<15}  {s.fluid}"
         )
@@ -53,7 +54,7 @@ def findings_summary(result: AuditResult, fail_on: str = "error", marginal: bool
     lines = [
         f"Audit of {title} ({result.file})",
         f"{len(result.streams)} streams, {len(result.steps)} steps; findings: "
-        + ", ".join(f"{counts[s]} {s}" for s in sorted(counts, key=SEVERITY_RANK.get,
+        + ", ".join(f"{counts[s]} {s}" for s in sorted(counts, key=SEVERITY_RANK.__getitem__,
                                                         reverse=True))
         + (f" ({accepted} accepted by a reviewer)" if (accepted := sum(
             1 for f in result.findings if f.accepted)) else ""),

@@ -13,8 +13,9 @@ from openpyxl import Workbook
 from openpyxl.styles import Font, PatternFill
 
 from audit.diff import CHANGED, NEW, RESOLVED, RevisionDiff
-from audit.report.batch_workbook import CAUTION, append_row, save_atomically, write_header
+from audit.report.batch_workbook import CAUTION, append_row, write_header
 from audit.report.display import shown, unit
+from audit.report.files import write_atomically
 
 _STATUS_FILL = {
     NEW: PatternFill("solid", fgColor="F6D5D1"),
@@ -33,7 +34,8 @@ CHANGE_COLUMNS = [
 
 
 def write_diff_workbook(diff: RevisionDiff, path: str | Path, fail_on: str = "error") -> Path:
-    """Write the comparison workbook to ``path`` (atomically); return the path."""
+    """Write the comparison workbook to ``path`` (atomically); return the path. Raises
+    :class:`audit.errors.ReportError` when the file cannot be written."""
     path = Path(path)
     book = Workbook()
     sheet = book.active
@@ -86,5 +88,5 @@ def write_diff_workbook(diff: RevisionDiff, path: str | Path, fail_on: str = "er
         for i in ids:
             append_row(changes, [label.split()[0], i, label.split()[1]])
     changes.freeze_panes = "A2"
-    save_atomically(book, path)
+    write_atomically(path, book.save, "the comparison workbook")
     return path

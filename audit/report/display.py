@@ -8,9 +8,11 @@ from __future__ import annotations
 
 import math
 
+from audit.constants import ZERO_CELSIUS
+
 # quantity kind -> (unit label, scale, offset): shown = SI * scale + offset
 DISPLAY: dict[str, tuple[str, float, float]] = {
-    "temperature": ("°C", 1.0, -273.15),
+    "temperature": ("°C", 1.0, -ZERO_CELSIUS),
     "temperature_difference": ("K", 1.0, 0.0),
     "pressure": ("bar", 1e-5, 0.0),
     "mass_flow": ("kg/s", 1.0, 0.0),
@@ -39,6 +41,13 @@ def shown(value: float | None, quantity: str | None, difference: bool = False) -
         return value
     _, scale, offset = DISPLAY[quantity]
     return value * scale + (0.0 if difference else offset)
+
+
+def in_si(quantity: str) -> bool:
+    """True when ``quantity`` is shown in its SI unit (kg/s, kg/m³, -, ...): reports write such
+    values as they are."""
+    _, scale, offset = DISPLAY.get(quantity, ("", 1.0, 0.0))
+    return scale == 1.0 and offset == 0.0
 
 
 def unit(quantity: str | None, difference: bool = False) -> str:

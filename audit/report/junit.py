@@ -6,7 +6,8 @@ findings that belong to no step. A test case *fails* (one ``<failure>``, its tex
 such finding) when it has findings at or above the gate that no reviewer accepted; accepted and
 lower findings are listed in its ``<system-out>``. An invalid file is one test case ``load and
 validate`` with an ``<error type="invalid-input">``; an internal error, one with
-``<error type="internal-error">``.
+``<error type="internal-error">``. An audited file whose own workbook could not be written has one
+more test case, ``write the workbook``, with an ``<error type="report-not-written">``.
 """
 
 from __future__ import annotations
@@ -15,11 +16,12 @@ import xml.etree.ElementTree as ET
 from pathlib import Path
 
 from audit.findings import Finding, at_or_above
-from audit.outcomes import INTERNAL, INVALID, FileOutcome
-from audit.report.machine import atomic_write_text
+from audit.outcomes import INTERNAL, INVALID, UNWRITTEN, FileOutcome
+from audit.report.files import write_text
 
 PLANT_CASE = "plant and streams"
 LOAD_CASE = "load and validate"
+WORKBOOK_CASE = "write the workbook"
 
 
 def _line(finding: Finding) -> str:
@@ -70,6 +72,14 @@ def junit_tree(outcomes: list[FileOutcome], fail_on: str = "error") -> ET.Elemen
                 others = [f for f in own if f not in failing]
                 if others:
                     ET.SubElement(case, "system-out").text = "\n".join(_line(f) for f in others)
+            if outcome.status == UNWRITTEN:
+                case = ET.SubElement(suite, "testcase", classname=classname, name=WORKBOOK_CASE,
+                                     time="0")
+                error = ET.SubElement(case, "error", type="report-not-written",
+                                      message=(outcome.problems or ["report-not-written"])[0])
+                error.text = "\n".join(outcome.problems)
+                counts["tests"] += 1
+                counts["errors"] += 1
         for key, value in counts.items():
             suite.set(key, str(value))
             totals[key] += value
@@ -83,6 +93,7 @@ def junit_tree(outcomes: list[FileOutcome], fail_on: str = "error") -> ET.Elemen
 
 def write_junit(outcomes: list[FileOutcome], path: str | Path, fail_on: str = "error") -> None:
     """Write the JUnit XML of ``outcomes`` to ``path`` atomically."""
-    text = ET.tostring(junit_tree(outcomes, fail_on).getroot(), encoding="unicode",
-                       xml_declaration=True)
-    atomic_write_text(Path(path), text + "\n")
+    root = junit_tree(outcomes, fail_on).getroot()
+    assert root is not None
+    text = ET.tostring(root, encoding="unicode", xml_declaration=True)
+    write_text(path, text + "\n", "the JUnit XML")

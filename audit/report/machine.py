@@ -12,8 +12,10 @@ JSON structure, version ``JSON_VERSION``::
      "findings": [{severity, name, step, stream, message, claimed, bound, margin, ...}],
      "plant": {heat_in, heat_out, work_out, work_in, exergy_destroyed, ...}}
 
-Non-finite numbers (an infinitely hot source) are written as null. Keys are sorted and the run-time
-fields are kept in ``provenance`` only, so two runs on the same input differ only there.
+The fields of streams, steps and findings, and the CSV columns, come from the column registry
+(:mod:`audit.report.columns`). Non-finite numbers (an infinitely hot source) are written as null.
+Keys are sorted and the run-time fields are kept in ``provenance`` only, so two runs on the same
+input differ only there.
 
 CSV text fields that a spreadsheet program would read as a formula (they start with ``=``, ``+``,
 ``-``, ``@``, a tab or a carriage return: formula or CSV injection, OWASP) are written with a leading
@@ -24,13 +26,15 @@ from __future__ import annotations
 
 import json
 import math
-import os
-import tempfile
 from dataclasses import asdict
 from pathlib import Path
 from typing import Any
 
-from audit.results import AuditResult, as_record
+import pandas as pd  # type: ignore[import-untyped]
+
+from audit.report.columns import FINDINGS, STEPS, STREAMS, Table
+from audit.report.files import write_text
+from audit.results import AuditResult
 
 JSON_VERSION = "1"
 
@@ -68,30 +72,43 @@ def to_dict(result: AuditResult) -> dict:
         "provenance": result.provenance,
         "verdict": {"counts": result.counts()},
         "units": UNITS,
-        "streams": [asdict(s) for s in result.streams],
-        "steps": [as_record(s) for s in result.steps],
-        "findings": [asdict(f) for f in result.findings],
+        "streams": [STREAMS.json_row(s) for s in result.streams],
+        "steps": [STEPS.json_row(s) for s in result.steps],
+        "findings": [FINDINGS.json_row(f) for f in result.findings],
         "plant": asdict(result.plant),
     })
 
 
 def write_json(result: AuditResult, path: str | Path) -> None:
-    """Write the JSON results atomically (a temporary file moved into place)."""
+    """Write the JSON results atomically (a temporary file moved into place); raises
+    :class:`audit.errors.ReportError` when the file cannot be written."""
     text = json.dumps(to_dict(result), indent=2, sort_keys=True, ensure_ascii=False) + "\n"
-    atomic_write_text(Path(path), text)
+    write_text(path, text, "the JSON results")
+
+
+def table_frame(table: Table, rows: list[Any]) -> pd.DataFrame:
+    """One table of the CSV output (SI units), its columns from the registry; indexed by the
+    table's index column when it has one."""
+    columns = [c.key for c in table.machine_columns if c.csv and not c.flatten]
+    if not rows:
+        return pd.DataFrame() if table.index else pd.DataFrame([], columns=columns)
+    frame = pd.DataFrame([table.csv_row(r) for r in rows])
+    return frame.set_index(table.index) if table.index else frame
 
 
 def write_csv(result: AuditResult, folder: str | Path) -> list[Path]:
-    """Write findings.csv, steps.csv and streams.csv (SI units) into ``folder``."""
+    """Write findings.csv, steps.csv and streams.csv (SI units) into ``folder``; raises
+    :class:`audit.errors.ReportError` when a file cannot be written."""
     folder = Path(folder)
-    folder.mkdir(parents=True, exist_ok=True)
     written = []
-    for name, frame in (("findings", result.findings_frame()), ("steps", result.steps_frame()),
-                        ("streams", result.streams_frame())):
-        target = folder / f"{name}.csv"
+    for table, rows in ((FINDINGS, result.findings), (STEPS, result.steps),
+                        (STREAMS, result.streams)):
+        target = folder / f"{table.name}.csv"
+        frame = table_frame(table, rows)
         frame = frame.apply(lambda column: column.map(csv_safe))
         frame.index = frame.index.map(csv_safe)
-        atomic_write_text(target, frame.to_csv(index=name != "findings"))
+        write_text(target, frame.to_csv(index=table.index is not None),
+                   f"the CSV table of {table.name}")
         written.append(target)
     return written
 
@@ -105,16 +122,3 @@ def csv_safe(value: Any) -> Any:
         return value
     text = value.replace("\r\n", "\n").replace("\r", "\n")
     return "'" + text if value.startswith(FORMULA_TRIGGERS) else text
-
-
-def atomic_write_text(path: Path, text: str) -> None:
-    """Write text to ``path`` through a temporary file in the same folder, then rename."""
-    path.parent.mkdir(parents=True, exist_ok=True)
-    handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", dir=path.parent)
-    try:
-        with os.fdopen(handle, "w", encoding="utf-8", newline="") as stream:
-            stream.write(text)
-        os.replace(temporary, path)
-    except BaseException:
-        Path(temporary).unlink(missing_ok=True)
-        raise

@@ -6,18 +6,16 @@ What this module keeps to:
 
 * it writes what it is given (headers, rows of plain values) and computes nothing;
 * text is stored as text, never as a formula, whatever it starts with;
-* the file is written to a temporary file beside the target and moved into place with
-  :func:`os.replace`; the document times and zip entry times are fixed, so the same content gives
-  the same bytes (a committed sample table does not change when it is regenerated unchanged).
+* the file is written atomically (:func:`audit.report.files.write_atomically`); the document
+  times and zip entry times are fixed, so the same content gives the same bytes (a committed
+  sample table does not change when it is regenerated unchanged).
 """
 
 from __future__ import annotations
 
 import io
-import os
-import tempfile
 import zipfile
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from datetime import datetime
 from pathlib import Path
 from typing import Any
@@ -30,7 +28,7 @@ from openpyxl.worksheet.datavalidation import DataValidation
 from openpyxl.worksheet.worksheet import Worksheet
 from openpyxl.writer.excel import ExcelWriter
 
-from audit.errors import InputError
+from audit.report.files import write_bytes
 
 _FIXED_TIME = datetime(1980, 1, 1)  # the earliest time a zip entry can hold
 _HEADER_FILL = PatternFill("solid", fgColor="DDEBF7")
@@ -77,7 +75,7 @@ def write_table_workbook(path: str | Path, stream_headers: Sequence[str],
                          stream_rows: Sequence[Sequence[Any]] = (),
                          claim_headers: Sequence[str] = (),
                          claim_rows: Sequence[Sequence[Any]] = (),
-                         choices: dict[str, Sequence[str]] | None = None,
+                         choices: Mapping[str, Sequence[str]] | None = None,
                          title: str | None = None) -> None:
     """Write a stream-table workbook to ``path`` (an .xlsx file), atomically.
 
@@ -85,7 +83,7 @@ def write_table_workbook(path: str | Path, stream_headers: Sequence[str],
     leaves the claims sheet out), the rows are plain cell values (None for an empty cell),
     ``choices`` maps a header to the words its drop-down list offers (e.g. ``phase``), and
     ``title`` names the workbook in its document properties. Raises
-    :class:`audit.errors.InputError` when the file cannot be written there.
+    :class:`audit.errors.ReportError` when the file cannot be written there.
     """
     wb = Workbook()
     streams = wb.active
@@ -98,12 +96,7 @@ def write_table_workbook(path: str | Path, stream_headers: Sequence[str],
     wb.properties.title = _safe(title or "plant-audit stream table")
     wb.properties.created = _FIXED_TIME
     wb.properties.modified = _FIXED_TIME
-    path = Path(path)
-    try:
-        _atomic_write(path, _package(wb))
-    except OSError as exc:
-        raise InputError(f"cannot write the workbook: {exc.strerror or exc}",
-                         file=str(path)) from exc
+    write_bytes(path, _package(wb), "the stream-table workbook")
 
 
 def _safe(text: str) -> str:
@@ -120,7 +113,7 @@ def _put(ws: Worksheet, row: int, col: int, value: Any) -> None:
 
 
 def _table(ws: Worksheet, headers: Sequence[str], rows: Sequence[Sequence[Any]],
-           choices: dict[str, Sequence[str]]) -> None:
+           choices: Mapping[str, Sequence[str]]) -> None:
     widths = [len(h) for h in headers]
     for col, header in enumerate(headers, start=1):
         _put(ws, 1, col, header)
@@ -179,19 +172,3 @@ def _package(wb: Workbook) -> bytes:
             entry.create_system = 0
             target.writestr(entry, source.read(info.filename))
     return out.getvalue()
-
-
-def _atomic_write(path: Path, content: bytes) -> None:
-    """Write ``content`` to a temporary file beside ``path``, then move it into place."""
-    path.parent.mkdir(parents=True, exist_ok=True)
-    handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-    try:
-        with os.fdopen(handle, "wb") as stream:
-            stream.write(content)
-        mask = os.umask(0)
-        os.umask(mask)
-        os.chmod(temporary, 0o666 & ~mask)
-        os.replace(temporary, path)
-    except BaseException:
-        Path(temporary).unlink(missing_ok=True)
-        raise

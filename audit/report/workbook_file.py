@@ -1,17 +1,13 @@
 """Writing the findings workbook's file: openpyxl's parts with each formula's cached value, fixed
-entry and document times (the same result gives the same bytes), written to a temporary file beside
-the target and moved into place. Used by :mod:`audit.report.workbook`."""
+entry and document times (the same result gives the same bytes). Used by
+:mod:`audit.report.workbook`, which writes the bytes with :mod:`audit.report.files`."""
 
 from __future__ import annotations
 
 import io
-import os
 import re
-import tempfile
 import zipfile
-from collections.abc import Callable
 from datetime import datetime
-from pathlib import Path
 from typing import BinaryIO
 
 from openpyxl import Workbook
@@ -57,7 +53,7 @@ def package(wb: Workbook, formulas: dict[str, list[tuple[str, float]]], when: da
 def cache_formula_values(xml: bytes, cached: list[tuple[str, float]]) -> bytes:
     """Put each formula cell's value into its empty ``<v/>`` (openpyxl writes none)."""
     text = xml.decode("utf-8")
-    values = {}
+    values: dict[str, str] = {}
     for coordinate, value in cached:
         values.setdefault(coordinate, f"<v>{float(value)!r}</v>")
 
@@ -72,27 +68,3 @@ def cache_formula_values(xml: bytes, cached: list[tuple[str, float]]) -> bytes:
 
 
 _FORMULA_CELL = re.compile(r'(<c r="([A-Z]+[0-9]+)"[^>]*><f>[^<]*</f>)(?:<v\s*/>|<v></v>)')
-
-
-def atomic_write(path: Path, write: Callable[[BinaryIO], None]) -> None:
-    """Let ``write`` fill a temporary file beside ``path``, then move the file into place; on any
-    failure remove the temporary file and leave ``path`` as it was."""
-    path.parent.mkdir(parents=True, exist_ok=True)
-    handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-    try:
-        with os.fdopen(handle, "wb") as stream:
-            write(stream)
-            stream.flush()
-            os.fsync(stream.fileno())
-        os.chmod(temporary, 0o666 & ~_umask())
-        os.replace(temporary, path)
-    except BaseException:
-        Path(temporary).unlink(missing_ok=True)
-        raise
-
-
-def _umask() -> int:
-    """The process's umask (read by setting and restoring it; the CLI is single-threaded)."""
-    mask = os.umask(0)
-    os.umask(mask)
-    return mask

@@ -1,0 +1,84 @@
+"""Writing a report file safely, the one way every report (and the command line's other output
+files) is written.
+
+:func:`write_atomically` lets a writer fill a temporary file in the target's folder, flushes it to
+disk, gives it the permissions a new file gets (``0o666`` less the umask) and moves it into place
+with :func:`os.replace`: a crash or an interrupt leaves the previous file as it was and no
+temporary file. A file that cannot be written (a missing or read-only folder, a folder in the
+file's place, a full disk) raises :class:`audit.errors.ReportError`, which names the path and the
+operating system's reason; the command line exits with code 4 for it.
+"""
+
+from __future__ import annotations
+
+import os
+import tempfile
+from collections.abc import Callable
+from pathlib import Path
+from typing import BinaryIO
+
+from audit.errors import ReportError
+
+
+def write_atomically(path: str | Path, write: Callable[[BinaryIO], None], what: str) -> None:
+    """Let ``write`` fill a temporary file beside ``path``, then move it into place.
+
+    ``what`` names the report in the error message ("the JSON results"). Creates the missing
+    folders of ``path``. Raises :class:`audit.errors.ReportError` when the file cannot be written;
+    any other failure of ``write`` (or an interrupt) propagates, and ``path`` stays as it was."""
+    path = Path(path)
+    temporary: Path | None = None
+    try:
+        path.parent.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        blocker = _file_in_the_way(path)
+        reason = f"{blocker} is a file, not a folder" if blocker else exc.strerror or str(exc)
+        raise ReportError(str(path), what, reason) from exc
+    try:
+        handle, name = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
+        temporary = Path(name)
+        with os.fdopen(handle, "wb") as stream:
+            write(stream)
+            stream.flush()
+            os.fsync(stream.fileno())
+        os.chmod(temporary, 0o666 & ~_umask())
+        os.replace(temporary, path)
+        temporary = None
+    except ReportError:
+        raise
+    except OSError as exc:
+        raise ReportError(str(path), what, exc.strerror or str(exc)) from exc
+    finally:
+        if temporary is not None:
+            temporary.unlink(missing_ok=True)
+
+
+def write_text(path: str | Path, text: str, what: str) -> None:
+    """Write ``text`` (UTF-8, line endings as given) to ``path`` atomically (see
+    :func:`write_atomically`)."""
+    write_bytes(path, text.encode("utf-8"), what)
+
+
+def write_bytes(path: str | Path, data: bytes, what: str) -> None:
+    """Write ``data`` to ``path`` atomically (see :func:`write_atomically`)."""
+
+    def write(stream: BinaryIO) -> None:
+        stream.write(data)
+
+    write_atomically(path, write, what)
+
+
+def _file_in_the_way(path: Path) -> Path | None:
+    """The first folder of ``path`` that is a file instead, if any."""
+    for folder in reversed(path.parents):
+        if folder.exists() and not folder.is_dir():
+            return folder
+    return None
+
+
+def _umask() -> int:
+    """The process's umask (read by setting and restoring it; the command line is
+    single-threaded)."""
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask

@@ -1,0 +1,122 @@
+"""What every sheet of the findings workbook shares: the sheet names, the result, the sheets, the
+row of each step, stream and finding (for links), and small helpers."""
+
+from __future__ import annotations
+
+from collections.abc import Iterable, Sequence
+from typing import Any
+
+from openpyxl import Workbook
+
+from audit.findings import SEVERITY_RANK, Finding
+from audit.report.columns import OWN, Column
+from audit.report.display import in_si, shown
+from audit.report.workbook_cells import Sheet
+from audit.results import AuditResult
+
+OVERVIEW, FINDINGS, STEPS, STREAMS, HEAT, EXERGY, METHOD = (
+    "Overview",
+    "Findings",
+    "Steps",
+    "Streams",
+    "Heat flows",
+    "Exergy losses",
+    "Method",
+)
+SHEETS = (OVERVIEW, FINDINGS, STEPS, STREAMS, HEAT, EXERGY, METHOD)
+
+RATE_BASIS = "rate (kW)"
+TOTAL_BASIS = "total (kJ)"
+
+# The unit of each tolerance of :class:`audit.model.tolerances.Tolerances` (tests keep this complete).
+TOLERANCE_QUANTITY = {
+    "energy_relative": "fraction",
+    "energy_absolute": "power",
+    "energy_absolute_batch": "energy",
+    "mass_relative": "fraction",
+    "mass_absolute": "mass_flow",
+    "efficiency": "fraction",
+    "saturation_band": "temperature_difference",
+    "state_match_temperature": "temperature_difference",
+    "state_match_pressure_relative": "fraction",
+    "min_approach": "temperature_difference",
+    "exhaust_moisture_max": "fraction",
+    "pump_subcooling_min": "temperature_difference",
+    "isothermal_band": "temperature_difference",
+    "isobaric_relative": "fraction",
+}
+
+
+class Book:
+    """The workbook being written: one :class:`Sheet` per title of :data:`SHEETS`, the result,
+    the gate, the findings in the Findings sheet's order, and where each step, stream and first
+    finding of a step or stream stands (for links between sheets)."""
+
+    def __init__(self, result: AuditResult, fail_on: str) -> None:
+        self.result = result
+        self.fail_on = fail_on
+        self.wb = Workbook()
+        self.sheets: dict[str, Sheet] = {}
+        for index, title in enumerate(SHEETS):
+            ws = self.wb.active if index == 0 else self.wb.create_sheet()
+            assert ws is not None
+            ws.title = title
+            self.sheets[title] = Sheet(ws)
+        self.step_row = {s.id: row for row, s in enumerate(result.steps, start=2)}
+        self.stream_row = {s.id: row for row, s in enumerate(result.streams, start=2)}
+        self.findings = ordered(result.findings)
+        self.first_finding_row: dict[tuple[str, str], int] = {}
+        for row, f in enumerate(self.findings, start=2):
+            if f.step:
+                self.first_finding_row.setdefault(("step", f.step), row)
+            if f.stream:
+                self.first_finding_row.setdefault(("stream", f.stream), row)
+
+
+def rank(severity: str) -> int:
+    return SEVERITY_RANK[severity]
+
+
+def worst(findings: Iterable[Finding]) -> str | None:
+    """The most severe severity among ``findings`` (None: no findings)."""
+    ranked = sorted((f.severity for f in findings), key=rank, reverse=True)
+    return ranked[0] if ranked else None
+
+
+def marker(worst: str, count: int) -> str:
+    """The findings cell of a step or stream: its worst severity and how many findings it has."""
+    return f"{worst} ({count} finding{'s' if count > 1 else ''})"
+
+
+def ordered(findings: Sequence[Finding]) -> list[Finding]:
+    """Most severe first; the solver's order within a severity."""
+    return sorted(findings, key=lambda f: -SEVERITY_RANK[f.severity])
+
+
+def number_or_text(value: Any) -> Any:
+    """A provenance value as a number when it is one (solve time, counts), else the text."""
+    try:
+        number = float(value)
+    except (TypeError, ValueError):
+        return value
+    return int(number) if number.is_integer() and "." not in str(value) else number
+
+
+def cell_value(column: Column, row: Any, quantity: str | None = None) -> Any:
+    """The workbook cell of a registry column (:mod:`audit.report.columns`) for one result
+    object: a list joined as text, a structured value as its one cell, a quantity in its display
+    unit (``quantity``: the column's own unless given; a row's own for :data:`OWN`), a value
+    whose display unit is SI as it is, missing text as an empty string."""
+    value = column.value(row)
+    if column.joined is not None:
+        return column.joined.join(value or ())
+    if column.cell is not None:
+        return column.cell(value)
+    if column.quantity == OWN:
+        return shown(value, quantity, difference=column.difference)
+    quantity = quantity or column.quantity
+    if quantity is not None and not in_si(quantity):
+        return shown(value, quantity, difference=column.difference)
+    if quantity is None and column.fmt is None and value is None:
+        return ""
+    return value

@@ -1,0 +1,163 @@
+"""The Overview sheet: the balance, its file and SHA-256, the dead state, the site pressure, the
+verdict at the chosen threshold, counts by severity, plant totals, tolerances, the run and the
+safety caution, with links to the other sheets."""
+
+from __future__ import annotations
+
+from typing import Any
+
+from openpyxl.styles import Alignment, Font, PatternFill
+
+from audit.findings import ERROR, SEVERITY_RANK
+from audit.report.display import shown, unit
+from audit.report.sheets.context import (
+    EXERGY,
+    FINDINGS,
+    HEAT,
+    METHOD,
+    OVERVIEW,
+    STEPS,
+    STREAMS,
+    TOLERANCE_QUANTITY,
+    Book,
+    number_or_text,
+    rank,
+)
+from audit.report.workbook_cells import (
+    BOLD,
+    FILLS,
+    FORMATS,
+    GENERAL,
+    HEADER_FONT,
+    INTEGER,
+    SECTION_FONT,
+    TITLE_FONT,
+    location,
+)
+from audit.report.workbook_method import CAUTION
+
+SHEET_GUIDE = (
+    (FINDINGS, "one row per finding, most severe first; the step links to its row"),
+    (STEPS, "every step's balances; the first-law residual is a live formula"),
+    (STREAMS, "every stream's state and flow"),
+    (HEAT, "every heat flow across a step's boundary and its temperature"),
+    (EXERGY, "exergy destroyed per step, largest first, with a chart"),
+    (METHOD, "sign convention, equations, tolerances and published sources"),
+)
+
+
+def write(book: Book) -> None:
+    r, sh = book.result, book.sheets[OVERVIEW]
+    counts = r.counts()
+    failed = r.fails(book.fail_on)
+    sh.put(1, 1, "plant-audit findings workbook", font=TITLE_FONT, width=False)
+    sh.put(2, 1, "Caution", font=HEADER_FONT, wrap=True)
+    sh.put(2, 2, CAUTION, wrap=True, font=BOLD)
+    sh.ws.merge_cells("B2:D2")
+    row = 4
+
+    def section(title: str) -> None:
+        nonlocal row
+        row += 1 if row > 4 else 0
+        sh.put(row, 1, title, font=SECTION_FONT, width=False)
+        row += 1
+
+    def item(
+        label: str,
+        value: Any,
+        unit_label: str = "",
+        fmt: str | None = None,
+        fill: PatternFill | None = None,
+        link: str | None = None,
+        font: Font | None = None,
+    ) -> None:
+        nonlocal row
+        sh.put(row, 1, label)
+        cell = sh.put(row, 2, value, fmt=fmt, fill=fill, link=link, font=font)
+        cell.alignment = Alignment(horizontal="left", vertical="top")
+        if unit_label:
+            sh.put(row, 3, unit_label)
+        row += 1
+
+    section("Verdict")
+    verdict = "FAIL" if failed else "PASS"
+    item("verdict", verdict, fill=FILLS[ERROR] if failed else FILLS["pass"], font=SECTION_FONT)
+    item("fails on findings at or above", book.fail_on)
+    for severity in sorted(SEVERITY_RANK, key=rank, reverse=True):
+        item(
+            f"findings: {severity}",
+            counts[severity],
+            fmt=INTEGER,
+            fill=FILLS[severity] if counts[severity] else None,
+        )
+    accepted = sum(1 for f in r.findings if getattr(f, "accepted", None))
+    item("of which accepted by a reviewer (they do not fail the verdict)", accepted, fmt=INTEGER)
+    with_errors = sorted(
+        {f.step for f in r.findings if f.step and f.severity == ERROR},
+        key=lambda s: book.step_row.get(s, 0),
+    )
+    item("steps with errors", ", ".join(with_errors) if with_errors else "none")
+    item("streams", len(r.streams), fmt=INTEGER)
+    item("steps", len(r.steps), fmt=INTEGER)
+    item("where exergy is lost", "see the chart on the Exergy losses sheet", link=location(EXERGY, 1))
+
+    section("Balance")
+    item("name", r.name)
+    item("revision", r.revision or "")
+    item("file", r.file)
+    item("SHA-256 of the file", r.sha256)
+    item(
+        "dead state temperature T0",
+        shown(r.dead_T, "temperature"),
+        unit("temperature"),
+        FORMATS["temperature"],
+    )
+    item("dead state pressure P0", shown(r.dead_P, "pressure"), unit("pressure"), FORMATS["pressure"])
+    if r.site_pressure is not None:
+        item(
+            "site (atmospheric) pressure",
+            shown(r.site_pressure, "pressure"),
+            unit("pressure"),
+            FORMATS["pressure"],
+        )
+    else:
+        item("site (atmospheric) pressure", "not declared")
+    item("sign convention", "Q is heat INTO the step; W is work DELIVERED BY the step")
+
+    p = r.plant
+    section("Plant totals (flow steps; vessels are batch totals and are not included)")
+    for label, value in (
+        ("heat in", p.heat_in),
+        ("heat out", p.heat_out),
+        ("work delivered", p.work_out),
+        ("work absorbed", p.work_in),
+        ("exergy destroyed", p.exergy_destroyed),
+        ("first-law residual at the plant boundary", p.boundary_energy_residual),
+        ("sum of the steps' first-law residuals", p.sum_of_step_residuals),
+    ):
+        item(label, shown(value, "power"), unit("power"), FORMATS["power"])
+    item("boundary inlets", ", ".join(p.boundary_inlets))
+    item("boundary outlets", ", ".join(p.boundary_outlets))
+
+    section("Tolerances (see the Method sheet for what each one allows)")
+    for name, tolerance in r.tolerances.items():
+        quantity = TOLERANCE_QUANTITY.get(name)
+        label = unit(quantity, difference=True) if quantity else "SI"
+        item(
+            name,
+            shown(tolerance, quantity, difference=True),
+            label,
+            FORMATS.get(quantity or "", GENERAL),
+        )
+
+    section("Run")
+    for key, text in r.provenance.items():
+        item(key, number_or_text(text))
+
+    section("Sheets")
+    for title, what in SHEET_GUIDE:
+        sh.put(row, 1, title, link=location(title, 1))
+        sh.put(row, 2, what)
+        row += 1
+    sh.fix(2, min(max(sh.widths.get(2, 0) + 2, 45), 70))
+    sh.fit(cap=70)
