@@ -14,6 +14,7 @@ from typing import Any
 
 from audit.errors import InputError, InputErrors, Problem
 from audit.input.document import Document
+from audit.model.steps import step_claims, step_spreads
 from audit.model.streams import StreamSpec
 from audit.model.uncertainty import (
     EXACT,
@@ -22,8 +23,6 @@ from audit.model.uncertainty import (
     Spread,
     StreamUncertainty,
     coverage_divisor,
-    step_claims,
-    step_spreads,
 )
 from audit.review.runner import StepRunner
 

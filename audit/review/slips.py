@@ -28,7 +28,7 @@ from typing import Any
 from pydantic import BaseModel
 
 from audit.errors import InputError
-from audit.model.uncertainty import step_claims
+from audit.model.steps import Claim, step_claims
 from audit.review.runner import StepRunner, with_value
 from audit.review.verdicts import format_value
 from audit.units import STANDARD_ATMOSPHERE, split_number
@@ -187,7 +187,7 @@ def step_slips(runner: StepRunner, index: int) -> list[Slip]:
                         step=with_value(step, claim.path, value),
                     )
                 )
-            slips.append(_sign_slip(step, index, claim.path, claim.value, what, shown))
+            slips.append(_sign_slip(step, index, claim, what, shown))
         elif claim.kind == "temperature":
             for T, sentence in _temperature_slips(claim.value, text, what):
                 slips.append(Slip(sentence, step_index=index, step=with_value(step, claim.path, T)))
@@ -212,20 +212,12 @@ def step_slips(runner: StepRunner, index: int) -> list[Slip]:
     return slips
 
 
-_OPPOSITES = {
-    "added": "removed",
-    "removed": "added",
-    "work_delivered": "work_absorbed",
-    "work_absorbed": "work_delivered",
-}
-
-
-def _sign_slip(
-    step: Any, index: int, path: tuple[str | int, ...], value: float, what: str, shown: str
-) -> Slip:
-    leaf = str(path[-1])
-    if leaf in _OPPOSITES:
-        other = _OPPOSITES[leaf]
+def _sign_slip(step: Any, index: int, claim: Claim, what: str, shown: str) -> Slip:
+    """The claim stated the other way round: under its declared opposite field (heat added for
+    removed), else with a minus sign."""
+    path, value, other = claim.path, claim.value, claim.opposite
+    if other is not None:
+        leaf = str(path[-1])
         parent_path = path[:-1]
         if parent_path:
             parent = step

@@ -16,7 +16,7 @@ from typing import Literal
 from pydantic import Field
 
 from audit.findings import ERROR, Finding
-from audit.model.quantities import Power, Temperature
+from audit.model.steps import DutyClaim, TemperatureClaim
 from audit.results import HeatFlow, StepResult
 from audit.steps.base import StepBase, StepContext, boundary_temperature, finish_flow_step, register
 
@@ -25,8 +25,8 @@ class Cooler(StepBase):
     kind: Literal["cooler"]
     inlet: str
     outlet: str
-    duty: Power | None = Field(None, ge=0, description="heat given off by the stream")
-    sink_temperature: Temperature | None = Field(None, description="temperature of the sink")
+    duty: DutyClaim = Field(None, ge=0, description="heat given off by the stream")
+    sink_temperature: TemperatureClaim = Field(None, description="temperature of the sink")
 
     def stream_ids(self) -> tuple[list[str], list[str]]:
         return [self.inlet], [self.outlet]
