@@ -107,7 +107,9 @@ def stream_inputs(
     }[pair]
     found = []
     for name, value in ((names[0], a), (names[1], b), ("flow", spec.flow.value)):
-        spread, divisor, path = None, base_divisor, ("balance", "uncertainty", name)
+        spread: Spread | None = None
+        divisor = base_divisor
+        path: tuple[str, ...] = ("balance", "uncertainty", name)
         if own is not None and getattr(own, name) is not None:
             spread, divisor = getattr(own, name), own_divisor
             path = ("streams", stream_id, "uncertainty", name)
@@ -177,12 +179,12 @@ def claim_inputs(
     base_divisor = coverage_divisor(unc.coverage) if unc is not None else 1.0
     found = []
     for claim in step_claims(step):
+        spread: Spread | None = None
+        divisor = base_divisor
         if claim.key in own:
             spread, divisor = own[claim.key], own_divisor or base_divisor
         elif use_defaults:
-            spread, divisor = _defaults(unc, claim.category), base_divisor
-        else:
-            spread = None
+            spread = _defaults(unc, claim.category)
         if spread is None or spread == EXACT:
             continue
         u = spread.standard(claim.value, divisor)

@@ -128,11 +128,9 @@ def margin_function(
     elif name == "mass-imbalance" and not result.batch and finding.claimed is not None:
         sign = 1.0 if finding.claimed >= 0 else -1.0
         for fluid in result.mass_residual:
-            candidates.append(lambda r, s, fluid=fluid: sign * r.mass_residual.get(fluid, 0.0))
+            candidates.append(_fluid_residual(fluid, sign))
         for i in range(min(len(result.inlets), len(result.outlets))):
-            candidates.append(
-                lambda r, s, i=i: sign * (s[r.inlets[i]].mass_flow - s[r.outlets[i]].mass_flow)
-            )
+            candidates.append(_pair_residual(i, sign))
     if finding.margin is None:
         return None
     for candidate in candidates:
@@ -142,3 +140,21 @@ def margin_function(
         ):
             return candidate
     return None
+
+
+def _fluid_residual(fluid: str, sign: float) -> Margin:
+    """The mass residual of one fluid [kg/s], signed as the finding's."""
+
+    def margin(r: StepResult, s: dict[str, StreamResult]) -> float:
+        return sign * r.mass_residual.get(fluid, 0.0)
+
+    return margin
+
+
+def _pair_residual(i: int, sign: float) -> Margin:
+    """The flow of inlet ``i`` minus that of outlet ``i`` [kg/s], signed as the finding's."""
+
+    def margin(r: StepResult, s: dict[str, StreamResult]) -> float:
+        return sign * (s[r.inlets[i]].mass_flow - s[r.outlets[i]].mass_flow)
+
+    return margin

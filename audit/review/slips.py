@@ -27,11 +27,13 @@ from typing import Any
 
 from pydantic import BaseModel
 
+from audit.constants import ZERO_CELSIUS
 from audit.errors import InputError
 from audit.model.steps import Claim, step_claims
 from audit.review.runner import StepRunner, with_value
 from audit.review.verdicts import format_value
 from audit.units import STANDARD_ATMOSPHERE, split_number
+from audit.wording import bar, to_bar, to_celsius
 
 _GAUGE_UNIT = re.compile(r"^\s*(mbar|bar|Pa|kPa|MPa|psi)\s*(g|\(g\))\s*$")
 _CELSIUS = ("degC", "°C", "℃", "celsius", "degree_Celsius")
@@ -86,35 +88,35 @@ def _pressure_slips(value: float, text: Any, site: float | None, what: str) -> l
         if site is not None
         else (" (taking the standard atmosphere: the balance declares no site_pressure)")
     )
-    shown = f"'{text}'" if text is not None else f"{value / 1e5:.4g} bar"
+    shown = f"'{text}'" if text is not None else bar(value)
     slips = []
     if unit is None or not gauge:
         P = value + atmosphere
         slips.append(
             (
                 P,
-                f"closes if {what} {shown} is gauge ({value / 1e5:.4g} barg, "
-                f"{P / 1e5:.4g} bar absolute), not absolute{note}",
+                f"closes if {what} {shown} is gauge ({to_bar(value):.4g} barg, "
+                f"{bar(P)} absolute), not absolute{note}",
             )
         )
     if (unit is None or gauge) and value - atmosphere > 0:
         P = value - atmosphere
-        slips.append((P, f"closes if {what} {shown} is absolute ({P / 1e5:.4g} bar), not gauge{note}"))
+        slips.append((P, f"closes if {what} {shown} is absolute ({bar(P)}), not gauge{note}"))
     return slips
 
 
 def _temperature_slips(value: float, text: Any, what: str) -> list[tuple[float, str]]:
     """(T' [K], sentence) for a temperature [K] written as ``text`` in °C or °F."""
     unit = _unit_of(text, "temperature") if text is not None else None
-    shown = f"'{text}'" if text is not None else f"{value - 273.15:.4g} °C"
+    shown = f"'{text}'" if text is not None else f"{to_celsius(value):.4g} °C"
     slips = []
-    written_c = value - 273.15
+    written_c = to_celsius(value)
     if unit is None or unit.strip() in _CELSIUS:
-        T = (written_c - 32.0) * 5.0 / 9.0 + 273.15
-        slips.append((T, f"closes if {what} {shown} is in °F ({T - 273.15:.4g} °C), not °C"))
+        T = (written_c - 32.0) * 5.0 / 9.0 + ZERO_CELSIUS
+        slips.append((T, f"closes if {what} {shown} is in °F ({to_celsius(T):.4g} °C), not °C"))
     if unit is None or unit.strip() in _FAHRENHEIT:
-        T = (written_c * 9.0 / 5.0 + 32.0) + 273.15
-        slips.append((T, f"closes if {what} {shown} is in °C ({T - 273.15:.4g} °C), not °F"))
+        T = (written_c * 9.0 / 5.0 + 32.0) + ZERO_CELSIUS
+        slips.append((T, f"closes if {what} {shown} is in °C ({to_celsius(T):.4g} °C), not °F"))
     return [(T, s) for T, s in slips if T > 0]
 
 
@@ -125,11 +127,11 @@ def stream_slips(runner: StepRunner, stream_id: str) -> list[Slip]:
     site = runner.balance.balance.site_pressure
     pair, _, _ = spec.inputs()
     slips = []
-    if "P" in pair:
+    if "P" in pair and spec.P is not None:
         text = _written(document, ("streams", stream_id, "P"))
         for P, sentence in _pressure_slips(spec.P, text, site, f"stream {stream_id}'s pressure"):
             slips.append(Slip(sentence, stream=stream_id, changes={"P": P}))
-    if "T" in pair:
+    if "T" in pair and spec.T is not None:
         text = _written(document, ("streams", stream_id, "T"))
         for T, sentence in _temperature_slips(spec.T, text, f"stream {stream_id}'s temperature"):
             slips.append(Slip(sentence, stream=stream_id, changes={"T": T}))
@@ -196,7 +198,7 @@ def step_slips(runner: StepRunner, index: int) -> list[Slip]:
                 slips.append(Slip(sentence, step_index=index, step=with_value(step, claim.path, P)))
     for path, inlet, outlet in _pair_swaps(step):
         side = f"the {path[-1]} side's " if path else ""
-        target = step
+        target: BaseModel = step
         if path:
             swapped = getattr(step, path[0]).model_copy(update={"inlet": outlet, "outlet": inlet})
             target = with_value(step, path, swapped)

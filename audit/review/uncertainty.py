@@ -37,6 +37,8 @@ from collections import defaultdict
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
+from pydantic import BaseModel
+
 from audit.findings import Contributor, Finding
 from audit.results import StepResult
 from audit.review.inputs import Input, step_inputs
@@ -57,7 +59,7 @@ def step_function(
 
     def f(x: list[float]) -> list[float]:
         changes: dict[str, dict[str, float]] = defaultdict(dict)
-        step = base
+        step: BaseModel = base
         for item, value in zip(inputs, x, strict=True):
             if value == item.value:
                 continue
