@@ -22,7 +22,7 @@ from audit.model.balance import Balance
 from audit.reading import resolve_tables, validate_document
 from audit.results import AuditResult
 from audit.review.acceptance import Acceptance, apply_acceptances, load_beside
-from audit.review.uncertainty import review
+from audit.review.passes import review
 from audit.solve import solve, to_result
 
 
@@ -56,7 +56,7 @@ def run(path: str | Path, today: date | None = None, allow_outside: bool = False
 def audit_balance(balance: Balance, document: Document, sha256: str = "",
                   monte_carlo: int = 0) -> AuditResult:
     """Solve a validated balance (:func:`audit.solve.solve`), then review its findings
-    (:func:`audit.review.uncertainty.review`: verdicts with uncertainty and rounding, probable
+    (:func:`audit.review.passes.review`: verdicts with uncertainty and rounding, probable
     causes). ``monte_carlo`` > 0 cross-checks the uncertainties with that many draws per step."""
     solution = solve(balance, document)
     findings, notes = review(solution, monte_carlo_trials=monte_carlo)

@@ -21,7 +21,7 @@ import time
 from collections import defaultdict
 from dataclasses import dataclass, field
 from datetime import datetime, timezone
-from typing import Any
+from typing import Any, cast
 
 from audit.errors import InputErrors, Problem, StateError
 from audit.findings import ERROR, WARNING, Finding, relative
@@ -34,6 +34,7 @@ from audit.results import AuditResult, PlantTotals, StepResult, StreamResult
 from audit.steps import REGISTRY, StepContext
 from audit.units import Flow
 from audit.version import __version__
+from audit.wording import bar, celsius, to_celsius
 
 _PHASE_MATCH = {
     "liquid": {"liquid"},
@@ -145,7 +146,7 @@ def _evaluate_streams(balance: Balance, document: Document, engine: PropertyEngi
             findings.append(Finding(
                 WARNING, "phase-mismatch", None,
                 f"stream {stream_id} is declared {spec.phase} but its state "
-                f"({result.T - 273.15:.2f} °C, {result.P / 1e5:.4g} bar) is {result.phase}",
+                f"({celsius(result.T)}, {bar(result.P)}) is {result.phase}",
                 stream=stream_id,
             ))
         if result.composition is not None:
@@ -163,7 +164,7 @@ def _dew_point_findings(stream_id: str, state: State) -> list[Finding]:
             ERROR, "below-dew-point", None,
             f"stream {stream_id} is below its dew point: the partial pressure of {formula} "
             f"({partial / 1e3:.4g} kPa) exceeds its saturation pressure at "
-            f"{state.T - 273.15:.2f} °C ({p_sat / 1e3:.4g} kPa), so it would condense; the "
+            f"{celsius(state.T)} ({p_sat / 1e3:.4g} kPa), so it would condense; the "
             "ideal-gas mixture model does not condense: give the condensate as a stream of its "
             "own and the gas at its dew point or above",
             claimed=partial, bound=p_sat, margin=partial - p_sat,
@@ -177,7 +178,7 @@ def evaluate_stream(stream_id: str, spec: StreamSpec, engine: PropertyEngine, li
                     ) -> StreamResult:
     """A stream's state and flows from its written spec, through the property engine."""
     pair, a, b = spec.inputs()
-    if spec.composition is not None:
+    if isinstance(spec.composition, dict):  # a named composition is expanded on validation
         # A gas mixture (audit.properties.mixtures); a normal or standard volume of it is converted with the
         # ideal-gas molar volume at its reference conditions, as combustion practice does.
         state = engine.mixture_state(spec.composition, a, b, spec.composition_basis)
@@ -187,8 +188,9 @@ def evaluate_stream(stream_id: str, spec: StreamSpec, engine: PropertyEngine, li
         else:
             mass_flow = _mass_flow(spec.flow, state.fluid, state.rho, state.molar_mass, engine)
     else:
-        state = engine.state(spec.fluid, pair, a, b)  # type: ignore[arg-type]
-        mass_flow = _mass_flow(spec.flow, spec.fluid, state.rho, state.molar_mass, engine)
+        fluid = cast(str, spec.fluid)  # validated: a stream without a composition names its fluid
+        state = engine.state(fluid, pair, a, b)
+        mass_flow = _mass_flow(spec.flow, fluid, state.rho, state.molar_mass, engine)
     return StreamResult(
         id=stream_id, fluid=state.fluid, T=state.T, P=state.P, rho=state.rho, h=state.h,
         s=state.s, u=state.u, g=state.g, a=state.a, psi=state.psi, phase=state.phase,
@@ -215,13 +217,13 @@ def _mass_flow(flow: Flow, fluid: str, rho: float, molar_mass: float,
     except StateError as exc:  # e.g. water at 0 °C is below its equation's range
         raise StateError(
             f"a normal or standard volumetric flow needs a gas at its reference conditions "
-            f"({T_ref - 273.15:g} °C, {P_ref / 1e3:g} kPa), but {fluid} cannot be evaluated "
+            f"({to_celsius(T_ref):g} °C, {P_ref / 1e3:g} kPa), but {fluid} cannot be evaluated "
             f"there ({exc.problem.message}); give a mass or molar flow"
         ) from None
     if reference.phase not in ("vapour", "gas", "supercritical"):
         raise StateError(
             f"a normal or standard volumetric flow needs a gas at its reference conditions "
-            f"({T_ref - 273.15:g} °C, {P_ref / 1e3:g} kPa), but {reference.fluid} is "
+            f"({to_celsius(T_ref):g} °C, {P_ref / 1e3:g} kPa), but {reference.fluid} is "
             f"{reference.phase} there; give a mass or molar flow"
         )
     return flow.value * reference.rho

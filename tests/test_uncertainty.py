@@ -23,7 +23,8 @@ from audit.findings import CONSISTENT, MARGINAL, VIOLATED
 from audit.model.uncertainty import coverage_divisor, parse_spread
 from audit.report.console import findings_summary
 from audit.report.machine import to_dict
-from audit.review.uncertainty import propagate, verdict
+from audit.review.propagation import propagate
+from audit.review.verdicts import verdict
 
 iapws = pytest.importorskip("iapws")
 

@@ -580,7 +580,8 @@ def _docstring_references() -> list[tuple[str, str, str]]:
     import audit.steps.kinds
 
     modules = ["audit.steps.laws", "audit.formation", "audit.properties.engine", "audit.properties.mixtures",
-               "audit.steps.reactions", "audit.review.uncertainty"] + [
+               "audit.steps.reactions", "audit.review.uncertainty", "audit.review.propagation",
+               "audit.review.verdicts", "audit.review.margins"] + [
         f"audit.steps.kinds.{m.name}" for m in pkgutil.iter_modules(audit.steps.kinds.__path__)]
     found = []
     for name in modules:

@@ -7,20 +7,19 @@ elevation (for kinetic and potential energy) and the phase the balance says it h
 
 from __future__ import annotations
 
-from typing import Literal
+from typing import Annotated, Literal
 
 from pydantic import BaseModel, ConfigDict, Field, model_validator
 
 from audit.model.composition import check_fractions, named_composition
 from audit.model.quantities import (
     Length,
-    Pressure,
     SpecificEnthalpy,
     SpecificEntropy,
     StreamFlow,
-    Temperature,
     Velocity,
 )
+from audit.model.steps import ClaimField, PressureClaim, TemperatureClaim
 from audit.model.uncertainty import StreamUncertaintyField
 
 PAIRS = {
@@ -42,13 +41,13 @@ class PropertyPair(BaseModel):
 
     model_config = ConfigDict(extra="forbid")
 
-    T: Temperature | None = Field(None, description="temperature")
-    P: Pressure | None = Field(None, description="pressure (absolute, or gauge as 'barg')")
-    quality: float | None = Field(
+    T: TemperatureClaim = Field(None, description="temperature")
+    P: PressureClaim = Field(None, description="pressure (absolute, or gauge as 'barg')")
+    quality: Annotated[float | None, ClaimField("quality")] = Field(
         None, ge=0.0, le=1.0, description="vapour mass fraction, 0 to 1 (two-phase states)")
-    h: SpecificEnthalpy | None = Field(
+    h: Annotated[SpecificEnthalpy | None, ClaimField("specific_enthalpy")] = Field(
         None, description="specific enthalpy on the fluid's usual table reference")
-    s: SpecificEntropy | None = Field(
+    s: Annotated[SpecificEntropy | None, ClaimField("specific_entropy")] = Field(
         None, description="specific entropy on the fluid's usual table reference")
 
     @model_validator(mode="after")

@@ -28,15 +28,15 @@ to every stream and claim that does not say otherwise; under ``basis: design`` n
 unless a stream or step declares it (``uncertainty: measured`` takes the balance's defaults).
 
 A step names its claims by their field names, nested ones with dots and without list positions:
-``shaft_power``, ``duty``, ``heat.added``, ``heat.temperature``, ``initial.T``, ``mass``.
+``shaft_power``, ``duty``, ``heat.added``, ``heat.temperature``, ``initial.T``, ``mass``. Which
+fields are claims, and which default each takes, is declared on the step models' fields
+(:class:`audit.model.steps.ClaimField`).
 """
 
 from __future__ import annotations
 
 import math
 import re
-import typing
-from collections.abc import Iterator
 from dataclasses import dataclass
 from typing import Annotated, Any, Literal
 
@@ -45,7 +45,6 @@ from pydantic_core import PydanticCustomError
 
 from audit import units
 from audit.errors import UnitError
-from audit.model import quantities
 
 EXACT_WORDS = ("exact", "measured")
 _COVERAGE = re.compile(r"^(standard|expanded-k(\d+(?:\.\d+)?))$")
@@ -252,105 +251,3 @@ StepUncertaintyField = Annotated[
 STREAM_CATEGORY = {"T": "temperature", "P": "pressure", "quality": "quality", "flow": "flow"}
 _STREAM_KIND = {"T": "temperature", "P": "pressure", "quality": "quality",
                 "h": "specific_enthalpy", "s": "specific_entropy", "flow": "flow"}
-
-# -- the claims of a step -------------------------------------------------------------------------
-_SKIPPED = {"id", "kind", "description", "tolerances", "uncertainty"}
-_QUANTITY_TYPES: list[tuple[Any, str]] = [
-    (quantities.Temperature, "temperature"), (quantities.Pressure, "pressure"),
-    (quantities.Power, "power"), (quantities.Energy, "energy"), (quantities.Mass, "mass"),
-    (quantities.SpecificEnthalpy, "specific_enthalpy"),
-    (quantities.SpecificEntropy, "specific_entropy"), (quantities.Length, "length"),
-    (quantities.Velocity, "velocity"), (quantities.Volume, "volume"),
-    (quantities.Voltage, "voltage"), (quantities.Current, "current"),
-]
-
-
-@dataclass(frozen=True)
-class Claim:
-    """One number a step claims: its field ``path`` (names and list positions), its dotted
-    ``key`` (without positions), its kind of spread and its value [SI]."""
-
-    path: tuple[str | int, ...]
-    key: str
-    kind: str
-    value: float
-
-    @property
-    def category(self) -> str:
-        """The balance default it takes: power, duty, energy, temperature, pressure, ..."""
-        leaf = str(self.key.rsplit(".", 1)[-1])
-        if self.kind == "power":
-            return "power" if ("power" in leaf or "work" in leaf) else "duty"
-        return self.kind
-
-
-def _validator_kind() -> dict[int, str]:
-    """id of each quantity type's parsing function -> its kind (the functions are unique)."""
-    found = {}
-    for quantity_type, kind in _QUANTITY_TYPES:
-        for meta in getattr(quantity_type, "__metadata__", ()):
-            func = getattr(meta, "func", None)
-            if func is not None:
-                found[id(func)] = kind
-    return found
-
-
-_KIND_BY_VALIDATOR = _validator_kind()
-
-
-def _kind_of(annotation: Any, metadata: list[Any], name: str) -> str | None:
-    metas = list(metadata)
-    for candidate in (annotation, *typing.get_args(annotation)):
-        metas.extend(getattr(candidate, "__metadata__", ()))
-    for meta in metas:
-        kind = _KIND_BY_VALIDATOR.get(id(getattr(meta, "func", None)))
-        if kind is not None:
-            return kind
-    if name == "quality":
-        return "quality"
-    return None
-
-
-def step_claims(model: BaseModel, prefix: tuple[str | int, ...] = ()) -> Iterator[Claim]:
-    """Every number written with a unit (and every quality) in a step's claims, nested models
-    and lists of them included; identifiers, descriptions and tolerances are not claims."""
-    for name, info in type(model).model_fields.items():
-        if name in _SKIPPED and not prefix:
-            continue
-        value = getattr(model, name)
-        if value is None:
-            continue
-        if isinstance(value, BaseModel):
-            yield from step_claims(value, (*prefix, name))
-        elif isinstance(value, list):
-            for index, item in enumerate(value):
-                if isinstance(item, BaseModel):
-                    yield from step_claims(item, (*prefix, name, index))
-        elif isinstance(value, (int, float)) and not isinstance(value, bool):
-            kind = _kind_of(info.annotation, info.metadata, name)
-            if kind is not None:
-                path = (*prefix, name)
-                key = ".".join(str(p) for p in path if not isinstance(p, int))
-                yield Claim(path, key, kind, float(value))
-
-
-def step_spreads(step: BaseModel) -> tuple[str | None, dict[str, Spread], float | None]:
-    """(``'exact'``, ``'measured'`` or None; the step's own spreads by claim key; the divisor of
-    its own coverage, or None to use the balance's). Raises :class:`UnitError` naming a key that is
-    not a claim of the step, or a spread that cannot be read."""
-    declared = getattr(step, "uncertainty", None)
-    if declared is None or isinstance(declared, str):
-        return declared, {}, None
-    claims = {claim.key: claim for claim in step_claims(step)}
-    spreads: dict[str, Spread] = {}
-    divisor = None
-    for key, text in declared.items():
-        if key == "coverage":
-            divisor = coverage_divisor(str(text))
-            continue
-        if key not in claims:
-            known = ", ".join(sorted(claims)) or "none"
-            raise UnitError(f"the uncertainty names '{key}', which is not a claim this step "
-                            f"gives; its claims are: {known}")
-        spreads[key] = parse_spread(text, claims[key].kind)
-    return "declared", spreads, divisor

@@ -2,19 +2,10 @@
 
 A step fails when one of its law findings stands: verdict ``violated`` on a balance with declared
 uncertainties, severity error on a design balance. Each such step is re-evaluated with one slip
-undone at a time, through the solver's own stream builder and the kind's own ``evaluate``
-(:class:`audit.review.uncertainty.StepRunner`). A step whose law findings are only ``marginal`` makes no
-slips of its own (within its uncertainty, too many nudges would "close" it), but it is named too
-when a slip of a failing neighbour's shared stream closes it:
-
-* on a stream of the step: its pressure read as gauge instead of absolute (P + site pressure) or
-  the reverse (P − site pressure), whichever the way it is written allows; its temperature read in
-  °F instead of °C or the reverse; its flow ×3.6 or ÷3.6 (kg/s and t/h confused) or ×3600 or
-  ÷3600 (kg/s and kg/h);
-* on a claim of the step: a power or energy ×1000 or ÷1000 (kW and MW, kJ and MJ confused), or
-  with the opposite sign (heat added for removed, work delivered for absorbed); a claimed
-  temperature or pressure (a vessel state, a source temperature) read as above;
-* the step's inlet and outlet swapped (each inlet/outlet pair, each side of an exchanger).
+undone at a time (:mod:`audit.review.slips`), through the solver's own stream builder and the
+kind's own ``evaluate`` (:class:`audit.review.runner.StepRunner`). A step whose law findings are
+only ``marginal`` makes no slips of its own (within its uncertainty, too many nudges would "close"
+it), but it is named too when a slip of a failing neighbour's shared stream closes it.
 
 A slip closes the step when, re-evaluated,
 
@@ -41,53 +32,20 @@ pair, and a slip shared by two failing steps is evaluated once.
 from __future__ import annotations
 
 import math
-import re
 from collections import defaultdict
 from collections.abc import Sequence
-from dataclasses import dataclass, field, replace
-from typing import Any
-
-from pydantic import BaseModel
+from dataclasses import dataclass, replace
 
 from audit.errors import InputError
 from audit.findings import ERROR, MARGINAL, VIOLATED, Finding
-from audit.model.uncertainty import step_claims
 from audit.results import StepResult, StreamResult
-from audit.review.uncertainty import (
-    LAW_FINDINGS,
-    Margin,
-    StepRunner,
-    format_value,
-    margin_function,
-    with_value,
-)
-from audit.units import STANDARD_ATMOSPHERE, split_number
+from audit.review.margins import LAW_FINDINGS, Margin, margin_function
+from audit.review.runner import StepRunner
+from audit.review.slips import Slip, step_slips, stream_slips
 
 MAX_CAUSES = 3
 SHRINK = 0.5
 """A slip must at least halve the largest original margin (relative to its allowance)."""
-
-_GAUGE_UNIT = re.compile(r"^\s*(mbar|bar|Pa|kPa|MPa|psi)\s*(g|\(g\))\s*$")
-_CELSIUS = ("degC", "°C", "℃", "celsius", "degree_Celsius")
-_FAHRENHEIT = ("degF", "°F", "℉", "fahrenheit", "degree_Fahrenheit")
-_FLOW_SLIPS = (
-    (3.6, "3.6 times larger", "kg/s written as t/h"),
-    (1 / 3.6, "3.6 times smaller", "t/h written as kg/s"),
-    (3600.0, "3600 times larger", "kg/s written as kg/h"),
-    (1 / 3600.0, "3600 times smaller", "kg/h written as kg/s"),
-)
-
-
-@dataclass
-class Slip:
-    """One slip undone: on a stream (``changes`` to its inputs) or on one step (a changed copy
-    ``step`` of it); ``sentence`` says it the way a reviewer would."""
-
-    sentence: str
-    stream: str | None = None
-    changes: dict[str, float] = field(default_factory=dict)
-    step_index: int | None = None
-    step: Any = None
 
 
 @dataclass
@@ -101,183 +59,25 @@ class _Failing:
     violated: bool  # False: its law findings are only marginal (it takes causes, makes none)
 
 
-# -- the slips ----------------------------------------------------------------------------------
-def _written(document: Any, path: Sequence[Any]) -> Any:
-    node = document.data
-    for part in path:
-        if isinstance(node, dict) and part in node:
-            node = node[part]
-        elif isinstance(node, list) and isinstance(part, int) and 0 <= part < len(node):
-            node = node[part]
-        else:
-            return None
-    return node
-
-
-def _unit_of(text: Any, kind: str) -> str | None:
-    try:
-        return split_number(text, kind)[1]
-    except InputError:
-        return None
-
-
-def _pressure_slips(value: float, text: Any, site: float | None, what: str
-                    ) -> list[tuple[float, str]]:
-    """(P' [Pa], sentence) for a pressure [Pa] written as ``text``: gauge read as absolute and
-    the reverse, as the writing allows."""
-    unit = _unit_of(text, "pressure") if text is not None else None
-    gauge = bool(unit and (_GAUGE_UNIT.match(unit) or unit.strip() == "psig"))
-    atmosphere = site if site is not None else STANDARD_ATMOSPHERE
-    note = "" if site is not None else (
-        " (taking the standard atmosphere: the balance declares no site_pressure)")
-    shown = f"'{text}'" if text is not None else f"{value / 1e5:.4g} bar"
-    slips = []
-    if unit is None or not gauge:
-        P = value + atmosphere
-        slips.append((P, f"closes if {what} {shown} is gauge ({value / 1e5:.4g} barg, "
-                         f"{P / 1e5:.4g} bar absolute), not absolute{note}"))
-    if (unit is None or gauge) and value - atmosphere > 0:
-        P = value - atmosphere
-        slips.append((P, f"closes if {what} {shown} is absolute ({P / 1e5:.4g} bar), not "
-                         f"gauge{note}"))
-    return slips
-
-
-def _temperature_slips(value: float, text: Any, what: str) -> list[tuple[float, str]]:
-    """(T' [K], sentence) for a temperature [K] written as ``text`` in °C or °F."""
-    unit = _unit_of(text, "temperature") if text is not None else None
-    shown = f"'{text}'" if text is not None else f"{value - 273.15:.4g} °C"
-    slips = []
-    written_c = value - 273.15
-    if unit is None or unit.strip() in _CELSIUS:
-        T = (written_c - 32.0) * 5.0 / 9.0 + 273.15
-        slips.append((T, f"closes if {what} {shown} is in °F ({T - 273.15:.4g} °C), not °C"))
-    if unit is None or unit.strip() in _FAHRENHEIT:
-        T = (written_c * 9.0 / 5.0 + 32.0) + 273.15
-        slips.append((T, f"closes if {what} {shown} is in °C ({T - 273.15:.4g} °C), not °F"))
-    return [(T, s) for T, s in slips if T > 0]
-
-
-def stream_slips(runner: StepRunner, stream_id: str) -> list[Slip]:
-    """The slips of one stream (see the module docstring)."""
-    spec = runner.balance.streams[stream_id]
-    document = runner.document
-    site = runner.balance.balance.site_pressure
-    pair, _, _ = spec.inputs()
-    slips = []
-    if "P" in pair:
-        text = _written(document, ("streams", stream_id, "P"))
-        for P, sentence in _pressure_slips(spec.P, text, site, f"stream {stream_id}'s pressure"):
-            slips.append(Slip(sentence, stream=stream_id, changes={"P": P}))
-    if "T" in pair:
-        text = _written(document, ("streams", stream_id, "T"))
-        for T, sentence in _temperature_slips(spec.T, text,
-                                              f"stream {stream_id}'s temperature"):
-            slips.append(Slip(sentence, stream=stream_id, changes={"T": T}))
-    text = _written(document, ("streams", stream_id, "flow"))
-    shown = f"'{text}'" if text is not None else "as written"
-    for factor, size, words in _FLOW_SLIPS:
-        value = spec.flow.value * factor
-        unit = " kg/s" if spec.flow.basis == "mass" else ""
-        slips.append(Slip(
-            f"closes if stream {stream_id}'s flow {shown} is {size} ({value:.4g}{unit}: {words})",
-            stream=stream_id, changes={"flow": value}))
-    return slips
-
-
-def _pair_swaps(model: BaseModel, path: tuple[str, ...] = ()) -> list[tuple[tuple[str, ...],
-                                                                             str, str]]:
-    found = []
-    fields = type(model).model_fields
-    inlet, outlet = getattr(model, "inlet", None), getattr(model, "outlet", None)
-    if "inlet" in fields and "outlet" in fields and isinstance(inlet, str) \
-            and isinstance(outlet, str):
-        found.append((path, inlet, outlet))
-    for name in fields:
-        value = getattr(model, name)
-        if isinstance(value, BaseModel):
-            found.extend(_pair_swaps(value, (*path, name)))
-    return found
-
-
-def step_slips(runner: StepRunner, index: int) -> list[Slip]:
-    """The slips of one step's claims and of its inlet/outlet pairs."""
-    step = runner.balance.steps[index]
-    document = runner.document
-    site = runner.balance.balance.site_pressure
-    slips = []
-    for claim in step_claims(step):
-        text = _written(document, ("steps", index, *claim.path))
-        what = f"step {step.id}'s {claim.key}"
-        shown = f"'{text}'" if text is not None else format_value(claim.value, claim.kind)
-        if claim.kind in ("power", "energy"):
-            small, large = ("kW", "MW") if claim.kind == "power" else ("kJ", "MJ")
-            for factor, words in ((1000.0, f"{small} written for {large}"),
-                                  (1e-3, f"{large} written for {small}")):
-                value = claim.value * factor
-                size = "1000 times larger" if factor > 1 else "1000 times smaller"
-                slips.append(Slip(
-                    f"closes if {what} {shown} is {size} ({format_value(value, claim.kind)}: "
-                    f"{words})", step_index=index, step=with_value(step, claim.path, value)))
-            slips.append(_sign_slip(step, index, claim.path, claim.value, what, shown))
-        elif claim.kind == "temperature":
-            for T, sentence in _temperature_slips(claim.value, text, what):
-                slips.append(Slip(sentence, step_index=index,
-                                  step=with_value(step, claim.path, T)))
-        elif claim.kind == "pressure":
-            for P, sentence in _pressure_slips(claim.value, text, site, what):
-                slips.append(Slip(sentence, step_index=index,
-                                  step=with_value(step, claim.path, P)))
-    for path, inlet, outlet in _pair_swaps(step):
-        side = f"the {path[-1]} side's " if path else ""
-        target = step
-        if path:
-            swapped = getattr(step, path[0]).model_copy(update={"inlet": outlet,
-                                                                "outlet": inlet})
-            target = with_value(step, path, swapped)
-        else:
-            target = step.model_copy(update={"inlet": outlet, "outlet": inlet})
-        slips.append(Slip(f"closes if {side}inlet {inlet} and outlet {outlet} are swapped",
-                          step_index=index, step=target))
-    return slips
-
-
-_OPPOSITES = {"added": "removed", "removed": "added", "work_delivered": "work_absorbed",
-              "work_absorbed": "work_delivered"}
-
-
-def _sign_slip(step: Any, index: int, path: tuple[str | int, ...], value: float, what: str,
-               shown: str) -> Slip:
-    leaf = str(path[-1])
-    if leaf in _OPPOSITES:
-        other = _OPPOSITES[leaf]
-        parent_path = path[:-1]
-        if parent_path:
-            parent = step
-            for part in parent_path:
-                parent = parent[part] if isinstance(part, int) else getattr(parent, part)
-            changed = with_value(step, parent_path, parent.model_copy(
-                update={leaf: None, other: value}))
-        else:
-            changed = step.model_copy(update={leaf: None, other: value})
-        words = other.replace("_", " ")
-        return Slip(f"closes if {what} {shown} is {words}, not {leaf.replace('_', ' ')} (the "
-                    "sign is wrong)", step_index=index, step=changed)
-    return Slip(f"closes if {what} {shown} has the opposite sign", step_index=index,
-                step=with_value(step, path, -value))
-
-
 # -- judging a slip ---------------------------------------------------------------------------------
-def _failing(runner: StepRunner, findings: Sequence[Finding], results: dict[str, StepResult],
-             expanded: dict[int, float]) -> dict[int, _Failing]:
+def _failing(
+    runner: StepRunner,
+    findings: Sequence[Finding],
+    results: dict[str, StepResult],
+    expanded: dict[int, float],
+) -> dict[int, _Failing]:
     by_step: dict[int, list[tuple[int, Finding]]] = defaultdict(list)
     for position, finding in enumerate(findings):
         if finding.step in runner.index:
             by_step[runner.index[finding.step]].append((position, finding))
     failing = {}
     for index, items in by_step.items():
-        standing = [(p, f) for p, f in items if f.name in LAW_FINDINGS and (
-            f.verdict in (VIOLATED, MARGINAL) if f.verdict is not None else f.severity == ERROR)]
+        standing = [
+            (p, f)
+            for p, f in items
+            if f.name in LAW_FINDINGS
+            and (f.verdict in (VIOLATED, MARGINAL) if f.verdict is not None else f.severity == ERROR)
+        ]
         result = results.get(runner.balance.steps[index].id)
         if not standing or result is None:
             continue
@@ -286,8 +86,9 @@ def _failing(runner: StepRunner, findings: Sequence[Finding], results: dict[str,
         for position, finding in items:
             if finding.name not in LAW_FINDINGS:
                 continue
-            margin = margin_function(finding, result, runner.streams,
-                                     runner.balance.balance.dead_state.T)
+            margin = margin_function(
+                finding, result, runner.streams, runner.balance.balance.dead_state.T
+            )
             U = expanded.get(position, 0.0)
             by_name[finding.name] = max(by_name[finding.name], U)
             if margin is not None:
@@ -298,8 +99,9 @@ def _failing(runner: StepRunner, findings: Sequence[Finding], results: dict[str,
     return failing
 
 
-def _closes(state: _Failing, result: StepResult, new: list[Finding],
-            streams: dict[str, StreamResult]) -> float | None:
+def _closes(
+    state: _Failing, result: StepResult, new: list[Finding], streams: dict[str, StreamResult]
+) -> float | None:
     """The largest remaining law margin over its allowance when the slip closes the step, else
     None."""
     worst_remaining = 0.0
@@ -309,12 +111,14 @@ def _closes(state: _Failing, result: StepResult, new: list[Finding],
         allowance = (finding.tolerance or 0.0) + state.expanded_by_name.get(finding.name, 0.0)
         if (finding.margin or 0.0) > allowance:
             return None
-        worst_remaining = max(worst_remaining, (finding.margin or 0.0) / allowance
-                              if allowance > 0 else 0.0)
+        worst_remaining = max(
+            worst_remaining, (finding.margin or 0.0) / allowance if allowance > 0 else 0.0
+        )
     if not state.laws:
         return None
     _, worst, margin, allowance = max(
-        state.laws, key=lambda item: (item[1].margin or 0.0) / item[3] if item[3] > 0 else math.inf)
+        state.laws, key=lambda item: (item[1].margin or 0.0) / item[3] if item[3] > 0 else math.inf
+    )
     before = worst.margin or 0.0
     after = margin(result, streams)
     if not math.isfinite(after) or after > SHRINK * before:
@@ -330,8 +134,12 @@ def _breaks(old: Sequence[Finding], new: Sequence[Finding]) -> bool:
     return any(f.name not in had for f in new if f.severity == ERROR or f.name in LAW_FINDINGS)
 
 
-def name_causes(runner: StepRunner, findings: list[Finding], expanded: dict[int, float],
-                results: dict[str, StepResult] | None = None) -> tuple[list[Finding], int]:
+def name_causes(
+    runner: StepRunner,
+    findings: list[Finding],
+    expanded: dict[int, float],
+    results: dict[str, StepResult] | None = None,
+) -> tuple[list[Finding], int]:
     """Add probable causes to the law findings of every failing step. ``expanded`` holds the
     expanded uncertainty of findings by position. Returns the findings and the number of step
     re-evaluations spent."""
@@ -380,9 +188,14 @@ def name_causes(runner: StepRunner, findings: list[Finding], expanded: dict[int,
     return findings, runner.runs - started
 
 
-def _judge_stream_slip(runner: StepRunner, slip: Slip, failing: dict[int, _Failing],
-                       by_step_findings: dict[int, list[Finding]],
-                       named: dict[int, list[tuple[float, int, str]]], order: int) -> None:
+def _judge_stream_slip(
+    runner: StepRunner,
+    slip: Slip,
+    failing: dict[int, _Failing],
+    by_step_findings: dict[int, list[Finding]],
+    named: dict[int, list[tuple[float, int, str]]],
+    order: int,
+) -> None:
     try:
         stream = runner.stream(str(slip.stream), slip.changes)
     except InputError:

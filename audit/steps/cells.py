@@ -48,7 +48,7 @@ from pydantic import Field, field_validator, model_validator
 
 from audit.findings import ERROR, Finding, relative
 from audit.formation import species
-from audit.model.quantities import Current, Power, Pressure, Temperature, Voltage
+from audit.model.steps import CurrentClaim, PowerClaim, PressureClaim, TemperatureClaim, VoltageClaim
 from audit.physics.electrochemistry import (
     faradaic_efficiency,
     faraday_current,
@@ -82,17 +82,17 @@ class CellStep(StepBase):
         "splitting or forming, the water's phase from its stream)")
     electrons: int | None = Field(
         None, ge=1, description="electrons per mole of reaction (default: 4 per mole of O2)")
-    cell_voltage: Voltage | None = Field(None, description="voltage of one cell")
-    current: Current | None = Field(None, description="stack current through each cell")
+    cell_voltage: VoltageClaim = Field(None, description="voltage of one cell")
+    current: CurrentClaim = Field(None, description="stack current through each cell")
     cells: int = Field(1, ge=1, description="number of cells in series")
-    power: Power | None = Field(None, description="electrical (DC) power of the stack")
+    power: PowerClaim = Field(None, description="electrical (DC) power of the stack")
     faradaic_efficiency: float | None = Field(
         None, description="fraction of the charge that drives the cell reaction, 0 to 1")
     heat: list[HeatClaim] | None = None
-    heat_temperature: Temperature | None = Field(
+    heat_temperature: TemperatureClaim = Field(
         None, description="boundary temperature of inferred heat")
-    temperature: Temperature | None = Field(None, description="cell operating temperature")
-    pressure: Pressure | None = Field(None, description="cell operating pressure")
+    temperature: TemperatureClaim = Field(None, description="cell operating temperature")
+    pressure: PressureClaim = Field(None, description="cell operating pressure")
 
     @field_validator("reaction")
     @classmethod

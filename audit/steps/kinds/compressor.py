@@ -15,7 +15,7 @@ from typing import Literal
 from pydantic import Field
 
 from audit.findings import ERROR, Finding
-from audit.model.quantities import Power, Temperature
+from audit.model.steps import DutyClaim, PowerClaim, TemperatureClaim
 from audit.results import StepResult
 from audit.steps.base import StepBase, StepContext, register
 from audit.steps.machines import evaluate_work_absorber
@@ -25,9 +25,9 @@ class Compressor(StepBase):
     kind: Literal["compressor"]
     inlet: str
     outlet: str
-    shaft_power: Power | None = Field(None, ge=0, description="shaft power absorbed by the compressor")
-    heat_loss: Power | None = Field(None, ge=0, description="heat removed from the gas (default 0)")
-    heat_loss_temperature: Temperature | None = None
+    shaft_power: PowerClaim = Field(None, ge=0, description="shaft power absorbed by the compressor")
+    heat_loss: DutyClaim = Field(None, ge=0, description="heat removed from the gas (default 0)")
+    heat_loss_temperature: TemperatureClaim = None
     isentropic_efficiency: float | None = Field(None, gt=0)
 
     def stream_ids(self) -> tuple[list[str], list[str]]:

@@ -16,9 +16,15 @@ from typing import Literal
 from pydantic import Field
 
 from audit.findings import ERROR, Finding
-from audit.model.quantities import Power, Temperature
+from audit.model.steps import DutyClaim, TemperatureClaim
 from audit.results import StepResult
-from audit.steps.base import StepBase, StepContext, finish_flow_step, heat_flow, register
+from audit.steps.base import (
+    StepBase,
+    StepContext,
+    finish_flow_step,
+    heat_flow,
+    register,
+)
 from audit.wording import to_celsius
 
 
@@ -26,8 +32,8 @@ class Cooler(StepBase):
     kind: Literal["cooler"]
     inlet: str
     outlet: str
-    duty: Power | None = Field(None, ge=0, description="heat given off by the stream")
-    sink_temperature: Temperature | None = Field(None, description="temperature of the sink")
+    duty: DutyClaim = Field(None, ge=0, description="heat given off by the stream")
+    sink_temperature: TemperatureClaim = Field(None, description="temperature of the sink")
 
     def stream_ids(self) -> tuple[list[str], list[str]]:
         return [self.inlet], [self.outlet]

@@ -44,7 +44,8 @@ from audit import units
 from audit.constants import GAS_CONSTANT
 from audit.errors import UnitError
 from audit.findings import ERROR, Finding, relative
-from audit.model.quantities import QUANTITY_PATTERN, Power, Temperature
+from audit.model.quantities import QUANTITY_PATTERN
+from audit.model.steps import DutyClaim, TemperatureClaim
 from audit.results import StepResult, StreamResult
 from audit.steps.base import StepBase, StepContext, register
 from audit.steps.laws import format_power
@@ -118,9 +119,9 @@ class FiredHeater(StepBase):
     air: str = Field(description="the combustion-air stream")
     flue_gas: str = Field(description="the flue-gas stream")
     heated: HeatedSide = Field(description="the heated stream: water and steam, oil, ...")
-    duty: Power | None = Field(None, ge=0, description="heat received by the heated side")
-    heat_loss: Power | None = Field(None, ge=0, description="casing and radiation loss (default 0)")
-    heat_loss_temperature: Temperature | None = None
+    duty: DutyClaim = Field(None, ge=0, description="heat received by the heated side")
+    heat_loss: DutyClaim = Field(None, ge=0, description="casing and radiation loss (default 0)")
+    heat_loss_temperature: TemperatureClaim = None
     fuel_lhv: HeatingValue | None = Field(None, description="claimed lower heating value")
     fuel_hhv: HeatingValue | None = Field(None, description="claimed higher heating value")
 

@@ -9,11 +9,12 @@ inferred when heat is given, or taken as zero when heat is inferred.
 
 from __future__ import annotations
 
-from typing import Literal
+from typing import Annotated, Literal
 
 from pydantic import Field, model_validator
 
-from audit.model.quantities import Power, Temperature
+from audit.model.quantities import Power
+from audit.model.steps import ClaimField, TemperatureClaim
 from audit.results import StepResult
 from audit.steps.base import (
     HeatClaim,
@@ -31,10 +32,10 @@ class GeneralStep(StepBase):
     inlets: list[str] = Field(default_factory=list)
     outlets: list[str] = Field(default_factory=list)
     heat: list[HeatClaim] | None = None
-    heat_temperature: Temperature | None = Field(
+    heat_temperature: TemperatureClaim = Field(
         None, description="boundary temperature of inferred heat")
-    work_delivered: Power | None = Field(None, ge=0)
-    work_absorbed: Power | None = Field(None, ge=0)
+    work_delivered: Annotated[Power | None, ClaimField("power", "work_absorbed")] = Field(None, ge=0)
+    work_absorbed: Annotated[Power | None, ClaimField("power", "work_delivered")] = Field(None, ge=0)
 
     @model_validator(mode="after")
     def _check(self) -> GeneralStep:

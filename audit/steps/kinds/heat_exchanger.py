@@ -33,7 +33,7 @@ from pydantic import BaseModel, ConfigDict, Field
 
 from audit.errors import StateError
 from audit.findings import ERROR, WARNING, Finding, relative
-from audit.model.quantities import Power, Temperature
+from audit.model.steps import DutyClaim, TemperatureClaim
 from audit.results import StepResult, StreamResult
 from audit.steps.base import StepBase, StepContext, finish_flow_step, register
 from audit.steps.laws import format_power
@@ -55,9 +55,9 @@ class HeatExchanger(StepBase):
     hot: Side
     cold: Side
     arrangement: Literal["counter-current", "co-current"] = "counter-current"
-    duty: Power | None = Field(None, ge=0, description="heat transferred from hot side to cold side")
-    heat_loss: Power | None = Field(None, ge=0, description="heat lost to ambient (default 0)")
-    heat_loss_temperature: Temperature | None = None
+    duty: DutyClaim = Field(None, ge=0, description="heat transferred from hot side to cold side")
+    heat_loss: DutyClaim = Field(None, ge=0, description="heat lost to ambient (default 0)")
+    heat_loss_temperature: TemperatureClaim = None
 
     def stream_ids(self) -> tuple[list[str], list[str]]:
         return [self.hot.inlet, self.cold.inlet], [self.hot.outlet, self.cold.outlet]

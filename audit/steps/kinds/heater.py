@@ -17,9 +17,15 @@ from typing import Literal
 from pydantic import Field
 
 from audit.findings import ERROR, Finding
-from audit.model.quantities import Power, Temperature
+from audit.model.steps import DutyClaim, TemperatureClaim
 from audit.results import StepResult
-from audit.steps.base import StepBase, StepContext, finish_flow_step, heat_flow, register
+from audit.steps.base import (
+    StepBase,
+    StepContext,
+    finish_flow_step,
+    heat_flow,
+    register,
+)
 from audit.wording import to_celsius
 
 
@@ -27,8 +33,8 @@ class Heater(StepBase):
     kind: Literal["heater"]
     inlet: str
     outlet: str
-    duty: Power | None = Field(None, ge=0, description="heat received by the stream")
-    source_temperature: Temperature | None = Field(
+    duty: DutyClaim = Field(None, ge=0, description="heat received by the stream")
+    source_temperature: TemperatureClaim = Field(
         None, description="temperature of the heat source")
 
     def stream_ids(self) -> tuple[list[str], list[str]]:

@@ -14,7 +14,7 @@ from typing import Literal
 from pydantic import Field
 
 from audit.findings import WARNING, Finding
-from audit.model.quantities import Power, Temperature
+from audit.model.steps import DutyClaim, TemperatureClaim
 from audit.results import StepResult
 from audit.steps.base import StepBase, StepContext, finish_flow_step, register
 from audit.steps.machines import heat_loss_flow
@@ -25,8 +25,8 @@ class Mixer(StepBase):
     kind: Literal["mixer"]
     inlets: list[str] = Field(min_length=2)
     outlet: str
-    heat_loss: Power | None = Field(None, ge=0)
-    heat_loss_temperature: Temperature | None = None
+    heat_loss: DutyClaim = Field(None, ge=0)
+    heat_loss_temperature: TemperatureClaim = None
 
     def stream_ids(self) -> tuple[list[str], list[str]]:
         return list(self.inlets), [self.outlet]

@@ -19,13 +19,14 @@ reaction at the reported conditions, its extent, and the heat of reaction −Σ 
 
 from __future__ import annotations
 
-from typing import Any, Literal
+from typing import Annotated, Any, Literal
 
 from pydantic import Field, field_validator, model_validator
 
 from audit.constants import P_STANDARD, T_STANDARD
 from audit.errors import StateError
-from audit.model.quantities import Power, Pressure, Temperature
+from audit.model.quantities import Power
+from audit.model.steps import ClaimField, PressureClaim, TemperatureClaim
 from audit.results import StepResult
 from audit.steps.base import HeatClaim, StepBase, StepContext, register
 from audit.steps.reacting import (
@@ -47,15 +48,15 @@ class Reactor(StepBase):
     reactions: list[ReactionClaim] = Field(
         min_length=1, description="equations, or {equation, extent}; extents omitted are "
         "fitted to the streams")
-    temperature: Temperature | None = Field(
+    temperature: TemperatureClaim = Field(
         None, description="temperature at which ΔH_rxn, ΔS_rxn, ΔG_rxn are reported")
-    pressure: Pressure | None = Field(
+    pressure: PressureClaim = Field(
         None, description="pressure at which ΔH_rxn, ΔS_rxn, ΔG_rxn are reported")
     heat: list[HeatClaim] | None = None
-    heat_temperature: Temperature | None = Field(
+    heat_temperature: TemperatureClaim = Field(
         None, description="boundary temperature of inferred heat")
-    work_delivered: Power | None = Field(None, ge=0)
-    work_absorbed: Power | None = Field(None, ge=0)
+    work_delivered: Annotated[Power | None, ClaimField("power", "work_absorbed")] = Field(None, ge=0)
+    work_absorbed: Annotated[Power | None, ClaimField("power", "work_delivered")] = Field(None, ge=0)
 
     @field_validator("reactions", mode="before")
     @classmethod

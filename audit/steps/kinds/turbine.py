@@ -24,7 +24,7 @@ from typing import Literal
 from pydantic import Field
 
 from audit.findings import ERROR, WARNING, Finding
-from audit.model.quantities import Power, Temperature
+from audit.model.steps import DutyClaim, PowerClaim, TemperatureClaim
 from audit.physics.efficiency import isentropic_efficiency_expansion
 from audit.results import StepResult
 from audit.steps.base import StepBase, StepContext, finish_flow_step, register
@@ -36,9 +36,9 @@ class Turbine(StepBase):
     kind: Literal["turbine"]
     inlet: str
     outlet: str
-    shaft_power: Power | None = Field(None, ge=0, description="shaft power delivered by the turbine")
-    heat_loss: Power | None = Field(None, ge=0, description="heat lost by the casing (default 0)")
-    heat_loss_temperature: Temperature | None = None
+    shaft_power: PowerClaim = Field(None, ge=0, description="shaft power delivered by the turbine")
+    heat_loss: DutyClaim = Field(None, ge=0, description="heat lost by the casing (default 0)")
+    heat_loss_temperature: TemperatureClaim = None
     isentropic_efficiency: float | None = Field(None, gt=0)
 
     def stream_ids(self) -> tuple[list[str], list[str]]:

@@ -16,12 +16,13 @@ other than expansion work; otherwise the closed-system exergy drop.
 from __future__ import annotations
 
 import math
-from typing import Literal
+from typing import Annotated, Literal
 
 from pydantic import BaseModel, ConfigDict, model_validator
 
 from audit.errors import StateError
-from audit.model.quantities import Energy, Mass, Temperature
+from audit.model.quantities import Energy, Mass
+from audit.model.steps import ClaimField, TemperatureClaim
 from audit.model.streams import PropertyPair
 from audit.physics.bounds import isothermal_closed_work_bound, isothermal_flow_work_bound
 from audit.physics.efficiency import second_law_efficiency
@@ -35,9 +36,9 @@ class BatchHeat(BaseModel):
 
     model_config = ConfigDict(extra="forbid")
 
-    added: Energy | None = None
-    removed: Energy | None = None
-    temperature: Temperature | None = None
+    added: Annotated[Energy | None, ClaimField("energy", "removed")] = None
+    removed: Annotated[Energy | None, ClaimField("energy", "added")] = None
+    temperature: TemperatureClaim = None
 
     @model_validator(mode="after")
     def _one_direction(self) -> BatchHeat:
@@ -52,12 +53,12 @@ class BatchHeat(BaseModel):
 class Vessel(StepBase):
     kind: Literal["vessel"]
     fluid: str
-    mass: Mass
+    mass: Annotated[Mass, ClaimField("mass")]
     initial: PropertyPair
     final: PropertyPair
     heat: list[BatchHeat] | None = None
-    work_delivered: Energy | None = None
-    work_absorbed: Energy | None = None
+    work_delivered: Annotated[Energy | None, ClaimField("energy", "work_absorbed")] = None
+    work_absorbed: Annotated[Energy | None, ClaimField("energy", "work_delivered")] = None
 
     @model_validator(mode="after")
     def _one_work(self) -> Vessel:

@@ -1,0 +1,160 @@
+"""The margins of the law findings, as functions of a re-evaluated step.
+
+A law finding (first law, work bound, entropy generation, mass, isentropic efficiency) states a
+margin: positive, the size of the violation. :func:`margin_function` gives that margin as a function
+of a re-evaluated step, so that propagation and probable causes can read it again after a change.
+
+Flows are read as mass-conserving: a change δ of an inlet's flow is taken with the outlets of its
+group (its paired outlet, or the outlets of the same fluid) following by conservation of mass, so
+the first-law residual moves by δ (h_in − h_out) and an outlet's own flow adds nothing to the
+energy, entropy and work margins (the flows of one stream through a step are one measured
+quantity: fully correlated, GUM [1, §5.2]); mass-imbalance margins take every flow independently.
+On the formation basis an independent flow change would otherwise carry δ times an absolute
+enthalpy, an artefact of the reference state (:func:`reference_shift`). The streams of a fluid
+that reacts (it only enters or only leaves the step) keep independent flows.
+
+References
+----------
+.. [1] JCGM 100:2008, *Evaluation of measurement data — Guide to the expression of uncertainty in
+   measurement* (GUM).
+"""
+
+from __future__ import annotations
+
+import math
+from collections import defaultdict
+from collections.abc import Callable
+
+from audit.findings import Finding
+from audit.results import StepResult, StreamResult
+
+ENERGY_FINDINGS = ("energy-imbalance", "valve-not-isenthalpic")
+WORK_FINDINGS = ("work-above-bound", "input-below-minimum")
+LAW_FINDINGS = (
+    *ENERGY_FINDINGS,
+    *WORK_FINDINGS,
+    "negative-entropy-generation",
+    "mass-imbalance",
+    "efficiency-above-one",
+)
+"""Findings whose margin is propagated and which get a verdict."""
+
+Margin = Callable[[StepResult, dict[str, StreamResult]], float]
+
+
+def flow_groups(
+    result: StepResult, streams: dict[str, StreamResult]
+) -> list[tuple[tuple[str, ...], tuple[str, ...]]]:
+    """The parts of a step that conserve mass on their own, as (inlets, outlets): each
+    inlet/outlet pair when the step pairs its streams one to one with the same fluid (one-stream
+    steps, exchanger sides), else the inlets and outlets of each fluid."""
+    ins, outs = result.inlets, result.outlets
+    if len(ins) == len(outs) and all(
+        streams[i].fluid == streams[o].fluid for i, o in zip(ins, outs, strict=True)
+    ):
+        return [((i,), (o,)) for i, o in zip(ins, outs, strict=True)]
+    by_fluid: dict[str, tuple[list[str], list[str]]] = defaultdict(lambda: ([], []))
+    for i in ins:
+        by_fluid[streams[i].fluid][0].append(i)
+    for o in outs:
+        by_fluid[streams[o].fluid][1].append(o)
+    return [(tuple(a), tuple(b)) for a, b in by_fluid.values()]
+
+
+def _group_residual(
+    group: tuple[tuple[str, ...], tuple[str, ...]], streams: dict[str, StreamResult]
+) -> float:
+    ins, outs = group
+    return sum(streams[i].mass_flow for i in ins) - sum(streams[o].mass_flow for o in outs)
+
+
+def reference_shift(
+    result: StepResult, streams: dict[str, StreamResult], nominal: dict[tuple, float]
+) -> tuple[float, float]:
+    """(Σ h_ref Δṁ [W], Σ s_ref Δṁ [W/K]) over the step's mass-conserving groups, Δṁ being the
+    change of a group's mass residual from its ``nominal`` value [kg/s] and h_ref, s_ref the
+    group's mean outlet enthalpy and entropy [J/kg, J/(kg K)].
+
+    Subtracting these terms reads an inlet flow perturbed by δ as the group's inlets and outlets
+    perturbed together (its outlets follow by conservation of mass: the flows of a group are one
+    quantity, fully correlated, GUM §5.2): the residual changes by δ (h_in − h_out), never by δ
+    times an absolute enthalpy, which on the formation basis would be a reference artefact.
+
+    A fluid that only enters or only leaves the step (a fuel, a flue gas: it reacts) keeps its
+    flow as measured: its change carries its formation-basis enthalpy, elements are not
+    rebalanced."""
+    dH = dS = 0.0
+    for group in flow_groups(result, streams):
+        change = _group_residual(group, streams) - nominal.get(group, 0.0)
+        if change == 0.0 or not group[0] or not group[1]:
+            continue  # a fluid that only enters or only leaves (it reacts): taken as measured
+        reference = group[1]
+        mass = sum(streams[x].mass_flow for x in reference)
+        if mass <= 0.0:
+            continue
+        dH += change * sum(streams[x].mass_flow * streams[x].h for x in reference) / mass
+        dS += change * sum(streams[x].mass_flow * streams[x].s for x in reference) / mass
+    return dH, dS
+
+
+def margin_function(
+    finding: Finding, result: StepResult, streams: dict[str, StreamResult], T0: float
+) -> Margin | None:
+    """The finding's margin as a function of a re-evaluated step (positive = violation), or None
+    when the finding is not a law finding this module knows how to propagate. The function is
+    checked to give the finding's own margin on the nominal step. Energy, entropy and work
+    margins take flow changes as mass-conserving (:func:`reference_shift`); T0 [K]."""
+    name = finding.name
+    candidates: list[Margin] = []
+    nominal = {group: _group_residual(group, streams) for group in flow_groups(result, streams)}
+    if name in ENERGY_FINDINGS:
+        sign = 1.0 if result.energy_residual >= 0 else -1.0
+        candidates.append(lambda r, s: sign * (r.energy_residual - reference_shift(r, s, nominal)[0]))
+    elif name in WORK_FINDINGS:
+
+        def work(r: StepResult, s: dict[str, StreamResult]) -> float:
+            dH, dS = reference_shift(r, s, nominal)
+            return r.W - r.W_rev + dH - T0 * dS
+
+        candidates.append(work)
+    elif name == "negative-entropy-generation":
+        candidates.append(lambda r, s: -(r.S_gen + reference_shift(r, s, nominal)[1]))
+    elif name == "efficiency-above-one":
+        candidates.append(
+            lambda r, s: (
+                (r.isentropic_efficiency if r.isentropic_efficiency is not None else math.nan) - 1.0
+            )
+        )
+    elif name == "mass-imbalance" and not result.batch and finding.claimed is not None:
+        sign = 1.0 if finding.claimed >= 0 else -1.0
+        for fluid in result.mass_residual:
+            candidates.append(_fluid_residual(fluid, sign))
+        for i in range(min(len(result.inlets), len(result.outlets))):
+            candidates.append(_pair_residual(i, sign))
+    if finding.margin is None:
+        return None
+    for candidate in candidates:
+        value = candidate(result, streams)
+        if math.isfinite(value) and math.isclose(
+            value, finding.margin, rel_tol=1e-9, abs_tol=1e-9 * max(1.0, abs(finding.margin))
+        ):
+            return candidate
+    return None
+
+
+def _fluid_residual(fluid: str, sign: float) -> Margin:
+    """The mass residual of one fluid [kg/s], signed as the finding's."""
+
+    def margin(r: StepResult, s: dict[str, StreamResult]) -> float:
+        return sign * r.mass_residual.get(fluid, 0.0)
+
+    return margin
+
+
+def _pair_residual(i: int, sign: float) -> Margin:
+    """The flow of inlet ``i`` minus that of outlet ``i`` [kg/s], signed as the finding's."""
+
+    def margin(r: StepResult, s: dict[str, StreamResult]) -> float:
+        return sign * (s[r.inlets[i]].mass_flow - s[r.outlets[i]].mass_flow)
+
+    return margin

@@ -1,0 +1,65 @@
+"""The review pass over a solved balance: verdicts with uncertainty, then probable causes.
+
+:func:`review` runs after :func:`audit.solve.solve` and before :func:`audit.solve.to_result`.
+When the balance declares any uncertainty, each step's law findings get their expanded uncertainty
+and verdict (:mod:`audit.review.uncertainty`); then the failing steps get their probable causes
+(:mod:`audit.review.causes`). Both re-evaluate steps only through :mod:`audit.review.runner`.
+"""
+
+from __future__ import annotations
+
+from collections import defaultdict
+
+from audit.findings import Finding
+from audit.review.causes import name_causes
+from audit.review.inputs import check_declarations, declares_uncertainty
+from audit.review.margins import LAW_FINDINGS
+from audit.review.propagation import MONTE_CARLO_SEED
+from audit.review.runner import StepRunner
+from audit.review.uncertainty import DEFAULT_COVERAGE_FACTOR, assess_step
+from audit.solve import Solution
+
+
+def review(solution: Solution, monte_carlo_trials: int = 0) -> tuple[list[Finding], dict[str, str]]:
+    """Verdicts with uncertainty (when the balance declares any) and probable causes for the
+    findings of a solved balance. Returns the findings (same order) and provenance lines."""
+    balance, results = solution.balance, solution.results
+    declared = declares_uncertainty(balance)
+    if declared:  # nothing declared, nothing to read (and nothing that could be wrong)
+        check_declarations(balance, solution.document)
+    runner = StepRunner(solution)
+    by_result = {r.id: r for r in results}
+    by_step: dict[int, list[tuple[int, Finding]]] = defaultdict(list)
+    findings = solution.findings
+    for position, finding in enumerate(findings):
+        if finding.step in runner.index and finding.name in LAW_FINDINGS:
+            by_step[runner.index[finding.step]].append((position, finding))
+    findings = list(findings)
+    provenance: dict[str, str] = {}
+    expanded: dict[int, float] = {}
+    if declared:
+        unc = balance.balance.uncertainty
+        k = unc.coverage_factor if unc is not None else DEFAULT_COVERAGE_FACTOR
+        spent, failed = 0, 0
+        for index, items in sorted(by_step.items()):
+            step_id = balance.steps[index].id
+            if step_id not in by_result:
+                continue
+            updated, info = assess_step(runner, index, items, by_result[step_id], k, monte_carlo_trials)
+            for position, finding in updated.items():
+                findings[position] = finding
+            expanded.update(info.expanded)
+            spent += info.evaluations
+            failed += info.monte_carlo_failed
+        provenance["uncertainty"] = (
+            f"linear propagation, central differences through the property calls (GUM, JCGM "
+            f"100:2008, §5.1); expanded with k = {k:g}; {spent} step re-evaluations"
+        )
+        if monte_carlo_trials > 0:
+            provenance["uncertainty, Monte Carlo"] = (
+                f"{monte_carlo_trials} draws per step, seed {MONTE_CARLO_SEED} (JCGM 101:2008)"
+                + (f"; {failed} draws could not be evaluated and were left out" if failed else "")
+            )
+    findings, spent_on_causes = name_causes(runner, findings, expanded, by_result)
+    provenance["probable causes"] = f"{spent_on_causes} step re-evaluations (audit.review.causes)"
+    return findings, provenance

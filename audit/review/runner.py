@@ -1,0 +1,72 @@
+"""Re-evaluation of the steps of a solved balance with some inputs changed.
+
+The review never repeats the solver's physics: a perturbed stream is re-flashed by
+:func:`audit.solve.evaluate_stream` and the step re-run by :func:`audit.solve.evaluate_step` (the
+kind's own ``evaluate``). :class:`StepRunner` holds what those calls need and counts them.
+"""
+
+from __future__ import annotations
+
+from collections import defaultdict
+from collections.abc import Sequence
+from dataclasses import replace
+from typing import Any
+
+from pydantic import BaseModel
+
+from audit.findings import Finding
+from audit.results import StepResult, StreamResult
+from audit.solve import Solution, evaluate_step, evaluate_stream
+
+
+class StepRunner:
+    """Re-evaluates steps of a solved balance with some inputs changed: perturbed streams are
+    re-flashed and the step re-evaluated through the solver's public functions
+    (:func:`audit.solve.evaluate_stream`, :func:`audit.solve.evaluate_step`)."""
+
+    def __init__(self, solution: Solution) -> None:
+        balance = solution.balance
+        self.balance = balance
+        self.document = solution.document
+        self.engine = solution.engine
+        self.streams = solution.streams
+        self.index = {step.id: i for i, step in enumerate(balance.steps)}
+        self.users: dict[str, list[int]] = defaultdict(list)
+        for i, step in enumerate(balance.steps):
+            inlets, outlets = step.stream_ids()
+            for stream_id in dict.fromkeys([*inlets, *outlets]):
+                self.users[stream_id].append(i)
+        self.runs = 0
+
+    def stream(self, stream_id: str, changes: dict[str, float]) -> StreamResult:
+        """The stream re-evaluated with some of its inputs (T, P, quality, h, s, flow) changed."""
+        spec = self.balance.streams[stream_id]
+        update: dict[str, Any] = {}
+        for name, value in changes.items():
+            update[name] = replace(spec.flow, value=value) if name == "flow" else value
+        return evaluate_stream(
+            stream_id, spec.model_copy(update=update), self.engine, self.streams[stream_id].line
+        )
+
+    def run(
+        self, index: int, step: Any = None, streams: dict[str, StreamResult] | None = None
+    ) -> tuple[StepResult, list[Finding]]:
+        """Evaluate step ``index`` (or a changed copy ``step``) with some streams replaced."""
+        self.runs += 1
+        return evaluate_step(
+            self.balance, self.document, self.engine, {**self.streams, **(streams or {})}, index, step
+        )
+
+
+def with_value(model: BaseModel, path: Sequence[str | int], value: Any) -> BaseModel:
+    """A copy of ``model`` with the field at ``path`` (names and list positions) set to ``value``
+    (no re-validation: the value is already SI)."""
+    name = str(path[0])
+    if len(path) == 1:
+        return model.model_copy(update={name: value})
+    child = getattr(model, name)
+    if isinstance(path[1], int):
+        items = list(child)
+        items[path[1]] = with_value(items[path[1]], path[2:], value) if path[2:] else value
+        return model.model_copy(update={name: items})
+    return model.model_copy(update={name: with_value(child, path[1:], value)})
