@@ -8,11 +8,11 @@ import sys
 import traceback
 
 from audit.version import __version__
-from audit.commands import batch, check, convert, diff, history, schema, template
+from audit.commands import batch, check, convert, diff, history, reconcile, schema, template
 from audit.errors import InputError
 from audit.exitcodes import EXIT_INPUT, EXIT_INTERNAL
 
-COMMANDS = [check, batch, diff, history, schema, template, convert]
+COMMANDS = [check, batch, diff, history, schema, template, convert, reconcile]
 
 
 def _parser() -> argparse.ArgumentParser:
