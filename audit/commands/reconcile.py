@@ -1,0 +1,76 @@
+"""``plant-audit reconcile FILE``: reconcile a measured balance (all readings adjusted together,
+each within its uncertainty, so that every balance closes), test it statistically, name the
+readings that cannot be right, and exit 0 (pass), 1 (the global test fails or a gross error is
+named) or 2 (invalid input)."""
+
+from __future__ import annotations
+
+import argparse
+from pathlib import Path
+
+from audit.exitcodes import EXIT_FINDINGS, EXIT_PASS
+
+NAME = "reconcile"
+HELP = "reconcile a measured balance and name the reading that is wrong"
+
+
+def _confidence(text: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        value = 0.0
+    if not 0.5 <= value < 1.0:
+        raise argparse.ArgumentTypeError(
+            f"'{text}' is not a confidence (a fraction from 0.5 up to 1, such as 0.95)"
+        )
+    return value
+
+
+def add_arguments(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("file", type=Path, help="the balance file (YAML) with uncertainties")
+    parser.add_argument(
+        "-o", "--output", type=Path, metavar="XLSX", help="write the Reconciliation sheet to a workbook"
+    )
+    parser.add_argument("--json", type=Path, metavar="PATH", help="write the result as JSON")
+    parser.add_argument(
+        "--fail-on",
+        choices=["error", "warning"],
+        default="error",
+        help="error (default): fail when the global test fails, a gross error "
+        "is named or a claim is impossible; warning: also on suspect or "
+        "not-checkable readings and phase changes",
+    )
+    parser.add_argument(
+        "--confidence",
+        type=_confidence,
+        default=0.95,
+        help="confidence of the global and the reading tests (default 0.95)",
+    )
+    parser.add_argument(
+        "--unmeasured",
+        action="append",
+        default=[],
+        metavar="KEY",
+        help="estimate this quantity instead of taking its value, e.g. "
+        "S20.quality or C1.shaft_power (repeatable)",
+    )
+    parser.add_argument("--all", action="store_true", help="print every reading")
+
+
+def run(args: argparse.Namespace) -> int:
+    from audit.reconcile import reconcile_file
+    from audit.report.reconciliation_text import console_section
+
+    result = reconcile_file(args.file, args.confidence, tuple(args.unmeasured))
+    if args.json:
+        from audit.report.reconciliation_json import write_reconciliation_json
+
+        write_reconciliation_json(result, args.json)
+    if args.output:
+        from audit.report.reconciliation_sheet import write_reconciliation_workbook
+
+        write_reconciliation_workbook(result, args.output)
+    print(console_section(result, all_readings=args.all))
+    failed = result.fails(args.fail_on)
+    print(f"{args.file}: {'FAIL' if failed else 'PASS'}")
+    return EXIT_FINDINGS if failed else EXIT_PASS
