@@ -1,28 +1,27 @@
 """plant-audit: checks a plant energy balance against the first and second laws.
 
-How the parts fit (data flows one way: file → model → states → step results → findings → reports):
+How the parts fit. Data flows one way, stage by stage; each stage is a package (or a module) that
+imports only the stages above it in this list (import contracts in pyproject.toml, checked in CI)::
 
-* :mod:`audit.input.document` reads the YAML safely and remembers where every value was written;
-* :mod:`audit.input.tables` merges the streams (and step claims) a balance takes from a spreadsheet
-  (.xlsx, .csv) into that data, remembering the cell of every value; the one input module that
-  reads spreadsheets;
-* :mod:`audit.model.balance` validates it into pydantic models (:mod:`audit.model.streams`,
-  :mod:`audit.model.tolerances`, one model per step kind in :mod:`audit.steps`), with units turned into SI
-  at this edge by :mod:`audit.units` and :mod:`audit.model.quantities`;
-* :mod:`audit.properties.engine` is the engine's entry point for CoolProp: stream states on the formation
-  basis (:mod:`audit.formation`); gas mixtures (ideal-gas mixtures of the pure species, written
-  with :mod:`audit.model.composition`) are evaluated for it by :mod:`audit.properties.mixtures`, the one other
-  module that calls CoolProp; :mod:`audit.steps.reactions` parses reactions and computes reaction
-  properties and heating values through the engine;
-* :mod:`audit.steps.laws` holds the first law, entropy generation and reversible work shared by every step
-  kind; each kind in :mod:`audit.steps` adds its own checks and emits :class:`audit.findings.Finding`;
-* :mod:`audit.solve` runs it all and returns an :class:`audit.results.AuditResult`;
-* :mod:`audit.review.acceptance` then marks the findings a reviewer accepted (in the balance or beside it);
-* around one audit: :mod:`audit.batch` audits many files through :mod:`audit.executors` (local
-  worker processes or a Dask cluster) into :class:`audit.outcomes.FileOutcome` objects;
-  :mod:`audit.history` records runs in SQLite; :mod:`audit.diff` compares two revisions;
-* :mod:`audit.report` renders results (console, JSON, CSV, workbook) and never computes physics;
-* :mod:`audit.commands.main` is the thin command line; :func:`run` is the Python entry point.
+    errors, exitcodes, version   the exception hierarchy, exit codes, the version
+    constants, formation         R, F, 0 °C, standard conditions; formation data with sources
+    wording, units               SI → engineering text; unit strings → SI (one pint registry)
+    findings                     the Finding record and the table of finding names
+    input/                       the file edge: safe YAML with positions, stream/claim tables
+    model/                       pydantic models of the balance in SI (no I/O, no results)
+    properties/                  the only code that imports CoolProp: states, mixtures, basis
+    physics/                     plain functions on SI floats: exergy, efficiencies, voltages, bounds
+    results                      step, stream and plant result records
+    steps/                       shared step machinery; steps/kinds/: one module per kind
+    reading, solve               file → validated balance; balance → states → step results
+    review/                      verdicts with uncertainty, probable causes, acceptances
+    reconcile/                   data reconciliation of measured balances
+    outcomes, diff, history      per-file outcomes, revision diffs, the run history
+    report/                      console, JSON, CSV, JUnit, workbook (one module per sheet)
+    api, executors, batch        ``audit.run(path)``; many files in parallel
+    commands/                    the command line: the only code that prints
+
+:func:`run` is the Python entry point (:func:`audit.api.run`).
 """
 
 from audit.version import __version__

@@ -26,8 +26,9 @@ from audit.review.passes import review
 from audit.solve import solve, to_result
 
 
-def run(path: str | Path, today: date | None = None, allow_outside: bool = False,
-        monte_carlo: int = 0) -> AuditResult:
+def run(
+    path: str | Path, today: date | None = None, allow_outside: bool = False, monte_carlo: int = 0
+) -> AuditResult:
     """Audit the balance file at ``path``, then apply the reviewers' acceptances written in it or
     beside it (:mod:`audit.review.acceptance`; ``today`` decides which have expired, default: today).
 
@@ -53,8 +54,9 @@ def run(path: str | Path, today: date | None = None, allow_outside: bool = False
     return apply_acceptances(result, _acceptances(balance, document, path), today)
 
 
-def audit_balance(balance: Balance, document: Document, sha256: str = "",
-                  monte_carlo: int = 0) -> AuditResult:
+def audit_balance(
+    balance: Balance, document: Document, sha256: str = "", monte_carlo: int = 0
+) -> AuditResult:
     """Solve a validated balance (:func:`audit.solve.solve`), then review its findings
     (:func:`audit.review.passes.review`: verdicts with uncertainty and rounding, probable
     causes). ``monte_carlo`` > 0 cross-checks the uncertainties with that many draws per step."""

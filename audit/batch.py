@@ -71,8 +71,7 @@ def discover(arguments: Iterable[str | Path]) -> list[str | Missing]:
         elif _GLOB_CHARS.search(text):
             matches = sorted(Path(m) for m in glob.glob(text, recursive=True))
             files = [m for m in matches if _is_balance(m)]
-            files += [f for m in matches if m.is_dir() for f in sorted(m.rglob("*"))
-                      if _is_balance(f)]
+            files += [f for m in matches if m.is_dir() for f in sorted(m.rglob("*")) if _is_balance(f)]
             if not files:
                 found.append(Missing(text, "the pattern matches no balance file"))
             for file in sorted(set(files)):
@@ -83,8 +82,12 @@ def discover(arguments: Iterable[str | Path]) -> list[str | Missing]:
 
 
 def _is_balance(path: Path) -> bool:
-    return (path.suffix.lower() in BALANCE_SUFFIXES and path.is_file()
-            and not is_acceptance_file(path) and not path.name.startswith("."))
+    return (
+        path.suffix.lower() in BALANCE_SUFFIXES
+        and path.is_file()
+        and not is_acceptance_file(path)
+        and not path.name.startswith(".")
+    )
 
 
 def workbook_names(files: list[str]) -> dict[str, str]:
@@ -141,8 +144,10 @@ def audit_job(job: Job) -> FileOutcome:
         outcome.problems = [str(p) for p in exc.problems]
     except Exception as exc:  # noqa: BLE001 - a bug of ours on this file, reported as such
         outcome.status = INTERNAL
-        outcome.problems = [f"internal error of plant-audit on this file: {exc!r}"
-                            f"{_innermost(exc)} (please report it with the file)"]
+        outcome.problems = [
+            f"internal error of plant-audit on this file: {exc!r}"
+            f"{_innermost(exc)} (please report it with the file)"
+        ]
     if outcome.result is not None and job.workbook:
         try:
             from audit.report.workbook import write_workbook
@@ -198,16 +203,24 @@ def run_batch(
     found = discover(arguments)
     files = [f for f in found if isinstance(f, str)]
     names = workbook_names(files) if output is not None else {}
-    jobs = [Job(path=f, workbook=str(Path(output) / names[f]) if output is not None else None,
-                fail_on=fail_on, allow_outside=allow_outside) for f in files]
+    jobs = [
+        Job(
+            path=f,
+            workbook=str(Path(output) / names[f]) if output is not None else None,
+            fail_on=fail_on,
+            allow_outside=allow_outside,
+        )
+        for f in files
+    ]
     outcomes: dict[str, FileOutcome] = {}
     total = len(found)
     done = 0
     if on_start:
         on_start(total)
     for missing in (f for f in found if isinstance(f, Missing)):
-        outcomes[missing.path] = FileOutcome(missing.path, INVALID, problems=[
-            f"{missing.path}: {missing.message}"])
+        outcomes[missing.path] = FileOutcome(
+            missing.path, INVALID, problems=[f"{missing.path}: {missing.message}"]
+        )
         done += 1
         if on_done:
             on_done(outcomes[missing.path], done, total)

@@ -39,8 +39,13 @@ ABSOLUTE: dict[str | None, float] = {
 """Absolute tolerance [SI] per kind of quantity."""
 
 STREAM_FIELDS: list[tuple[str, str | None]] = [
-    ("fluid", None), ("phase", None), ("T", "temperature"), ("P", "pressure"),
-    ("mass_flow", "mass_flow"), ("quality", "fraction"), ("h", "specific_energy"),
+    ("fluid", None),
+    ("phase", None),
+    ("T", "temperature"),
+    ("P", "pressure"),
+    ("mass_flow", "mass_flow"),
+    ("quality", "fraction"),
+    ("h", "specific_energy"),
     ("s", "specific_entropy"),
 ]
 """The stream properties compared, with their kind of quantity (None: text)."""
@@ -101,20 +106,30 @@ class RevisionDiff:
             f = change.new
             if f is None or f.accepted or not at_or_above(f.severity, fail_on):
                 continue
-            was_failing = (change.old is not None and not change.old.accepted
-                           and at_or_above(change.old.severity, fail_on))
+            was_failing = (
+                change.old is not None
+                and not change.old.accepted
+                and at_or_above(change.old.severity, fail_on)
+            )
             if change.status == NEW or not was_failing:
                 failing.append(f)
         return failing
 
     @property
     def unchanged(self) -> bool:
-        return not (self.findings or self.streams_added or self.streams_removed
-                    or self.steps_added or self.steps_removed or self.changes)
+        return not (
+            self.findings
+            or self.streams_added
+            or self.streams_removed
+            or self.steps_added
+            or self.steps_removed
+            or self.changes
+        )
 
 
-def differs(old: float | str | None, new: float | str | None, quantity: str | None,
-            rtol: float = DEFAULT_RTOL) -> bool:
+def differs(
+    old: float | str | None, new: float | str | None, quantity: str | None, rtol: float = DEFAULT_RTOL
+) -> bool:
     """True when ``new`` differs from ``old`` beyond ``ABSOLUTE[quantity] + rtol·max(|old|,
     |new|)`` (numbers [SI]); text and None compare as they are."""
     if isinstance(old, (int, float)) and isinstance(new, (int, float)):
@@ -151,10 +166,12 @@ def compare(old: AuditResult, new: AuditResult, rtol: float = DEFAULT_RTOL) -> R
         if before_step is None:
             continue
         energy = "energy" if after_step.batch else "power"
-        texts = [("kind", before_step.kind, after_step.kind),
-                 ("inlets", ", ".join(before_step.inlets), ", ".join(after_step.inlets)),
-                 ("outlets", ", ".join(before_step.outlets), ", ".join(after_step.outlets)),
-                 ("claimed", ", ".join(before_step.claimed), ", ".join(after_step.claimed))]
+        texts = [
+            ("kind", before_step.kind, after_step.kind),
+            ("inlets", ", ".join(before_step.inlets), ", ".join(after_step.inlets)),
+            ("outlets", ", ".join(before_step.outlets), ", ".join(after_step.outlets)),
+            ("claimed", ", ".join(before_step.claimed), ", ".join(after_step.claimed)),
+        ]
         for name, a, b in texts:
             if a != b:
                 diff.changes.append(ValueChange("step", step_id, name, a, b))

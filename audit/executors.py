@@ -37,8 +37,9 @@ class TaskFailed:
 class Executor(Protocol):
     """Runs ``task`` on every item; yields ``(index, value or TaskFailed)`` as items finish."""
 
-    def map_unordered(self, task: Callable[[Any], Any], items: Sequence[Any]
-                      ) -> Iterator[tuple[int, Any]]: ...  # pragma: no cover
+    def map_unordered(
+        self, task: Callable[[Any], Any], items: Sequence[Any]
+    ) -> Iterator[tuple[int, Any]]: ...  # pragma: no cover
 
 
 def default_workers() -> int:
@@ -88,8 +89,9 @@ class LocalProcesses:
     def __init__(self, workers: int | None = None) -> None:
         self.workers = max(1, workers if workers is not None else default_workers())
 
-    def map_unordered(self, task: Callable[[Any], Any], items: Sequence[Any]
-                      ) -> Iterator[tuple[int, Any]]:
+    def map_unordered(
+        self, task: Callable[[Any], Any], items: Sequence[Any]
+    ) -> Iterator[tuple[int, Any]]:
         context = multiprocessing.get_context()
         todo = deque(enumerate(items))
         # connection -> (process, indices handed to it and not yet answered, in order)
@@ -137,8 +139,7 @@ class LocalProcesses:
             for _ in range(min(self.workers, len(todo))):
                 start()
             while busy:
-                sentinels = {process.sentinel: connection
-                             for connection, (process, _) in busy.items()}
+                sentinels = {process.sentinel: connection for connection, (process, _) in busy.items()}
                 for obj in wait([*busy, *sentinels]):
                     connection = obj if isinstance(obj, Connection) else sentinels[obj]
                     if connection not in busy:
@@ -149,9 +150,13 @@ class LocalProcesses:
                     except (EOFError, OSError):
                         failed = retire(connection)
                         if failed is not None:
-                            yield failed, TaskFailed(
-                                f"the worker process ended unexpectedly (exit code "
-                                f"{process.exitcode}) while auditing this file")
+                            yield (
+                                failed,
+                                TaskFailed(
+                                    f"the worker process ended unexpectedly (exit code "
+                                    f"{process.exitcode}) while auditing this file"
+                                ),
+                            )
                         if todo:
                             start()
                         continue
@@ -175,15 +180,18 @@ class DaskCluster:
         self.address = address
         self.client = client
 
-    def map_unordered(self, task: Callable[[Any], Any], items: Sequence[Any]
-                      ) -> Iterator[tuple[int, Any]]:
+    def map_unordered(
+        self, task: Callable[[Any], Any], items: Sequence[Any]
+    ) -> Iterator[tuple[int, Any]]:
         try:
             from dask.distributed import Client, as_completed
         except ImportError:
             from audit.errors import InputError
 
-            raise InputError("running a batch on a Dask cluster needs the 'distributed' extra: "
-                             "pip install 'plant-audit[distributed]'") from None
+            raise InputError(
+                "running a batch on a Dask cluster needs the 'distributed' extra: "
+                "pip install 'plant-audit[distributed]'"
+            ) from None
         client = self.client or Client(self.address)
         try:
             futures = client.map(task, list(items), pure=False)

@@ -110,8 +110,11 @@ def _connect(database: str | Path, create: bool) -> Iterator[sqlite3.Connection]
             connection.executescript(_SCHEMA)
             connection.execute(f"PRAGMA user_version = {SCHEMA_VERSION}")
         elif version != SCHEMA_VERSION:
-            raise InputError(f"the run history has schema version {version}; this plant-audit "
-                             f"reads version {SCHEMA_VERSION}", file=str(database))
+            raise InputError(
+                f"the run history has schema version {version}; this plant-audit "
+                f"reads version {SCHEMA_VERSION}",
+                file=str(database),
+            )
         yield connection
         connection.commit()
     except sqlite3.DatabaseError as exc:
@@ -120,12 +123,15 @@ def _connect(database: str | Path, create: bool) -> Iterator[sqlite3.Connection]
         connection.close()
 
 
-def record(database: str | Path, outcomes: list[FileOutcome], fail_on: str = "error",
-           now: datetime | None = None) -> list[FileOutcome]:
+def record(
+    database: str | Path,
+    outcomes: list[FileOutcome],
+    fail_on: str = "error",
+    now: datetime | None = None,
+) -> list[FileOutcome]:
     """Record one run per outcome and fill each outcome's ``previous_run`` and ``new_since_last``
     (the findings absent from the file's last audited run). Returns ``outcomes``."""
-    run_at = (now or datetime.now(timezone.utc)).astimezone(timezone.utc).strftime(
-        "%Y-%m-%dT%H:%M:%SZ")
+    run_at = (now or datetime.now(timezone.utc)).astimezone(timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ")
     with _connect(database, create=True) as connection:
         for outcome in outcomes:
             key = file_key(outcome.path)
@@ -142,19 +148,43 @@ def record(database: str | Path, outcomes: list[FileOutcome], fail_on: str = "er
                 "INSERT INTO runs (file, sha256, name, revision, run_at, status, verdict, "
                 "fail_on, errors, warnings, infos, accepted, exergy_destroyed, problems, "
                 "tool_version) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
-                (key, outcome.sha256, result.name if result else None,
-                 result.revision if result else None, run_at, outcome.status,
-                 outcome.verdict(fail_on), fail_on, counts.get(ERROR, 0),
-                 counts.get(WARNING, 0), counts.get(INFO, 0),
-                 sum(1 for f in result.findings if f.accepted) if result else 0,
-                 result.plant.exergy_destroyed if result else None,
-                 json.dumps(outcome.problems), __version__))
+                (
+                    key,
+                    outcome.sha256,
+                    result.name if result else None,
+                    result.revision if result else None,
+                    run_at,
+                    outcome.status,
+                    outcome.verdict(fail_on),
+                    fail_on,
+                    counts.get(ERROR, 0),
+                    counts.get(WARNING, 0),
+                    counts.get(INFO, 0),
+                    sum(1 for f in result.findings if f.accepted) if result else 0,
+                    result.plant.exergy_destroyed if result else None,
+                    json.dumps(outcome.problems),
+                    __version__,
+                ),
+            )
             if result is not None:
                 connection.executemany(
                     "INSERT INTO findings (run_id, severity, name, step, stream, message, margin, "
                     "quantity, accepted) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
-                    [(cursor.lastrowid, f.severity, f.name, f.step or "", f.stream or "",
-                      f.message, f.margin, f.quantity, f.accepted) for f in result.findings])
+                    [
+                        (
+                            cursor.lastrowid,
+                            f.severity,
+                            f.name,
+                            f.step or "",
+                            f.stream or "",
+                            f.message,
+                            f.margin,
+                            f.quantity,
+                            f.accepted,
+                        )
+                        for f in result.findings
+                    ],
+                )
     return outcomes
 
 
@@ -174,15 +204,15 @@ def _last_run(connection: sqlite3.Connection, key: str) -> Run | None:
     """The file's last audited run (invalid runs and internal errors have no findings to
     compare with)."""
     row = connection.execute(
-        "SELECT * FROM runs WHERE file = ? AND status = 'audited' ORDER BY id DESC LIMIT 1",
-        (key,)).fetchone()
+        "SELECT * FROM runs WHERE file = ? AND status = 'audited' ORDER BY id DESC LIMIT 1", (key,)
+    ).fetchone()
     return _run(connection, row) if row else None
 
 
 def _run(connection: sqlite3.Connection, row: tuple) -> Run:
     findings = connection.execute(
-        "SELECT step, stream, name FROM findings WHERE run_id = ? ORDER BY rowid",
-        (row[0],)).fetchall()
+        "SELECT step, stream, name FROM findings WHERE run_id = ? ORDER BY rowid", (row[0],)
+    ).fetchall()
     return Run(*row[:14], json.loads(row[14]), [tuple(f) for f in findings])  # type: ignore
 
 
@@ -198,4 +228,4 @@ def new_between(older: Run | None, newer: Run) -> list[FindingKey]:
 
 def audited_before(history: list[Run], index: int) -> Run | None:
     """In ``history`` (newest first), the audited run recorded before ``history[index]``."""
-    return next((r for r in history[index + 1:] if r.status == "audited"), None)
+    return next((r for r in history[index + 1 :] if r.status == "audited"), None)

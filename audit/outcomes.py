@@ -78,16 +78,19 @@ class FileOutcome:
         return EXIT_FINDINGS if self.result.fails(fail_on) else EXIT_PASS
 
     def verdict(self, fail_on: str = "error") -> str:
-        return {EXIT_PASS: PASS, EXIT_FINDINGS: FAIL, EXIT_INPUT: VERDICT_INVALID,
-                EXIT_INTERNAL: VERDICT_INTERNAL,
-                EXIT_REPORT: VERDICT_UNWRITTEN}[self.exit_code(fail_on)]
+        return {
+            EXIT_PASS: PASS,
+            EXIT_FINDINGS: FAIL,
+            EXIT_INPUT: VERDICT_INVALID,
+            EXIT_INTERNAL: VERDICT_INTERNAL,
+            EXIT_REPORT: VERDICT_UNWRITTEN,
+        }[self.exit_code(fail_on)]
 
     def failing(self, fail_on: str = "error") -> list[Finding]:
         """The findings that fail the gate: at or above ``fail_on`` and not accepted."""
         if self.result is None:
             return []
-        return [f for f in self.result.findings
-                if at_or_above(f.severity, fail_on) and not f.accepted]
+        return [f for f in self.result.findings if at_or_above(f.severity, fail_on) and not f.accepted]
 
     def history_note(self) -> str:
         """What the history says about this run: '' (not recorded), 'recorded' (no result to
@@ -102,8 +105,7 @@ class FileOutcome:
         new = self.new_since_last or []
         if not new:
             return f"nothing new since {self.previous_run}"
-        return (f"{len(new)} new since {self.previous_run}: "
-                + "; ".join(describe_key(k) for k in new))
+        return f"{len(new)} new since {self.previous_run}: " + "; ".join(describe_key(k) for k in new)
 
     def worst_finding(self) -> Finding | None:
         """The most severe open (not accepted) finding; among equals, the largest relative
@@ -113,8 +115,14 @@ class FileOutcome:
         open_findings = [f for f in self.result.findings if not f.accepted]
         if not open_findings:
             return None
-        return max(enumerate(open_findings), key=lambda item: (
-            SEVERITY_RANK[item[1].severity], abs(item[1].margin_relative or 0.0), -item[0]))[1]
+        return max(
+            enumerate(open_findings),
+            key=lambda item: (
+                SEVERITY_RANK[item[1].severity],
+                abs(item[1].margin_relative or 0.0),
+                -item[0],
+            ),
+        )[1]
 
 
 def batch_exit_code(outcomes: list[FileOutcome], fail_on: str = "error") -> int:

@@ -16,9 +16,7 @@ from audit.model.table_columns import stream_kinds
 from audit.steps import BALANCE_MODEL
 
 
-def resolve_tables(
-    document: Document, allow_outside: bool = False
-) -> tuple[Document, list[TableFile]]:
+def resolve_tables(document: Document, allow_outside: bool = False) -> tuple[Document, list[TableFile]]:
     """Merge the streams and claims a balance takes from tables (:mod:`audit.input.tables`),
     reading stream tables by the stream model's columns (:mod:`audit.model.table_columns`).
 

@@ -273,8 +273,11 @@ class AuditResult:
         """True when any finding not accepted by a reviewer is at or above ``threshold``
         ("error" or "warning") or, with ``marginal``, has the verdict "marginal" (a law finding
         within its measurement uncertainty, :mod:`audit.review.uncertainty`)."""
-        return any((at_or_above(f.severity, threshold) or (marginal and f.verdict == "marginal"))
-                   and not f.accepted for f in self.findings)
+        return any(
+            (at_or_above(f.severity, threshold) or (marginal and f.verdict == "marginal"))
+            and not f.accepted
+            for f in self.findings
+        )
 
     # -- tables --------------------------------------------------------------------------------
     def streams_frame(self) -> pd.DataFrame:
@@ -287,8 +290,7 @@ class AuditResult:
         for step in self.steps:
             row = as_record(step)
             row.pop("heat_flows")
-            row["mass_residual"] = max(
-                (abs(v) for v in step.mass_residual.values()), default=0.0)
+            row["mass_residual"] = max((abs(v) for v in step.mass_residual.values()), default=0.0)
             row.update({f"extra.{k}": v for k, v in row.pop("extra").items()})
             rows.append(row)
         return pd.DataFrame(rows).set_index("id") if rows else pd.DataFrame()
@@ -325,11 +327,40 @@ HEAT_FLOW_FIELDS = ("Q", "temperature", "claimed", "note")
 """The published fields of a :class:`HeatFlow`, in order (``boundary`` shows in ``note``)."""
 
 STEP_FIELDS = (
-    "id", "kind", "batch", "inlets", "outlets", "Q", "W", "heat_flows", "H_in", "H_out",
-    "KE_PE_in", "KE_PE_out", "dH", "dU", "dS", "dG", "dA", "energy_residual", "mass_residual",
-    "S_gen", "W_rev", "exergy_destroyed", "energy_scale", "energy_tolerance", "bound_basis",
-    "classical_bound", "second_law_efficiency", "isentropic_efficiency", "claimed", "inferred",
-    "notes", "extra", "description", "line",
+    "id",
+    "kind",
+    "batch",
+    "inlets",
+    "outlets",
+    "Q",
+    "W",
+    "heat_flows",
+    "H_in",
+    "H_out",
+    "KE_PE_in",
+    "KE_PE_out",
+    "dH",
+    "dU",
+    "dS",
+    "dG",
+    "dA",
+    "energy_residual",
+    "mass_residual",
+    "S_gen",
+    "W_rev",
+    "exergy_destroyed",
+    "energy_scale",
+    "energy_tolerance",
+    "bound_basis",
+    "classical_bound",
+    "second_law_efficiency",
+    "isentropic_efficiency",
+    "claimed",
+    "inferred",
+    "notes",
+    "extra",
+    "description",
+    "line",
 )
 """The published fields of a :class:`StepResult`, in order: the keys of its JSON object and the
 columns of the steps table (the balance's values appear flat, as attributes of the step)."""

@@ -79,8 +79,9 @@ def solve(balance: Balance, document: Document) -> Solution:
             result, step_findings = evaluate_step(balance, document, engine, streams, index)
         except StateError as exc:
             line, _ = document.position(("steps", index))
-            problems.append(Problem(
-                exc.problem.message, file=document.file, line=line, where=f"step {step.id}"))
+            problems.append(
+                Problem(exc.problem.message, file=document.file, line=line, where=f"step {step.id}")
+            )
             continue
         results.append(result)
         findings.extend(step_findings)
@@ -89,36 +90,55 @@ def solve(balance: Balance, document: Document) -> Solution:
     return Solution(balance, document, engine, streams, results, findings, started)
 
 
-def evaluate_step(balance: Balance, document: Document, engine: PropertyEngine,
-                  streams: dict[str, StreamResult], index: int, step: Any = None
-                  ) -> tuple[StepResult, list[Finding]]:
+def evaluate_step(
+    balance: Balance,
+    document: Document,
+    engine: PropertyEngine,
+    streams: dict[str, StreamResult],
+    index: int,
+    step: Any = None,
+) -> tuple[StepResult, list[Finding]]:
     """Evaluate step ``index`` of ``balance`` (or ``step``, a changed copy of it) on ``streams``
     through its kind's ``evaluate``, with the balance's tolerances and the step's own overrides.
     Returns the step's result and its findings."""
     step = balance.steps[index] if step is None else step
     info = balance.balance
     line, _ = document.position(("steps", index))
-    ctx = StepContext(streams=streams, engine=engine, T0=info.dead_state.T,
-                      P0=info.dead_state.P, tolerances=merged(info.tolerances, step.tolerances),
-                      line=line)
+    ctx = StepContext(
+        streams=streams,
+        engine=engine,
+        T0=info.dead_state.T,
+        P0=info.dead_state.P,
+        tolerances=merged(info.tolerances, step.tolerances),
+        line=line,
+    )
     result = REGISTRY[step.kind].evaluate(step, ctx)
     return result, ctx.findings
 
 
-def to_result(solution: Solution, findings: list[Finding], notes: dict[str, str],
-              sha256: str = "") -> AuditResult:
+def to_result(
+    solution: Solution, findings: list[Finding], notes: dict[str, str], sha256: str = ""
+) -> AuditResult:
     """The audit's result: the solution with its reviewed ``findings`` and provenance ``notes``."""
     balance, engine, streams = solution.balance, solution.engine, solution.streams
     info = balance.balance
     elapsed = time.perf_counter() - solution.started
     return AuditResult(
-        name=info.name, revision=info.revision, file=solution.document.file, sha256=sha256,
-        dead_T=info.dead_state.T, dead_P=info.dead_state.P, site_pressure=info.site_pressure,
-        tolerances=info.tolerances.model_dump(), streams=list(streams.values()),
-        steps=solution.results, findings=findings,
+        name=info.name,
+        revision=info.revision,
+        file=solution.document.file,
+        sha256=sha256,
+        dead_T=info.dead_state.T,
+        dead_P=info.dead_state.P,
+        site_pressure=info.site_pressure,
+        tolerances=info.tolerances.model_dump(),
+        streams=list(streams.values()),
+        steps=solution.results,
+        findings=findings,
         plant=_plant_totals(balance, streams, solution.results),
         provenance={
-            "plant-audit": __version__, "CoolProp": COOLPROP_VERSION,
+            "plant-audit": __version__,
+            "CoolProp": COOLPROP_VERSION,
             "property back end": f"{BACKEND} (IAPWS-95 for water)",
             "Python": platform.python_version(),
             "run at (UTC)": datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M:%S"),
@@ -130,8 +150,9 @@ def to_result(solution: Solution, findings: list[Finding], notes: dict[str, str]
 
 
 # -- streams ---------------------------------------------------------------------------------------
-def _evaluate_streams(balance: Balance, document: Document, engine: PropertyEngine,
-                      findings: list[Finding]) -> tuple[dict[str, StreamResult], list[Problem]]:
+def _evaluate_streams(
+    balance: Balance, document: Document, engine: PropertyEngine, findings: list[Finding]
+) -> tuple[dict[str, StreamResult], list[Problem]]:
     streams: dict[str, StreamResult] = {}
     problems: list[Problem] = []
     for stream_id, spec in balance.streams.items():
@@ -143,15 +164,20 @@ def _evaluate_streams(balance: Balance, document: Document, engine: PropertyEngi
             continue
         result = streams[stream_id]
         if spec.phase is not None and result.phase not in _PHASE_MATCH[spec.phase]:
-            findings.append(Finding(
-                WARNING, "phase-mismatch", None,
-                f"stream {stream_id} is declared {spec.phase} but its state "
-                f"({celsius(result.T)}, {bar(result.P)}) is {result.phase}",
-                stream=stream_id,
-            ))
+            findings.append(
+                Finding(
+                    WARNING,
+                    "phase-mismatch",
+                    None,
+                    f"stream {stream_id} is declared {spec.phase} but its state "
+                    f"({celsius(result.T)}, {bar(result.P)}) is {result.phase}",
+                    stream=stream_id,
+                )
+            )
         if result.composition is not None:
-            findings.extend(_dew_point_findings(
-                stream_id, engine.state(result.fluid, "TP", result.T, result.P)))
+            findings.extend(
+                _dew_point_findings(stream_id, engine.state(result.fluid, "TP", result.T, result.P))
+            )
     return streams, problems
 
 
@@ -160,27 +186,35 @@ def _dew_point_findings(stream_id: str, state: State) -> list[Finding]:
     mixture model does not, so the stream's values assume a gas that cannot exist."""
     found = []
     for formula, partial, p_sat in state.condensing:
-        found.append(Finding(
-            ERROR, "below-dew-point", None,
-            f"stream {stream_id} is below its dew point: the partial pressure of {formula} "
-            f"({partial / 1e3:.4g} kPa) exceeds its saturation pressure at "
-            f"{celsius(state.T)} ({p_sat / 1e3:.4g} kPa), so it would condense; the "
-            "ideal-gas mixture model does not condense: give the condensate as a stream of its "
-            "own and the gas at its dew point or above",
-            claimed=partial, bound=p_sat, margin=partial - p_sat,
-            margin_relative=relative(partial - p_sat, p_sat), quantity="pressure",
-            stream=stream_id,
-        ))
+        found.append(
+            Finding(
+                ERROR,
+                "below-dew-point",
+                None,
+                f"stream {stream_id} is below its dew point: the partial pressure of {formula} "
+                f"({partial / 1e3:.4g} kPa) exceeds its saturation pressure at "
+                f"{celsius(state.T)} ({p_sat / 1e3:.4g} kPa), so it would condense; the "
+                "ideal-gas mixture model does not condense: give the condensate as a stream of its "
+                "own and the gas at its dew point or above",
+                claimed=partial,
+                bound=p_sat,
+                margin=partial - p_sat,
+                margin_relative=relative(partial - p_sat, p_sat),
+                quantity="pressure",
+                stream=stream_id,
+            )
+        )
     return found
 
 
-def evaluate_stream(stream_id: str, spec: StreamSpec, engine: PropertyEngine, line: int | None
-                    ) -> StreamResult:
+def evaluate_stream(
+    stream_id: str, spec: StreamSpec, engine: PropertyEngine, line: int | None
+) -> StreamResult:
     """A stream's state and flows from its written spec, through the property engine."""
     pair, a, b = spec.inputs()
     if isinstance(spec.composition, dict):  # a named composition is expanded on validation
-        # A gas mixture (audit.properties.mixtures); a normal or standard volume of it is converted with the
-        # ideal-gas molar volume at its reference conditions, as combustion practice does.
+        # A gas mixture (audit.properties.mixtures); a normal or standard volume of it is converted
+        # with the ideal-gas molar volume at its reference conditions, as combustion practice does.
         state = engine.mixture_state(spec.composition, a, b, spec.composition_basis)
         if spec.flow.basis == "normal_volume":
             T_ref, P_ref = spec.flow.reference  # type: ignore[misc]
@@ -192,18 +226,33 @@ def evaluate_stream(stream_id: str, spec: StreamSpec, engine: PropertyEngine, li
         state = engine.state(fluid, pair, a, b)
         mass_flow = _mass_flow(spec.flow, fluid, state.rho, state.molar_mass, engine)
     return StreamResult(
-        id=stream_id, fluid=state.fluid, T=state.T, P=state.P, rho=state.rho, h=state.h,
-        s=state.s, u=state.u, g=state.g, a=state.a, psi=state.psi, phase=state.phase,
-        quality=state.quality, basis=state.basis, mass_flow=mass_flow,
-        molar_flow=mass_flow / state.molar_mass, flow_as_written=spec.flow.basis,
-        velocity=spec.velocity or 0.0, elevation=spec.elevation or 0.0,
-        declared_phase=spec.phase, description=spec.description, line=line,
+        id=stream_id,
+        fluid=state.fluid,
+        T=state.T,
+        P=state.P,
+        rho=state.rho,
+        h=state.h,
+        s=state.s,
+        u=state.u,
+        g=state.g,
+        a=state.a,
+        psi=state.psi,
+        phase=state.phase,
+        quality=state.quality,
+        basis=state.basis,
+        mass_flow=mass_flow,
+        molar_flow=mass_flow / state.molar_mass,
+        flow_as_written=spec.flow.basis,
+        velocity=spec.velocity or 0.0,
+        elevation=spec.elevation or 0.0,
+        declared_phase=spec.phase,
+        description=spec.description,
+        line=line,
         composition=dict(state.composition) if state.composition is not None else None,
     )
 
 
-def _mass_flow(flow: Flow, fluid: str, rho: float, molar_mass: float,
-               engine: PropertyEngine) -> float:
+def _mass_flow(flow: Flow, fluid: str, rho: float, molar_mass: float, engine: PropertyEngine) -> float:
     """Mass flow [kg/s] from a flow as written (mass, molar, normal/standard or actual volume)."""
     if flow.basis == "mass":
         return flow.value
@@ -230,8 +279,9 @@ def _mass_flow(flow: Flow, fluid: str, rho: float, molar_mass: float,
 
 
 # -- topology ----------------------------------------------------------------------------------------
-def _check_topology(balance: Balance, document: Document, findings: list[Finding],
-                    streams: dict[str, StreamResult]) -> list[Problem]:
+def _check_topology(
+    balance: Balance, document: Document, findings: list[Finding], streams: dict[str, StreamResult]
+) -> list[Problem]:
     problems: list[Problem] = []
     producers: dict[str, list[str]] = defaultdict(list)
     consumers: dict[str, list[str]] = defaultdict(list)
@@ -240,9 +290,14 @@ def _check_topology(balance: Balance, document: Document, findings: list[Finding
     for index, step in enumerate(balance.steps):
         line, _ = document.position(("steps", index))
         if step.id in seen_ids:
-            problems.append(Problem(
-                f"the step id '{step.id}' is used twice (also on line {seen_ids[step.id]})",
-                file=document.file, line=line, where=f"step {step.id}"))
+            problems.append(
+                Problem(
+                    f"the step id '{step.id}' is used twice (also on line {seen_ids[step.id]})",
+                    file=document.file,
+                    line=line,
+                    where=f"step {step.id}",
+                )
+            )
         seen_ids.setdefault(step.id, line or 0)
         inlets, outlets = step.stream_ids()
         for role, ids, table in (("inlet", inlets, consumers), ("outlet", outlets, producers)):
@@ -251,35 +306,59 @@ def _check_topology(balance: Balance, document: Document, findings: list[Finding
                     path = _find_reference(raw_steps[index], stream_id, ("steps", index))
                     ref_line, ref_col = document.position(path)
                     close = difflib.get_close_matches(stream_id, list(balance.streams), n=1)
-                    problems.append(Problem(
-                        f"{role} '{stream_id}' is not a stream of this balance" + (
-                            f"; did you mean '{close[0]}'?" if close else ""),
-                        file=document.file, line=ref_line, column=ref_col,
-                        where=f"step {step.id}"))
+                    problems.append(
+                        Problem(
+                            f"{role} '{stream_id}' is not a stream of this balance"
+                            + (f"; did you mean '{close[0]}'?" if close else ""),
+                            file=document.file,
+                            line=ref_line,
+                            column=ref_col,
+                            where=f"step {step.id}",
+                        )
+                    )
                     continue
                 if step.id in table[stream_id]:
-                    problems.append(Problem(
-                        f"stream '{stream_id}' is named twice as an {role} of the same step",
-                        file=document.file, line=line, where=f"step {step.id}"))
+                    problems.append(
+                        Problem(
+                            f"stream '{stream_id}' is named twice as an {role} of the same step",
+                            file=document.file,
+                            line=line,
+                            where=f"step {step.id}",
+                        )
+                    )
                 table[stream_id].append(step.id)
     for stream_id, steps in producers.items():
         if len(steps) > 1:
-            problems.append(Problem(
-                f"is produced by more than one step ({', '.join(steps)}); a stream leaves one "
-                "step only", **document.place(("streams", stream_id)), where=f"stream {stream_id}"))
+            problems.append(
+                Problem(
+                    f"is produced by more than one step ({', '.join(steps)}); a stream leaves one "
+                    "step only",
+                    **document.place(("streams", stream_id)),
+                    where=f"stream {stream_id}",
+                )
+            )
     for stream_id, steps in consumers.items():
         if len(steps) > 1:
-            problems.append(Problem(
-                f"is consumed by more than one step ({', '.join(steps)}); a stream enters one "
-                "step only (add a splitter)", **document.place(("streams", stream_id)),
-                where=f"stream {stream_id}"))
+            problems.append(
+                Problem(
+                    f"is consumed by more than one step ({', '.join(steps)}); a stream enters one "
+                    "step only (add a splitter)",
+                    **document.place(("streams", stream_id)),
+                    where=f"stream {stream_id}",
+                )
+            )
     if balance.steps:
         for stream_id in balance.streams:
             if stream_id not in producers and stream_id not in consumers:
-                findings.append(Finding(
-                    WARNING, "stream-unused", None,
-                    f"stream {stream_id} is neither produced nor consumed by any step",
-                    stream=stream_id))
+                findings.append(
+                    Finding(
+                        WARNING,
+                        "stream-unused",
+                        None,
+                        f"stream {stream_id} is neither produced nor consumed by any step",
+                        stream=stream_id,
+                    )
+                )
     return problems
 
 
@@ -287,8 +366,7 @@ def _find_reference(raw: Any, value: str, path: tuple) -> tuple:
     """The path of the first string equal to ``value`` inside ``raw`` (for error positions)."""
     if isinstance(raw, str):
         return path if raw == value else ()
-    items = raw.items() if isinstance(raw, dict) else enumerate(raw) if isinstance(
-        raw, list) else []
+    items = raw.items() if isinstance(raw, dict) else enumerate(raw) if isinstance(raw, list) else []
     for key, item in items:
         if key in ("id", "description"):
             continue
@@ -299,8 +377,9 @@ def _find_reference(raw: Any, value: str, path: tuple) -> tuple:
 
 
 # -- plant totals --------------------------------------------------------------------------------
-def _plant_totals(balance: Balance, streams: dict[str, StreamResult],
-                  steps: list[StepResult]) -> PlantTotals:
+def _plant_totals(
+    balance: Balance, streams: dict[str, StreamResult], steps: list[StepResult]
+) -> PlantTotals:
     flow_steps = [s for s in steps if not s.batch]
     produced = {o for s in flow_steps for o in s.outlets}
     consumed = {i for s in flow_steps for i in s.inlets}
@@ -308,8 +387,7 @@ def _plant_totals(balance: Balance, streams: dict[str, StreamResult],
     boundary_out = sorted(produced - consumed)
 
     def energy(ids: list[str]) -> float:
-        return sum(streams[i].mass_flow * (streams[i].h + streams[i].kinetic_potential)
-                   for i in ids)
+        return sum(streams[i].mass_flow * (streams[i].h + streams[i].kinetic_potential) for i in ids)
 
     Q_net = sum(s.Q for s in flow_steps)
     W_net = sum(s.W for s in flow_steps)
@@ -319,7 +397,8 @@ def _plant_totals(balance: Balance, streams: dict[str, StreamResult],
         work_out=sum(s.W for s in flow_steps if s.W > 0),
         work_in=-sum(s.W for s in flow_steps if s.W < 0),
         exergy_destroyed=sum(s.exergy_destroyed for s in flow_steps),
-        boundary_inlets=boundary_in, boundary_outlets=boundary_out,
+        boundary_inlets=boundary_in,
+        boundary_outlets=boundary_out,
         boundary_energy_residual=Q_net - W_net - (energy(boundary_out) - energy(boundary_in)),
         sum_of_step_residuals=sum(s.energy_residual for s in flow_steps),
     )

@@ -81,8 +81,12 @@ KINDS: dict[str, Kind] = {
         Kind("volume", "[length] ** 3", "m**3", "'2.5 m3'"),
         Kind("voltage", "[mass] * [length] ** 2 / [current] / [time] ** 3", "V", "'1.9 V'"),
         Kind("current", "[current]", "A", "'2000 A'"),
-        Kind("specific_energy_molar", "[mass] * [length] ** 2 / [substance] / [time] ** 2",
-             "J/mol", "'802 kJ/mol'"),
+        Kind(
+            "specific_energy_molar",
+            "[mass] * [length] ** 2 / [substance] / [time] ** 2",
+            "J/mol",
+            "'802 kJ/mol'",
+        ),
         Kind("volumetric_energy", "[mass] / [length] / [time] ** 2", "J/m**3", "'35.8 MJ/m3'"),
     ]
 }
@@ -161,9 +165,7 @@ def split_number(text: object, kind: str) -> tuple[float, str]:
         raise UnitError(f"'{text}' is not a finite number")
     unit = match.group(2)
     if not unit:
-        raise UnitError(
-            f"'{text}' has no unit; write it with its unit, such as {expected}"
-        )
+        raise UnitError(f"'{text}' has no unit; write it with its unit, such as {expected}")
     return number, unit
 
 
@@ -175,6 +177,7 @@ def is_gauge(text: object) -> bool:
         return False
     unit = _normalise(unit)
     return bool(_GAUGE.match(unit)) or unit == "psig"
+
 
 def to_si(text: object, kind: str, site_pressure: float | None = None) -> float:
     """Convert a quantity string to the SI unit of ``kind``.
@@ -216,8 +219,15 @@ _MAX_RULES = 4096
 _RULES: dict[tuple[str, str], tuple[float, float, bool]] = {}
 """(kind, unit as written) -> its rule (:func:`_unit_rule`): each distinct unit is read once."""
 
-_DIFFERENCE_UNITS = {"K": 1.0, "degC": 1.0, "delta_degC": 1.0, "degF": 5 / 9, "delta_degF": 5 / 9,
-                     "degR": 5 / 9, "mK": 1e-3}
+_DIFFERENCE_UNITS = {
+    "K": 1.0,
+    "degC": 1.0,
+    "delta_degC": 1.0,
+    "degF": 5 / 9,
+    "delta_degF": 5 / 9,
+    "degR": 5 / 9,
+    "mK": 1e-3,
+}
 
 
 def _unit_rule(text: object, kind: str, unit: str) -> tuple[float, float, bool]:
@@ -306,7 +316,8 @@ def _flow_rule(text: object, unit: str) -> tuple:
         scale, offset, dimensionality = _converter(unit)
     except UnitError:
         raise UnitError(
-            f"'{text}': unknown unit '{unit}'; a flow is written like {_FLOW_EXAMPLE}") from None
+            f"'{text}': unknown unit '{unit}'; a flow is written like {_FLOW_EXAMPLE}"
+        ) from None
     basis = None
     if dimensionality == _dimension_of("kg/s"):
         basis = "mass"

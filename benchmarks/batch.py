@@ -33,9 +33,11 @@ def generate(folder: Path, count: int) -> list[Path]:
     paths = []
     for i in range(count):
         factor = 1.0 + 0.004 * ((i % 9) - 4) / 4  # within ±0.4 %: inside the 1 % tolerances
-        copy = re.sub(r"(shaft_power: )([0-9.]+)( MW| kW)",
-                      lambda m, f=factor: f"{m.group(1)}{float(m.group(2)) * f:.6g}{m.group(3)}",
-                      text)
+        copy = re.sub(
+            r"(shaft_power: )([0-9.]+)( MW| kW)",
+            lambda m, f=factor: f"{m.group(1)}{float(m.group(2)) * f:.6g}{m.group(3)}",
+            text,
+        )
         copy = copy.replace("revision: C", f"revision: C-bench-{i:03d}")
         path = folder / f"area-{i % 10}" / f"balance-{i:03d}.yaml"
         path.parent.mkdir(parents=True, exist_ok=True)
@@ -48,8 +50,9 @@ def main() -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--files", type=int, default=100)
     parser.add_argument("--repeat", type=int, default=3)
-    parser.add_argument("--workbooks", action="store_true",
-                        help="also write each file's own workbook (as batch -o does)")
+    parser.add_argument(
+        "--workbooks", action="store_true", help="also write each file's own workbook (as batch -o does)"
+    )
     args = parser.parse_args()
 
     sys.path.insert(0, str(ROOT))
@@ -72,21 +75,32 @@ def main() -> int:
                 elapsed, after = time.perf_counter() - started, os.times()
                 assert len(outcomes) == args.files
                 assert all(o.status == "audited" for o in outcomes), [
-                    o.problems for o in outcomes if o.status != "audited"]
+                    o.problems for o in outcomes if o.status != "audited"
+                ]
                 if elapsed < best.get(workers, float("inf")):
                     best[workers] = elapsed
-                    cpu[workers] = (after.children_user - before.children_user
-                                    + after.children_system - before.children_system)
+                    cpu[workers] = (
+                        after.children_user
+                        - before.children_user
+                        + after.children_system
+                        - before.children_system
+                    )
         load_after = os.getloadavg()[0]
-    print(f"load average (1 min) before {load_before:.2f}, after {load_after:.2f}, on {cores} "
-          "cores: a load above the core count means other work shares them")
+    print(
+        f"load average (1 min) before {load_before:.2f}, after {load_after:.2f}, on {cores} "
+        "cores: a load above the core count means other work shares them"
+    )
     for workers, elapsed in best.items():
-        print(f"{workers} worker(s): {args.files} files in {elapsed:.2f} s "
-              f"({args.files / elapsed:.1f} files/s, best of {args.repeat}); worker CPU "
-              f"{cpu[workers]:.2f} s = {cpu[workers] / elapsed:.2f} cores busy")
+        print(
+            f"{workers} worker(s): {args.files} files in {elapsed:.2f} s "
+            f"({args.files / elapsed:.1f} files/s, best of {args.repeat}); worker CPU "
+            f"{cpu[workers]:.2f} s = {cpu[workers] / elapsed:.2f} cores busy"
+        )
     ratio = best[1] / best[cores]
-    print(f"throughput ratio, {cores} workers vs 1: {ratio:.2f} (goal >= 1.8 on 2 cores; "
-          f"workbooks {'on' if args.workbooks else 'off'})")
+    print(
+        f"throughput ratio, {cores} workers vs 1: {ratio:.2f} (goal >= 1.8 on 2 cores; "
+        f"workbooks {'on' if args.workbooks else 'off'})"
+    )
     return 0
 
 

@@ -77,8 +77,13 @@ class Fluids:
         if not state.Tmin() + 1.0 < state.T() < state.Tmax() - 1.0:
             raise Retry(f"{state.T()} K is outside the range of the equation of state")
         quality = state.Q()
-        return Point(state.T(), state.p(), state.hmass(), state.smass(),
-                     quality if 0.0 <= quality <= 1.0 else None)
+        return Point(
+            state.T(),
+            state.p(),
+            state.hmass(),
+            state.smass(),
+            quality if 0.0 <= quality <= 1.0 else None,
+        )
 
     def tp(self, fluid: str, T: float, P: float) -> Point:
         """A (P, T) state with the phase imposed from T_sat(P) below the critical point, as the
@@ -165,9 +170,19 @@ class Builder:
     steps: list[str] = field(default_factory=list)
     kinds: Counter = field(default_factory=Counter)
 
-    def stream(self, sid: str, fluid: str, flow: str, *, T: float | None = None,
-               P: float | None = None, quality: float | None = None, h: float | None = None,
-               p_unit: str = "bar", phase: str | None = None) -> tuple[str, Point]:
+    def stream(
+        self,
+        sid: str,
+        fluid: str,
+        flow: str,
+        *,
+        T: float | None = None,
+        P: float | None = None,
+        quality: float | None = None,
+        h: float | None = None,
+        p_unit: str = "bar",
+        phase: str | None = None,
+    ) -> tuple[str, Point]:
         """Write a stream from (T, P), (P, quality) or (P, h); return its line and its state as
         the audit will evaluate it."""
         p_text, P_read = pressure(P, p_unit)  # type: ignore[arg-type]
@@ -215,10 +230,16 @@ def steam_cycle(b: Builder, rng: random.Random, tag: str, exchanger: bool) -> No
     eta_pump = rng.uniform(0.65, 0.85)
     P2_read = pressure(P2, "barg")[1]
     h2 = s1.h + (f.ps("Water", P2_read, s1.s).h - s1.h) / eta_pump
-    l2, s2 = b.stream(f"{tag}b", "Water", flow, T=f.ph("Water", P2_read, h2).T, P=P2,
-                      p_unit="barg")
-    l3, s3 = b.stream(f"{tag}c", "Water", flow, T=rng.uniform(420.0, 540.0) + 273.15,
-                      P=P_boiler, p_unit="barg", phase="vapour")
+    l2, s2 = b.stream(f"{tag}b", "Water", flow, T=f.ph("Water", P2_read, h2).T, P=P2, p_unit="barg")
+    l3, s3 = b.stream(
+        f"{tag}c",
+        "Water",
+        flow,
+        T=rng.uniform(420.0, 540.0) + 273.15,
+        P=P_boiler,
+        p_unit="barg",
+        phase="vapour",
+    )
     eta_turbine = rng.uniform(0.75, 0.9)
     P4_read = pressure(P_exhaust, "kPa")[1]
     h4 = s3.h - eta_turbine * (s3.h - f.ps("Water", P4_read, s3.s).h)
@@ -226,8 +247,7 @@ def steam_cycle(b: Builder, rng: random.Random, tag: str, exchanger: bool) -> No
     if exhaust.quality is not None:
         if exhaust.quality < 0.9:
             raise Retry("exhaust wetter than 10 %")
-        l4, s4 = b.stream(f"{tag}d", "Water", flow, P=P_exhaust, quality=exhaust.quality,
-                          p_unit="kPa")
+        l4, s4 = b.stream(f"{tag}d", "Water", flow, P=P_exhaust, quality=exhaust.quality, p_unit="kPa")
     else:
         l4, s4 = b.stream(f"{tag}d", "Water", flow, T=exhaust.T, P=P_exhaust, p_unit="kPa")
     m = s1.m
@@ -248,8 +268,10 @@ def steam_cycle(b: Builder, rng: random.Random, tag: str, exchanger: bool) -> No
     duty = m * (s4.h - s1.h)
     if not exchanger:
         sink = temperature(s1.T - rng.uniform(8.0, 15.0), 1)[0]
-        steps.append(f"  - {{id: {tag}.C, kind: cooler, inlet: {tag}d, outlet: {tag}a, "
-                     f"duty: {power(duty)}, sink_temperature: {sink}}}")
+        steps.append(
+            f"  - {{id: {tag}.C, kind: cooler, inlet: {tag}d, outlet: {tag}a, "
+            f"duty: {power(duty)}, sink_temperature: {sink}}}"
+        )
         b.add("steam cycle", lines, steps)
         return
     T_in = rng.uniform(291.0, 297.0)
@@ -264,7 +286,8 @@ def steam_cycle(b: Builder, rng: random.Random, tag: str, exchanger: bool) -> No
     l6, _ = b.stream(f"{tag}f", "Water", cw_flow, T=T_out, P=P_cw - 0.3e5)
     steps.append(
         f"  - {{id: {tag}.C, kind: heat_exchanger, hot: {{inlet: {tag}d, outlet: {tag}a}}, "
-        f"cold: {{inlet: {tag}e, outlet: {tag}f}}, duty: {power(duty)}}}")
+        f"cold: {{inlet: {tag}e, outlet: {tag}f}}, duty: {power(duty)}}}"
+    )
     b.add("steam cycle with exchanger", lines + [l5, l6], steps)
 
 
@@ -285,12 +308,14 @@ def gas_train(b: Builder, rng: random.Random, tag: str) -> None:
         P_read = pressure(P_out)[1]
         eta = rng.uniform(0.72, 0.85)
         h_out = inlet.h + (f.ps(fluid, P_read, inlet.s).h - inlet.h) / eta
-        line, point = b.stream(f"{tag}{letters[2 * stage]}", fluid, flow,
-                               T=f.ph(fluid, P_read, h_out).T, P=P_out)
+        line, point = b.stream(
+            f"{tag}{letters[2 * stage]}", fluid, flow, T=f.ph(fluid, P_read, h_out).T, P=P_out
+        )
         lines.append(line)
         points.append(point)
-        line, point = b.stream(f"{tag}{letters[2 * stage + 1]}", fluid, flow,
-                               T=rng.uniform(303.0, 318.0), P=point.P * 0.985)
+        line, point = b.stream(
+            f"{tag}{letters[2 * stage + 1]}", fluid, flow, T=rng.uniform(303.0, 318.0), P=point.P * 0.985
+        )
         lines.append(line)
         points.append(point)
     steps = []
@@ -324,8 +349,9 @@ def refrigeration_loop(b: Builder, rng: random.Random, tag: str) -> None:
     eta = rng.uniform(0.6, 0.8)
     h_c = sb.h + (f.ps(fluid, P_cond, sb.s).h - sb.h) / eta
     lc, sc = b.stream(f"{tag}c", fluid, flow, T=f.ph(fluid, P_cond, h_c).T, P=P_cond)
-    ld, sd = b.stream(f"{tag}d", fluid, flow, T=T_cond - rng.uniform(3.0, 6.0), P=P_liquid,
-                      phase="liquid")
+    ld, sd = b.stream(
+        f"{tag}d", fluid, flow, T=T_cond - rng.uniform(3.0, 6.0), P=P_liquid, phase="liquid"
+    )
     throttled = f.ph(fluid, P_evap, sd.h)
     if throttled.quality is None:
         raise Retry("throttled state not two-phase")
@@ -351,15 +377,15 @@ def letdown(b: Builder, rng: random.Random, tag: str, valves: int) -> None:
     """Superheated steam throttled through one or two valves (boundary streams at both ends)."""
     flow = f"{rng.uniform(1.0, 20.0):.2f} t/h"
     P = rng.uniform(10e5, 40e5)
-    line, point = b.stream(f"{tag}a", "Water", flow, T=rng.uniform(523.0, 673.0), P=P,
-                           p_unit="barg")
+    line, point = b.stream(f"{tag}a", "Water", flow, T=rng.uniform(523.0, 673.0), P=P, p_unit="barg")
     lines, steps = [line], []
     for k in range(valves):
         P = P * rng.uniform(0.3, 0.7)
         line, point = b.stream(f"{tag}{'bc'[k]}", "Water", flow, P=P, h=point.h, p_unit="barg")
         lines.append(line)
-        steps.append(f"  - {{id: {tag}.V{k + 1}, kind: valve, inlet: {tag}{'abc'[k]}, "
-                     f"outlet: {tag}{'bc'[k]}}}")
+        steps.append(
+            f"  - {{id: {tag}.V{k + 1}, kind: valve, inlet: {tag}{'abc'[k]}, outlet: {tag}{'bc'[k]}}}"
+        )
     b.add(f"letdown ({valves} valve{'s' if valves > 1 else ''})", lines, steps)
 
 
@@ -388,7 +414,7 @@ def build(streams: int, seed: int = 0) -> Builder:
             try:
                 make(f"L{index}")
             except Retry:
-                del b.streams[saved[0]:], b.steps[saved[1]:]
+                del b.streams[saved[0] :], b.steps[saved[1] :]
                 continue
             index += 1
             return

@@ -168,11 +168,18 @@ def floor_replay(calls: list[tuple]):
     """A function replaying ``calls`` bare: one AbstractState per (back end, fluid)."""
     import CoolProp.CoolProp as CP
 
-    states = {(backend, fluid): CP.AbstractState(backend, fluid)
-              for backend, fluid, *_ in calls}
-    plan = [(states[(backend, fluid)], phase, pair, a, b,
-             [getattr(states[(backend, fluid)], name) for name in read])
-            for backend, fluid, phase, pair, a, b, read in calls]
+    states = {(backend, fluid): CP.AbstractState(backend, fluid) for backend, fluid, *_ in calls}
+    plan = [
+        (
+            states[(backend, fluid)],
+            phase,
+            pair,
+            a,
+            b,
+            [getattr(states[(backend, fluid)], name) for name in read],
+        )
+        for backend, fluid, phase, pair, a, b, read in calls
+    ]
 
     def replay() -> int:
         failed = 0
@@ -199,8 +206,13 @@ def _kind_of_call(pair: int, read: tuple[str, ...]) -> str:
 
     if read == ("T",):
         return "T_sat(P)"
-    names = {CP.PT_INPUTS: "(P, T)", CP.PQ_INPUTS: "(P, x)", CP.QT_INPUTS: "(T, x)",
-             CP.HmassP_INPUTS: "(P, h)", CP.PSmass_INPUTS: "(P, s)"}
+    names = {
+        CP.PT_INPUTS: "(P, T)",
+        CP.PQ_INPUTS: "(P, x)",
+        CP.QT_INPUTS: "(T, x)",
+        CP.HmassP_INPUTS: "(P, h)",
+        CP.PSmass_INPUTS: "(P, s)",
+    }
     return names.get(pair, "formation anchor")
 
 
@@ -210,8 +222,11 @@ def naive_plan(calls: list[tuple], sample: int, seed: int) -> tuple[list[tuple],
     import CoolProp.CoolProp as CP
 
     names = {
-        CP.PT_INPUTS: ("P", "T"), CP.PQ_INPUTS: ("P", "Q"), CP.QT_INPUTS: ("Q", "T"),
-        CP.HmassP_INPUTS: ("H", "P"), CP.PSmass_INPUTS: ("P", "S"),
+        CP.PT_INPUTS: ("P", "T"),
+        CP.PQ_INPUTS: ("P", "Q"),
+        CP.QT_INPUTS: ("Q", "T"),
+        CP.HmassP_INPUTS: ("H", "P"),
+        CP.PSmass_INPUTS: ("P", "S"),
     }
     states = []
     for backend, fluid, _, pair, a, b, read in calls:
@@ -223,8 +238,9 @@ def naive_plan(calls: list[tuple], sample: int, seed: int) -> tuple[list[tuple],
             outputs = ("T",)  # a saturation temperature
         else:
             continue
-        states.append([(out, names[pair][0], a, names[pair][1], b, f"{backend}::{fluid}")
-                       for out in outputs])
+        states.append(
+            [(out, names[pair][0], a, names[pair][1], b, f"{backend}::{fluid}") for out in outputs]
+        )
     total = len(states)
     if total > sample:
         states = random.Random(seed).sample(states, sample)
@@ -286,15 +302,18 @@ def child(path: Path, repeat: int, naive_sample: int, seed: int, workbook: bool)
         audit.run(sample)
     out["rss_before_audit_MB"] = _rss_mb()
     audit_cpu, audit_wall, result = _best(lambda: audit.run(path), 1)
-    out.update(peak_rss_MB=_max_rss_mb(), streams=len(result.streams), steps=len(result.steps),
-               findings=len(result.findings))
+    out.update(
+        peak_rss_MB=_max_rss_mb(),
+        streams=len(result.streams),
+        steps=len(result.steps),
+        findings=len(result.findings),
+    )
     if workbook:
         with tempfile.TemporaryDirectory() as folder:
             target = Path(folder) / "audit.xlsx"
             times = repeat if out["streams"] <= 2_000 else 1  # a large workbook takes a while
             cpu, wall, _ = _best(lambda: write_workbook(result, target), times)
-            out.update(workbook_cpu=cpu, workbook_wall=wall,
-                       workbook_MB=target.stat().st_size / 1e6)
+            out.update(workbook_cpu=cpu, workbook_wall=wall, workbook_MB=target.stat().st_size / 1e6)
     result = None  # let the result go before the next passes
     gc.collect()
 
@@ -310,25 +329,46 @@ def child(path: Path, repeat: int, naive_sample: int, seed: int, workbook: bool)
         audit_cpu, audit_wall = min((audit_cpu, audit_wall), (cpu, wall))
         cpu, wall, failed = _best(replay, 1)
         floor_cpu, floor_wall = min((floor_cpu, floor_wall), (cpu, wall))
-    out.update(audit_cpu=audit_cpu, audit_wall=audit_wall, floor_cpu=floor_cpu,
-               floor_wall=floor_wall, floor_calls=len(calls), floor_failed=failed,
-               floor_kinds=kinds)
+    out.update(
+        audit_cpu=audit_cpu,
+        audit_wall=audit_wall,
+        floor_cpu=floor_cpu,
+        floor_wall=floor_wall,
+        floor_calls=len(calls),
+        floor_failed=failed,
+        floor_kinds=kinds,
+    )
     out["phases"] = phases(path)
 
     plan, sampled, total = naive_plan(calls, naive_sample, seed)
     cpu, wall, failed = _best(naive_replay(plan), 1)
     scale = total / sampled if sampled else 0.0
-    out.update(naive_cpu=cpu * scale, naive_wall=wall * scale, naive_states=total,
-               naive_sampled=sampled, naive_calls=len(plan), naive_failed=failed)
+    out.update(
+        naive_cpu=cpu * scale,
+        naive_wall=wall * scale,
+        naive_states=total,
+        naive_sampled=sampled,
+        naive_calls=len(plan),
+        naive_failed=failed,
+    )
     return out
 
 
 # -- the parent: generate, measure each size in a child, print -------------------------------------
 def _measure(path: Path, args: argparse.Namespace, size: int) -> dict:
     repeat = args.repeat if size <= 20_000 else min(args.repeat, 2)
-    command = [sys.executable, str(Path(__file__).resolve()), "--child", str(path),
-               "--repeat", str(repeat), "--naive-sample", str(args.naive_sample),
-               "--seed", str(args.seed)]
+    command = [
+        sys.executable,
+        str(Path(__file__).resolve()),
+        "--child",
+        str(path),
+        "--repeat",
+        str(repeat),
+        "--naive-sample",
+        str(args.naive_sample),
+        "--seed",
+        str(args.seed),
+    ]
     if args.workbook_all or size == 10_000:
         command.append("--workbook")
     done = subprocess.run(command, capture_output=True, text=True, check=False)
@@ -349,86 +389,117 @@ def _ratio_line(name: str, value: float) -> str:
 
 def report(results: dict[int, dict]) -> list[str]:
     lines = ["", "times: CPU seconds of the measuring process (wall seconds in brackets)", ""]
-    header = (f"{'streams':>8} {'steps':>7} {'flashes':>8} {'floor':>15} {'audit':>15} "
-              f"{'naive':>17} {'workbook':>15} {'peak RSS':>9}")
+    header = (
+        f"{'streams':>8} {'steps':>7} {'flashes':>8} {'floor':>15} {'audit':>15} "
+        f"{'naive':>17} {'workbook':>15} {'peak RSS':>9}"
+    )
     lines.append(header)
     for _, r in sorted(results.items()):
-        book = (f"{r['workbook_cpu']:7.2f} ({r['workbook_wall']:5.1f})" if "workbook_cpu" in r
-                else f"{'-':>15}")
+        book = (
+            f"{r['workbook_cpu']:7.2f} ({r['workbook_wall']:5.1f})"
+            if "workbook_cpu" in r
+            else f"{'-':>15}"
+        )
         naive = f"{r['naive_cpu']:8.2f} ({r['naive_wall']:6.1f})"
         lines.append(
             f"{r['streams']:8d} {r['steps']:7d} {r['floor_calls']:8d} "
             f"{r['floor_cpu']:7.2f} ({r['floor_wall']:5.1f}) "
             f"{r['audit_cpu']:7.2f} ({r['audit_wall']:5.1f}) {naive} {book} "
-            f"{r['peak_rss_MB']:6.0f} MB")
+            f"{r['peak_rss_MB']:6.0f} MB"
+        )
     lines.append("")
     for size, r in sorted(results.items()):
-        sampled = ("" if r["naive_sampled"] == r["naive_states"] else
-                   f"; naive timed on a random {r['naive_sampled']} of the {r['naive_states']} "
-                   "states and scaled")
-        kinds = ", ".join(f"{n} {k}" for k, n in sorted(r["floor_kinds"].items(),
-                                                        key=lambda kv: -kv[1]))
+        sampled = (
+            ""
+            if r["naive_sampled"] == r["naive_states"]
+            else f"; naive timed on a random {r['naive_sampled']} of the {r['naive_states']} "
+            "states and scaled"
+        )
+        kinds = ", ".join(f"{n} {k}" for k, n in sorted(r["floor_kinds"].items(), key=lambda kv: -kv[1]))
         parts = ", ".join(f"{k} {v:.2f} s" for k, v in r["phases"].items())
         lines.append(f"{size} streams: {r['findings']} findings")
         lines.append(f"  floor: {r['floor_calls']} unique CoolProp calls: {kinds}{sampled}")
         lines.append(f"  audit, one instrumented run: {parts}")
-        lines.append(f"  resident memory: {r['rss_after_imports_MB']:.0f} MB after imports, "
-                     f"{r['rss_before_audit_MB']:.0f} MB after a warm-up audit, peak "
-                     f"{r['peak_rss_MB']:.0f} MB (ru_maxrss)")
+        lines.append(
+            f"  resident memory: {r['rss_after_imports_MB']:.0f} MB after imports, "
+            f"{r['rss_before_audit_MB']:.0f} MB after a warm-up audit, peak "
+            f"{r['peak_rss_MB']:.0f} MB (ru_maxrss)"
+        )
     lines += ["", "ratios (CPU time):"]
     for size, r in sorted(results.items()):
         lines.append(f" {size} streams")
         lines.append(_ratio_line("audit / floor", r["audit_cpu"] / r["floor_cpu"]))
         lines.append(_ratio_line("naive / audit", r["naive_cpu"] / r["audit_cpu"]))
         if "workbook_cpu" in r:
-            name = ("workbook / audit (10 000 streams)" if size == 10_000 else
-                    "workbook / audit")
+            name = "workbook / audit (10 000 streams)" if size == 10_000 else "workbook / audit"
             lines.append(_ratio_line(name, r["workbook_cpu"] / r["audit_cpu"]))
-            lines.append(_ratio_line("workbook / solve step alone",
-                                     r["workbook_cpu"] / r["phases"]["solve"]))
+            lines.append(
+                _ratio_line("workbook / solve step alone", r["workbook_cpu"] / r["phases"]["solve"])
+            )
     if 10_000 in results and 100_000 in results:
         small, big = results[10_000], results[100_000]
         size_ratio = big["streams"] / small["streams"]
         time_ratio = big["audit_cpu"] / small["audit_cpu"]
         within = abs(time_ratio / size_ratio - 1.0) <= 0.10
         lines.append(" scaling")
-        lines.append(f"  {'audit time(100 000) / time(10 000)':42s} {time_ratio:10.3g}   "
-                     f"size ratio {size_ratio:g}, goal within 10 %: "
-                     f"{'met' if within else 'NOT MET'}")
+        lines.append(
+            f"  {'audit time(100 000) / time(10 000)':42s} {time_ratio:10.3g}   "
+            f"size ratio {size_ratio:g}, goal within 10 %: "
+            f"{'met' if within else 'NOT MET'}"
+        )
         floor_ratio = big["floor_cpu"] / small["floor_cpu"]
-        lines.append(f"  {'floor time(100 000) / time(10 000)':42s} {floor_ratio:10.3g}   "
-                     "(the same work ten times: the machine's own spread)")
+        lines.append(
+            f"  {'floor time(100 000) / time(10 000)':42s} {floor_ratio:10.3g}   "
+            "(the same work ten times: the machine's own spread)"
+        )
         overhead = (big["audit_cpu"] / big["floor_cpu"]) / (small["audit_cpu"] / small["floor_cpu"])
         within = abs(overhead - 1.0) <= 0.10
-        lines.append(f"  {'(audit / floor) at 100 000 over at 10 000':42s} {overhead:10.3g}   "
-                     f"within 10 % of 1: {'met' if within else 'NOT MET'}")
+        lines.append(
+            f"  {'(audit / floor) at 100 000 over at 10 000':42s} {overhead:10.3g}   "
+            f"within 10 % of 1: {'met' if within else 'NOT MET'}"
+        )
     if 100_000 in results:
         lines.append(" memory")
-        lines.append(_ratio_line("peak memory at 100 000 streams [MB]",
-                                 results[100_000]["peak_rss_MB"]))
+        lines.append(_ratio_line("peak memory at 100 000 streams [MB]", results[100_000]["peak_rss_MB"]))
     return lines
 
 
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(description="Time plant-audit against its property floor.")
-    parser.add_argument("--sizes", default="1000,10000,100000",
-                        help="comma-separated stream counts (default: 1000,10000,100000)")
+    parser.add_argument(
+        "--sizes",
+        default="1000,10000,100000",
+        help="comma-separated stream counts (default: 1000,10000,100000)",
+    )
     parser.add_argument("--seed", type=int, default=1)
-    parser.add_argument("--repeat", type=int, default=5,
-                        help="runs per timing, the best kept (at most 2 above 20 000 streams)")
-    parser.add_argument("--naive-sample", type=int, default=20_000,
-                        help="most states timed with PropsSI; more are scaled from a sample")
-    parser.add_argument("--data", help="folder for the generated balances (kept and reused); "
-                        "default: a temporary folder")
-    parser.add_argument("--workbook-all", action="store_true",
-                        help="time the workbook at every size, not only at 10 000 streams")
+    parser.add_argument(
+        "--repeat",
+        type=int,
+        default=5,
+        help="runs per timing, the best kept (at most 2 above 20 000 streams)",
+    )
+    parser.add_argument(
+        "--naive-sample",
+        type=int,
+        default=20_000,
+        help="most states timed with PropsSI; more are scaled from a sample",
+    )
+    parser.add_argument(
+        "--data", help="folder for the generated balances (kept and reused); default: a temporary folder"
+    )
+    parser.add_argument(
+        "--workbook-all",
+        action="store_true",
+        help="time the workbook at every size, not only at 10 000 streams",
+    )
     parser.add_argument("--child", help=argparse.SUPPRESS)
     parser.add_argument("--workbook", action="store_true", help=argparse.SUPPRESS)
     args = parser.parse_args(argv)
     if args.child:
         sys.path.insert(0, str(HERE))
-        print(json.dumps(child(Path(args.child), args.repeat, args.naive_sample, args.seed,
-                               args.workbook)))
+        print(
+            json.dumps(child(Path(args.child), args.repeat, args.naive_sample, args.seed, args.workbook))
+        )
         return 0
 
     sys.path.insert(0, str(HERE))
@@ -444,12 +515,14 @@ def main(argv: list[str] | None = None) -> int:
             if not path.exists():
                 started = time.perf_counter()
                 generate.write(path, size, args.seed)
-                print(f"generated {path.name} in {time.perf_counter() - started:.0f} s",
-                      flush=True)
+                print(f"generated {path.name} in {time.perf_counter() - started:.0f} s", flush=True)
             results[size] = _measure(path, args, size)
             r = results[size]
-            print(f"measured {size} streams: audit {r['audit_cpu']:.2f} s, floor "
-                  f"{r['floor_cpu']:.2f} s CPU", flush=True)
+            print(
+                f"measured {size} streams: audit {r['audit_cpu']:.2f} s, floor "
+                f"{r['floor_cpu']:.2f} s CPU",
+                flush=True,
+            )
     print("\n".join(report(results)))
     return 0
 

@@ -14,16 +14,33 @@ ROOT = Path(__file__).resolve().parents[1]
 SAMPLE = ROOT / "sample_plant"
 
 _UNITS = {
-    "K": (1.0, 0.0), "degC": (1.0, -273.15), "bar": (1e-5, 0.0), "Pa": (1.0, 0.0),
-    "kJ/kg": (1e-3, 0.0), "kJ/(kg K)": (1e-3, 0.0), "kW": (1e-3, 0.0), "W": (1.0, 0.0),
-    "kJ/mol": (1e-3, 0.0), "J/(mol K)": (1.0, 0.0), "J": (1.0, 0.0), "kJ": (1e-3, 0.0),
-    "J/K": (1.0, 0.0), "kg/s": (1.0, 0.0), "kg/m3": (1.0, 0.0), "m3/kg": (1.0, 0.0),
-    "V": (1.0, 0.0), "-": (1.0, 0.0), "m/s": (1.0, 0.0), "W/K": (1.0, 0.0), "MPa": (1e-6, 0.0),
+    "K": (1.0, 0.0),
+    "degC": (1.0, -273.15),
+    "bar": (1e-5, 0.0),
+    "Pa": (1.0, 0.0),
+    "kJ/kg": (1e-3, 0.0),
+    "kJ/(kg K)": (1e-3, 0.0),
+    "kW": (1e-3, 0.0),
+    "W": (1.0, 0.0),
+    "kJ/mol": (1e-3, 0.0),
+    "J/(mol K)": (1.0, 0.0),
+    "J": (1.0, 0.0),
+    "kJ": (1e-3, 0.0),
+    "J/K": (1.0, 0.0),
+    "kg/s": (1.0, 0.0),
+    "kg/m3": (1.0, 0.0),
+    "m3/kg": (1.0, 0.0),
+    "V": (1.0, 0.0),
+    "-": (1.0, 0.0),
+    "m/s": (1.0, 0.0),
+    "W/K": (1.0, 0.0),
+    "MPa": (1e-6, 0.0),
 }
 
 
-def assert_close(actual: float, expected: float, unit: str = "-", rtol: float = 0.0,
-                 atol: float = 0.0, what: str = "") -> None:
+def assert_close(
+    actual: float, expected: float, unit: str = "-", rtol: float = 0.0, atol: float = 0.0, what: str = ""
+) -> None:
     """Assert |actual − expected| ≤ atol + rtol·|expected|, both given in SI; on failure show
     both values in ``unit`` (e.g. kJ/kg)."""
     if math.isclose(actual, expected, rel_tol=rtol, abs_tol=atol):
@@ -33,7 +50,8 @@ def assert_close(actual: float, expected: float, unit: str = "-", rtol: float = 
     diff = (actual - expected) / expected if expected else float("nan")
     raise AssertionError(
         f"{what or 'value'}: got {shown_a:.10g} {unit}, expected {shown_e:.10g} {unit} "
-        f"(relative difference {diff:.3e}; rtol {rtol:g}, atol {atol:g} SI)")
+        f"(relative difference {diff:.3e}; rtol {rtol:g}, atol {atol:g} SI)"
+    )
 
 
 def write_balance(tmp_path: Path, body: str, name: str = "balance.yaml") -> Path:

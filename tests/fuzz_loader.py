@@ -42,36 +42,185 @@ ROOT = HERE.parent
 if str(ROOT) not in sys.path:  # run as a script from anywhere
     sys.path.insert(0, str(ROOT))
 
-from audit.input import document as loader  # noqa: E402
 from audit.api import audit_balance as solve  # noqa: E402
 from audit.errors import InputError  # noqa: E402
+from audit.input import document as loader  # noqa: E402
 from audit.reading import parse_balance  # noqa: E402
 
-SEEDS = [p.read_text(encoding="utf-8") for p in sorted(
-    [*(ROOT / "sample_plant").glob("*.yaml"), *(HERE / "bad_inputs").glob("*.yaml")])
-    if p.name != "cases.yaml" and p.stat().st_size < 100_000]
-
-TOKENS = [
-    "\t", "  ", "\n", ": ", "- ", "{", "}", "[", "]", ",", "'", '"', "#", "&a ", "*a", "<<: *a",
-    "!!python/object/apply:os.system ['true']", "!!binary aGk=", "!x ", "? ", "---\n", "...\n",
-    "~", "null", "yes", "no", ".nan", ".inf", "-.inf", "1e999", "-0", "0x1F", "1_000", "0o17",
-    "9" * 30, "2024-02-30", "12:30:00", "nan degC", "inf bar", "-5 bar", "0 K", "3 barg",
-    "1e-300 Pa", "5 kg/s/0", "1 degC)", "(((", "10 K**1000", "4 MPa(g)", "12 t/h", "1500 Nm3/h",
-    "120 m3/h", "2.5 MW", "-3 kW", "0.5", "1.5", "°C", "℃", "kJ/(kg K)", "Water", "Unobtainium",
-    "Water&Ethanol", "kind: teleporter", "kind: valve", "kind: vessel", "kind: heat_exchanger",
-    "quality: 0.5", "composition: {CH4: 0.9}", "\u00a0", "\u2028", "\ufeff", "é", "\x85",
+SEEDS = [
+    p.read_text(encoding="utf-8")
+    for p in sorted([*(ROOT / "sample_plant").glob("*.yaml"), *(HERE / "bad_inputs").glob("*.yaml")])
+    if p.name != "cases.yaml" and p.stat().st_size < 100_000
 ]
 
-KEYS = ["balance", "name", "site_pressure", "dead_state", "tolerances", "streams", "steps", "T", "P",
-        "quality", "h", "s", "fluid", "flow", "phase", "velocity", "elevation", "id", "kind",
-        "inlet", "outlet", "inlets", "outlets", "hot", "cold", "duty", "shaft_power", "heat_loss",
-        "heat", "added", "removed", "temperature", "mass", "initial", "final", "work_delivered",
-        "work_absorbed", "isentropic_efficiency", "arrangement", "composition", "S1", "S2", "<<"]
-KINDS = ["turbine", "compressor", "pump", "valve", "heater", "cooler", "heat_exchanger", "mixer",
-         "splitter", "vessel", "general"]
-UNITS = ["K", "degC", "°C", "degF", "bar", "barg", "bar(a)", "kPa", "MPa", "psig", "Pa", "kg/s",
-         "t/h", "kmol/h", "Nm3/h", "Sm3/h", "m3/h", "kW", "MW", "W", "kJ", "MJ", "kJ/kg", "J/kg",
-         "kJ/(kg K)", "m/s", "m", "kg", "zorks", "", "bar/0", "K*K", "m**3"]
+TOKENS = [
+    "\t",
+    "  ",
+    "\n",
+    ": ",
+    "- ",
+    "{",
+    "}",
+    "[",
+    "]",
+    ",",
+    "'",
+    '"',
+    "#",
+    "&a ",
+    "*a",
+    "<<: *a",
+    "!!python/object/apply:os.system ['true']",
+    "!!binary aGk=",
+    "!x ",
+    "? ",
+    "---\n",
+    "...\n",
+    "~",
+    "null",
+    "yes",
+    "no",
+    ".nan",
+    ".inf",
+    "-.inf",
+    "1e999",
+    "-0",
+    "0x1F",
+    "1_000",
+    "0o17",
+    "9" * 30,
+    "2024-02-30",
+    "12:30:00",
+    "nan degC",
+    "inf bar",
+    "-5 bar",
+    "0 K",
+    "3 barg",
+    "1e-300 Pa",
+    "5 kg/s/0",
+    "1 degC)",
+    "(((",
+    "10 K**1000",
+    "4 MPa(g)",
+    "12 t/h",
+    "1500 Nm3/h",
+    "120 m3/h",
+    "2.5 MW",
+    "-3 kW",
+    "0.5",
+    "1.5",
+    "°C",
+    "℃",
+    "kJ/(kg K)",
+    "Water",
+    "Unobtainium",
+    "Water&Ethanol",
+    "kind: teleporter",
+    "kind: valve",
+    "kind: vessel",
+    "kind: heat_exchanger",
+    "quality: 0.5",
+    "composition: {CH4: 0.9}",
+    "\u00a0",
+    "\u2028",
+    "\ufeff",
+    "é",
+    "\x85",
+]
+
+KEYS = [
+    "balance",
+    "name",
+    "site_pressure",
+    "dead_state",
+    "tolerances",
+    "streams",
+    "steps",
+    "T",
+    "P",
+    "quality",
+    "h",
+    "s",
+    "fluid",
+    "flow",
+    "phase",
+    "velocity",
+    "elevation",
+    "id",
+    "kind",
+    "inlet",
+    "outlet",
+    "inlets",
+    "outlets",
+    "hot",
+    "cold",
+    "duty",
+    "shaft_power",
+    "heat_loss",
+    "heat",
+    "added",
+    "removed",
+    "temperature",
+    "mass",
+    "initial",
+    "final",
+    "work_delivered",
+    "work_absorbed",
+    "isentropic_efficiency",
+    "arrangement",
+    "composition",
+    "S1",
+    "S2",
+    "<<",
+]
+KINDS = [
+    "turbine",
+    "compressor",
+    "pump",
+    "valve",
+    "heater",
+    "cooler",
+    "heat_exchanger",
+    "mixer",
+    "splitter",
+    "vessel",
+    "general",
+]
+UNITS = [
+    "K",
+    "degC",
+    "°C",
+    "degF",
+    "bar",
+    "barg",
+    "bar(a)",
+    "kPa",
+    "MPa",
+    "psig",
+    "Pa",
+    "kg/s",
+    "t/h",
+    "kmol/h",
+    "Nm3/h",
+    "Sm3/h",
+    "m3/h",
+    "kW",
+    "MW",
+    "W",
+    "kJ",
+    "MJ",
+    "kJ/kg",
+    "J/kg",
+    "kJ/(kg K)",
+    "m/s",
+    "m",
+    "kg",
+    "zorks",
+    "",
+    "bar/0",
+    "K*K",
+    "m**3",
+]
 
 
 @st.composite
@@ -80,8 +229,11 @@ def mutated(draw) -> str:
     text = draw(st.sampled_from(SEEDS))
     for _ in range(draw(st.integers(1, 6))):
         lines = text.split("\n")
-        op = draw(st.sampled_from(["insert", "delete line", "double line", "swap lines", "indent",
-                                   "replace char", "cut"]))
+        op = draw(
+            st.sampled_from(
+                ["insert", "delete line", "double line", "swap lines", "indent", "replace char", "cut"]
+            )
+        )
         if op == "insert" or not text:
             at = draw(st.integers(0, len(text)))
             token = draw(st.sampled_from(TOKENS) | st.text(max_size=8))
@@ -103,7 +255,7 @@ def mutated(draw) -> str:
             text = "\n".join(lines)
         elif op == "replace char":
             at = draw(st.integers(0, len(text) - 1))
-            text = text[:at] + draw(st.characters()) + text[at + 1:]
+            text = text[:at] + draw(st.characters()) + text[at + 1 :]
         else:
             at = draw(st.integers(0, len(text)))
             text = text[:at]
@@ -111,35 +263,63 @@ def mutated(draw) -> str:
 
 
 def _quantities() -> st.SearchStrategy[str]:
-    numbers = st.floats(allow_nan=True, allow_infinity=True) | st.integers(-10**6, 10**6)
+    numbers = st.floats(allow_nan=True, allow_infinity=True) | st.integers(-(10**6), 10**6)
     return st.builds(lambda n, u: f"{n} {u}".strip(), numbers, st.sampled_from(UNITS))
 
 
-SCALARS = (st.none() | st.booleans() | st.integers() | st.floats() | st.text(max_size=20)
-           | _quantities() | st.sampled_from(KINDS) | st.sampled_from(["Water", "Air", "Ammonia",
-                                                                      "Nitrogen", "Unobtainium"]))
+SCALARS = (
+    st.none()
+    | st.booleans()
+    | st.integers()
+    | st.floats()
+    | st.text(max_size=20)
+    | _quantities()
+    | st.sampled_from(KINDS)
+    | st.sampled_from(["Water", "Air", "Ammonia", "Nitrogen", "Unobtainium"])
+)
 
 
 @st.composite
 def generated(draw) -> str:
     """A document of the balance file's shape with random content, written by PyYAML."""
-    values = st.recursive(SCALARS, lambda inner: st.lists(inner, max_size=4) | st.dictionaries(
-        st.sampled_from(KEYS) | st.text(max_size=6), inner, max_size=5), max_leaves=25)
-    stream = st.dictionaries(st.sampled_from(["fluid", "T", "P", "quality", "h", "s", "flow",
-                                              "phase", "composition"]), SCALARS, max_size=6)
-    step = st.fixed_dictionaries({"id": st.text(max_size=4), "kind": st.sampled_from(KINDS)},
-                                 optional={k: values | st.sampled_from(["S1", "S2", "S3"]) | SCALARS
-                                           for k in KEYS if k not in ("id", "kind")})
+    values = st.recursive(
+        SCALARS,
+        lambda inner: (
+            st.lists(inner, max_size=4)
+            | st.dictionaries(st.sampled_from(KEYS) | st.text(max_size=6), inner, max_size=5)
+        ),
+        max_leaves=25,
+    )
+    stream = st.dictionaries(
+        st.sampled_from(["fluid", "T", "P", "quality", "h", "s", "flow", "phase", "composition"]),
+        SCALARS,
+        max_size=6,
+    )
+    step = st.fixed_dictionaries(
+        {"id": st.text(max_size=4), "kind": st.sampled_from(KINDS)},
+        optional={
+            k: values | st.sampled_from(["S1", "S2", "S3"]) | SCALARS
+            for k in KEYS
+            if k not in ("id", "kind")
+        },
+    )
     document = st.fixed_dictionaries(
-        {"balance": st.fixed_dictionaries({"name": st.text(max_size=10)},
-                                          optional={"site_pressure": _quantities(),
-                                                    "tolerances": values, "dead_state": values}),
-         "streams": st.dictionaries(st.sampled_from(["S1", "S2", "S3"]), stream, max_size=3)},
-        optional={"steps": st.lists(step, max_size=3), "extra": values})
+        {
+            "balance": st.fixed_dictionaries(
+                {"name": st.text(max_size=10)},
+                optional={"site_pressure": _quantities(), "tolerances": values, "dead_state": values},
+            ),
+            "streams": st.dictionaries(st.sampled_from(["S1", "S2", "S3"]), stream, max_size=3),
+        },
+        optional={"steps": st.lists(step, max_size=3), "extra": values},
+    )
     data = draw(document | values)
     try:
-        return yaml.safe_dump(data, allow_unicode=draw(st.booleans()),
-                              default_flow_style=draw(st.sampled_from([False, True, None])))
+        return yaml.safe_dump(
+            data,
+            allow_unicode=draw(st.booleans()),
+            default_flow_style=draw(st.sampled_from([False, True, None])),
+        )
     except (yaml.YAMLError, ValueError, UnicodeError):
         return str(data)
 
@@ -156,8 +336,9 @@ def _leaves(data, path=()):
         yield path
 
 
-VALID = [yaml.safe_load(p.read_text(encoding="utf-8"))
-         for p in sorted((ROOT / "sample_plant").glob("*.yaml"))]
+VALID = [
+    yaml.safe_load(p.read_text(encoding="utf-8")) for p in sorted((ROOT / "sample_plant").glob("*.yaml"))
+]
 
 
 @st.composite
@@ -232,10 +413,13 @@ def _paths_differ(text: str) -> str | None:
     if repr(a.data) != repr(b.data):
         return f"the fast path reads {a.data!r}, the usual path {b.data!r}"
     if a.positions != b.positions:
-        moved = sorted((k for k in set(a.positions) | set(b.positions)
-                        if a.positions.get(k) != b.positions.get(k)), key=repr)[:5]
+        moved = sorted(
+            (k for k in set(a.positions) | set(b.positions) if a.positions.get(k) != b.positions.get(k)),
+            key=repr,
+        )[:5]
         return f"positions differ at {moved}: " + ", ".join(
-            f"{a.positions.get(k)} / {b.positions.get(k)}" for k in moved)
+            f"{a.positions.get(k)} / {b.positions.get(k)}" for k in moved
+        )
     return None
 
 
@@ -248,8 +432,13 @@ def fuzz(seconds: float, crashes: Path, round_size: int = 200) -> tuple[int, int
         round_number += 1
 
         @seed(round_number)
-        @settings(max_examples=round_size, deadline=None, database=None, phases=[Phase.generate],
-                  suppress_health_check=list(HealthCheck))
+        @settings(
+            max_examples=round_size,
+            deadline=None,
+            database=None,
+            phases=[Phase.generate],
+            suppress_health_check=list(HealthCheck),
+        )
         @given(INPUTS)
         def one_round(text: str) -> None:
             nonlocal tried, found
@@ -260,8 +449,9 @@ def fuzz(seconds: float, crashes: Path, round_size: int = 200) -> tuple[int, int
             if problem is not None:
                 found += 1
                 crashes.mkdir(parents=True, exist_ok=True)
-                (crashes / f"crash-{found:03d}.yaml").write_text(text, encoding="utf-8",
-                                                                errors="surrogatepass")
+                (crashes / f"crash-{found:03d}.yaml").write_text(
+                    text, encoding="utf-8", errors="surrogatepass"
+                )
                 (crashes / f"crash-{found:03d}.txt").write_text(problem, encoding="utf-8")
 
         one_round()
@@ -271,16 +461,22 @@ def fuzz(seconds: float, crashes: Path, round_size: int = 200) -> tuple[int, int
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
     parser.add_argument("--seconds", type=float, default=60.0, help="how long to fuzz")
-    parser.add_argument("--crashes", type=Path, default=Path("fuzz-crashes"),
-                        help="folder for inputs that raised anything but InputError")
+    parser.add_argument(
+        "--crashes",
+        type=Path,
+        default=Path("fuzz-crashes"),
+        help="folder for inputs that raised anything but InputError",
+    )
     args = parser.parse_args(argv)
     started = time.monotonic()
     tried, found = fuzz(args.seconds, args.crashes)
     elapsed = time.monotonic() - started
-    print(f"fuzzed {tried} inputs in {elapsed:.0f} s ({tried / max(elapsed, 1e-9):.0f}/s): "
-          f"{OUTCOMES['audited']} audited, {OUTCOMES['refused with an InputError']} refused with "
-          f"an InputError, {found} raised something else or read differently on the fast path"
-          + (f"; see {args.crashes}/" if found else ""))
+    print(
+        f"fuzzed {tried} inputs in {elapsed:.0f} s ({tried / max(elapsed, 1e-9):.0f}/s): "
+        f"{OUTCOMES['audited']} audited, {OUTCOMES['refused with an InputError']} refused with "
+        f"an InputError, {found} raised something else or read differently on the fast path"
+        + (f"; see {args.crashes}/" if found else "")
+    )
     return 1 if found else 0
 
 

@@ -50,8 +50,14 @@ def write_accepted(balance: Path, entries: list[dict]) -> Path:
 
 
 def entry(step: str, finding: str, expires: str = FAR_FUTURE, **more: str) -> dict:
-    return {"step": step, "finding": finding, "reason": "vendor curve pending",
-            "accepted_by": "process lead", "expires": expires, **more}
+    return {
+        "step": step,
+        "finding": finding,
+        "reason": "vendor curve pending",
+        "accepted_by": "process lead",
+        "expires": expires,
+        **more,
+    }
 
 
 def test_beside_file_is_found_by_the_balance_stem(seeded: Path) -> None:
@@ -68,14 +74,14 @@ def test_accepted_finding_stays_visible_but_no_longer_fails(seeded: Path, plain)
     result = audit.run(seeded)
     # every finding is still there, in the same order, with the same values
     assert [(f.step, f.name, f.margin) for f in result.findings] == [
-        (f.step, f.name, f.margin) for f in plain.findings]
+        (f.step, f.name, f.margin) for f in plain.findings
+    ]
     for f in result.findings:
         if f.step == "T1":
             assert f.accepted == f"vendor curve pending (accepted by process lead, until {FAR_FUTURE})"
         else:
             assert f.accepted is None
-    assert result.counts(include_accepted=False)["error"] == (
-        plain.counts()["error"] - len(targets))
+    assert result.counts(include_accepted=False)["error"] == (plain.counts()["error"] - len(targets))
     assert result.counts() == plain.counts()
 
 
@@ -105,11 +111,15 @@ def test_acceptance_holds_through_its_expiry_day(seeded: Path) -> None:
     write_accepted(seeded, [entry("C1", "input-below-minimum", expires="2030-01-15")])
     on_the_day = audit.run(seeded, today=date(2030, 1, 15))
     day_after = audit.run(seeded, today=date(2030, 1, 16))
-    assert [f.accepted is not None for f in on_the_day.findings
-            if (f.step, f.name) == ("C1", "input-below-minimum")] == [True]
+    assert [
+        f.accepted is not None
+        for f in on_the_day.findings
+        if (f.step, f.name) == ("C1", "input-below-minimum")
+    ] == [True]
     assert not any(f.name == "acceptance-expired" for f in on_the_day.findings)
-    assert [f.accepted for f in day_after.findings
-            if (f.step, f.name) == ("C1", "input-below-minimum")] == [None]
+    assert [
+        f.accepted for f in day_after.findings if (f.step, f.name) == ("C1", "input-below-minimum")
+    ] == [None]
     assert any(f.name == "acceptance-expired" for f in day_after.findings)
 
 
@@ -153,33 +163,53 @@ def test_acceptance_inside_the_balance(seeded: Path, plain) -> None:
     result = audit.run(seeded)
     mass = [f for f in result.findings if f.name == "mass-imbalance"]
     assert [f.accepted for f in mass] == [
-        f"meter M-12 under recalibration (accepted by site reviewer, until {FAR_FUTURE})"]
+        f"meter M-12 under recalibration (accepted by site reviewer, until {FAR_FUTURE})"
+    ]
     unmatched = [f for f in result.findings if f.name == "acceptance-unmatched"]
     assert len(unmatched) == 1 and unmatched[0].stream == "S99"
     assert "at stream S99" in unmatched[0].message
     assert f"plant.yaml:{line + 5}" in unmatched[0].message
 
 
-@pytest.mark.parametrize(("body", "message"), [
-    ("accepted:\n  - step: T1\n    finding: work-above-bond\n    reason: r\n    accepted_by: a\n"
-     "    expires: 2999-01-01\n",
-     r"plant\.accepted\.yaml:3:.*'work-above-bond' is not a finding name; did you mean "
-     r"'work-above-bound'\?"),
-    ("accepted:\n  - step: T1\n    finding: work-above-bound\n    accepted_by: a\n"
-     "    expires: 2999-01-01\n", r"acceptance #1, field 'accepted\[0\]\.reason': 'reason' is "
-     r"required here"),
-    ("accepted:\n  - finding: work-above-bound\n    reason: r\n    accepted_by: a\n"
-     "    expires: 2999-01-01\n", r"names the 'step' \(or the 'stream'\) of the finding"),
-    ("accepted:\n  - step: T1\n    finding: work-above-bound\n    reason: r\n    accepted_by: a\n"
-     "    expires: next year\n", r"accepted\[0\]\.expires"),
-    ("accepted:\n  - step: T1\n    finding: acceptance-expired\n    reason: r\n"
-     "    accepted_by: a\n    expires: 2999-01-01\n", r"cannot be accepted"),
-    ("accepted:\n  - step: T1\n    finding: work-above-bound\n    reason: '  '\n"
-     "    accepted_by: a\n    expires: 2999-01-01\n    by: me\n",
-     r"must not be blank(.|\n)*unknown field 'by'"),
-    ("- step: T1\n", r"an acceptance file holds one key, 'accepted:'"),
-    ("accepted: yes\n", r"'accepted' is a list of acceptances"),
-])
+@pytest.mark.parametrize(
+    ("body", "message"),
+    [
+        (
+            "accepted:\n  - step: T1\n    finding: work-above-bond\n    reason: r\n    accepted_by: a\n"
+            "    expires: 2999-01-01\n",
+            r"plant\.accepted\.yaml:3:.*'work-above-bond' is not a finding name; did you mean "
+            r"'work-above-bound'\?",
+        ),
+        (
+            "accepted:\n  - step: T1\n    finding: work-above-bound\n    accepted_by: a\n"
+            "    expires: 2999-01-01\n",
+            r"acceptance #1, field 'accepted\[0\]\.reason': 'reason' is "
+            r"required here",
+        ),
+        (
+            "accepted:\n  - finding: work-above-bound\n    reason: r\n    accepted_by: a\n"
+            "    expires: 2999-01-01\n",
+            r"names the 'step' \(or the 'stream'\) of the finding",
+        ),
+        (
+            "accepted:\n  - step: T1\n    finding: work-above-bound\n    reason: r\n    accepted_by: a\n"
+            "    expires: next year\n",
+            r"accepted\[0\]\.expires",
+        ),
+        (
+            "accepted:\n  - step: T1\n    finding: acceptance-expired\n    reason: r\n"
+            "    accepted_by: a\n    expires: 2999-01-01\n",
+            r"cannot be accepted",
+        ),
+        (
+            "accepted:\n  - step: T1\n    finding: work-above-bound\n    reason: '  '\n"
+            "    accepted_by: a\n    expires: 2999-01-01\n    by: me\n",
+            r"must not be blank(.|\n)*unknown field 'by'",
+        ),
+        ("- step: T1\n", r"an acceptance file holds one key, 'accepted:'"),
+        ("accepted: yes\n", r"'accepted' is a list of acceptances"),
+    ],
+)
 def test_bad_acceptance_file_is_an_input_error(seeded: Path, body: str, message: str) -> None:
     seeded.with_name("plant.accepted.yaml").write_text(body, encoding="utf-8")
     with pytest.raises(InputError, match=message):
@@ -187,7 +217,8 @@ def test_bad_acceptance_file_is_an_input_error(seeded: Path, body: str, message:
 
 
 def test_check_command_passes_when_known_findings_are_accepted(
-        seeded: Path, plain, capsys: pytest.CaptureFixture[str]) -> None:
+    seeded: Path, plain, capsys: pytest.CaptureFixture[str]
+) -> None:
     assert main(["check", str(seeded), "--brief"]) == 1
     pairs = dict.fromkeys((f.step, f.name) for f in plain.findings)
     write_accepted(seeded, [entry(step, name) for step, name in pairs])
@@ -223,13 +254,28 @@ def test_every_report_shows_the_acceptance(seeded: Path, tmp_path: Path) -> None
     write_accepted(seeded, [entry("HX1", "internal-pinch")])
     label = f"vendor curve pending (accepted by process lead, until {FAR_FUTURE})"
     out = tmp_path / "out"
-    assert main(["check", str(seeded), "-q", "-o", str(out / "plant.xlsx"),
-                 "--json", str(out / "plant.json"), "--csv", str(out)]) == 1
+    assert (
+        main(
+            [
+                "check",
+                str(seeded),
+                "-q",
+                "-o",
+                str(out / "plant.xlsx"),
+                "--json",
+                str(out / "plant.json"),
+                "--csv",
+                str(out),
+            ]
+        )
+        == 1
+    )
     data = json.loads((out / "plant.json").read_text(encoding="utf-8"))
     assert [f["accepted"] for f in data["findings"] if f["name"] == "internal-pinch"] == [label]
     assert label in (out / "findings.csv").read_text(encoding="utf-8")
     rows = list(openpyxl.load_workbook(out / "plant.xlsx")["Findings"].iter_rows(values_only=True))
-    column = next(i for i, title in enumerate(rows[0])
-                  if str(title).startswith("accepted by a reviewer"))
+    column = next(
+        i for i, title in enumerate(rows[0]) if str(title).startswith("accepted by a reviewer")
+    )
     accepted = [(r[1], r[column]) for r in rows[1:] if r[column]]
     assert accepted == [("internal-pinch", label)]

@@ -16,8 +16,8 @@ from pathlib import Path
 import pytest
 import yaml
 
-from audit.input import document as loader
 from audit.commands.main import main
+from audit.input import document as loader
 
 CORPUS = Path(__file__).resolve().parent / "bad_inputs"
 CASES: dict[str, dict] = yaml.safe_load((CORPUS / "cases.yaml").read_text(encoding="utf-8"))
@@ -33,8 +33,9 @@ def run_check(path: Path, tmp_path: Path, capsys: pytest.CaptureFixture[str]) ->
     after asserting that nothing but the error report was produced."""
     outputs = tmp_path / "reports"
     workbook, json_file, csv_dir = outputs / "out.xlsx", outputs / "out.json", outputs / "csv"
-    code = main(["check", str(path), "-o", str(workbook), "--json", str(json_file),
-                 "--csv", str(csv_dir)])
+    code = main(
+        ["check", str(path), "-o", str(workbook), "--json", str(json_file), "--csv", str(csv_dir)]
+    )
     captured = capsys.readouterr()
     assert captured.out == "", "an invalid balance must print nothing but its error report"
     assert "Traceback" not in captured.err and "internal error" not in captured.err
@@ -46,8 +47,10 @@ def run_check(path: Path, tmp_path: Path, capsys: pytest.CaptureFixture[str]) ->
 
 def test_every_corpus_file_has_a_case():
     files = {p.name for p in CORPUS.glob("*.yaml")} - {"cases.yaml"}
-    assert files == set(CASES), f"files without a case: {sorted(files - set(CASES))}; cases " \
+    assert files == set(CASES), (
+        f"files without a case: {sorted(files - set(CASES))}; cases "
         f"without a file: {sorted(set(CASES) - files)}"
+    )
     assert len(CASES) >= 60
     for name, case in CASES.items():
         assert set(case) == {"what", "exit", "line", "expect"}, name
@@ -95,8 +98,9 @@ def test_missing_file(tmp_path, capsys):
 
 def test_latin1_bytes(tmp_path, capsys):
     path = tmp_path / "latin1.yaml"
-    path.write_bytes((GOOD + "  S2: {fluid: Water, T: 20 °C, P: 5 bar, flow: 1 kg/s}\n")
-                     .encode("latin-1"))
+    path.write_bytes(
+        (GOOD + "  S2: {fluid: Water, T: 20 °C, P: 5 bar, flow: 1 kg/s}\n").encode("latin-1")
+    )
     code, err = run_check(path, tmp_path, capsys)
     assert code == 2
     assert "latin1.yaml:6: the file is not valid UTF-8 text (byte 0xb0 at offset" in err
@@ -113,12 +117,15 @@ def test_utf16_file(tmp_path, capsys):
 @pytest.mark.parametrize("character", ["\x00", "\x07", "\x1b"])
 def test_control_character(character, tmp_path, capsys):
     path = tmp_path / "control.yaml"
-    path.write_text(GOOD + f"  S2: {{fluid: Wa{character}ter, T: 20 degC, P: 5 bar, "
-                    "flow: 1 kg/s}\n", encoding="utf-8")
+    path.write_text(
+        GOOD + f"  S2: {{fluid: Wa{character}ter, T: 20 degC, P: 5 bar, flow: 1 kg/s}}\n",
+        encoding="utf-8",
+    )
     code, err = run_check(path, tmp_path, capsys)
     assert code == 2
-    assert (f"control.yaml:6:17: not valid YAML: the control character #x{ord(character):04x} "
-            "is not allowed") in err
+    assert (
+        f"control.yaml:6:17: not valid YAML: the control character #x{ord(character):04x} is not allowed"
+    ) in err
 
 
 def test_unreadable_file(tmp_path, capsys, monkeypatch):
@@ -138,8 +145,9 @@ def test_invalid_date_is_kept_as_text(tmp_path):
     """A revision written like a date that does not exist (2024-02-30) is text, not a crash."""
     from audit.reading import parse_balance
 
-    balance, _ = parse_balance(GOOD.replace("  site_pressure", "  revision: 2024-02-30\n"
-                                            "  site_pressure"))
+    balance, _ = parse_balance(
+        GOOD.replace("  site_pressure", "  revision: 2024-02-30\n  site_pressure")
+    )
     assert balance.balance.revision == "2024-02-30"
 
 
@@ -148,7 +156,9 @@ def test_real_process_exit_code_and_no_traceback(tmp_path):
     json_file, name = tmp_path / "out.json", "yaml_python_apply_tag.yaml"
     done = subprocess.run(
         [sys.executable, "-m", "audit", "check", str(CORPUS / name), "--json", str(json_file)],
-        capture_output=True, text=True, timeout=300,
+        capture_output=True,
+        text=True,
+        timeout=300,
     )
     assert done.returncode == 2, done.stderr
     assert done.stdout == ""
@@ -163,8 +173,13 @@ def test_fuzzed_inputs_sample():
     from fuzz_loader import INPUTS, check_text
     from hypothesis import HealthCheck, given, settings
 
-    @settings(max_examples=40, derandomize=True, database=None, deadline=None,
-              suppress_health_check=list(HealthCheck))
+    @settings(
+        max_examples=40,
+        derandomize=True,
+        database=None,
+        deadline=None,
+        suppress_health_check=list(HealthCheck),
+    )
     @given(INPUTS)
     def never_a_crash(text: str) -> None:
         problem = check_text(text)

@@ -42,7 +42,9 @@ def plant_folder(tmp_path: Path) -> Path:
     (site / "broken.yaml").write_text("balance: {name: broken\nstreams: [", encoding="utf-8")
     (site / "invalid.yaml").write_text(
         "balance: {name: x}\nstreams:\n  S1: {fluid: Water, T: 20 degC, P: 1 bar, flow: 1 kg/s,"
-        " colour: blue}\n", encoding="utf-8")
+        " colour: blue}\n",
+        encoding="utf-8",
+    )
     (site / "notes.txt").write_text("not a balance", encoding="utf-8")
     (site / ".hidden.yaml").write_text("editor swap file", encoding="utf-8")
     (site / "seeded.accepted.yaml").write_text("accepted: []\n", encoding="utf-8")
@@ -72,28 +74,47 @@ def comparable(outcome: FileOutcome) -> tuple:
 def test_discover_finds_balances_recursively_and_skips_the_rest(plant_folder: Path) -> None:
     found = discover([plant_folder])
     names = [os.path.relpath(f, plant_folder) for f in found]
-    assert names == sorted(["area 2/clean.yml", "broken.yaml", "clean.yaml", "invalid.yaml",
-                            "seeded.yaml"])
+    assert names == sorted(
+        ["area 2/clean.yml", "broken.yaml", "clean.yaml", "invalid.yaml", "seeded.yaml"]
+    )
 
 
 def test_discover_globs_files_duplicates_and_missing(plant_folder: Path) -> None:
-    found = discover([plant_folder / "s*.yaml", plant_folder / "seeded.yaml",
-                      plant_folder / "nothing-*.yaml", plant_folder / "absent.yaml"])
+    found = discover(
+        [
+            plant_folder / "s*.yaml",
+            plant_folder / "seeded.yaml",
+            plant_folder / "nothing-*.yaml",
+            plant_folder / "absent.yaml",
+        ]
+    )
     assert found[0] == str(plant_folder / "seeded.yaml")
     assert found[1:] == [
         Missing(str(plant_folder / "nothing-*.yaml"), "the pattern matches no balance file"),
-        Missing(str(plant_folder / "absent.yaml"), "no such file or folder")]
+        Missing(str(plant_folder / "absent.yaml"), "no such file or folder"),
+    ]
 
 
 def test_workbook_names_follow_the_paths_without_collisions() -> None:
-    files = ["plants/a/x.yaml", "plants/b/x.yaml", "plants/a/y.yaml", "plants/a/y.yml",
-             "plants/a/Y.yaml", "plants/summary.yaml", "plants/a/we ird=name.yaml"]
+    files = [
+        "plants/a/x.yaml",
+        "plants/b/x.yaml",
+        "plants/a/y.yaml",
+        "plants/a/y.yml",
+        "plants/a/Y.yaml",
+        "plants/summary.yaml",
+        "plants/a/we ird=name.yaml",
+    ]
     names = workbook_names(files)
     assert names == {
-        "plants/a/x.yaml": "a__x.xlsx", "plants/b/x.yaml": "b__x.xlsx",
-        "plants/a/y.yaml": "a__y.xlsx", "plants/a/y.yml": "a__y-2.xlsx",
-        "plants/a/Y.yaml": "a__Y-3.xlsx", "plants/summary.yaml": "summary-2.xlsx",
-        "plants/a/we ird=name.yaml": "a__we_ird_name.xlsx"}
+        "plants/a/x.yaml": "a__x.xlsx",
+        "plants/b/x.yaml": "b__x.xlsx",
+        "plants/a/y.yaml": "a__y.xlsx",
+        "plants/a/y.yml": "a__y-2.xlsx",
+        "plants/a/Y.yaml": "a__Y-3.xlsx",
+        "plants/summary.yaml": "summary-2.xlsx",
+        "plants/a/we ird=name.yaml": "a__we_ird_name.xlsx",
+    }
     assert len({n.lower() for n in names.values()} | {SUMMARY_NAME}) == len(files) + 1
 
 
@@ -106,8 +127,7 @@ def test_outcome_with_its_result_pickles() -> None:
     assert again.result.fails() and again.exit_code() == EXIT_FINDINGS
 
 
-def test_unexpected_exception_is_that_files_internal_error(monkeypatch: pytest.MonkeyPatch
-                                                             ) -> None:
+def test_unexpected_exception_is_that_files_internal_error(monkeypatch: pytest.MonkeyPatch) -> None:
     def broken(path: str, **_: object) -> None:
         raise ZeroDivisionError("a bug")
 
@@ -116,8 +136,8 @@ def test_unexpected_exception_is_that_files_internal_error(monkeypatch: pytest.M
     assert outcome.status == INTERNAL
     assert len(outcome.problems) == 1
     assert outcome.problems[0].startswith(
-        "internal error of plant-audit on this file: ZeroDivisionError('a bug') at "
-        "test_batch.py:")
+        "internal error of plant-audit on this file: ZeroDivisionError('a bug') at test_batch.py:"
+    )
     assert outcome.problems[0].endswith(" in broken (please report it with the file)")
     assert outcome.exit_code() == EXIT_INTERNAL and outcome.verdict() == "INTERNAL ERROR"
 
@@ -142,8 +162,9 @@ def test_exit_code_order_is_internal_invalid_findings_pass() -> None:
     def outcome(status: str, fails: bool = False) -> FileOutcome:
         result = None
         if status == AUDITED:
-            result = audit_job(Job(str(SAMPLE / ("quillon-bay-seeded.yaml" if fails
-                                                 else "quillon-bay-clean.yaml")))).result
+            result = audit_job(
+                Job(str(SAMPLE / ("quillon-bay-seeded.yaml" if fails else "quillon-bay-clean.yaml")))
+            ).result
         return FileOutcome("f", status, result=result)
 
     passing, failing = outcome(AUDITED), outcome(AUDITED, fails=True)
@@ -177,7 +198,8 @@ def test_a_crashing_worker_is_that_files_internal_error(plant_folder: Path) -> N
     by_name = {Path(o.path).name: o for o in outcomes}
     assert by_name["clean.yaml"].status == INTERNAL
     assert by_name["clean.yaml"].problems == [
-        "the worker process ended unexpectedly (exit code 7) while auditing this file"]
+        "the worker process ended unexpectedly (exit code 7) while auditing this file"
+    ]
     assert by_name["seeded.yaml"].status == INTERNAL
     assert "MemoryError: out of memory on this file" in by_name["seeded.yaml"].problems[0]
     # the other files were audited all the same (invalid.yaml was held by the crashed worker)
@@ -200,7 +222,8 @@ def test_dead_workers_lose_only_the_item_they_died_on(workers: int) -> None:
     for index, value in got:
         if index % 2:
             assert value == TaskFailed(
-                "the worker process ended unexpectedly (exit code 3) while auditing this file")
+                "the worker process ended unexpectedly (exit code 3) while auditing this file"
+            )
         else:
             assert value == 10 * index
 
@@ -222,11 +245,11 @@ def read_sheet(path: Path, title: str) -> list[tuple]:
 
 
 def test_batch_command_writes_summary_workbooks_and_junit(
-        plant_folder: Path, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    plant_folder: Path, tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
     out = tmp_path / "out"
     junit = tmp_path / "audit.xml"
-    code = main(["batch", str(plant_folder), "-o", str(out), "--workers", "2",
-                 "--junit", str(junit)])
+    code = main(["batch", str(plant_folder), "-o", str(out), "--workers", "2", "--junit", str(junit)])
     assert code == EXIT_INPUT
     files = discover([plant_folder])
     printed = capsys.readouterr().out.splitlines()
@@ -237,7 +260,7 @@ def test_batch_command_writes_summary_workbooks_and_junit(
 
     rows = read_sheet(out / SUMMARY_NAME, "Summary")
     header_at = next(i for i, row in enumerate(rows) if row[0] == "File")
-    header, body = rows[header_at], rows[header_at + 1:]
+    header, body = rows[header_at], rows[header_at + 1 :]
     column = {name: header.index(name) for name in header}
     assert [row[column["File"]] for row in body] == files
     names = workbook_names(files)
@@ -255,17 +278,23 @@ def test_batch_command_writes_summary_workbooks_and_junit(
         assert row[column["Verdict"]] == ("FAIL" if result.fails() else "PASS")
         counts = result.counts()
         assert (row[column["Errors"]], row[column["Warnings"]], row[column["Info"]]) == (
-            counts["error"], counts["warning"], counts["info"])
+            counts["error"],
+            counts["warning"],
+            counts["info"],
+        )
         assert row[column["Workbook"]] == names[path]
         assert (out / names[path]).is_file()
         assert row[column["Exergy destroyed [kW]"]] == pytest.approx(
-            result.plant.exergy_destroyed / 1e3, rel=1e-9)
+            result.plant.exergy_destroyed / 1e3, rel=1e-9
+        )
         worst = row[column["Worst finding"]]
         assert (worst is None) == (not result.findings)
         if worst:
             assert worst.startswith("error ")
-    assert {p.name for p in out.iterdir()} == {SUMMARY_NAME, *(
-        names[f] for f in files if expected_exit(f) != EXIT_INPUT)}
+    assert {p.name for p in out.iterdir()} == {
+        SUMMARY_NAME,
+        *(names[f] for f in files if expected_exit(f) != EXIT_INPUT),
+    }
 
     tree = ET.parse(junit)
     suites = tree.getroot().findall("testsuite")
@@ -281,27 +310,31 @@ def test_batch_command_writes_summary_workbooks_and_junit(
         failing_steps = {f.step for f in result.findings if at_or_above(f.severity, "error")}
         assert int(suite.get("tests")) == len(result.steps) + 1
         assert int(suite.get("failures")) == len(failing_steps)
-        failed = {c.get("name").split()[0] for c in suite.findall("testcase")
-                  if c.find("failure") is not None}
+        failed = {
+            c.get("name").split()[0] for c in suite.findall("testcase") if c.find("failure") is not None
+        }
         assert failed == failing_steps
     root = tree.getroot()
     assert int(root.get("tests")) == sum(int(s.get("tests")) for s in suites)
     assert int(root.get("errors")) == 2  # broken.yaml and invalid.yaml
 
 
-def test_batch_command_quiet_and_fail_on_warning(plant_folder: Path,
-                                                  capsys: pytest.CaptureFixture[str]) -> None:
+def test_batch_command_quiet_and_fail_on_warning(
+    plant_folder: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
     clean = [str(plant_folder / "clean.yaml"), str(plant_folder / "area 2")]
     assert main(["batch", *clean, "-q", "--workers", "1"]) == EXIT_PASS
     assert capsys.readouterr().out.splitlines() == [
         "Batch: 2 files (2 pass); exit code 0. Consistency check only: not a safety or "
-        "code-compliance review; defer to local codes and licensed engineers."]
+        "code-compliance review; defer to local codes and licensed engineers."
+    ]
     seeded = str(plant_folder / "seeded.yaml")
     assert main(["batch", seeded, "-q", "--fail-on", "warning"]) == EXIT_FINDINGS
 
 
-def test_batch_command_reports_a_missing_path(tmp_path: Path,
-                                              capsys: pytest.CaptureFixture[str]) -> None:
+def test_batch_command_reports_a_missing_path(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
     assert main(["batch", str(tmp_path / "gone")]) == EXIT_INPUT
     assert f"INVALID        {tmp_path / 'gone'}: no such file or folder" in capsys.readouterr().out
 
@@ -313,7 +346,8 @@ def test_batch_rejects_zero_workers(capsys: pytest.CaptureFixture[str]) -> None:
 
 
 def test_check_command_writes_junit_for_an_invalid_file(
-        plant_folder: Path, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    plant_folder: Path, tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
     junit = tmp_path / "check.xml"
     assert main(["check", str(plant_folder / "broken.yaml"), "--junit", str(junit)]) == EXIT_INPUT
     assert "not valid YAML" in capsys.readouterr().err
@@ -326,9 +360,15 @@ def test_junit_marks_accepted_findings_as_passing(plant_folder: Path) -> None:
     seeded = plant_folder / "seeded.yaml"
     plain = audit.run(seeded)
     t1 = dict.fromkeys(f.name for f in plain.findings if f.step == "T1")
-    (plant_folder / "seeded.accepted.yaml").write_text("accepted:\n" + "".join(
-        f"  - {{step: T1, finding: {name}, reason: re-rating, accepted_by: A. Lund, "
-        f"expires: 2999-01-01}}\n" for name in t1), encoding="utf-8")
+    (plant_folder / "seeded.accepted.yaml").write_text(
+        "accepted:\n"
+        + "".join(
+            f"  - {{step: T1, finding: {name}, reason: re-rating, accepted_by: A. Lund, "
+            f"expires: 2999-01-01}}\n"
+            for name in t1
+        ),
+        encoding="utf-8",
+    )
     outcome = audit_job(Job(str(seeded)))
     suite = junit_tree([outcome]).getroot().find("testsuite")
     cases = {c.get("name").split()[0]: c for c in suite.findall("testcase")}
@@ -342,30 +382,44 @@ def test_junit_marks_accepted_findings_as_passing(plant_folder: Path) -> None:
 def test_batch_on_a_dask_cluster_matches_local(plant_folder: Path) -> None:
     distributed = pytest.importorskip("dask.distributed")
     local = run_batch([plant_folder], executor=LocalProcesses(1))
-    with distributed.Client(processes=False, n_workers=1, threads_per_worker=1,
-                            dashboard_address=None) as client:
+    with distributed.Client(
+        processes=False, n_workers=1, threads_per_worker=1, dashboard_address=None
+    ) as client:
         on_cluster = run_batch([plant_folder], executor=DaskCluster(client=client))
     assert [comparable(o) for o in on_cluster] == [comparable(o) for o in local]
 
 
-def test_batch_command_with_a_scheduler_address(plant_folder: Path,
-                                               capsys: pytest.CaptureFixture[str]) -> None:
+def test_batch_command_with_a_scheduler_address(
+    plant_folder: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
     distributed = pytest.importorskip("dask.distributed")
-    with distributed.LocalCluster(processes=False, n_workers=1, threads_per_worker=1,
-                                  dashboard_address=None) as cluster:
-        code = main(["batch", str(plant_folder / "clean.yaml"), str(plant_folder / "seeded.yaml"),
-                     "--scheduler", cluster.scheduler_address, "--workers", "4"])
+    with distributed.LocalCluster(
+        processes=False, n_workers=1, threads_per_worker=1, dashboard_address=None
+    ) as cluster:
+        code = main(
+            [
+                "batch",
+                str(plant_folder / "clean.yaml"),
+                str(plant_folder / "seeded.yaml"),
+                "--scheduler",
+                cluster.scheduler_address,
+                "--workers",
+                "4",
+            ]
+        )
     assert code == EXIT_FINDINGS
     captured = capsys.readouterr()
     assert "--workers is ignored with --scheduler" in captured.err
     assert captured.out.splitlines()[-1].startswith("Batch: 2 files (1 pass, 1 fail)")
 
 
-def test_dask_missing_is_a_clear_error(monkeypatch: pytest.MonkeyPatch, plant_folder: Path
-                                       ) -> None:
+def test_dask_missing_is_a_clear_error(monkeypatch: pytest.MonkeyPatch, plant_folder: Path) -> None:
     monkeypatch.setitem(sys.modules, "dask.distributed", None)  # as if not installed
-    with pytest.raises(InputError, match=r"needs the 'distributed' extra: pip install "
-                       r"'plant-audit\[distributed\]'"):
+    with pytest.raises(
+        InputError,
+        match=r"needs the 'distributed' extra: pip install "
+        r"'plant-audit\[distributed\]'",
+    ):
         run_batch([plant_folder / "clean.yaml"], executor=DaskCluster(address="tcp://nowhere:1"))
 
 

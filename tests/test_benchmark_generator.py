@@ -39,7 +39,14 @@ def test_generated_balance_of_100_streams_audits_clean(tmp_path):
     assert len(result.streams) == 100
     assert [f"{f.step} {f.name}: {f.message}" for f in result.findings] == []
     assert {s.kind for s in result.steps} >= {
-        "pump", "heater", "turbine", "cooler", "compressor", "valve", "heat_exchanger"}
+        "pump",
+        "heater",
+        "turbine",
+        "cooler",
+        "compressor",
+        "valve",
+        "heat_exchanger",
+    }
     assert any("steam cycle" in kind for kind in kinds)
     for step in result.steps:
         # claims rounded to 6-7 significant digits: ≤ 1e-5 of the step's energy scale; and a

@@ -34,11 +34,14 @@ def check_json(path: Path, target: Path, *extra: str) -> str:
     return target.read_text(encoding="utf-8")
 
 
-@pytest.mark.parametrize("name, extra", [
-    ("quillon-bay-seeded.yaml", ()),
-    ("quillon-bay-clean.yaml", ()),
-    ("quillon-bay-measured.yaml", ("--monte-carlo", "20")),
-])
+@pytest.mark.parametrize(
+    "name, extra",
+    [
+        ("quillon-bay-seeded.yaml", ()),
+        ("quillon-bay-clean.yaml", ()),
+        ("quillon-bay-measured.yaml", ("--monte-carlo", "20")),
+    ],
+)
 def test_same_input_same_json(name, extra, tmp_path, capsys):
     first = check_json(SAMPLE / name, tmp_path / "first.json", *extra)
     second = check_json(SAMPLE / name, tmp_path / "second.json", *extra)
@@ -59,7 +62,10 @@ def test_same_json_across_hash_seeds(tmp_path, capsys):
     there = tmp_path / "there.json"
     done = subprocess.run(
         [sys.executable, "-m", "audit", "check", str(sample), "--json", str(there), "-q"],
-        capture_output=True, text=True, timeout=300, env={**os.environ, "PYTHONHASHSEED": seed},
+        capture_output=True,
+        text=True,
+        timeout=300,
+        env={**os.environ, "PYTHONHASHSEED": seed},
     )
     assert done.returncode == 1, done.stderr  # the seeded sample fails by design
     assert without_run_time(there.read_text(encoding="utf-8")) == without_run_time(here)

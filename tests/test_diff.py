@@ -51,8 +51,7 @@ def test_clean_to_seeded_lists_exactly_the_seeded_findings_as_new(clean, seeded)
     assert {c.key for c in diff.with_status(NEW)} == keys(seeded) - keys(clean)
     assert len(diff.with_status(NEW)) == len(seeded.findings)  # the clean revision has none
     assert diff.with_status(RESOLVED) == [] and diff.with_status(CHANGED) == []
-    assert len(diff.new_failing("error")) == len(
-        [f for f in seeded.findings if f.severity == "error"])
+    assert len(diff.new_failing("error")) == len([f for f in seeded.findings if f.severity == "error"])
 
 
 def test_seeded_to_clean_resolves_them(clean, seeded) -> None:
@@ -64,7 +63,12 @@ def test_seeded_to_clean_resolves_them(clean, seeded) -> None:
 def test_changed_streams_and_claims_are_the_seeded_edits(clean, seeded) -> None:
     diff = compare(clean, seeded)
     assert {c.id for c in diff.changes if c.where == "stream"} == {
-        "S06", "S08", "S10", "S11", "S20"}  # sample_plant/README.md, "what was changed"
+        "S06",
+        "S08",
+        "S10",
+        "S11",
+        "S20",
+    }  # sample_plant/README.md, "what was changed"
     s11 = {c.field: c for c in diff.changes if c.id == "S11"}
     assert {"T", "mass_flow"} <= set(s11)
     assert s11["T"].old == clean.stream("S11").T and s11["T"].new == seeded.stream("S11").T
@@ -75,8 +79,7 @@ def test_changed_streams_and_claims_are_the_seeded_edits(clean, seeded) -> None:
     assert claims["T1", "W"].new == pytest.approx(1.45e6, rel=1e-12)
     assert claims["C1", "W"].old == pytest.approx(-152.3e3, rel=1e-12)
     assert claims["C1", "W"].new == pytest.approx(-95e3, rel=1e-12)
-    assert not (diff.streams_added or diff.streams_removed or diff.steps_added
-                or diff.steps_removed)
+    assert not (diff.streams_added or diff.streams_removed or diff.steps_added or diff.steps_removed)
 
 
 def test_a_revision_against_itself_is_unchanged(clean) -> None:
@@ -107,10 +110,13 @@ def test_acceptance_shows_as_a_change_and_clears_the_gate(tmp_path: Path, seeded
     shutil.copy(SEEDED, copy)
     copy.with_name("plant.accepted.yaml").write_text(
         "accepted:\n  - {step: C1, finding: input-below-minimum, reason: test run pending, "
-        "accepted_by: utilities reviewer, expires: 2999-01-01}\n", encoding="utf-8")
+        "accepted_by: utilities reviewer, expires: 2999-01-01}\n",
+        encoding="utf-8",
+    )
     diff = compare(seeded, audit.run(copy))
     assert [(c.key, c.what) for c in diff.with_status(CHANGED)] == [
-        (("C1", "", "input-below-minimum"), ("now accepted",))]
+        (("C1", "", "input-below-minimum"), ("now accepted",))
+    ]
     # and back: the acceptance ended, so the finding blocks the gate again
     back = compare(audit.run(copy), seeded)
     assert [f.name for f in back.new_failing()] == ["input-below-minimum"]
@@ -126,8 +132,9 @@ def test_differs_uses_the_absolute_floor_and_rtol() -> None:
     assert differs("liquid", "two-phase", None)
 
 
-def test_diff_command_prints_and_writes_the_workbook(tmp_path: Path, seeded,
-                                                     capsys: pytest.CaptureFixture[str]) -> None:
+def test_diff_command_prints_and_writes_the_workbook(
+    tmp_path: Path, seeded, capsys: pytest.CaptureFixture[str]
+) -> None:
     out = tmp_path / "diff.xlsx"
     assert main(["diff", str(CLEAN), str(SEEDED), "-o", str(out)]) == EXIT_FINDINGS
     text = capsys.readouterr().out
@@ -143,8 +150,9 @@ def test_diff_command_prints_and_writes_the_workbook(tmp_path: Path, seeded,
     assert f"Resolved findings ({len(seeded.findings)}):" in capsys.readouterr().out
 
 
-def test_diff_command_with_an_invalid_revision(tmp_path: Path,
-                                               capsys: pytest.CaptureFixture[str]) -> None:
+def test_diff_command_with_an_invalid_revision(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
     broken = tmp_path / "broken.yaml"
     broken.write_text("balance: [", encoding="utf-8")
     assert main(["diff", str(CLEAN), str(broken)]) == EXIT_INPUT

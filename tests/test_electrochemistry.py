@@ -67,8 +67,13 @@ def test_reversible_voltage_at_80_degC_against_janaf_heat_capacities(engine):
     dH = DH0 + np.trapezoid(dcp, xs)
     dS = (DH0 - DG0) / 298.15 + np.trapezoid(dcp / xs, xs)
     props = reaction_properties(engine, parse_reaction("H2 + 1/2 O2 -> H2O(l)"), T, 1e5)
-    assert_close(-props.dG / (2 * FARADAY), float(-(dH - T * dS) / (2 * FARADAY)), "V",
-                 atol=5e-4, what="E_rev at 80 °C")
+    assert_close(
+        -props.dG / (2 * FARADAY),
+        float(-(dH - T * dS) / (2 * FARADAY)),
+        "V",
+        atol=5e-4,
+        what="E_rev at 80 °C",
+    )
 
 
 def test_reversible_voltage_rises_with_pressure_by_the_nernst_term(engine):
@@ -91,7 +96,9 @@ def _rates(cells: int, current: float = 1000.0) -> tuple[float, float]:
 
 def _electrolyser(tmp_path, claims: str, cells: int = 10, made_by: float = 1000.0):
     water, oxygen = _rates(cells, made_by)
-    return audit_text(tmp_path, f"""
+    return audit_text(
+        tmp_path,
+        f"""
         streams:
           W: {{fluid: Water, T: 25 degC, P: 1 bar, flow: {water:.9f} mol/s}}
           H: {{fluid: Hydrogen, T: 25 degC, P: 1 bar, flow: {water:.9f} mol/s}}
@@ -105,7 +112,8 @@ def _electrolyser(tmp_path, claims: str, cells: int = 10, made_by: float = 1000.
             temperature: 25 degC
             pressure: 1 bar
             {claims}
-        """)
+        """,
+    )
 
 
 def _heat(Q_in: float) -> str:
@@ -118,8 +126,11 @@ def test_consistent_electrolyser_is_silent(tmp_path):
     # ξ (−ΔH°) − 18 kW with ΔH° from CODATA.
     xi, _ = _rates(10)
     heat = _heat((xi * -DH0 - 18_000.0) / 1e3)
-    result = _electrolyser(tmp_path, f"cell_voltage: 1.80 V\n            current: 1000 A\n"
-                                     f"            power: 18 kW\n            {heat}")
+    result = _electrolyser(
+        tmp_path,
+        f"cell_voltage: 1.80 V\n            current: 1000 A\n"
+        f"            power: 18 kW\n            {heat}",
+    )
     assert names(result) == set()
     extra = result.step("EL").extra
     assert extra["reaction"] == "H2O(l) -> H2 + 1/2 O2"
@@ -145,8 +156,9 @@ def test_electrolyser_below_thermoneutral_needs_heat_in(tmp_path):
     short = _electrolyser(tmp_path, claims + _heat(-5.0), cells=100)
     found = {f.name: f for f in short.findings_for("EL")}
     assert "heat-needed-below-thermoneutral" in found
-    assert_close(found["heat-needed-below-thermoneutral"].margin, 100_000 * (E_TN - 1.40) + 5e3,
-                 "kW", atol=30.0)
+    assert_close(
+        found["heat-needed-below-thermoneutral"].margin, 100_000 * (E_TN - 1.40) + 5e3, "kW", atol=30.0
+    )
     fine = _electrolyser(tmp_path, claims + _heat((xi * -DH0 - 140_000.0) / 1e3), cells=100)
     assert names(fine) == set()
 
@@ -155,8 +167,9 @@ def test_electrolyser_power_below_the_gibbs_minimum(tmp_path):
     # 100 cells' worth of production needs at least ξ (−ΔG°) = 122.89 kW; 110 kW is claimed, with
     # the heat removed that a 110 kW input would imply. The bound is the streams' reversible work.
     xi, _ = _rates(100)
-    result = _electrolyser(tmp_path, f"power: 110 kW\n            {_heat((xi * -DH0 - 110e3) / 1e3)}",
-                           cells=100)
+    result = _electrolyser(
+        tmp_path, f"power: 110 kW\n            {_heat((xi * -DH0 - 110e3) / 1e3)}", cells=100
+    )
     (finding,) = [f for f in result.findings_for("EL") if f.name == "input-below-minimum"]
     assert_close(finding.bound, xi * DG0, "kW", atol=xi * 40.0 + 5.0)
     assert_close(finding.margin, xi * -DG0 - 110e3, "kW", atol=xi * 40.0 + 5.0)
@@ -172,33 +185,46 @@ def test_electrolyser_current_too_small_for_its_production(tmp_path):
 
 
 def test_claimed_faradaic_efficiency_that_the_streams_contradict(tmp_path):
-    result = _electrolyser(tmp_path, "cell_voltage: 1.80 V\n            current: 1000 A\n"
-                                     "            faradaic_efficiency: 0.95")
+    result = _electrolyser(
+        tmp_path,
+        "cell_voltage: 1.80 V\n            current: 1000 A\n            faradaic_efficiency: 0.95",
+    )
     assert names(result) == {("EL", "faraday-mismatch")}
     assert_close(result.findings_for("EL")[0].margin, 0.05, "-", atol=1e-6)
 
 
 def test_claimed_power_unlike_voltage_times_current_times_cells(tmp_path):
-    result = _electrolyser(tmp_path, "cell_voltage: 1.80 V\n            current: 1000 A\n"
-                                     "            power: 20 kW")
+    result = _electrolyser(
+        tmp_path, "cell_voltage: 1.80 V\n            current: 1000 A\n            power: 20 kW"
+    )
     assert names(result) == {("EL", "power-mismatch")}
     assert_close(result.findings_for("EL")[0].margin, 2_000.0, "kW", rtol=1e-9)
 
 
 def test_reaction_written_backwards_is_turned_the_way_the_cell_runs(tmp_path):
-    result = _electrolyser(tmp_path, "reaction: 'H2 + 1/2 O2 -> H2O(l)'\n"
-                                     "            cell_voltage: 1.80 V\n            current: 1000 A")
+    result = _electrolyser(
+        tmp_path,
+        "reaction: 'H2 + 1/2 O2 -> H2O(l)'\n"
+        "            cell_voltage: 1.80 V\n            current: 1000 A",
+    )
     assert_close(result.step("EL").extra["E_rev"], E_REV, "V", atol=3e-4)
     assert_close(result.step("EL").extra["extent"], _rates(10)[0], "-", rtol=1e-6)
 
 
-@pytest.mark.parametrize("claims, message", [
-    ("cell_voltage: 1.8 V", r"step EL.*give the stack 'power', or 'cell_voltage' and 'current'"),
-    ("power: 18 kW\n            faradaic_efficiency: 1.05",
-     r"step EL.*a faradaic efficiency is above 0 and at most 1 \(got 1.05\)"),
-    ("power: 18 kW\n            reaction: 'H2 -> H2'",
-     r"step EL.*give 'electrons' \(per mole of reaction\)"),
-])
+@pytest.mark.parametrize(
+    "claims, message",
+    [
+        ("cell_voltage: 1.8 V", r"step EL.*give the stack 'power', or 'cell_voltage' and 'current'"),
+        (
+            "power: 18 kW\n            faradaic_efficiency: 1.05",
+            r"step EL.*a faradaic efficiency is above 0 and at most 1 \(got 1.05\)",
+        ),
+        (
+            "power: 18 kW\n            reaction: 'H2 -> H2'",
+            r"step EL.*give 'electrons' \(per mole of reaction\)",
+        ),
+    ],
+)
 def test_cell_claim_errors(tmp_path, claims, message):
     with pytest.raises(InputError, match=message):
         _electrolyser(tmp_path, claims)
@@ -207,7 +233,9 @@ def test_cell_claim_errors(tmp_path, claims, message):
 # -- fuel cell checks ---------------------------------------------------------------------------
 def _fuel_cell(tmp_path, claims: str, cells: int = 100):
     hydrogen, oxygen = _rates(cells)
-    return audit_text(tmp_path, f"""
+    return audit_text(
+        tmp_path,
+        f"""
         streams:
           H: {{fluid: Hydrogen, T: 25 degC, P: 1 bar, flow: {hydrogen:.9f} mol/s}}
           O: {{fluid: Oxygen, T: 25 degC, P: 1 bar, flow: {oxygen:.9f} mol/s}}
@@ -219,14 +247,18 @@ def _fuel_cell(tmp_path, claims: str, cells: int = 100):
             outlets: [W]
             cells: {cells}
             {claims}
-        """)
+        """,
+    )
 
 
 def test_consistent_fuel_cell_is_silent(tmp_path):
     # 100 cells at 0.70 V and 1000 A deliver 70 kW; the heat removed is ξ(−ΔH°) − 70 kW.
     xi, _ = _rates(100)
-    result = _fuel_cell(tmp_path, f"cell_voltage: 0.70 V\n            current: 1000 A\n"
-                                  f"            {_heat(-(xi * -DH0 - 70e3) / 1e3)}")
+    result = _fuel_cell(
+        tmp_path,
+        f"cell_voltage: 0.70 V\n            current: 1000 A\n"
+        f"            {_heat(-(xi * -DH0 - 70e3) / 1e3)}",
+    )
     assert names(result) == set()
     assert result.step("FC").extra["reaction"] == "H2 + 1/2 O2 -> H2O(l)"
     assert_close(result.step("FC").extra["E_rev"], E_REV, "V", atol=3e-4)
@@ -237,11 +269,13 @@ def test_fuel_cell_above_the_reversible_voltage_claims_more_than_minus_delta_g(t
     # work bound (a fuel cell cannot deliver more than −ΔG of its reaction) and its twin, a
     # negative entropy generation (the heat removed at 25 °C is too small), all fire.
     xi, _ = _rates(100)
-    result = _fuel_cell(tmp_path, f"cell_voltage: 1.25 V\n            current: 1000 A\n"
-                                  f"            {_heat(-(xi * -DH0 - 125e3) / 1e3)}")
+    result = _fuel_cell(
+        tmp_path,
+        f"cell_voltage: 1.25 V\n            current: 1000 A\n"
+        f"            {_heat(-(xi * -DH0 - 125e3) / 1e3)}",
+    )
     found = {f.name: f for f in result.findings_for("FC")}
-    assert set(found) == {"voltage-beyond-reversible", "work-above-bound",
-                          "negative-entropy-generation"}
+    assert set(found) == {"voltage-beyond-reversible", "work-above-bound", "negative-entropy-generation"}
     assert_close(found["voltage-beyond-reversible"].margin, 1.25 - E_REV, "V", atol=3e-4)
     assert_close(found["work-above-bound"].bound, xi * -DG0, "kW", atol=xi * 40.0 + 5.0)
 

@@ -14,15 +14,14 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
+from audit.errors import InputError, UnitError
 from audit.input import document as loader
 from audit.input import flowlines
-from audit.errors import InputError, UnitError
 from audit.report.workbook_file import cache_formula_values
 from audit.units import to_flow, to_si
 
 
-def _read(text: str, fast: bool, libyaml: bool, monkeypatch: pytest.MonkeyPatch
-          ) -> tuple[str, object]:
+def _read(text: str, fast: bool, libyaml: bool, monkeypatch: pytest.MonkeyPatch) -> tuple[str, object]:
     """('ok', (repr of the data, positions)) or ('error', message) for one way of reading."""
     with monkeypatch.context() as patch:
         if not libyaml:
@@ -68,7 +67,7 @@ steps:
 CORPUS = {
     "streams and steps": STREAMS,
     "implicit types": "a: {b: 0.5, c: yes, d: null, e: .inf, f: 1_000, g: 0x1F, h: 2024-01-02,"
-                      " i: 1e5, j: 1.0e+5, k: -5, l: +5, m: .5, n: y, o: Off, p: NULL, q: 0o17}\n",
+    " i: 1e5, j: 1.0e+5, k: -5, l: +5, m: .5, n: y, o: Off, p: NULL, q: 0o17}\n",
     "keys of implicit types": "a: {on: 1, 12: b, null: c, 1.5: d}\n",
     "a key written twice": "a: {b: 1, b: 2}\n",
     "two keys that read the same": "a: {on: 1, yes: 2}\n",
@@ -127,10 +126,55 @@ def test_files_with_other_line_breaks_or_tabs_are_read_the_usual_way():
     assert flowlines.scan("a: {b: c}\u2028d: {e: f}\n") is None
 
 
-TOKENS = ["Water", "20 degC", "1.013 bar", "0.5", "yes", "no", "on", "null", "~", ".inf", "-.inf",
-          "1_000", "0x1F", "2024-01-02", "12:30", "1e5", "-5 K", "+5", ".5", "°C", "5 m³", "a b",
-          "a  b", "a#b", "a #b", "'q'", '"q"', "&a", "*a", "!x", "[1]", "{c: d}", "-", "- x", "?",
-          "=", "<<", "", " ", "%", "@", "x,y", "kJ/(kg K)", "Nm3/h", "L0a", "R134a", "n-Propane"]
+TOKENS = [
+    "Water",
+    "20 degC",
+    "1.013 bar",
+    "0.5",
+    "yes",
+    "no",
+    "on",
+    "null",
+    "~",
+    ".inf",
+    "-.inf",
+    "1_000",
+    "0x1F",
+    "2024-01-02",
+    "12:30",
+    "1e5",
+    "-5 K",
+    "+5",
+    ".5",
+    "°C",
+    "5 m³",
+    "a b",
+    "a  b",
+    "a#b",
+    "a #b",
+    "'q'",
+    '"q"',
+    "&a",
+    "*a",
+    "!x",
+    "[1]",
+    "{c: d}",
+    "-",
+    "- x",
+    "?",
+    "=",
+    "<<",
+    "",
+    " ",
+    "%",
+    "@",
+    "x,y",
+    "kJ/(kg K)",
+    "Nm3/h",
+    "L0a",
+    "R134a",
+    "n-Propane",
+]
 KEYS = ["T", "P", "flow", "fluid", "on", "yes", "1", "null", "x y", "a", "a", "_k", "k1"]
 
 
@@ -138,8 +182,10 @@ KEYS = ["T", "P", "flow", "fluid", "on", "yes", "1", "null", "x y", "a", "a", "_
 def documents(draw) -> str:
     lines = []
     for index in range(draw(st.integers(1, 6))):
-        items = [f"{draw(st.sampled_from(KEYS))}: {draw(st.sampled_from(TOKENS))}"
-                 for _ in range(draw(st.integers(0, 4)))]
+        items = [
+            f"{draw(st.sampled_from(KEYS))}: {draw(st.sampled_from(TOKENS))}"
+            for _ in range(draw(st.integers(0, 4)))
+        ]
         separator = draw(st.sampled_from([", ", ",", " ,  "]))
         body = separator.join(items)
         lead = draw(st.sampled_from([f"S{index}: ", f"  S{index}: ", "- ", "  - ", ""]))
@@ -147,8 +193,11 @@ def documents(draw) -> str:
     return "\n".join(lines) + draw(st.sampled_from(["\n", "", "\n\n"]))
 
 
-@settings(max_examples=150, deadline=None, suppress_health_check=[HealthCheck.too_slow,
-          HealthCheck.function_scoped_fixture])
+@settings(
+    max_examples=150,
+    deadline=None,
+    suppress_health_check=[HealthCheck.too_slow, HealthCheck.function_scoped_fixture],
+)
 @given(documents())
 def test_fast_path_reads_generated_lines_like_pure_pyyaml(monkeypatch, text):
     assert_reads_alike(text, monkeypatch)
@@ -165,8 +214,11 @@ def test_value_checks_still_apply_once_a_unit_is_known():
     with pytest.raises(UnitError, match=r"'-2 bar' is not a positive absolute pressure"):
         to_si("-2 bar", "pressure")
     assert to_si("5 barg", "pressure", site_pressure=101_325.0) == 5e5 + 101_325.0
-    with pytest.raises(UnitError, match=r"'5 barg' is a gauge pressure, but the balance "
-                       r"declares no site_pressure"):
+    with pytest.raises(
+        UnitError,
+        match=r"'5 barg' is a gauge pressure, but the balance "
+        r"declares no site_pressure",
+    ):
         to_si("5 barg", "pressure")
 
 
@@ -193,8 +245,10 @@ def test_flow_checks_keep_their_order_once_a_unit_is_known():
 
 # -- workbook -------------------------------------------------------------------------------------
 def test_cached_formula_values_are_filled_in_one_pass():
-    xml = ('<sheetData><row r="2"><c r="A2"><v>1</v></c><c r="B2"><f>A2*2</f><v/></c>'
-           '<c r="C2" s="3"><f>B2+1</f><v></v></c><c r="D2"><f>C2</f><v/></c></row></sheetData>')
+    xml = (
+        '<sheetData><row r="2"><c r="A2"><v>1</v></c><c r="B2"><f>A2*2</f><v/></c>'
+        '<c r="C2" s="3"><f>B2+1</f><v></v></c><c r="D2"><f>C2</f><v/></c></row></sheetData>'
+    )
     filled = cache_formula_values(xml.encode(), [("B2", 2.0), ("C2", 3.5)]).decode()
     assert '<c r="B2"><f>A2*2</f><v>2.0</v></c>' in filled
     assert '<c r="C2" s="3"><f>B2+1</f><v>3.5</v></c>' in filled

@@ -63,18 +63,36 @@ def test_formation_data_against_chemicals_library(engine):
     the independent ``chemicals`` package. CODATA (used here for CO2 and CO) and JANAF differ by up
     to 12 J/mol in ΔfH° and 0.01 J/(mol K) in S° (reference-values rows 15-16), hence the tolerances."""
     reaction = pytest.importorskip("chemicals.reaction")
-    cases = {"CarbonDioxide": "124-38-9", "CarbonMonoxide": "630-08-0", "Methane": "74-82-8",
-             "Ammonia": "7664-41-7", "Water": "7732-18-5", "Nitrogen": "7727-37-9",
-             "Hydrogen": "1333-74-0", "Oxygen": "7782-44-7", "Argon": "7440-37-1"}
+    cases = {
+        "CarbonDioxide": "124-38-9",
+        "CarbonMonoxide": "630-08-0",
+        "Methane": "74-82-8",
+        "Ammonia": "7664-41-7",
+        "Water": "7732-18-5",
+        "Nitrogen": "7727-37-9",
+        "Hydrogen": "1333-74-0",
+        "Oxygen": "7782-44-7",
+        "Argon": "7440-37-1",
+    }
     for fluid, cas in cases.items():
         # The elements are not in the package's JANAF table: its WebBook table is used for them.
         method = "JANAF" if reaction.Hfg(cas, method="JANAF") is not None else "WEBBOOK"
         h, s, _ = molar(engine.state(fluid, "TP", T_STD, 50.0))
         s_standard = s + GAS_CONSTANT * math.log(50.0 / P_STD)
-        assert_close(h, reaction.Hfg(cas, method=method) or 0.0, "kJ/mol", atol=20.0,
-                     what=f"ΔfH° of {fluid} ({method})")
-        assert_close(s_standard, reaction.S0g(cas, method=method), "J/(mol K)", atol=0.02,
-                     what=f"S° of {fluid} ({method})")
+        assert_close(
+            h,
+            reaction.Hfg(cas, method=method) or 0.0,
+            "kJ/mol",
+            atol=20.0,
+            what=f"ΔfH° of {fluid} ({method})",
+        )
+        assert_close(
+            s_standard,
+            reaction.S0g(cas, method=method),
+            "J/(mol K)",
+            atol=0.02,
+            what=f"S° of {fluid} ({method})",
+        )
 
 
 def test_fluids_without_formation_data_say_so(engine):

@@ -53,8 +53,19 @@ ENERGY_RELATIVE, ENERGY_ABSOLUTE, ENERGY_ABSOLUTE_BATCH = 0.01, 1000.0, 1000.0  
 MASS_RELATIVE, MASS_ABSOLUTE = 0.002, 0.36 / 3600.0  # -, kg/s
 SATURATION_MARGIN = 1.0  # K: (T, P) states are kept this far from T_sat(P) (the band is 0.1 K)
 
-KINDS = ["turbine", "compressor", "pump", "valve", "heater", "cooler", "heat_exchanger", "mixer",
-         "splitter", "vessel", "general"]
+KINDS = [
+    "turbine",
+    "compressor",
+    "pump",
+    "valve",
+    "heater",
+    "cooler",
+    "heat_exchanger",
+    "mixer",
+    "splitter",
+    "vessel",
+    "general",
+]
 DEFAULT_EXAMPLES = 20  # per kind, in the default suite
 LONG_EXAMPLES = int(os.environ.get("PLANT_AUDIT_GENERATED_EXAMPLES", "1000"))  # per kind
 LONG_KINDS = os.environ.get("PLANT_AUDIT_GENERATED_KINDS", ",".join(KINDS)).split(",")
@@ -102,8 +113,7 @@ def limits(fluid: str) -> tuple[float, float, float, float, float]:
     return a.Tmin(), a.Tmax(), a.pmax(), a.T_critical(), a.p_critical()
 
 
-def _flash(fluid: str, pair: int, x: float, y: float, written: str, phase: int | None = None
-           ) -> Point:
+def _flash(fluid: str, pair: int, x: float, y: float, written: str, phase: int | None = None) -> Point:
     a = _engine(fluid)
     try:
         if phase is not None:
@@ -118,14 +128,23 @@ def _flash(fluid: str, pair: int, x: float, y: float, written: str, phase: int |
             a.unspecify_phase()
     values = (T, P, h, s, u, rho)
     T_min, T_max, P_max, T_c, P_c = limits(fluid)
-    if not all(math.isfinite(v) for v in values) or not (T_min + 0.5 <= T <= T_max - 1.0) or (
-            P > P_max):
+    if not all(math.isfinite(v) for v in values) or not (T_min + 0.5 <= T <= T_max - 1.0) or (P > P_max):
         raise Reject(f"{fluid} at {T} K, {P} Pa is outside the equation of state")
     if abs(T / T_c - 1.0) < 0.03 and abs(P / P_c - 1.0) < 0.15:
         raise Reject("too close to the critical point")
     two_phase = phase == CP.iphase_twophase and 0.0 <= Q <= 1.0
-    return Point(fluid, T, P, h, s, u, rho, "two-phase" if two_phase else "single",
-                 Q if two_phase else None, written)
+    return Point(
+        fluid,
+        T,
+        P,
+        h,
+        s,
+        u,
+        rho,
+        "two-phase" if two_phase else "single",
+        Q if two_phase else None,
+        written,
+    )
 
 
 def t_sat(fluid: str, P: float) -> float | None:
@@ -230,8 +249,7 @@ def entropy_generation(step: Step) -> float:
         m, a, b = step.batch["mass"], step.batch["initial"], step.batch["final"]
         dS, coldest = m * (b.s - a.s), min(a.T, b.T)
     else:
-        dS = (sum(x.flow * x.point.s for x in step.outlets)
-              - sum(x.flow * x.point.s for x in step.inlets))
+        dS = sum(x.flow * x.point.s for x in step.outlets) - sum(x.flow * x.point.s for x in step.inlets)
         coldest = min(x.point.T for x in step.streams())
     for q in step.heat:
         T_b = q.T if q.T is not None else (math.inf if q.Q > 0 else min(T0, coldest))
@@ -282,8 +300,7 @@ def draw_flow(draw) -> float:
     return draw(st.floats(0.05, 120.0))
 
 
-def superheated(draw, fluid: str, P_range: tuple[float, float], superheat: tuple[float, float]
-                ) -> Point:
+def superheated(draw, fluid: str, P_range: tuple[float, float], superheat: tuple[float, float]) -> Point:
     """A vapour/gas (T, P) state: P in P_range [Pa], T = T_sat(P) + superheat [K] (or a gas above
     the critical temperature)."""
     P = draw(st.floats(*P_range))
@@ -293,8 +310,7 @@ def superheated(draw, fluid: str, P_range: tuple[float, float], superheat: tuple
     return tp(fluid, T, P)
 
 
-def subcooled(draw, fluid: str, T_range: tuple[float, float], subcooling: tuple[float, float]
-              ) -> Point:
+def subcooled(draw, fluid: str, T_range: tuple[float, float], subcooling: tuple[float, float]) -> Point:
     """A liquid (T, P) state: T in T_range [K], P = P_sat(T + subcooling) [Pa], at least 0.5 bar."""
     T = draw(st.floats(*T_range))
     P = max(p_sat(fluid, T + draw(st.floats(*subcooling))), 0.5e5)
@@ -348,13 +364,13 @@ def draw_any_state(draw) -> Point:
 
 def lowest_pressure(fluid: str) -> float:
     """Lowest pressure an expansion may reach [Pa] (above the triple point with room to spare)."""
-    return {"Water": 0.05e5, "CarbonDioxide": 7e5, "Ammonia": 0.3e5, "R134a": 0.3e5}.get(
-        fluid, 0.3e5)
+    return {"Water": 0.05e5, "CarbonDioxide": 7e5, "Ammonia": 0.3e5, "R134a": 0.3e5}.get(fluid, 0.3e5)
 
 
 # -- the kinds ----------------------------------------------------------------------------------------
-def machine(kind: str, inlet: Point, P2: float, eta: float, flow: float, loss_share: float,
-            loss_T: float | None) -> Step:
+def machine(
+    kind: str, inlet: Point, P2: float, eta: float, flow: float, loss_share: float, loss_T: float | None
+) -> Step:
     """A turbine (expansion) or a compressor/pump (compression) of isentropic efficiency ``eta``.
 
     Turbine: h2 = h1 − η (h1 − h2s), W = ṁ (h1 − h2) − L; compressor/pump: W_shaft = ṁ (h2s − h1)/η,
@@ -403,20 +419,23 @@ def draw_turbine(draw) -> Step:
 
 
 def draw_compressor(draw) -> Step:
-    fluid = draw(st.sampled_from(["Air", "Nitrogen", "CarbonDioxide", "Ammonia", "R134a",
-                                  "Water"]))
+    fluid = draw(st.sampled_from(["Air", "Nitrogen", "CarbonDioxide", "Ammonia", "R134a", "Water"]))
     if fluid in GASES:
         (P_lo, P_hi), _ = GASES[fluid]
-        inlet = tp(fluid, draw(st.floats(250.0, 450.0) if fluid != "CarbonDioxide" else
-                               st.floats(300.0, 450.0)), draw(st.floats(P_lo, P_hi / 4)))
+        inlet = tp(
+            fluid,
+            draw(st.floats(250.0, 450.0) if fluid != "CarbonDioxide" else st.floats(300.0, 450.0)),
+            draw(st.floats(P_lo, P_hi / 4)),
+        )
     else:
         P_lo, P_hi = {"Ammonia": (1e5, 10e5), "R134a": (1e5, 8e5), "Water": (0.1e5, 3e5)}[fluid]
         inlet = superheated(draw, fluid, (P_lo, P_hi), (3.0, 60.0))
     P2 = inlet.P * draw(st.floats(1.1, 6.0))
     eta = draw(st.floats(0.5, 0.95))
     loss = draw(st.sampled_from([0.0, draw(st.floats(0.0, 0.5))]))
-    step = machine("compressor", inlet, P2, eta, draw_flow(draw), loss,
-                   draw(st.sampled_from([None, None, T0])))
+    step = machine(
+        "compressor", inlet, P2, eta, draw_flow(draw), loss, draw(st.sampled_from([None, None, T0]))
+    )
     if draw(st.booleans()):
         step.claims["isentropic_efficiency"] = repr(eta)
     return step
@@ -453,8 +472,11 @@ def draw_heater(draw) -> Step:
     T_top = min(T_max - 60.0, 1000.0)
     if inlet.T >= T_top - 5.0:
         raise Reject("no room to heat")
-    top = tp(inlet.fluid, T_top, P2) if t_sat(inlet.fluid, P2) is None or abs(
-        T_top - t_sat(inlet.fluid, P2)) > 2 else None
+    top = (
+        tp(inlet.fluid, T_top, P2)
+        if t_sat(inlet.fluid, P2) is None or abs(T_top - t_sat(inlet.fluid, P2)) > 2
+        else None
+    )
     if top is None or top.h <= inlet.h:
         raise Reject("no room to heat")
     h2 = inlet.h + draw(st.floats(0.01, 1.0)) * (top.h - inlet.h)
@@ -469,8 +491,7 @@ def draw_heater(draw) -> Step:
         hottest = max(outlet.T, ph(inlet.fluid, inlet.P, h2).T)  # along the path at P1 too
         source = hottest + draw(st.floats(1.0, 500.0))
         claims["source_temperature"] = kelvin(source)
-    return Step("heater", [Stream(inlet, flow)], [Stream(outlet, flow)], claims,
-                [Heat(Q, source)])
+    return Step("heater", [Stream(inlet, flow)], [Stream(outlet, flow)], claims, [Heat(Q, source)])
 
 
 def draw_cooler(draw) -> Step:
@@ -502,8 +523,7 @@ def draw_cooler(draw) -> Step:
 PROFILE_POINTS = 60  # a multiple of the 20 steps plant-audit compares, so its points are among ours
 
 
-def approach(hot_in: Point, hot_out: Point, cold_in: Point, cold_out: Point, counter: bool
-             ) -> float:
+def approach(hot_in: Point, hot_out: Point, cold_in: Point, cold_out: Point, counter: bool) -> float:
     """Smallest hot-minus-cold temperature difference [K] along the exchanger: both sides split
     into PROFILE_POINTS equal enthalpy steps (pressure linear in between) plus the points where a
     side crosses its saturated-liquid and saturated-vapour enthalpies, T from (P, h) flashes."""
@@ -518,9 +538,11 @@ def approach(hot_in: Point, hot_out: Point, cold_in: Point, cold_out: Point, cou
             except Reject:
                 continue
             if 0.0 < f < 1.0:
-                fractions.update({f, max(0.0, f - 1e-6), min(1.0, f + 1e-6)}
-                                 if not (is_hot and counter) else
-                                 {1.0 - f, max(0.0, 1.0 - f - 1e-6), min(1.0, 1.0 - f + 1e-6)})
+                fractions.update(
+                    {f, max(0.0, f - 1e-6), min(1.0, f + 1e-6)}
+                    if not (is_hot and counter)
+                    else {1.0 - f, max(0.0, 1.0 - f - 1e-6), min(1.0, 1.0 - f + 1e-6)}
+                )
 
     def side_T(a: Point, b: Point, f: float) -> float:
         if f <= 0.0:
@@ -529,8 +551,10 @@ def approach(hot_in: Point, hot_out: Point, cold_in: Point, cold_out: Point, cou
             return b.T
         return ph(a.fluid, a.P + f * (b.P - a.P), a.h + f * (b.h - a.h)).T
 
-    return min(side_T(hot_in, hot_out, 1.0 - x if counter else x) - side_T(cold_in, cold_out, x)
-               for x in sorted(fractions))
+    return min(
+        side_T(hot_in, hot_out, 1.0 - x if counter else x) - side_T(cold_in, cold_out, x)
+        for x in sorted(fractions)
+    )
 
 
 def h_near(fluid: str, T: float, P: float) -> float:
@@ -564,17 +588,24 @@ def draw_heat_exchanger(draw) -> Step:
     cold_out = ph(cold_in.fluid, Pc2, cold_in.h + Q / m_cold)
     if approach(hot_in, hot_out, cold_in, cold_out, counter) < 0.5:
         raise Reject("the profiles come within 0.5 K")
-    claims: dict = {"hot": {"inlet": "@hot_in", "outlet": "@hot_out"},
-                    "cold": {"inlet": "@cold_in", "outlet": "@cold_out"},
-                    "arrangement": "counter-current" if counter else "co-current"}
+    claims: dict = {
+        "hot": {"inlet": "@hot_in", "outlet": "@hot_out"},
+        "cold": {"inlet": "@cold_in", "outlet": "@cold_out"},
+        "arrangement": "counter-current" if counter else "co-current",
+    }
     if draw(st.integers(0, 4)) > 0:
         claims["duty"] = power(Q)
     heat = []
     if loss > 0.0:
         claims["heat_loss"] = power(loss)
         heat = [Heat(-loss, None)]
-    step = Step("heat_exchanger", [Stream(hot_in, m_hot), Stream(cold_in, m_cold)],
-                [Stream(hot_out, m_hot), Stream(cold_out, m_cold)], claims, heat)
+    step = Step(
+        "heat_exchanger",
+        [Stream(hot_in, m_hot), Stream(cold_in, m_cold)],
+        [Stream(hot_out, m_hot), Stream(cold_out, m_cold)],
+        claims,
+        heat,
+    )
     step.extra = {"Q": Q, "loss": loss, "counter": counter}
     return step
 
@@ -593,7 +624,8 @@ def draw_mixer(draw) -> Step:
     total = sum(x.flow for x in inlets)
     H_in = sum(x.flow * x.point.h for x in inlets)
     loss = draw(st.sampled_from([0.0, 0.0, draw(st.floats(0.0, 0.02))])) * sum(
-        x.flow * abs(x.point.h - H_in / total) for x in inlets)
+        x.flow * abs(x.point.h - H_in / total) for x in inlets
+    )
     outlet = ph(fluid, P_out, (H_in - loss) / total)
     claims, heat = {}, []
     if loss > 0.0:
@@ -617,14 +649,16 @@ def draw_vessel(draw) -> Step:
     if process == "constant pressure":
         initial = draw_any_state(draw) if draw(st.booleans()) else draw_liquid(draw)
         T_min, T_max, *_ = limits(initial.fluid)
-        T2 = between(draw, max(T_min + 5.0, initial.T - 100.0), min(T_max - 60.0,
-                                                                     initial.T + 300.0))
+        T2 = between(draw, max(T_min + 5.0, initial.T - 100.0), min(T_max - 60.0, initial.T + 300.0))
         final = tp(initial.fluid, T2, initial.P)
         W = mass * initial.P * (1.0 / final.rho - 1.0 / initial.rho)  # boundary work delivered
         Q = mass * (final.h - initial.h)
     else:
-        initial = draw_vapour_or_gas(draw) if draw(st.booleans()) else pq(
-            "Water", draw(st.floats(0.05e5, 50e5)), draw(st.floats(0.0, 1.0)))
+        initial = (
+            draw_vapour_or_gas(draw)
+            if draw(st.booleans())
+            else pq("Water", draw(st.floats(0.05e5, 50e5)), draw(st.floats(0.0, 1.0)))
+        )
         T_min, T_max, *_ = limits(initial.fluid)
         low = max(T_min + 5.0, initial.T - 100.0) if process == "constant volume" else initial.T
         T2 = between(draw, low, min(T_max - 60.0, initial.T + 300.0))
@@ -638,9 +672,12 @@ def draw_vessel(draw) -> Step:
     if process != "stirred":
         T_b = None
         if draw(st.booleans()):
-            T_b = (max(initial.T, final.T) + draw(st.floats(1.0, 300.0)) if Q > 0 else
-                   min(initial.T, final.T) - between(draw, 1.0, min(100.0, min(
-                       initial.T, final.T) - 30.0)))
+            T_b = (
+                max(initial.T, final.T) + draw(st.floats(1.0, 300.0))
+                if Q > 0
+                else min(initial.T, final.T)
+                - between(draw, 1.0, min(100.0, min(initial.T, final.T) - 30.0))
+            )
         heat = [Heat(Q, T_b)]
         entry = {"added": energy(Q)} if Q >= 0 else {"removed": energy(-Q)}
         if T_b is not None:
@@ -652,15 +689,24 @@ def draw_vessel(draw) -> Step:
         claims["work_absorbed"] = energy(-W)
     elif draw(st.booleans()):
         claims["work_delivered"] = energy(0.0)
-    return Step("vessel", [], [], claims, heat, W,
-                batch={"fluid": initial.fluid, "mass": mass, "initial": initial, "final": final})
+    return Step(
+        "vessel",
+        [],
+        [],
+        claims,
+        heat,
+        W,
+        batch={"fluid": initial.fluid, "mass": mass, "initial": initial, "final": final},
+    )
 
 
 def draw_general(draw) -> Step:
     """A general step made of 1 to 3 lanes, each a consistent machine, valve, heater or cooler of
     its own stream: the step's work and heat are the lanes' sums (so it is consistent too)."""
-    lanes = [draw(st.sampled_from(["turbine", "compressor", "pump", "valve", "heater",
-                                   "cooler"])) for _ in range(draw(st.integers(1, 3)))]
+    lanes = [
+        draw(st.sampled_from(["turbine", "compressor", "pump", "valve", "heater", "cooler"]))
+        for _ in range(draw(st.integers(1, 3)))
+    ]
     inlets, outlets, heat, W = [], [], [], 0.0
     for lane in lanes:
         part = DRAW[lane](draw)
@@ -681,16 +727,33 @@ def draw_general(draw) -> Step:
     return Step("general", inlets, outlets, claims, heat, W)
 
 
-DRAW = {"turbine": draw_turbine, "compressor": draw_compressor, "pump": draw_pump,
-        "valve": draw_valve, "heater": draw_heater, "cooler": draw_cooler,
-        "heat_exchanger": draw_heat_exchanger, "mixer": draw_mixer, "splitter": draw_splitter,
-        "vessel": draw_vessel, "general": draw_general}
+DRAW = {
+    "turbine": draw_turbine,
+    "compressor": draw_compressor,
+    "pump": draw_pump,
+    "valve": draw_valve,
+    "heater": draw_heater,
+    "cooler": draw_cooler,
+    "heat_exchanger": draw_heat_exchanger,
+    "mixer": draw_mixer,
+    "splitter": draw_splitter,
+    "vessel": draw_vessel,
+    "general": draw_general,
+}
 
 
 # -- violations -----------------------------------------------------------------------------------------
 def _copy(step: Step) -> Step:
-    return Step(step.kind, list(step.inlets), list(step.outlets), dict(step.claims),
-                list(step.heat), step.W, dict(step.batch) if step.batch else None, step.extra)
+    return Step(
+        step.kind,
+        list(step.inlets),
+        list(step.outlets),
+        dict(step.claims),
+        list(step.heat),
+        step.W,
+        dict(step.batch) if step.batch else None,
+        step.extra,
+    )
 
 
 def lose_mass(draw, step: Step) -> tuple[Step, set[str], str]:
@@ -899,15 +962,20 @@ def render(step: Step, prefix: str) -> tuple[list[str], list[str]]:
         for k, x in enumerate(group):
             name = f"{prefix}{role}{k}"
             names[f"{role}{k}"] = name
-            streams.append(f"  {name}: " + _flow_map(
-                {"fluid": x.point.fluid, **x.point.fields(), "flow": f"{x.flow!r} kg/s"}))
+            streams.append(
+                f"  {name}: "
+                + _flow_map({"fluid": x.point.fluid, **x.point.fields(), "flow": f"{x.flow!r} kg/s"})
+            )
     if step.kind == "vessel":
         batch = step.batch
         lines += [f"    fluid: {batch['fluid']}", f"    mass: {batch['mass']!r} kg"]
         for which in ("initial", "final"):
             point = batch[which]
-            fields = point.fields() if point.written != "TQ" else {
-                "T": f"{point.T!r} K", "quality": repr(point.quality)}
+            fields = (
+                point.fields()
+                if point.written != "TQ"
+                else {"T": f"{point.T!r} K", "quality": repr(point.quality)}
+            )
             lines.append(f"    {which}: " + _flow_map(fields))
     elif step.kind == "heat_exchanger":
         lines.append(f"    hot: {{inlet: {names['i0']}, outlet: {names['o0']}}}")
@@ -945,12 +1013,26 @@ def balance_text(steps: dict[str, Step]) -> str:
         step_lines += t
     if not stream_lines:  # a balance needs a stream: vessels get one no step uses
         stream_lines = [f"  {SPARE}: {{fluid: Water, T: 300.0 K, P: 101325.0 Pa, flow: 1.0 kg/s}}"]
-    return "\n".join(["balance:", "  name: generated step", "  site_pressure: 101325.0 Pa",
-                      "streams:", *stream_lines, "steps:", *step_lines]) + "\n"
+    return (
+        "\n".join(
+            [
+                "balance:",
+                "  name: generated step",
+                "  site_pressure: 101325.0 Pa",
+                "streams:",
+                *stream_lines,
+                "steps:",
+                *step_lines,
+            ]
+        )
+        + "\n"
+    )
 
 
 # -- one example ----------------------------------------------------------------------------------------
 REJECTED: Counter[str] = Counter()  # draws discarded (no usable state), per kind
+
+
 @dataclass
 class Verdict:
     false_positive: list[str]  # findings on the consistent step (or on the plant)
@@ -982,16 +1064,33 @@ def audit_example(draw, kind: str) -> Verdict:
         result = solve(balance, document)
     except InputError as exc:  # a generated balance must always be valid input
         raise AssertionError(f"the generated balance was refused: {exc}\n{text}") from None
-    positives = [f"{f.name}: {f.message}" for f in result.findings if f.step != "B" and not (
-        f.name == "stream-unused" and f.stream == SPARE)]
+    positives = [
+        f"{f.name}: {f.message}"
+        for f in result.findings
+        if f.step != "B" and not (f.name == "stream-unused" and f.stream == SPARE)
+    ]
     found = [f.name for f in result.findings if f.step == "B"]
-    return Verdict(positives, not expected & set(found), expected, found, violation.__name__,
-                   f"{violation.__name__}: {what}", text)
+    return Verdict(
+        positives,
+        not expected & set(found),
+        expected,
+        found,
+        violation.__name__,
+        f"{violation.__name__}: {what}",
+        text,
+    )
 
 
-SETTINGS = dict(deadline=None, database=None, derandomize=True,
-                suppress_health_check=[HealthCheck.too_slow, HealthCheck.filter_too_much,
-                                       HealthCheck.data_too_large])
+SETTINGS = dict(
+    deadline=None,
+    database=None,
+    derandomize=True,
+    suppress_health_check=[
+        HealthCheck.too_slow,
+        HealthCheck.filter_too_much,
+        HealthCheck.data_too_large,
+    ],
+)
 
 
 @pytest.mark.parametrize("kind", KINDS)
@@ -1003,8 +1102,9 @@ def test_generated_steps(kind):
     def check(data):
         verdict = audit_example(data.draw, kind)
         assert not verdict.false_positive, f"false positive: {verdict.false_positive}"
-        assert not verdict.missed, (f"missed {verdict.what}: expected one of "
-                                    f"{sorted(verdict.expected)}, found {verdict.found}")
+        assert not verdict.missed, (
+            f"missed {verdict.what}: expected one of {sorted(verdict.expected)}, found {verdict.found}"
+        )
 
     check()
 
@@ -1041,17 +1141,23 @@ def test_generated_steps_long_run(capsys, tmp_path):
 
     for kind in kinds:
         runner(kind)()
-    total = {key: sum(c[key] for c in counts.values()) for key in ("steps", "false positives",
-                                                                   "missed")}
+    total = {key: sum(c[key] for c in counts.values()) for key in ("steps", "false positives", "missed")}
     with capsys.disabled():
-        print(f"\ngenerated steps: {total['steps']} ({LONG_EXAMPLES} consistent and "
-              f"{LONG_EXAMPLES} violated per kind)")
+        print(
+            f"\ngenerated steps: {total['steps']} ({LONG_EXAMPLES} consistent and "
+            f"{LONG_EXAMPLES} violated per kind)"
+        )
         for kind, c in counts.items():
-            print(f"  {kind:15s} steps {c['steps']:6d}   false positives {c['false positives']:4d}"
-                  f"   missed violations {c['missed']:4d}   (draws discarded {REJECTED[kind]}; "
-                  + ", ".join(f"{name} {n}" for name, n in sorted(injected[kind].items())) + ")")
-        print(f"  {'total':15s} steps {total['steps']:6d}   false positives "
-              f"{total['false positives']:4d}   missed violations {total['missed']:4d}")
+            print(
+                f"  {kind:15s} steps {c['steps']:6d}   false positives {c['false positives']:4d}"
+                f"   missed violations {c['missed']:4d}   (draws discarded {REJECTED[kind]}; "
+                + ", ".join(f"{name} {n}" for name, n in sorted(injected[kind].items()))
+                + ")"
+            )
+        print(
+            f"  {'total':15s} steps {total['steps']:6d}   false positives "
+            f"{total['false positives']:4d}   missed violations {total['missed']:4d}"
+        )
         for line in examples[:20]:
             print("   ", line)
         if failures:
@@ -1071,8 +1177,13 @@ def test_exchanger_duty_with_heat_loss():
     hot_out = ph("Water", 3e5, hot_in.h - (Q + loss) / m_hot)
     cold_out = ph("Water", 3e5, cold_in.h + Q / m_cold)
     claims = {"arrangement": "counter-current", "duty": power(Q), "heat_loss": power(loss)}
-    step = Step("heat_exchanger", [Stream(hot_in, m_hot), Stream(cold_in, m_cold)],
-                [Stream(hot_out, m_hot), Stream(cold_out, m_cold)], claims, [Heat(-loss, None)])
+    step = Step(
+        "heat_exchanger",
+        [Stream(hot_in, m_hot), Stream(cold_in, m_cold)],
+        [Stream(hot_out, m_hot), Stream(cold_out, m_cold)],
+        claims,
+        [Heat(-loss, None)],
+    )
     assert entropy_generation(step) > 0.0
     bad = _copy(step)
     bad.claims["duty"] = power(Q + loss)  # the hot side's whole release, claimed as the duty

@@ -49,7 +49,8 @@ def test_runs_are_recorded_and_new_findings_named(tmp_path: Path, plant: Path) -
     expected = [finding_key(f) for f in audit.run(SEEDED).findings]
     assert second.previous_run == "2026-03-02T01:00:00Z"
     assert set(second.new_since_last) == set(expected) - {
-        finding_key(f) for f in audit.run(CLEAN).findings}
+        finding_key(f) for f in audit.run(CLEAN).findings
+    }
     assert second.history_note().startswith(f"{len(set(expected))} new since 2026-03-02T01:00:00Z")
 
     third = record(database, [audit_job(Job(str(plant)))], now=at(3))[0]
@@ -58,7 +59,10 @@ def test_runs_are_recorded_and_new_findings_named(tmp_path: Path, plant: Path) -
 
     history = runs(database, plant)
     assert [r.run_at for r in history] == [
-        "2026-03-02T03:00:00Z", "2026-03-02T02:00:00Z", "2026-03-02T01:00:00Z"]
+        "2026-03-02T03:00:00Z",
+        "2026-03-02T02:00:00Z",
+        "2026-03-02T01:00:00Z",
+    ]
     newest = history[0]
     seeded = audit.run(SEEDED)
     assert newest.file == file_key(plant)
@@ -99,7 +103,9 @@ def test_accepted_findings_are_recorded_as_accepted(tmp_path: Path) -> None:
     shutil.copy(SEEDED, plant)
     plant.with_name("plant.accepted.yaml").write_text(
         "accepted:\n  - {step: SP1, finding: mass-imbalance, reason: meter drift, "
-        "accepted_by: site reviewer, expires: 2999-01-01}\n", encoding="utf-8")
+        "accepted_by: site reviewer, expires: 2999-01-01}\n",
+        encoding="utf-8",
+    )
     database = tmp_path / "history.sqlite"
     record(database, [audit_job(Job(str(plant)))], now=at(1))
     (run,) = runs(database, plant)
@@ -107,7 +113,8 @@ def test_accepted_findings_are_recorded_as_accepted(tmp_path: Path) -> None:
     assert run.errors == audit.run(SEEDED).counts()["error"] - 1
     with sqlite3.connect(database) as connection:
         rows = connection.execute(
-            "SELECT accepted FROM findings WHERE name = 'mass-imbalance'").fetchall()
+            "SELECT accepted FROM findings WHERE name = 'mass-imbalance'"
+        ).fetchall()
     assert rows == [("meter drift (accepted by site reviewer, until 2999-01-01)",)]
 
 
@@ -125,8 +132,9 @@ def test_history_errors_are_input_errors(tmp_path: Path) -> None:
         runs(newer, CLEAN)
 
 
-def test_check_batch_and_history_commands(tmp_path: Path, plant: Path,
-                                          capsys: pytest.CaptureFixture[str]) -> None:
+def test_check_batch_and_history_commands(
+    tmp_path: Path, plant: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
     database = tmp_path / "runs.sqlite"
     assert main(["check", str(plant), "--brief", "--history", str(database)]) == EXIT_PASS
     assert "History (" in capsys.readouterr().out
@@ -148,14 +156,14 @@ def test_check_batch_and_history_commands(tmp_path: Path, plant: Path,
     assert out.count("new: ") == new
 
     assert main(["history", str(plant), "--history", str(database), "-n", "1"]) == EXIT_PASS
-    assert len([line for line in capsys.readouterr().out.splitlines()
-                if line.strip()[:1].isdigit()]) == 1
+    assert (
+        len([line for line in capsys.readouterr().out.splitlines() if line.strip()[:1].isdigit()]) == 1
+    )
 
 
 def test_history_command_messages(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
     assert main(["history", str(CLEAN), "--history", str(tmp_path / "none.sqlite")]) == EXIT_INPUT
-    assert "none.sqlite: no run history here (record runs with --history)" in (
-        capsys.readouterr().err)
+    assert "none.sqlite: no run history here (record runs with --history)" in (capsys.readouterr().err)
     database = tmp_path / "runs.sqlite"
     record(database, [], now=at(1))
     assert main(["history", str(CLEAN), "--history", str(database)]) == EXIT_PASS

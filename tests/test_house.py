@@ -17,12 +17,14 @@ MODULE_LINE_CEILING = 400
 
 
 @pytest.mark.parametrize(
-    "module", sorted(PACKAGE.rglob("*.py")), ids=lambda p: str(p.relative_to(PACKAGE.parent)))
+    "module", sorted(PACKAGE.rglob("*.py")), ids=lambda p: str(p.relative_to(PACKAGE.parent))
+)
 def test_module_is_small(module: Path):
     lines = len(module.read_text(encoding="utf-8").splitlines())
     assert lines <= MODULE_LINE_CEILING, (
         f"{module.relative_to(PACKAGE.parent)} has {lines} lines; split it by job "
-        f"(ceiling {MODULE_LINE_CEILING})")
+        f"(ceiling {MODULE_LINE_CEILING})"
+    )
 
 
 def test_every_step_kind_documents_its_evaluate():

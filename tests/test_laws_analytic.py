@@ -117,8 +117,13 @@ balance:
 """
 
 
-@pytest.mark.parametrize("work,expected", [("625 kW", set()), ("650 kW", {
-    ("ENGINE", "work-above-bound"), ("ENGINE", "negative-entropy-generation")})])
+@pytest.mark.parametrize(
+    "work,expected",
+    [
+        ("625 kW", set()),
+        ("650 kW", {("ENGINE", "work-above-bound"), ("ENGINE", "negative-entropy-generation")}),
+    ],
+)
 def test_carnot_limit(tmp_path, work, expected):
     # A heat engine between 800 K and 300 K (= T0) can deliver at most 62.5 % of the heat it
     # receives: 625 kW of 1 MW. The stream passes through unchanged; the rejected heat closes the
@@ -163,8 +168,13 @@ steps:
     step = result.step("WALL")
     assert_close(step.S_gen, 1666.667, "W/K", atol=1e-3)
     assert_close(step.exergy_destroyed, 300.0 * 1666.6667, "kW", rtol=1e-6)
-    assert_close(step.W_rev - step.W, step.exergy_destroyed + step.energy_residual, "W",
-                 rtol=1e-9, what="Gouy–Stodola: W_rev − W = T0 S_gen + residual")
+    assert_close(
+        step.W_rev - step.W,
+        step.exergy_destroyed + step.energy_residual,
+        "W",
+        rtol=1e-9,
+        what="Gouy–Stodola: W_rev − W = T0 S_gen + residual",
+    )
 
 
 def test_boiling_at_saturation_gibbs_bound_is_zero(tmp_path):

@@ -14,8 +14,7 @@ GOOD_STREAM = "  S1: {fluid: Water, T: 300 degC, P: 10 bar, flow: 1 kg/s}\n"
 
 
 def balance(streams: str = GOOD_STREAM, header: str = "", steps: str = "steps: []\n") -> str:
-    return ("balance:\n  name: t\n  site_pressure: 1.013 bar\n" + header + "streams:\n" + streams
-            + steps)
+    return "balance:\n  name: t\n  site_pressure: 1.013 bar\n" + header + "streams:\n" + streams + steps
 
 
 def error_of(tmp_path, text: str) -> str:
@@ -26,23 +25,24 @@ def error_of(tmp_path, text: str) -> str:
 
 
 def test_duplicate_key_names_both_lines(tmp_path):
-    text = balance(streams=GOOD_STREAM + "  S1: {fluid: Water, T: 200 degC, P: 10 bar, "
-                   "flow: 1 kg/s}\n")
+    text = balance(streams=GOOD_STREAM + "  S1: {fluid: Water, T: 200 degC, P: 10 bar, flow: 1 kg/s}\n")
     message = error_of(tmp_path, text)
     assert "balance.yaml:6:3" in message
     assert "the key 'S1' is written twice in the same mapping, on line 5 and line 6" in message
 
 
 def test_unknown_fluid(tmp_path):
-    message = error_of(tmp_path, balance("  S1: {fluid: Unobtainium, T: 300 degC, P: 10 bar, "
-                                         "flow: 1 kg/s}\n"))
+    message = error_of(
+        tmp_path, balance("  S1: {fluid: Unobtainium, T: 300 degC, P: 10 bar, flow: 1 kg/s}\n")
+    )
     assert "balance.yaml:5:3: stream S1: unknown fluid 'Unobtainium'" in message
 
 
 def test_two_phase_T_P_is_ambiguous(tmp_path):
     # Water at 10 bar saturates at 179.878 °C (IAPWS-95): 179.9 °C is inside the 0.1 K band.
-    message = error_of(tmp_path, balance("  S1: {fluid: Water, T: 179.9 degC, P: 10 bar, "
-                                         "flow: 1 kg/s}\n"))
+    message = error_of(
+        tmp_path, balance("  S1: {fluid: Water, T: 179.9 degC, P: 10 bar, flow: 1 kg/s}\n")
+    )
     assert "balance.yaml:5:3: stream S1:" in message
     assert "lies within 0.1 K of the saturation temperature 179.878 °C of Water" in message
     assert "give a quality" in message
@@ -61,23 +61,20 @@ def test_missing_flow(tmp_path):
 
 
 def test_bare_number(tmp_path):
-    message = error_of(tmp_path, balance("  S1: {fluid: Water, T: 300 degC, P: 10, "
-                                         "flow: 1 kg/s}\n"))
+    message = error_of(tmp_path, balance("  S1: {fluid: Water, T: 300 degC, P: 10, flow: 1 kg/s}\n"))
     assert "balance.yaml:5:35: stream S1, field 'streams.S1.P':" in message
     assert "a bare number (10) has no unit; write it with its unit, such as '40 bar'" in message
 
 
 def test_gauge_without_site_pressure(tmp_path):
-    text = ("balance:\n  name: t\nstreams:\n  S1: {fluid: Water, T: 300 degC, P: 10 barg, "
-            "flow: 1 kg/s}\n")
+    text = "balance:\n  name: t\nstreams:\n  S1: {fluid: Water, T: 300 degC, P: 10 barg, flow: 1 kg/s}\n"
     message = error_of(tmp_path, text)
     assert "balance.yaml:4:35: stream S1, field 'streams.S1.P':" in message
     assert "'10 barg' is a gauge pressure, but the balance declares no site_pressure" in message
 
 
 def test_wrong_dimension(tmp_path):
-    message = error_of(tmp_path, balance("  S1: {fluid: Water, T: 300 degC, P: 10 bar, "
-                                         "flow: 1 kW}\n"))
+    message = error_of(tmp_path, balance("  S1: {fluid: Water, T: 300 degC, P: 10 bar, flow: 1 kW}\n"))
     assert "field 'streams.S1.flow': '1 kW' is not a flow" in message
 
 
@@ -98,8 +95,9 @@ def test_python_tag_is_refused(tmp_path):
 
 
 def test_unknown_field_suggests(tmp_path):
-    message = error_of(tmp_path, balance("  S1: {fluid: Water, T: 300 degC, P: 10 bar, "
-                                         "flow: 1 kg/s, qualty: 1}\n"))
+    message = error_of(
+        tmp_path, balance("  S1: {fluid: Water, T: 300 degC, P: 10 bar, flow: 1 kg/s, qualty: 1}\n")
+    )
     assert "unknown field 'qualty'; did you mean 'quality'?" in message
 
 
@@ -116,17 +114,20 @@ def test_dangling_stream(tmp_path):
 
 
 def test_doubly_consumed_stream(tmp_path):
-    streams = GOOD_STREAM + ("  S2: {fluid: Water, T: 290 degC, P: 5 bar, flow: 1 kg/s}\n"
-                             "  S3: {fluid: Water, T: 290 degC, P: 5 bar, flow: 1 kg/s}\n")
-    steps = ("steps:\n  - {id: V1, kind: valve, inlet: S1, outlet: S2}\n"
-             "  - {id: V2, kind: valve, inlet: S1, outlet: S3}\n")
+    streams = GOOD_STREAM + (
+        "  S2: {fluid: Water, T: 290 degC, P: 5 bar, flow: 1 kg/s}\n"
+        "  S3: {fluid: Water, T: 290 degC, P: 5 bar, flow: 1 kg/s}\n"
+    )
+    steps = (
+        "steps:\n  - {id: V1, kind: valve, inlet: S1, outlet: S2}\n"
+        "  - {id: V2, kind: valve, inlet: S1, outlet: S3}\n"
+    )
     message = error_of(tmp_path, balance(streams=streams, steps=steps))
     assert "stream S1: is consumed by more than one step (V1, V2)" in message
 
 
 def test_cli_exit_code_and_no_traceback(tmp_path, capsys):
-    path = write_balance(tmp_path, balance("  S1: {fluid: Water, T: 300 degC, P: 10, "
-                                           "flow: 1 kg/s}\n"))
+    path = write_balance(tmp_path, balance("  S1: {fluid: Water, T: 300 degC, P: 10, flow: 1 kg/s}\n"))
     json_path = tmp_path / "out.json"
     code = main(["check", str(path), "--json", str(json_path)])
     captured = capsys.readouterr()
@@ -147,8 +148,7 @@ def test_empty_file_and_folder(tmp_path):
 def test_negative_claims_are_refused(tmp_path):
     # Claims carry no signs: the field's name says the direction.
     streams = GOOD_STREAM + "  S2: {fluid: Water, T: 200 degC, P: 2 bar, flow: 1 kg/s}\n"
-    steps = ("steps:\n  - {id: T1, kind: turbine, inlet: S1, outlet: S2, "
-             "heat_loss: -5 kW}\n")
+    steps = "steps:\n  - {id: T1, kind: turbine, inlet: S1, outlet: S2, heat_loss: -5 kW}\n"
     message = error_of(tmp_path, balance(streams=streams, steps=steps))
     assert "step T1, field 'steps[0].heat_loss': must not be negative" in message
 

@@ -19,12 +19,28 @@ chemicals_heat_capacity = pytest.importorskip("chemicals.heat_capacity")
 R = 8.314_462_618_153_24  # J/(mol K), exact (2019 SI)
 
 # CAS numbers (the keys of the chemicals library's tables) of the species with a verified range.
-CAS = {"N2": "7727-37-9", "O2": "7782-44-7", "Ar": "7440-37-1", "CO2": "124-38-9",
-       "H2O": "7732-18-5", "CO": "630-08-0", "H2": "1333-74-0", "CH4": "74-82-8",
-       "NH3": "7664-41-7"}
-FLUID = {"N2": "Nitrogen", "O2": "Oxygen", "Ar": "Argon", "CO2": "CarbonDioxide",
-         "H2O": "Water", "CO": "CarbonMonoxide", "H2": "Hydrogen", "CH4": "Methane",
-         "NH3": "Ammonia"}
+CAS = {
+    "N2": "7727-37-9",
+    "O2": "7782-44-7",
+    "Ar": "7440-37-1",
+    "CO2": "124-38-9",
+    "H2O": "7732-18-5",
+    "CO": "630-08-0",
+    "H2": "1333-74-0",
+    "CH4": "74-82-8",
+    "NH3": "7664-41-7",
+}
+FLUID = {
+    "N2": "Nitrogen",
+    "O2": "Oxygen",
+    "Ar": "Argon",
+    "CO2": "CarbonDioxide",
+    "H2O": "Water",
+    "CO": "CarbonMonoxide",
+    "H2": "Hydrogen",
+    "CH4": "Methane",
+    "NH3": "Ammonia",
+}
 
 
 @pytest.fixture(scope="module")
@@ -56,17 +72,23 @@ def _janaf_increments(formula: str, T: float) -> tuple[float, float]:
 
         def cp(t: np.ndarray) -> np.ndarray:
             return R * sum(a * t**i for i, a in enumerate(coefficients))
+
         xs = np.linspace(298.15, T, 2001)
         return float(np.trapezoid(cp(xs), xs)), float(np.trapezoid(cp(xs) / xs, xs))
     shomate = hc.WebBook_Shomate_gases[cas]
-    return (shomate.force_calculate_integral(298.15, T),
-            shomate.force_calculate_integral_over_T(298.15, T))
+    return (
+        shomate.force_calculate_integral(298.15, T),
+        shomate.force_calculate_integral_over_T(298.15, T),
+    )
 
 
 def _grid(formula: str) -> list[float]:
     low, high = VERIFIED_RANGE[FLUID[formula]]
-    inner = [T for T in (250.0, 300.0, 400.0, 500.0, 600.0, 800.0, 1000.0, 1200.0, 1500.0,
-                         1800.0, 2000.0) if low < T < high]
+    inner = [
+        T
+        for T in (250.0, 300.0, 400.0, 500.0, 600.0, 800.0, 1000.0, 1200.0, 1500.0, 1800.0, 2000.0)
+        if low < T < high
+    ]
     return [low, *inner, high]
 
 
@@ -86,8 +108,11 @@ def test_ideal_gas_part_of_methane_is_refused_beyond_its_verified_range(engine):
     # CoolProp's methane ideal-gas part departs from JANAF by ~77 J/mol at 700 K, 1.1 kJ/mol at
     # 1500 K (measured, see audit.properties.mixtures), so a mixture with methane stops at 600 K.
     engine.mixture_state({"CH4": 0.5, "N2": 0.5}, 600.0, 1e5)
-    with pytest.raises(StateError, match=r"outside the range over which the ideal-gas "
-                       r"properties of CH4 were verified \(-73.15 to 326.85 °C"):
+    with pytest.raises(
+        StateError,
+        match=r"outside the range over which the ideal-gas "
+        r"properties of CH4 were verified \(-73.15 to 326.85 °C",
+    ):
         engine.mixture_state({"CH4": 0.5, "N2": 0.5}, 700.0, 1e5)
     with pytest.raises(StateError, match="properties of N2 were verified"):
         engine.mixture_state({"N2": 0.79, "O2": 0.21}, 2100.0, 1e5)
@@ -138,8 +163,11 @@ def test_compressibility_estimate_of_methane_at_standard_conditions():
 def test_mixture_at_high_pressure_is_refused(engine):
     # Methane at 30 bar and 15 °C: Z ≈ 0.94 (the second virial coefficient, about −48 cm³/mol,
     # times p/RT), far from an ideal gas.
-    with pytest.raises(StateError, match=r"not an ideal gas \(compressibility Z ≈ 0\.9[0-9]+ by "
-                       r"its second virial coefficient.*real-fluid mixtures are not supported"):
+    with pytest.raises(
+        StateError,
+        match=r"not an ideal gas \(compressibility Z ≈ 0\.9[0-9]+ by "
+        r"its second virial coefficient.*real-fluid mixtures are not supported",
+    ):
         engine.mixture_state({"CH4": 0.97, "N2": 0.02, "CO2": 0.01}, 288.15, 30e5)
 
 
@@ -163,13 +191,16 @@ FLUE = "{CO2: 0.0845, H2O: 0.1665, N2: 0.7156, O2: 0.0249, Ar: 0.0085}"
 
 
 def test_stream_with_a_composition_gets_a_readable_name_and_keeps_its_composition(tmp_path):
-    result = audit_text(tmp_path, """
+    result = audit_text(
+        tmp_path,
+        """
         streams:
           G: {composition: {CH4: 0.97, N2: 0.02, CO2: 0.01}, T: 15 degC, P: 1.3 bar,
               flow: 1 kmol/h}
           A: {composition: air, T: 25 degC, P: 1.013 bar, flow: 1 kg/s}
           S30: {fluid: Air, T: 25 degC, P: 7 bar, flow: 1 kg/s}
-        """)
+        """,
+    )
     gas, air, compressed = result.stream("G"), result.stream("A"), result.stream("S30")
     assert gas.fluid == "mixture(CH4 0.97, N2 0.02, CO2 0.01)"
     assert gas.composition == {"CH4": 0.97, "N2": 0.02, "CO2": 0.01}
@@ -183,10 +214,13 @@ def test_stream_with_a_composition_gets_a_readable_name_and_keeps_its_compositio
 def test_normal_volume_flow_of_a_mixture_uses_the_ideal_gas_molar_volume(tmp_path):
     # Molar volume of an ideal gas at 273.15 K and 101.325 kPa: 22.413 969 54 L/mol
     # (CODATA 2018, exact from R).
-    result = audit_text(tmp_path, """
+    result = audit_text(
+        tmp_path,
+        """
         streams:
           A: {composition: {N2: 0.79, O2: 0.21}, T: 25 degC, P: 1.013 bar, flow: 3600 Nm3/h}
-        """)
+        """,
+    )
     stream = result.stream("A")
     assert_close(stream.molar_flow, 1.0 / 0.022_413_969_54, "-", rtol=1e-9)
 
@@ -194,11 +228,14 @@ def test_normal_volume_flow_of_a_mixture_uses_the_ideal_gas_molar_volume(tmp_pat
 def test_mass_fractions_are_converted_to_mole_fractions(tmp_path):
     # Half hydrogen, half methane by mass; molar masses 2.01588 and 16.0425 g/mol (IUPAC atomic
     # weights): x_H2 = (0.5/2.01588) / (0.5/2.01588 + 0.5/16.0425) = 0.88836.
-    result = audit_text(tmp_path, """
+    result = audit_text(
+        tmp_path,
+        """
         streams:
           G: {composition: {H2: 0.5, CH4: 0.5}, composition_basis: mass, T: 25 degC,
               P: 1 bar, flow: 1 kg/s}
-        """)
+        """,
+    )
     x = result.stream("G").composition
     assert_close(x["H2"], 0.88836, atol=2e-5)
     assert_close(x["CH4"], 0.11164, atol=2e-5)
@@ -207,11 +244,14 @@ def test_mass_fractions_are_converted_to_mole_fractions(tmp_path):
 def test_dew_point_is_flagged_and_silent_above_it(tmp_path):
     # p_sat(40 °C) of water = 7.3849 kPa (IAPWS-95, Wagner & Pruß 2002; steam tables print
     # 7.384 kPa); the flue gas' water partial pressure is 0.1665 × 101.3 kPa = 16.866 kPa.
-    result = audit_text(tmp_path, f"""
+    result = audit_text(
+        tmp_path,
+        f"""
         streams:
           WET: {{composition: {FLUE}, T: 40 degC, P: 1.013 bar, flow: 1 kg/s}}
           DRY: {{composition: {FLUE}, T: 150 degC, P: 1.013 bar, flow: 1 kg/s}}
-        """)
+        """,
+    )
     found = [f for f in result.findings if f.name == "below-dew-point"]
     assert [f.stream for f in found] == ["WET"]
     finding = found[0]
@@ -221,45 +261,67 @@ def test_dew_point_is_flagged_and_silent_above_it(tmp_path):
     assert "below its dew point" in finding.message and "H2O" in finding.message
 
 
-@pytest.mark.parametrize("composition, message", [
-    ("{N2: 0.78, O2: 0.20}", r"stream G.*the mole fractions sum to 0\.98, 0\.02 short of 1"),
-    ("{N2: 0.79, O2: 0.22}", r"stream G.*sum to 1\.01, 0\.01 over 1 \(allowed: 1e-06\)"),
-    ("{N2: 0.79, XY2: 0.21}", r"stream G.*no formation data for 'XY2' in the composition"),
-    ("{N2: 0.79, O2: -0.21}", r"stream G.*the fraction of O2 is -0\.21"),
-    ("steam", r"stream G.*unknown named composition 'steam'"),
-])
+@pytest.mark.parametrize(
+    "composition, message",
+    [
+        ("{N2: 0.78, O2: 0.20}", r"stream G.*the mole fractions sum to 0\.98, 0\.02 short of 1"),
+        ("{N2: 0.79, O2: 0.22}", r"stream G.*sum to 1\.01, 0\.01 over 1 \(allowed: 1e-06\)"),
+        ("{N2: 0.79, XY2: 0.21}", r"stream G.*no formation data for 'XY2' in the composition"),
+        ("{N2: 0.79, O2: -0.21}", r"stream G.*the fraction of O2 is -0\.21"),
+        ("steam", r"stream G.*unknown named composition 'steam'"),
+    ],
+)
 def test_composition_errors_name_the_stream_and_say_why(tmp_path, composition, message):
     with pytest.raises(InputError, match=message):
-        audit_text(tmp_path, f"""
+        audit_text(
+            tmp_path,
+            f"""
             streams:
               G: {{composition: {composition}, T: 25 degC, P: 1 bar, flow: 1 kg/s}}
-            """)
+            """,
+        )
 
 
-@pytest.mark.parametrize("stream, message", [
-    ("{fluid: Water, composition: air, T: 25 degC, P: 1 bar, flow: 1 kg/s}",
-     "exactly one of 'fluid' .* or 'composition'"),
-    ("{T: 25 degC, P: 1 bar, flow: 1 kg/s}", "exactly one of 'fluid' .* or 'composition'"),
-    ("{composition: air, P: 1 bar, h: 300 kJ/kg, flow: 1 kg/s}",
-     "a gas mixture is written with T and P"),
-    ("{composition: air, composition_basis: mass, T: 25 degC, P: 1 bar, flow: 1 kg/s}",
-     "a named composition gives mole fractions"),
-    ("{composition: air, T: 25 degC, P: 1 bar, flow: 1 kg/s, phase: liquid}",
-     "a gas mixture is a gas; it cannot be declared liquid"),
-])
+@pytest.mark.parametrize(
+    "stream, message",
+    [
+        (
+            "{fluid: Water, composition: air, T: 25 degC, P: 1 bar, flow: 1 kg/s}",
+            "exactly one of 'fluid' .* or 'composition'",
+        ),
+        ("{T: 25 degC, P: 1 bar, flow: 1 kg/s}", "exactly one of 'fluid' .* or 'composition'"),
+        (
+            "{composition: air, P: 1 bar, h: 300 kJ/kg, flow: 1 kg/s}",
+            "a gas mixture is written with T and P",
+        ),
+        (
+            "{composition: air, composition_basis: mass, T: 25 degC, P: 1 bar, flow: 1 kg/s}",
+            "a named composition gives mole fractions",
+        ),
+        (
+            "{composition: air, T: 25 degC, P: 1 bar, flow: 1 kg/s, phase: liquid}",
+            "a gas mixture is a gas; it cannot be declared liquid",
+        ),
+    ],
+)
 def test_stream_shape_errors(tmp_path, stream, message):
     with pytest.raises(InputError, match=message):
-        audit_text(tmp_path, f"""
+        audit_text(
+            tmp_path,
+            f"""
             streams:
               G: {stream}
-            """)
+            """,
+        )
 
 
 def test_flue_gas_cooler_with_mixture_streams_closes(tmp_path):
     # A flue-gas cooler from 300 °C to 150 °C: the duty is ṁ Σ x_i Δh_i, with Δh_i from JANAF
     # (checked above); here the step must close with the duty the same model gives, and an
     # economiser (heat exchanger with a mixture hot side) must run its T–Q profile on the mixture.
-    result = audit_text(tmp_path, f"""
+    result = audit_text(
+        tmp_path,
+        f"""
         streams:
           G1: {{composition: {FLUE}, T: 300 degC, P: 1.02 bar, flow: 3.7 kg/s}}
           G2: {{composition: {FLUE}, T: 150 degC, P: 1.013 bar, flow: 3.7 kg/s}}
@@ -270,13 +332,13 @@ def test_flue_gas_cooler_with_mixture_streams_closes(tmp_path):
             kind: heat_exchanger
             hot: {{inlet: G1, outlet: G2}}
             cold: {{inlet: W1, outlet: W2}}
-        """)
+        """,
+    )
     step = result.step("ECO")
     released = step.extra["hot_duty"]
     # Independent duty of the gas side from JANAF increments (mixing terms cancel in Δh).
     x = {"CO2": 0.0845, "H2O": 0.1665, "N2": 0.7156, "O2": 0.0249, "Ar": 0.0085}
-    dh = sum(x[f] * (_janaf_increments(f, 573.15)[0] - _janaf_increments(f, 423.15)[0])
-             for f in x)
+    dh = sum(x[f] * (_janaf_increments(f, 573.15)[0] - _janaf_increments(f, 423.15)[0]) for f in x)
     M = result.stream("G1").mass_flow / result.stream("G1").molar_flow
     assert_close(released, 3.7 / M * dh, "kW", rtol=2e-3, what="flue-gas duty")
     assert ("ECO", "temperature-cross") not in names(result)

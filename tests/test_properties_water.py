@@ -43,8 +43,9 @@ IF97_TABLES = [
 ]
 
 
-@pytest.mark.parametrize("name,T,p,v,h,u,s", IF97_TABLES,
-                         ids=[f"{r[0]}_{r[1]:.0f}K" for r in IF97_TABLES])
+@pytest.mark.parametrize(
+    "name,T,p,v,h,u,s", IF97_TABLES, ids=[f"{r[0]}_{r[1]:.0f}K" for r in IF97_TABLES]
+)
 def test_if97_verification_tables(engine, name, T, p, v, h, u, s):
     state = engine.state("Water", "TP", T, p * 1e6)
     h_t, s_t, u_t = table_basis(engine, state)
@@ -64,8 +65,9 @@ def test_if97_region4_saturation(engine):
     for p, T_sat in ((0.1, 372.755919), (1.0, 453.035632), (10.0, 584.149488)):
         computed = engine.saturation_temperature("Water", p * 1e6)
         assert_close(computed, T_sat, "K", atol=1e-2, what=f"T_sat({p} MPa) vs IF97")
-        assert_close(computed, iapws.IAPWS95(P=p, x=0).T, "K", atol=1e-4,
-                     what=f"T_sat({p} MPa) vs IAPWS-95")
+        assert_close(
+            computed, iapws.IAPWS95(P=p, x=0).T, "K", atol=1e-4, what=f"T_sat({p} MPa) vs IAPWS-95"
+        )
 
 
 def test_iapws95_saturation_table8(engine):

@@ -78,12 +78,15 @@ def test_gas_pressure_enters_reaction_gibbs_energy_as_r_t_ln_p(engine):
 
 
 # -- heating values --------------------------------------------------------------------------------
-@pytest.mark.parametrize("fuel, hhv, lhv", [
-    # Moran & Shapiro, Fundamentals of Engineering Thermodynamics, Table A-25 (25 °C, 1 atm):
-    # methane 55 510 / 50 020 kJ/kg, hydrogen 141 780 / 119 950 kJ/kg (reference-values rows 25, 26).
-    ("CH4", 55_510e3, 50_020e3),
-    ("H2", 141_780e3, 119_950e3),
-])
+@pytest.mark.parametrize(
+    "fuel, hhv, lhv",
+    [
+        # Moran & Shapiro, Fundamentals of Engineering Thermodynamics, Table A-25 (25 °C, 1 atm):
+        # methane 55 510 / 50 020 kJ/kg, hydrogen 141 780 / 119 950 kJ/kg (reference-values rows 25, 26).
+        ("CH4", 55_510e3, 50_020e3),
+        ("H2", 141_780e3, 119_950e3),
+    ],
+)
 def test_heating_values_against_moran_shapiro_table_a25(engine, fuel, hhv, lhv):
     # Tolerance 1e-3: the table prints 4 significant digits and the choice of ΔfH(CH4) (JANAF
     # −74.873 vs ATcT −74.534 kJ/mol) moves methane's HHV by 0.04 %.
@@ -115,19 +118,26 @@ def test_inert_species_of_a_fuel_do_not_burn(engine):
 
 # -- parsing -------------------------------------------------------------------------------------------
 def test_reaction_coefficients_as_fractions_decimals_and_integers():
-    for text in ("H2 + 1/2 O2 -> H2O(l)", "H2 + 0.5 O2 -> H2O(l)", "2 H2 + O2 -> 2 H2O(l)",
-                 "H2 + ½ O2 → H2O(l)"):
+    for text in (
+        "H2 + 1/2 O2 -> H2O(l)",
+        "H2 + 0.5 O2 -> H2O(l)",
+        "2 H2 + O2 -> 2 H2O(l)",
+        "H2 + ½ O2 → H2O(l)",
+    ):
         nu = parse_reaction(text).nu()
         assert nu["O2"] / nu["H2"] == 0.5 and nu["H2O"] / nu["H2"] == -1.0
 
 
-@pytest.mark.parametrize("text, message", [
-    ("H2 + O2 -> H2O", r"does not balance: O 2 on the left, 1 on the right"),
-    ("CH4 + O2 -> CO2 + 2 H2O", r"does not balance: O 2 on the left, 4 on the right"),
-    ("H2 + 1/2 O2", r"needs one arrow '->'"),
-    ("XY + O2 -> CO2", r"no formation data for 'XY'"),
-    ("H2 + 1/2 O2 -> H2O(s)", r"cannot read 'H2O\(s\)'"),
-])
+@pytest.mark.parametrize(
+    "text, message",
+    [
+        ("H2 + O2 -> H2O", r"does not balance: O 2 on the left, 1 on the right"),
+        ("CH4 + O2 -> CO2 + 2 H2O", r"does not balance: O 2 on the left, 4 on the right"),
+        ("H2 + 1/2 O2", r"needs one arrow '->'"),
+        ("XY + O2 -> CO2", r"no formation data for 'XY'"),
+        ("H2 + 1/2 O2 -> H2O(s)", r"cannot read 'H2O\(s\)'"),
+    ],
+)
 def test_reaction_errors(text, message):
     with pytest.raises(ValueError, match=message):
         parse_reaction(text)
@@ -135,13 +145,16 @@ def test_reaction_errors(text, message):
 
 def test_unbalanced_reaction_in_a_file_is_an_input_error_at_its_step(tmp_path):
     with pytest.raises(InputError, match=r"step R1.*does not balance: O 2 on the left"):
-        audit_text(tmp_path, """
+        audit_text(
+            tmp_path,
+            """
             streams:
               A: {fluid: Hydrogen, T: 25 degC, P: 1 bar, flow: 1 mol/s}
               B: {fluid: Water, T: 25 degC, P: 1 bar, flow: 1 mol/s}
             steps:
               - {id: R1, kind: reactor, inlets: [A], outlets: [B], reactions: ["H2 + O2 -> H2O"]}
-            """)
+            """,
+        )
 
 
 # -- a stoichiometric methane–air combustion ---------------------------------------------------------
@@ -156,7 +169,9 @@ def _combustion(tmp_path, co2_fraction: float = FLUE_X["CO2"], extra: str = ""):
     x = dict(FLUE_X, CO2=co2_fraction)
     x["N2"] = 1.0 - x["CO2"] - x["H2O"]
     flue = ", ".join(f"{k}: {v:.9f}" for k, v in x.items())
-    return audit_text(tmp_path, f"""
+    return audit_text(
+        tmp_path,
+        f"""
         streams:
           F: {{fluid: Methane, T: 25 degC, P: 1.01325 bar, flow: 1 mol/s}}
           A: {{composition: {{N2: 0.79, O2: 0.21}}, T: 25 degC, P: 1.01325 bar,
@@ -168,7 +183,8 @@ def _combustion(tmp_path, co2_fraction: float = FLUE_X["CO2"], extra: str = ""):
             inlets: [F, A]
             outlets: [G]
             reactions: [{{equation: "CH4 + 2 O2 -> CO2 + 2 H2O"{extra}}}]
-        """)
+        """,
+    )
 
 
 def test_stoichiometric_methane_air_combustion_closes_its_elements(tmp_path):
@@ -191,9 +207,13 @@ def test_stoichiometric_methane_air_combustion_closes_its_elements(tmp_path):
     def janaf_dh(cas: str) -> float:
         T, cp = hc.Cp_dict_JANAF_gas[cas]
         return float(CubicSpline(T[1:], cp[1:]).integrate(298.15, 1000.0))
+
     n2 = hc.WebBook_Shomate_gases["7727-37-9"].force_calculate_integral(298.15, 1000.0)
-    products = (1.0 * (-393_510.0 + janaf_dh("124-38-9"))
-                + 2.0 * (-241_826.0 + janaf_dh("7732-18-5")) + AIR * 0.79 * n2)
+    products = (
+        1.0 * (-393_510.0 + janaf_dh("124-38-9"))
+        + 2.0 * (-241_826.0 + janaf_dh("7732-18-5"))
+        + AIR * 0.79 * n2
+    )
     expected_Q = products - (-74_873.0)  # ΔfH°(CH4), JANAF; air at 25 °C has h = 0
     assert_close(step.Q, expected_Q, "kW", rtol=1e-3, what="heat of the combustor")
 
@@ -227,7 +247,9 @@ def test_side_product_no_written_reaction_explains_is_a_warning(tmp_path):
     n = {"CO2": 0.95, "CO": 0.05, "H2O": 2.0, "O2": 0.025, "N2": AIR * 0.79}
     total = sum(n.values())
     flue = ", ".join(f"{k}: {v / total:.10f}" for k, v in n.items())
-    result = audit_text(tmp_path, f"""
+    result = audit_text(
+        tmp_path,
+        f"""
         streams:
           F: {{fluid: Methane, T: 25 degC, P: 1.01325 bar, flow: 1 mol/s}}
           A: {{composition: {{N2: 0.79, O2: 0.21}}, T: 25 degC, P: 1.01325 bar,
@@ -236,7 +258,8 @@ def test_side_product_no_written_reaction_explains_is_a_warning(tmp_path):
         steps:
           - {{id: R, kind: reactor, inlets: [F, A], outlets: [G],
               reactions: ["CH4 + 2 O2 -> CO2 + 2 H2O"]}}
-        """)
+        """,
+    )
     assert names(result) == {("R", "species-imbalance")}
     (finding,) = result.findings_for("R")
     assert finding.severity == "warning" and "CO appears" in finding.message
@@ -244,19 +267,24 @@ def test_side_product_no_written_reaction_explains_is_a_warning(tmp_path):
 
 def test_stream_without_formation_data_cannot_react(tmp_path):
     with pytest.raises(InputError, match=r"step R.*stream B \(R134a\) has no formation data"):
-        audit_text(tmp_path, """
+        audit_text(
+            tmp_path,
+            """
             streams:
               A: {fluid: Hydrogen, T: 25 degC, P: 1 bar, flow: 1 mol/s}
               B: {fluid: R134a, T: 25 degC, P: 1 bar, flow: 1 mol/s}
             steps:
               - {id: R, kind: reactor, inlets: [A], outlets: [B], reactions: ["H2 -> H2"]}
-            """)
+            """,
+        )
 
 
 # -- fired heater ------------------------------------------------------------------------------------
 def _boiler(tmp_path, claims: str, flue_T: str = "150 degC"):
     # The sample site's boiler B1 (sample_plant/quillon-bay-clean.yaml), on its own.
-    return audit_text(tmp_path, f"""
+    return audit_text(
+        tmp_path,
+        f"""
         streams:
           S02: {{fluid: Water, T: 105.73 degC, P: 42.513 bar, flow: 10.8 t/h}}
           S03: {{fluid: Water, T: 400 degC, P: 41.013 bar, flow: 10.8 t/h}}
@@ -274,7 +302,8 @@ def _boiler(tmp_path, claims: str, flue_T: str = "150 degC"):
             heated: {{inlet: S02, outlet: S03}}
             heat_loss: 45 kW
             {claims}
-        """)
+        """,
+    )
 
 
 def test_consistent_fired_boiler_is_silent_and_reports_its_heat_input(tmp_path):
@@ -288,11 +317,14 @@ def test_consistent_fired_boiler_is_silent_and_reports_its_heat_input(tmp_path):
     assert 0.9 < extra["efficiency_lhv"] < 0.95
 
 
-@pytest.mark.parametrize("claim, hint", [
-    ("fuel_lhv: 52.1 MJ/kg", "it matches the higher heating value"),
-    ("fuel_hhv: 47.0 MJ/kg", "it matches the lower heating value"),
-    ("fuel_lhv: 40.0 MJ/kg", None),
-])
+@pytest.mark.parametrize(
+    "claim, hint",
+    [
+        ("fuel_lhv: 52.1 MJ/kg", "it matches the higher heating value"),
+        ("fuel_hhv: 47.0 MJ/kg", "it matches the lower heating value"),
+        ("fuel_lhv: 40.0 MJ/kg", None),
+    ],
+)
 def test_wrong_heating_value_is_found_with_its_margin(tmp_path, claim, hint):
     result = _boiler(tmp_path, claim)
     (finding,) = [f for f in result.findings_for("B1") if f.name == "heating-value-mismatch"]

@@ -15,14 +15,19 @@ from audit.reading import schema_text
 ROOT = SAMPLE.parent
 
 EXPECTED_SEEDED = {
-    ("T1", "work-above-bound"), ("T1", "energy-imbalance"),
-    ("C1", "input-below-minimum"), ("C1", "energy-imbalance"),
+    ("T1", "work-above-bound"),
+    ("T1", "energy-imbalance"),
+    ("C1", "input-below-minimum"),
+    ("C1", "energy-imbalance"),
     ("HX1", "internal-pinch"),
-    ("EV1", "valve-not-isenthalpic"), ("EV1", "negative-entropy-generation"),
+    ("EV1", "valve-not-isenthalpic"),
+    ("EV1", "negative-entropy-generation"),
     ("R1", "energy-imbalance"),
     ("SP1", "mass-imbalance"),
     ("B1", "heating-value-mismatch"),
-    ("EL1", "input-below-minimum"), ("EL1", "power-mismatch"), ("EL1", "energy-imbalance"),
+    ("EL1", "input-below-minimum"),
+    ("EL1", "power-mismatch"),
+    ("EL1", "energy-imbalance"),
 }
 
 
@@ -65,4 +70,5 @@ def test_sample_files_point_editors_at_the_schema():
 def test_committed_schema_is_current():
     committed = (ROOT / "schemas" / SCHEMA_FILE).read_text(encoding="utf-8")
     assert committed == schema_text(), (
-        "schemas/ is out of date: run `plant-audit schema -o schemas/" + SCHEMA_FILE + "`")
+        "schemas/ is out of date: run `plant-audit schema -o schemas/" + SCHEMA_FILE + "`"
+    )

@@ -26,41 +26,99 @@ def test_clean_sample_is_silent():
 
 CASES = [
     # (check, text in the clean revision, replacement, expected (step, finding))
-    ("efficiency above one", "S04: {fluid: Water, T: 186.8 degC", "S04: {fluid: Water, quality: 0.97",
-     ("T1", "efficiency-above-one")),
-    ("liquid at compressor suction", "S21: {fluid: Ammonia, T: -5 degC, P: 1.893 barg",
-     "S21: {fluid: Ammonia, quality: 0.9, P: 1.893 barg", ("C1", "liquid-at-suction")),
-    ("pump inlet not liquid", "S01: {fluid: Water, T: 105 degC", "S01: {fluid: Water, T: 130 degC",
-     ("P1", "pump-inlet-not-liquid")),
-    ("pump inlet near saturation", "S01: {fluid: Water, T: 105 degC",
-     "S01: {fluid: Water, T: 112.5 degC", ("P1", "pump-near-saturation")),
-    ("valve raises pressure", "T: 179.9 degC, P: 1.0 barg", "T: 179.9 degC, P: 4.0 barg",
-     ("V1", "pressure-wrong-way")),
-    ("valve not isenthalpic", "T: 179.9 degC, P: 1.0 barg", "T: 165 degC, P: 1.0 barg",
-     ("V1", "valve-not-isenthalpic")),
-    ("heat source colder than the stream", "source_temperature: -2 degC",
-     "source_temperature: -20 degC", ("R1", "source-too-cold")),
-    ("heat sink hotter than the stream", "duty: 712.9 kW\n    sink_temperature: 25 degC",
-     "duty: 712.9 kW\n    sink_temperature: 35 degC", ("CD1", "sink-too-hot")),
+    (
+        "efficiency above one",
+        "S04: {fluid: Water, T: 186.8 degC",
+        "S04: {fluid: Water, quality: 0.97",
+        ("T1", "efficiency-above-one"),
+    ),
+    (
+        "liquid at compressor suction",
+        "S21: {fluid: Ammonia, T: -5 degC, P: 1.893 barg",
+        "S21: {fluid: Ammonia, quality: 0.9, P: 1.893 barg",
+        ("C1", "liquid-at-suction"),
+    ),
+    (
+        "pump inlet not liquid",
+        "S01: {fluid: Water, T: 105 degC",
+        "S01: {fluid: Water, T: 130 degC",
+        ("P1", "pump-inlet-not-liquid"),
+    ),
+    (
+        "pump inlet near saturation",
+        "S01: {fluid: Water, T: 105 degC",
+        "S01: {fluid: Water, T: 112.5 degC",
+        ("P1", "pump-near-saturation"),
+    ),
+    (
+        "valve raises pressure",
+        "T: 179.9 degC, P: 1.0 barg",
+        "T: 179.9 degC, P: 4.0 barg",
+        ("V1", "pressure-wrong-way"),
+    ),
+    (
+        "valve not isenthalpic",
+        "T: 179.9 degC, P: 1.0 barg",
+        "T: 165 degC, P: 1.0 barg",
+        ("V1", "valve-not-isenthalpic"),
+    ),
+    (
+        "heat source colder than the stream",
+        "source_temperature: -2 degC",
+        "source_temperature: -20 degC",
+        ("R1", "source-too-cold"),
+    ),
+    (
+        "heat sink hotter than the stream",
+        "duty: 712.9 kW\n    sink_temperature: 25 degC",
+        "duty: 712.9 kW\n    sink_temperature: 35 degC",
+        ("CD1", "sink-too-hot"),
+    ),
     ("claimed duty differs from the sides", "duty: 4.48 MW", "duty: 4.0 MW", ("HX1", "duty-mismatch")),
-    ("approach below the stated minimum", "    arrangement: counter-current\n",
-     "    arrangement: counter-current\n    tolerances: {min_approach: 80 K}\n",
-     ("HX1", "approach-below-minimum")),
-    ("splitter outlet differs", "S06: {fluid: Water, T: 186.8 degC", "S06: {fluid: Water, T: 190 degC",
-     ("SP1", "splitter-state-differs")),
-    ("declared phase differs", "flow: 10.8 t/h, phase: liquid", "flow: 10.8 t/h, phase: vapour",
-     (None, "phase-mismatch")),
-    ("stream not used", "  # --- ammonia refrigeration",
-     "  S99: {fluid: Water, T: 20 degC, P: 2 bar, flow: 1 kg/s}\n  # --- ammonia refrigeration",
-     (None, "stream-unused")),
-    ("turbine claims more than its exergy drop", "shaft_power: 1.148 MW", "shaft_power: 1.45 MW",
-     ("T1", "work-above-bound")),
-    ("compressor below its reversible minimum", "shaft_power: 152.3 kW", "shaft_power: 95 kW",
-     ("C1", "input-below-minimum")),
+    (
+        "approach below the stated minimum",
+        "    arrangement: counter-current\n",
+        "    arrangement: counter-current\n    tolerances: {min_approach: 80 K}\n",
+        ("HX1", "approach-below-minimum"),
+    ),
+    (
+        "splitter outlet differs",
+        "S06: {fluid: Water, T: 186.8 degC",
+        "S06: {fluid: Water, T: 190 degC",
+        ("SP1", "splitter-state-differs"),
+    ),
+    (
+        "declared phase differs",
+        "flow: 10.8 t/h, phase: liquid",
+        "flow: 10.8 t/h, phase: vapour",
+        (None, "phase-mismatch"),
+    ),
+    (
+        "stream not used",
+        "  # --- ammonia refrigeration",
+        "  S99: {fluid: Water, T: 20 degC, P: 2 bar, flow: 1 kg/s}\n  # --- ammonia refrigeration",
+        (None, "stream-unused"),
+    ),
+    (
+        "turbine claims more than its exergy drop",
+        "shaft_power: 1.148 MW",
+        "shaft_power: 1.45 MW",
+        ("T1", "work-above-bound"),
+    ),
+    (
+        "compressor below its reversible minimum",
+        "shaft_power: 152.3 kW",
+        "shaft_power: 95 kW",
+        ("C1", "input-below-minimum"),
+    ),
     ("energy does not close", "heat_loss: 45 kW", "heat_loss: 450 kW", ("B1", "energy-imbalance")),
     ("claimed boiler duty differs", "duty: 8.30 MW", "duty: 8.60 MW", ("B1", "duty-mismatch")),
-    ("mass not conserved", "flow: 3.6 t/h, description: to letdown valve",
-     "flow: 3.9 t/h, description: to letdown valve", ("SP1", "mass-imbalance")),
+    (
+        "mass not conserved",
+        "flow: 3.6 t/h, description: to letdown valve",
+        "flow: 3.9 t/h, description: to letdown valve",
+        ("SP1", "mass-imbalance"),
+    ),
     ("vessel heat that cannot be", "added: 458.6 MJ", "added: 400 MJ", ("CIP1", "energy-imbalance")),
 ]
 
@@ -107,24 +165,27 @@ steps:
 """
 
 
-@pytest.mark.parametrize("arrangement,hot_out,cold_out,expected", [
-    ("counter-current", 40, 70, set()),
-    ("counter-current", 30, 80, set()),
-    ("co-current", 40, 70, {("HX9", "temperature-cross")}),  # hot leaves colder than cold leaves
-    ("co-current", 56, 54, set()),
-])
+@pytest.mark.parametrize(
+    "arrangement,hot_out,cold_out,expected",
+    [
+        ("counter-current", 40, 70, set()),
+        ("counter-current", 30, 80, set()),
+        ("co-current", 40, 70, {("HX9", "temperature-cross")}),  # hot leaves colder than cold leaves
+        ("co-current", 56, 54, set()),
+    ],
+)
 def test_temperature_cross(tmp_path, arrangement, hot_out, cold_out, expected):
     # Equal flows of water: the duties match when hot_in − hot_out = cold_out − cold_in (within
     # the small variation of cp).
-    body = WATER_HX.format(hot_out=hot_out, cold_out=cold_out, arrangement=arrangement,
-                           cold_fluid="Water")
+    body = WATER_HX.format(
+        hot_out=hot_out, cold_out=cold_out, arrangement=arrangement, cold_fluid="Water"
+    )
     result = audit_text(tmp_path, body, HEADER)
     assert names(result) == expected, result.findings
 
 
 def test_side_changes_fluid(tmp_path):
-    body = WATER_HX.format(hot_out=40, cold_out=70, arrangement="counter-current",
-                           cold_fluid="Ethanol")
+    body = WATER_HX.format(hot_out=40, cold_out=70, arrangement="counter-current", cold_fluid="Ethanol")
     result = audit_text(tmp_path, body, HEADER)
     assert ("HX9", "side-changes-fluid") in names(result)
 

@@ -50,8 +50,11 @@ def comparable(result) -> dict:
 
     def strip(value):
         if isinstance(value, dict):
-            return {k: strip(v) for k, v in value.items()
-                    if k not in ("file", "sha256", "provenance", "line")}
+            return {
+                k: strip(v)
+                for k, v in value.items()
+                if k not in ("file", "sha256", "provenance", "line")
+            }
         if isinstance(value, list):
             return [strip(v) for v in value]
         return value
@@ -61,8 +64,9 @@ def comparable(result) -> dict:
     return data
 
 
-def write_xlsx(path: Path, rows: list[list], sheet: str = "streams",
-               more: dict[str, list[list]] | None = None) -> Worksheet:
+def write_xlsx(
+    path: Path, rows: list[list], sheet: str = "streams", more: dict[str, list[list]] | None = None
+) -> Worksheet:
     """Write rows (None for an empty cell) to a one-sheet workbook; return the sheet (for merges,
     which the caller applies before calling ``save_again``)."""
     wb = openpyxl.Workbook()
@@ -78,8 +82,9 @@ def write_xlsx(path: Path, rows: list[list], sheet: str = "streams",
     return ws
 
 
-def balance_file(tmp_path: Path, source: str, body: str = "", name: str = "balance.yaml",
-                 header: str = HEADER) -> Path:
+def balance_file(
+    tmp_path: Path, source: str, body: str = "", name: str = "balance.yaml", header: str = HEADER
+) -> Path:
     path = tmp_path / name
     path.write_text(header + source + "\n" + body, encoding="utf-8")
     return path
@@ -103,8 +108,9 @@ def test_table_variant_audits_exactly_like_the_yaml_revision():
     assert comparable(from_table) == comparable(from_yaml)
     assert len(from_table.streams) == len(load_document(CLEAN).data["streams"])
     provenance = from_table.provenance
-    assert any(key.startswith("table ") and "quillon-bay-streams.xlsx" in key
-               for key in provenance), provenance
+    assert any(key.startswith("table ") and "quillon-bay-streams.xlsx" in key for key in provenance), (
+        provenance
+    )
 
 
 def test_table_variant_passes_on_the_command_line(capsys):
@@ -113,8 +119,7 @@ def test_table_variant_passes_on_the_command_line(capsys):
 
 
 def _script():
-    spec = importlib.util.spec_from_file_location("make_stream_table",
-                                                  SAMPLE / "make_stream_table.py")
+    spec = importlib.util.spec_from_file_location("make_stream_table", SAMPLE / "make_stream_table.py")
     module = importlib.util.module_from_spec(spec)
     spec.loader.exec_module(module)
     return module
@@ -150,8 +155,13 @@ def test_header_units_become_quantity_strings(tmp_path):
     path = balance_file(tmp_path, "streams_from: streams.xlsx")
     balance, document = load_balance(path)
     assert document.data["streams"]["W1"] == {
-        "fluid": "Water", "T": "20 degC", "P": "5 bar", "flow": "10.8 t/h", "phase": "liquid",
-        "description": "cold water"}
+        "fluid": "Water",
+        "T": "20 degC",
+        "P": "5 bar",
+        "flow": "10.8 t/h",
+        "phase": "liquid",
+        "description": "cold water",
+    }
     # 20 degC = 293.15 K (the definition of the Celsius scale); 10.8 t/h = 3 kg/s exactly.
     assert balance.streams["W1"].T == pytest.approx(293.15, abs=1e-12)
     assert balance.streams["W1"].flow.value == pytest.approx(3.0, rel=1e-12)
@@ -177,8 +187,10 @@ def test_empty_rows_trailing_blank_columns_and_title_rows_are_ignored(tmp_path):
 
 
 def test_column_map_reads_headers_of_another_form(tmp_path):
-    rows = [["Stream", "Medium", "Temp (C)", "Press", "Mass flow", "remarks"],
-            ["W1", "Water", 20, 5, 3, "anything"]]
+    rows = [
+        ["Stream", "Medium", "Temp (C)", "Press", "Mass flow", "remarks"],
+        ["W1", "Water", 20, 5, 3, "anything"],
+    ]
     write_xlsx(tmp_path / "hb.xlsx", rows, sheet="HB rev C")
     source = """streams_from:
   file: hb.xlsx
@@ -192,8 +204,12 @@ def test_column_map_reads_headers_of_another_form(tmp_path):
   ignore_columns: [remarks]
 """
     _, document = load_balance(balance_file(tmp_path, source))
-    assert document.data["streams"]["W1"] == {"fluid": "Water", "T": "20 degC", "P": "5 bar",
-                                              "flow": "3 kg/s"}
+    assert document.data["streams"]["W1"] == {
+        "fluid": "Water",
+        "T": "20 degC",
+        "P": "5 bar",
+        "flow": "3 kg/s",
+    }
 
 
 def test_formula_with_a_saved_value_is_read(tmp_path):
@@ -213,11 +229,13 @@ def _cache_value(path: Path, coordinate: str, value: str) -> None:
             content = source.read(info.filename)
             if info.filename == "xl/worksheets/sheet1.xml":
                 text = content.decode()
-                text, count = re.subn(rf'(<c r="{coordinate}"[^>]*><f>[^<]*</f>)<v\s*/>',
-                                      rf"\g<1><v>{value}</v>", text)
+                text, count = re.subn(
+                    rf'(<c r="{coordinate}"[^>]*><f>[^<]*</f>)<v\s*/>', rf"\g<1><v>{value}</v>", text
+                )
                 if count == 0:
-                    text, count = re.subn(rf'(<c r="{coordinate}"[^>]*><f>[^<]*</f>)',
-                                          rf"\g<1><v>{value}</v>", text)
+                    text, count = re.subn(
+                        rf'(<c r="{coordinate}"[^>]*><f>[^<]*</f>)', rf"\g<1><v>{value}</v>", text
+                    )
                 assert count == 1
                 content = text.encode()
             target.writestr(info, content)
@@ -255,29 +273,40 @@ def test_yaml_streams_and_table_streams_together(tmp_path):
 
 
 def test_mixture_compositions_and_cells_that_carry_their_own_unit(tmp_path):
-    rows = [["id", "composition", "T [degC]", "P [bar]", "flow", "composition_basis"],
-            ["G1", "N2: 0.79, O2: 0.21", 25, 1.2, "3.6 t/h", None],
-            ["G2", "air", 30, 1.2, "1 kg/s", None],
-            ["G3", "{CH4: 0.9, N2: 0.1}", 30, 1.2, "1 kg/s", "mass"]]
+    rows = [
+        ["id", "composition", "T [degC]", "P [bar]", "flow", "composition_basis"],
+        ["G1", "N2: 0.79, O2: 0.21", 25, 1.2, "3.6 t/h", None],
+        ["G2", "air", 30, 1.2, "1 kg/s", None],
+        ["G3", "{CH4: 0.9, N2: 0.1}", 30, 1.2, "1 kg/s", "mass"],
+    ]
     write_xlsx(tmp_path / "streams.xlsx", rows)
     _, document = load_balance(balance_file(tmp_path, "streams_from: streams.xlsx"))
     streams = document.data["streams"]
-    assert streams["G1"] == {"composition": {"N2": 0.79, "O2": 0.21}, "T": "25 degC",
-                             "P": "1.2 bar", "flow": "3.6 t/h"}
+    assert streams["G1"] == {
+        "composition": {"N2": 0.79, "O2": 0.21},
+        "T": "25 degC",
+        "P": "1.2 bar",
+        "flow": "3.6 t/h",
+    }
     assert streams["G2"]["composition"] == "air"
     assert streams["G3"]["composition"] == {"CH4": 0.9, "N2": 0.1}
     assert streams["G3"]["composition_basis"] == "mass"
 
 
-@pytest.mark.parametrize(("cell", "expected"), [
-    ("N2 0.79", "'N2 0.79' is not a composition; write it like 'N2: 0.79, O2: 0.21', or give a "
-                "name such as 'air'"),
-    ("N2: 0.79, N2: 0.21", "'N2' is written twice in the composition"),
-    ("N2: most", "'most' (for N2) is not a number"),
-])
+@pytest.mark.parametrize(
+    ("cell", "expected"),
+    [
+        (
+            "N2 0.79",
+            "'N2 0.79' is not a composition; write it like 'N2: 0.79, O2: 0.21', or give a "
+            "name such as 'air'",
+        ),
+        ("N2: 0.79, N2: 0.21", "'N2' is written twice in the composition"),
+        ("N2: most", "'most' (for N2) is not a number"),
+    ],
+)
 def test_malformed_compositions(tmp_path, cell, expected):
-    rows = [["id", "composition", "T [degC]", "P [bar]", "flow [kg/s]"],
-            ["G1", cell, 25, 1.2, 1]]
+    rows = [["id", "composition", "T [degC]", "P [bar]", "flow [kg/s]"], ["G1", cell, 25, 1.2, 1]]
     write_xlsx(tmp_path / "streams.xlsx", rows)
     message = run_error(balance_file(tmp_path, "streams_from: streams.xlsx"))
     assert f"sheet 'streams', cell B2: stream G1: {expected}" in message
@@ -288,30 +317,43 @@ def test_number_in_a_column_without_a_unit(tmp_path):
     rows[0][4] = "flow"
     write_xlsx(tmp_path / "streams.xlsx", rows)
     message = run_error(balance_file(tmp_path, "streams_from: streams.xlsx"))
-    assert "cell E2: stream W1: '10.8' has no unit, and the column 'flow' gives none; write the " \
+    assert (
+        "cell E2: stream W1: '10.8' has no unit, and the column 'flow' gives none; write the "
         "unit in the header, like 'flow [unit]', or in the cell" in message
+    )
 
 
 def test_two_columns_for_the_same_thing(tmp_path):
     rows = [[*STREAMS[0], "T [degC]"], [*STREAMS[1], None], [*STREAMS[2], None]]
     write_xlsx(tmp_path / "streams.xlsx", rows)
     message = run_error(balance_file(tmp_path, "streams_from: streams.xlsx"))
-    assert "cell H1: the column 'T [degC]' gives the same thing as column C ('T [degC]'); keep " \
+    assert (
+        "cell H1: the column 'T [degC]' gives the same thing as column C ('T [degC]'); keep "
         "one" in message
+    )
 
 
 def test_table_rows_lay_out_streams_and_leave_out_what_a_table_cannot_hold():
     streams = {
-        "G1": {"composition": {"N2": 0.79, "O2": 0.21}, "T": "25 degC", "P": "1.2 bar",
-               "flow": "1500 Nm3/h"},
-        "W1": {"fluid": "Water", "T": "20 degC", "P": "5 barg", "flow": "3 kg/s",
-               "uncertainty": {"T": "0.2 K"}},  # a mapping of its own: stays in the YAML file
+        "G1": {
+            "composition": {"N2": 0.79, "O2": 0.21},
+            "T": "25 degC",
+            "P": "1.2 bar",
+            "flow": "1500 Nm3/h",
+        },
+        "W1": {
+            "fluid": "Water",
+            "T": "20 degC",
+            "P": "5 barg",
+            "flow": "3 kg/s",
+            "uncertainty": {"T": "0.2 K"},
+        },  # a mapping of its own: stays in the YAML file
     }
-    headers, rows, left_out = table_rows(streams, ["id", "fluid", "T [degC]", "P [barg]"],
-                                         stream_kinds())
+    headers, rows, left_out = table_rows(
+        streams, ["id", "fluid", "T [degC]", "P [barg]"], stream_kinds()
+    )
     assert left_out == ["W1"]
-    assert headers == ["id", "fluid", "T [degC]", "P [barg]", "P [bar]", "composition",
-                       "flow [Nm3/h]"]
+    assert headers == ["id", "fluid", "T [degC]", "P [barg]", "P [bar]", "composition", "flow [Nm3/h]"]
     assert rows == [["G1", None, 25, None, 1.2, "N2: 0.79, O2: 0.21", 1500]]
 
 
@@ -338,29 +380,35 @@ def test_text_in_a_numeric_cell_names_sheet_and_cell(tmp_path):
     wb["HB rev C"].insert_rows(1)  # the table now starts on row 2; the bad cell is C14
     wb["HB rev C"]["A1"] = "heat balance"
     wb.save(tmp_path / "streams.xlsx")
-    path = balance_file(tmp_path, "streams_from: {file: streams.xlsx, sheet: HB rev C, "
-                        "header_row: 2}")
+    path = balance_file(tmp_path, "streams_from: {file: streams.xlsx, sheet: HB rev C, header_row: 2}")
     table = tmp_path / "streams.xlsx"
     message = run_error(path)
     assert message == f"{table}, sheet 'HB rev C', cell C14: stream S12: '1O5' is not a number"
 
 
-@pytest.mark.parametrize(("cell", "expected"), [
-    ("10,8", r"'10,8' is not a number; write the decimal point as '\.'"),
-    ("20 degF", r"'20 degF' is not a number; the column 'T \[degC\]' gives the unit \(degC\); "
-                r"for another unit, add a column such as 'T \[degF\]'"),
-    (datetime(2024, 3, 5), r"'2024-03-05 00:00:00' is a date or time, not a number"),
-    (True, r"TRUE is not a number"),
-    ("#DIV/0!", r"the cell shows the error value '#DIV/0!'"),
-    ("=B2*2", r"the formula '=B2\*2' has no saved value"),
-])
+@pytest.mark.parametrize(
+    ("cell", "expected"),
+    [
+        ("10,8", r"'10,8' is not a number; write the decimal point as '\.'"),
+        (
+            "20 degF",
+            r"'20 degF' is not a number; the column 'T \[degC\]' gives the unit \(degC\); "
+            r"for another unit, add a column such as 'T \[degF\]'",
+        ),
+        (datetime(2024, 3, 5), r"'2024-03-05 00:00:00' is a date or time, not a number"),
+        (True, r"TRUE is not a number"),
+        ("#DIV/0!", r"the cell shows the error value '#DIV/0!'"),
+        ("=B2*2", r"the formula '=B2\*2' has no saved value"),
+    ],
+)
 def test_bad_numeric_cells(tmp_path, cell, expected):
     rows = copy.deepcopy(STREAMS)
     rows[2][2] = cell
     write_xlsx(tmp_path / "streams.xlsx", rows)
     message = run_error(balance_file(tmp_path, "streams_from: streams.xlsx"))
-    assert re.search(r"streams\.xlsx, sheet 'streams', cell C3: stream W2: " + expected,
-                     message), message
+    assert re.search(r"streams\.xlsx, sheet 'streams', cell C3: stream W2: " + expected, message), (
+        message
+    )
 
 
 def test_uncalculated_formulas_in_an_otherwise_blank_row_are_not_skipped(tmp_path):
@@ -375,8 +423,7 @@ def test_unknown_unit_in_a_header(tmp_path):
     rows[0][2] = "T [degCC]"
     write_xlsx(tmp_path / "streams.xlsx", rows)
     message = run_error(balance_file(tmp_path, "streams_from: streams.xlsx"))
-    assert message.endswith("sheet 'streams', cell C1: unknown unit 'degCC' in the header "
-                            "'T [degCC]'")
+    assert message.endswith("sheet 'streams', cell C1: unknown unit 'degCC' in the header 'T [degCC]'")
 
 
 def test_unit_of_the_wrong_kind_in_a_header(tmp_path):
@@ -384,8 +431,7 @@ def test_unit_of_the_wrong_kind_in_a_header(tmp_path):
     rows[0][3] = "P [kg]"
     write_xlsx(tmp_path / "streams.xlsx", rows)
     message = run_error(balance_file(tmp_path, "streams_from: streams.xlsx"))
-    assert "cell D1: the header 'P [kg]' gives the unit 'kg', which is not a unit of pressure" \
-        in message
+    assert "cell D1: the header 'P [kg]' gives the unit 'kg', which is not a unit of pressure" in message
 
 
 def test_unknown_header_suggests_the_field(tmp_path):
@@ -400,11 +446,14 @@ def test_gauge_header_without_site_pressure(tmp_path):
     rows = copy.deepcopy(STREAMS)
     rows[0][3] = "P [barg]"
     write_xlsx(tmp_path / "streams.xlsx", rows)
-    path = balance_file(tmp_path, "streams_from: streams.xlsx",
-                        header="balance:\n  name: no site pressure\n")
+    path = balance_file(
+        tmp_path, "streams_from: streams.xlsx", header="balance:\n  name: no site pressure\n"
+    )
     message = run_error(path)
-    assert "cell D1: the header 'P [barg]' gives a gauge pressure unit, but the balance " \
+    assert (
+        "cell D1: the header 'P [barg]' gives a gauge pressure unit, but the balance "
         "declares no site_pressure" in message
+    )
 
 
 def test_merged_header_cells(tmp_path):
@@ -412,8 +461,10 @@ def test_merged_header_cells(tmp_path):
     ws.merge_cells("C1:D1")
     ws.parent.save(tmp_path / "streams.xlsx")
     message = run_error(balance_file(tmp_path, "streams_from: streams.xlsx"))
-    assert message == (f"{tmp_path / 'streams.xlsx'}, sheet 'streams', cell C1: the header cells "
-                       "C1:D1 are merged; give each column its own header cell")
+    assert message == (
+        f"{tmp_path / 'streams.xlsx'}, sheet 'streams', cell C1: the header cells "
+        "C1:D1 are merged; give each column its own header cell"
+    )
 
 
 def test_merged_data_cells(tmp_path):
@@ -421,9 +472,11 @@ def test_merged_data_cells(tmp_path):
     ws.merge_cells("E2:E3")  # one flow for two streams: the second would silently lose it
     ws.parent.save(tmp_path / "streams.xlsx")
     message = run_error(balance_file(tmp_path, "streams_from: streams.xlsx"))
-    assert message == (f"{tmp_path / 'streams.xlsx'}, sheet 'streams', cell E2: the cells E2:E3 "
-                       "are merged: a merged cell keeps its value in its first cell only; unmerge "
-                       "them and write the value in each cell")
+    assert message == (
+        f"{tmp_path / 'streams.xlsx'}, sheet 'streams', cell E2: the cells E2:E3 "
+        "are merged: a merged cell keeps its value in its first cell only; unmerge "
+        "them and write the value in each cell"
+    )
 
 
 def test_duplicate_stream_ids(tmp_path):
@@ -431,8 +484,10 @@ def test_duplicate_stream_ids(tmp_path):
     rows[2][0] = "W1"
     write_xlsx(tmp_path / "streams.xlsx", rows)
     message = run_error(balance_file(tmp_path, "streams_from: streams.xlsx"))
-    assert "sheet 'streams', cell A3: stream W1: the stream id 'W1' is used twice in the table " \
+    assert (
+        "sheet 'streams', cell A3: stream W1: the stream id 'W1' is used twice in the table "
         "(also in sheet 'streams', cell A2)" in message
+    )
 
 
 def test_stream_in_the_table_and_in_the_yaml_file(tmp_path):
@@ -440,8 +495,10 @@ def test_stream_in_the_table_and_in_the_yaml_file(tmp_path):
     body = "streams:\n  W2: {fluid: Water, T: 30 degC, P: 5 bar, flow: 1 kg/s}\n"
     path = balance_file(tmp_path, "streams_from: streams.xlsx", body)
     message = run_error(path)
-    assert f"cell A3: stream W2: stream W2 is written both in the balance file ({path}, line 6) " \
+    assert (
+        f"cell A3: stream W2: stream W2 is written both in the balance file ({path}, line 6) "
         "and in this table; a stream is written in one place" in message
+    )
 
 
 def test_value_in_a_column_without_a_header(tmp_path):
@@ -456,8 +513,10 @@ def test_same_quantity_twice_in_a_row(tmp_path):
     rows = [[*STREAMS[0], "T [K]"], [*STREAMS[1], 293.15], [*STREAMS[2], None]]
     write_xlsx(tmp_path / "streams.xlsx", rows)
     message = run_error(balance_file(tmp_path, "streams_from: streams.xlsx"))
-    assert "cell H2: stream W1: T is given twice in this row (C2 and H2); leave one of them " \
+    assert (
+        "cell H2: stream W1: T is given twice in this row (C2 and H2); leave one of them "
         "empty" in message
+    )
 
 
 def test_validation_errors_point_at_the_cell_or_the_row(tmp_path):
@@ -469,12 +528,25 @@ def test_validation_errors_point_at_the_cell_or_the_row(tmp_path):
     write_xlsx(tmp_path / "streams.xlsx", rows)
     message = run_error(balance_file(tmp_path, "streams_from: streams.xlsx"))
     lines = message.splitlines()
-    assert any(re.search(r"sheet 'streams', cell C2: stream W1, field 'streams\.W1\.T': "
-                         r"'-5 K' is at or below absolute zero", x) for x in lines), message
-    assert any(re.search(r"sheet 'streams', cell F3: stream W2, field 'streams\.W2\.phase': ", x)
-               for x in lines), message
-    assert any(re.search(r"sheet 'streams', row 4: stream W3, field 'streams\.W3': a state "
-                         r"needs exactly one of the pairs", x) for x in lines), message
+    assert any(
+        re.search(
+            r"sheet 'streams', cell C2: stream W1, field 'streams\.W1\.T': "
+            r"'-5 K' is at or below absolute zero",
+            x,
+        )
+        for x in lines
+    ), message
+    assert any(
+        re.search(r"sheet 'streams', cell F3: stream W2, field 'streams\.W2\.phase': ", x) for x in lines
+    ), message
+    assert any(
+        re.search(
+            r"sheet 'streams', row 4: stream W3, field 'streams\.W3': a state "
+            r"needs exactly one of the pairs",
+            x,
+        )
+        for x in lines
+    ), message
 
 
 def test_state_errors_point_at_the_row(tmp_path):
@@ -482,8 +554,9 @@ def test_state_errors_point_at_the_row(tmp_path):
     rows[2][1] = "Unobtainium"
     write_xlsx(tmp_path / "streams.xlsx", rows)
     message = run_error(balance_file(tmp_path, "streams_from: streams.xlsx"))
-    assert re.search(r"streams\.xlsx, sheet 'streams', row 3: stream W2: .*Unobtainium", message), \
+    assert re.search(r"streams\.xlsx, sheet 'streams', row 3: stream W2: .*Unobtainium", message), (
         message
+    )
 
 
 def test_missing_sheet_points_at_the_balance_line(tmp_path):
@@ -491,8 +564,7 @@ def test_missing_sheet_points_at_the_balance_line(tmp_path):
     path = balance_file(tmp_path, "streams_from: {file: streams.xlsx, sheet: HB rev D}")
     message = run_error(path)
     assert message.startswith(f"{path}:4:")
-    assert "the workbook" in message and "has no sheet 'HB rev D'; its sheets are 'streams'" \
-        in message
+    assert "the workbook" in message and "has no sheet 'HB rev D'; its sheets are 'streams'" in message
 
 
 def test_missing_table_file_and_wrong_kinds_of_file(tmp_path):
@@ -500,8 +572,7 @@ def test_missing_table_file_and_wrong_kinds_of_file(tmp_path):
     assert "the table" in run_error(path) and "nowhere.xlsx' does not exist" in run_error(path)
     (tmp_path / "old.xls").write_bytes(b"\xd0\xcf\x11\xe0")
     path = balance_file(tmp_path, "streams_from: old.xls")
-    assert "is a .xls file, which plant-audit does not read; save it as .xlsx or .csv" \
-        in run_error(path)
+    assert "is a .xls file, which plant-audit does not read; save it as .xlsx or .csv" in run_error(path)
     (tmp_path / "fake.xlsx").write_text("not a workbook", encoding="utf-8")
     path = balance_file(tmp_path, "streams_from: fake.xlsx")
     assert "cannot be read as an .xlsx workbook" in run_error(path)
@@ -510,8 +581,11 @@ def test_missing_table_file_and_wrong_kinds_of_file(tmp_path):
 def test_unknown_field_under_streams_from(tmp_path):
     write_xlsx(tmp_path / "streams.xlsx", STREAMS)
     path = balance_file(tmp_path, "streams_from: {file: streams.xlsx, shet: streams}")
-    assert re.search(r":4:\d+: field 'streams_from\.shet': unknown field 'shet'; did you mean "
-                     r"'sheet'\?", run_error(path))
+    assert re.search(
+        r":4:\d+: field 'streams_from\.shet': unknown field 'shet'; did you mean "
+        r"'sheet'\?",
+        run_error(path),
+    )
 
 
 def test_csv_errors_name_row_and_column_without_a_sheet(tmp_path):
@@ -520,15 +594,16 @@ def test_csv_errors_name_row_and_column_without_a_sheet(tmp_path):
     with (tmp_path / "streams.csv").open("w", newline="", encoding="utf-8") as stream:
         csv.writer(stream).writerows(rows)
     message = run_error(balance_file(tmp_path, "streams_from: streams.csv"))
-    assert message == (f"{tmp_path / 'streams.csv'}, cell D3: stream W2: '4,5' is not a number; "
-                       "write the decimal point as '.'")
+    assert message == (
+        f"{tmp_path / 'streams.csv'}, cell D3: stream W2: '4,5' is not a number; "
+        "write the decimal point as '.'"
+    )
 
 
 def test_table_with_headers_only(tmp_path):
     write_xlsx(tmp_path / "streams.xlsx", [STREAMS[0]])
     message = run_error(balance_file(tmp_path, "streams_from: streams.xlsx"))
-    assert "sheet 'streams', row 1: the stream table has a header row but no stream rows" \
-        in message
+    assert "sheet 'streams', row 1: the stream table has a header row but no stream rows" in message
 
 
 # -- the folder rule -----------------------------------------------------------------------------
@@ -565,8 +640,11 @@ def test_subfolder_is_inside(tmp_path):
 
 # -- claim tables --------------------------------------------------------------------------------
 CLAIMS = [  # the clean revision's claims, as printed there
-    ("T1", "shaft_power", 1.148, "MW"), ("T1", "isentropic_efficiency", 0.75, None),
-    ("B1", "duty", 8.30, "MW"), ("HX1", "duty", 4.48, "MW"), ("C1", "shaft_power", 152.3, "kW"),
+    ("T1", "shaft_power", 1.148, "MW"),
+    ("T1", "isentropic_efficiency", 0.75, None),
+    ("B1", "duty", 8.30, "MW"),
+    ("HX1", "duty", 4.48, "MW"),
+    ("C1", "shaft_power", 152.3, "kW"),
     ("CIP1", "work_absorbed", 1.5, "MJ"),
 ]
 
@@ -585,9 +663,11 @@ def _table_variant_with_claims(tmp_path: Path) -> Path:
 
 def test_claims_from_a_table_audit_like_the_yaml_revision(tmp_path):
     path = _table_variant_with_claims(tmp_path)
-    write_xlsx(tmp_path / "claims.xlsx",
-               [CLAIM_HEADERS] + [[s, f, v, u, "from the data sheet"] for s, f, v, u in CLAIMS],
-               sheet="claims")
+    write_xlsx(
+        tmp_path / "claims.xlsx",
+        [CLAIM_HEADERS] + [[s, f, v, u, "from the data sheet"] for s, f, v, u in CLAIMS],
+        sheet="claims",
+    )
     assert comparable(audit.run(path)) == comparable(audit.run(CLEAN))
 
 
@@ -601,19 +681,29 @@ def test_claim_table_errors_name_the_cell(tmp_path):
     write_xlsx(tmp_path / "claims.xlsx", rows, sheet="claims")
     message = run_error(path)
     claims = tmp_path / "claims.xlsx"
-    assert f"{claims}, sheet 'claims', cell A8: 'HX2' is not a step of the balance file; did " \
+    assert (
+        f"{claims}, sheet 'claims', cell A8: 'HX2' is not a step of the balance file; did "
         "you mean 'HX1'?" in message
-    assert re.search(r"sheet 'claims', cell C9: step P1: the claim 'shaft_power' of step P1 is "
-                     r"written both in the balance file \(.*balance\.yaml, line \d+\) and in this "
-                     r"table", message), message
-    assert "sheet 'claims', cell C11: step C1: the claim 'shaft_power' of step C1 is given twice " \
+    )
+    assert re.search(
+        r"sheet 'claims', cell C9: step P1: the claim 'shaft_power' of step P1 is "
+        r"written both in the balance file \(.*balance\.yaml, line \d+\) and in this "
+        r"table",
+        message,
+    ), message
+    assert (
+        "sheet 'claims', cell C11: step C1: the claim 'shaft_power' of step C1 is given twice "
         "in the table (also in sheet 'claims', cell C6)" in message
+    )
     # the first pass stops at table errors; the unknown field is reported once they are fixed
     rows = rows[:7] + [rows[9]]
     write_xlsx(tmp_path / "claims.xlsx", rows, sheet="claims")
     message = run_error(path)
-    assert re.search(r"sheet 'claims', cell C8: step C1, field 'steps\[\d+\]\.shaft_powr': "
-                     r"unknown field 'shaft_powr'; did you mean 'shaft_power'\?", message), message
+    assert re.search(
+        r"sheet 'claims', cell C8: step C1, field 'steps\[\d+\]\.shaft_powr': "
+        r"unknown field 'shaft_powr'; did you mean 'shaft_power'\?",
+        message,
+    ), message
 
 
 # -- template ------------------------------------------------------------------------------------
@@ -638,8 +728,10 @@ def test_template_refuses_to_overwrite_and_needs_xlsx(tmp_path, capsys):
     target = tmp_path / "streams.xlsx"
     target.write_bytes(b"precious")
     assert main(["template", "--streams", str(target)]) == 2
-    assert "the file exists; writing a template would replace its contents (add --force" \
+    assert (
+        "the file exists; writing a template would replace its contents (add --force"
         in capsys.readouterr().err
+    )
     assert target.read_bytes() == b"precious"
     assert main(["template", "--streams", str(target), "--force"]) == 0
     assert main(["template", "--streams", str(tmp_path / "streams.csv")]) == 2
@@ -652,8 +744,9 @@ def test_template_filled_with_the_sample_streams_audits_cleanly(tmp_path):
     wb = openpyxl.load_workbook(target)
     ws = wb["streams"]
     template_headers = [c.value for c in ws[1]]
-    headers, rows, left_out = table_rows(load_document(CLEAN).data["streams"], template_headers,
-                                         stream_kinds())
+    headers, rows, left_out = table_rows(
+        load_document(CLEAN).data["streams"], template_headers, stream_kinds()
+    )
     assert left_out == []
     ws.delete_rows(1)
     ws.append(headers)  # the template's headers, with a column for each further unit

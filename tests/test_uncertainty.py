@@ -46,11 +46,14 @@ steps:
 """
 
 
-def _heater(tmp_path, uncertainty: str, duty: str = "8.5 MW", stream_extra: str = "",
-            step_extra: str = ""):
-    return audit_text(tmp_path, HEATER.format(duty=duty, stream_extra=stream_extra,
-                                              step_extra=step_extra),
-                      header=MEASURED.format(uncertainty=uncertainty))
+def _heater(
+    tmp_path, uncertainty: str, duty: str = "8.5 MW", stream_extra: str = "", step_extra: str = ""
+):
+    return audit_text(
+        tmp_path,
+        HEATER.format(duty=duty, stream_extra=stream_extra, step_extra=step_extra),
+        header=MEASURED.format(uncertainty=uncertainty),
+    )
 
 
 def _h_iapws95(T_C: float, P_bar: float) -> float:
@@ -98,8 +101,12 @@ def test_heater_residual_variance_is_exact_for_duty_and_flow_iapws95(tmp_path):
     # inlet flow's 1 % give u²(r) = (0.02 Q)² + (0.01 ṁ (h_B − h_A))²; the outlet's flow follows
     # the inlet's by conservation of mass (one flow, fully correlated: GUM §5.2), so it adds
     # nothing. h from IAPWS-95 (iapws), independent of CoolProp.
-    result = _heater(tmp_path, "{basis: design, flow: 1 %, duty: 2 %}", stream_extra=(
-        ", uncertainty: measured"), step_extra=", uncertainty: measured")
+    result = _heater(
+        tmp_path,
+        "{basis: design, flow: 1 %, duty: 2 %}",
+        stream_extra=(", uncertainty: measured"),
+        step_extra=", uncertainty: measured",
+    )
     finding = _only(result, "B1", "energy-imbalance")
     m = 10.8 / 3.6
     dh = _h_iapws95(400.0, 40.0 + SITE) - _h_iapws95(105.0, 41.5 + SITE)
@@ -115,8 +122,9 @@ def test_heater_residual_variance_is_exact_for_duty_and_flow_iapws95(tmp_path):
 def test_expanded_k2_declaration_is_halved_to_a_standard_uncertainty(tmp_path):
     # A spread declared with coverage expanded-k2 is U = 2u (GUM §6.2): 4 % expanded = 2 % standard.
     standard = _heater(tmp_path, "{basis: design}", step_extra=", uncertainty: {duty: 2 %}")
-    expanded = _heater(tmp_path, "{basis: design}",
-                       step_extra=", uncertainty: {duty: 4 %, coverage: expanded-k2}")
+    expanded = _heater(
+        tmp_path, "{basis: design}", step_extra=", uncertainty: {duty: 4 %, coverage: expanded-k2}"
+    )
     a = _only(standard, "B1", "energy-imbalance").uncertainty
     b = _only(expanded, "B1", "energy-imbalance").uncertainty
     assert_close(a, 2 * 0.02 * 8.5e6, "kW", rtol=1e-12)
@@ -124,16 +132,23 @@ def test_expanded_k2_declaration_is_halved_to_a_standard_uncertainty(tmp_path):
 
 
 def test_design_basis_counts_only_what_is_declared(tmp_path):
-    result = _heater(tmp_path, "{basis: design, temperature: 0.5 K, flow: 1 %, duty: 2 %}",
-                     step_extra=", uncertainty: {duty: 1 %}")
+    result = _heater(
+        tmp_path,
+        "{basis: design, temperature: 0.5 K, flow: 1 %, duty: 2 %}",
+        step_extra=", uncertainty: {duty: 1 %}",
+    )
     finding = _only(result, "B1", "energy-imbalance")
     assert [c.input for c in finding.contributors] == ["step B1 duty"]
     assert_close(finding.uncertainty, 2 * 0.01 * 8.5e6, "kW", rtol=1e-12)
 
 
 def test_exact_stream_and_step_take_no_default(tmp_path):
-    result = _heater(tmp_path, "{temperature: 0.5 K, flow: 1 %, duty: 2 %}",
-                     stream_extra=", uncertainty: exact", step_extra=", uncertainty: exact")
+    result = _heater(
+        tmp_path,
+        "{temperature: 0.5 K, flow: 1 %, duty: 2 %}",
+        stream_extra=", uncertainty: exact",
+        step_extra=", uncertainty: exact",
+    )
     finding = _only(result, "B1", "energy-imbalance")
     assert finding.uncertainty == 0.0 and finding.contributors == ()
     assert finding.verdict == VIOLATED
@@ -166,13 +181,13 @@ def test_monte_carlo_agrees_with_linear_propagation_on_a_steam_valve(tmp_path):
     result = audit.run(_write(tmp_path, header + VALVE), monte_carlo=1000)
     finding = _only(result, "V1", "valve-not-isenthalpic")
     sampling = 1.0 / math.sqrt(2.0 * 999)
-    assert finding.monte_carlo_uncertainty == pytest.approx(finding.uncertainty,
-                                                            rel=3.0 * sampling)
+    assert finding.monte_carlo_uncertainty == pytest.approx(finding.uncertainty, rel=3.0 * sampling)
     assert "1000 draws per step" in result.provenance["uncertainty, Monte Carlo"]
     again = audit.run(_write(tmp_path, header + VALVE), monte_carlo=1000)
     # a fixed seed: the same draws, the same number
     assert _only(again, "V1", "valve-not-isenthalpic").monte_carlo_uncertainty == (
-        finding.monte_carlo_uncertainty)
+        finding.monte_carlo_uncertainty
+    )
 
 
 def _write(tmp_path, text: str):
@@ -186,9 +201,9 @@ def _write(tmp_path, text: str):
 # -- verdicts --------------------------------------------------------------------------------------
 def test_verdict_bands():
     # the interval [m − U, m + U] against the tolerance t and zero (module docstring)
-    assert verdict(10.0, 2.0, 5.0) == VIOLATED   # 8 > 5
-    assert verdict(10.0, 5.0, 5.0) == MARGINAL   # 5 ≤ 5, > 0
-    assert verdict(10.0, 9.0, 5.0) == MARGINAL   # 1 > 0
+    assert verdict(10.0, 2.0, 5.0) == VIOLATED  # 8 > 5
+    assert verdict(10.0, 5.0, 5.0) == MARGINAL  # 5 ≤ 5, > 0
+    assert verdict(10.0, 9.0, 5.0) == MARGINAL  # 1 > 0
     assert verdict(10.0, 10.0, 5.0) == CONSISTENT
     assert verdict(10.0, 0.0, 0.0) == VIOLATED
 
@@ -201,11 +216,14 @@ def test_verdict_switches_as_declared_uncertainty_grows_past_the_margin(tmp_path
     m, t, Q = finding.margin, finding.tolerance, 8.5e6
     low, high = (m - t) / (2 * Q), m / (2 * Q)
     expected = []
-    for x, verdict_, severity in ((0.5 * low, VIOLATED, "error"),
-                                  (0.5 * (low + high), MARGINAL, "warning"),
-                                  (1.5 * high, CONSISTENT, "info")):
-        result = _heater(tmp_path, "{basis: design}",
-                         step_extra=f", uncertainty: {{duty: {100 * x:.6f} %}}")
+    for x, verdict_, severity in (
+        (0.5 * low, VIOLATED, "error"),
+        (0.5 * (low + high), MARGINAL, "warning"),
+        (1.5 * high, CONSISTENT, "info"),
+    ):
+        result = _heater(
+            tmp_path, "{basis: design}", step_extra=f", uncertainty: {{duty: {100 * x:.6f} %}}"
+        )
         found = _only(result, "B1", "energy-imbalance")
         assert (found.verdict, found.severity) == (verdict_, severity), x
         assert_close(found.uncertainty, 2 * x * Q, "kW", rtol=1e-5)  # x printed to 6 places
@@ -214,7 +232,8 @@ def test_verdict_switches_as_declared_uncertainty_grows_past_the_margin(tmp_path
     assert violated.fails() and not marginal.fails() and marginal.fails(marginal=True)
     assert not consistent.fails(marginal=True)
     assert "marginal: beyond the tolerance, but not by more than the uncertainty" in (
-        _only(marginal, "B1", "energy-imbalance").message)
+        _only(marginal, "B1", "energy-imbalance").message
+    )
 
 
 def test_fail_on_marginal_sets_the_exit_code(tmp_path):
@@ -261,18 +280,37 @@ def test_measured_sample_says_which_violation_is_certain_and_which_marginal(caps
 
 
 # -- declarations and their messages ------------------------------------------------------------
-@pytest.mark.parametrize(("text", "kind", "message"), [
-    ("1 %", "temperature", r"a temperature uncertainty is absolute, such as '0\.5 K'; '1 %' is "
-                           r"relative"),
-    ("-1 %", "flow", r"an uncertainty is at least zero; got '-1 %'"),
-    ("1 %", "quality", r"a quality uncertainty is a plain number such as 0\.01 \(an absolute "
-                       r"fraction\), not '1 %'"),
-    ("inf", "quality", r"an uncertainty is a finite number; got 'inf'"),
-    ("0.1 K", "pressure", r"a pressure uncertainty is written like '0\.25 %' or '0\.02 bar': "
-                          r"'0\.1 K' is not a pressure"),
-    ("5 W", "flow", r"a flow uncertainty is written like '1 %' or '0\.05 kg/s': '5 W' is not a "
-                    r"flow"),
-])
+@pytest.mark.parametrize(
+    ("text", "kind", "message"),
+    [
+        (
+            "1 %",
+            "temperature",
+            r"a temperature uncertainty is absolute, such as '0\.5 K'; '1 %' is "
+            r"relative",
+        ),
+        ("-1 %", "flow", r"an uncertainty is at least zero; got '-1 %'"),
+        (
+            "1 %",
+            "quality",
+            r"a quality uncertainty is a plain number such as 0\.01 \(an absolute "
+            r"fraction\), not '1 %'",
+        ),
+        ("inf", "quality", r"an uncertainty is a finite number; got 'inf'"),
+        (
+            "0.1 K",
+            "pressure",
+            r"a pressure uncertainty is written like '0\.25 %' or '0\.02 bar': "
+            r"'0\.1 K' is not a pressure",
+        ),
+        (
+            "5 W",
+            "flow",
+            r"a flow uncertainty is written like '1 %' or '0\.05 kg/s': '5 W' is not a "
+            r"flow",
+        ),
+    ],
+)
 def test_spread_messages(text, kind, message):
     with pytest.raises(InputError, match=message):
         parse_spread(text, kind)
@@ -287,31 +325,51 @@ def test_spreads_in_si():
     assert coverage_divisor("expanded-k2") == 2.0 and coverage_divisor("standard") == 1.0
 
 
-@pytest.mark.parametrize(("uncertainty", "step_extra", "stream_extra", "message"), [
-    ("{coverage: expanded}", "", "",
-     r"field 'balance\.uncertainty\.coverage': unknown coverage 'expanded'; write 'standard'"),
-    ("{temprature: 0.5 K}", "", "",
-     r"unknown field 'temprature'; did you mean 'temperature'\?"),
-    ("{basis: design}", ", uncertainty: {dutty: 1 %}", "",
-     r"step B1.*the uncertainty names 'dutty', which is not a claim this step gives; its claims "
-     r"are: duty"),
-    ("{basis: design}", ", uncertainty: {duty: 1 K}", "",
-     r"a power uncertainty is written like '0\.5 %' or '5 kW': '1 K' is not a power"),
-    ("{basis: design}", "", ", uncertainty: {flow: 0.1 kmol/h}",
-     r"stream A: the flow uncertainty '0\.1 kmol/h' is a molar flow, but the flow of stream A is "
-     r"a mass flow; give it in % or in the same kind of flow"),
-])
-def test_declaration_errors_name_the_place(tmp_path, uncertainty, step_extra, stream_extra,
-                                           message):
+@pytest.mark.parametrize(
+    ("uncertainty", "step_extra", "stream_extra", "message"),
+    [
+        (
+            "{coverage: expanded}",
+            "",
+            "",
+            r"field 'balance\.uncertainty\.coverage': unknown coverage 'expanded'; write 'standard'",
+        ),
+        ("{temprature: 0.5 K}", "", "", r"unknown field 'temprature'; did you mean 'temperature'\?"),
+        (
+            "{basis: design}",
+            ", uncertainty: {dutty: 1 %}",
+            "",
+            r"step B1.*the uncertainty names 'dutty', which is not a claim this step gives; its claims "
+            r"are: duty",
+        ),
+        (
+            "{basis: design}",
+            ", uncertainty: {duty: 1 K}",
+            "",
+            r"a power uncertainty is written like '0\.5 %' or '5 kW': '1 K' is not a power",
+        ),
+        (
+            "{basis: design}",
+            "",
+            ", uncertainty: {flow: 0.1 kmol/h}",
+            r"stream A: the flow uncertainty '0\.1 kmol/h' is a molar flow, but the flow of stream A is "
+            r"a mass flow; give it in % or in the same kind of flow",
+        ),
+    ],
+)
+def test_declaration_errors_name_the_place(tmp_path, uncertainty, step_extra, stream_extra, message):
     with pytest.raises(InputError, match=message):
         _heater(tmp_path, uncertainty, stream_extra=stream_extra, step_extra=step_extra)
 
 
 def test_measured_without_defaults_is_an_error(tmp_path):
     body = HEATER.format(duty="8.5 MW", stream_extra=", uncertainty: measured", step_extra="")
-    with pytest.raises(InputError, match=r"balance\.yaml:\d+:\d+: stream A: says 'measured', but "
-                       r"the balance declares no default uncertainties under 'balance: "
-                       r"uncertainty:'"):
+    with pytest.raises(
+        InputError,
+        match=r"balance\.yaml:\d+:\d+: stream A: says 'measured', but "
+        r"the balance declares no default uncertainties under 'balance: "
+        r"uncertainty:'",
+    ):
         audit_text(tmp_path, body)
 
 

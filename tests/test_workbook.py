@@ -69,8 +69,15 @@ UNUSED_ID = "@S99"
 
 
 def _yaml_quoted(text: str) -> str:
-    return '"' + text.replace("\\", "\\\\").replace('"', '\\"').replace("\t", "\\t").replace(
-        "\r", "\\r").replace("\x07", "\\a") + '"'
+    return (
+        '"'
+        + text.replace("\\", "\\\\")
+        .replace('"', '\\"')
+        .replace("\t", "\\t")
+        .replace("\r", "\\r")
+        .replace("\x07", "\\a")
+        + '"'
+    )
 
 
 def _injected_balance(folder: Path) -> Path:
@@ -84,13 +91,12 @@ def _injected_balance(folder: Path) -> Path:
         "description: turbine exhaust}": f"description: {_yaml_quoted(INJECTED['S04'])}}}",
         "description: to process heater}": f"description: {_yaml_quoted(INJECTED['S05'])}}}",
         "description: to letdown valve}": f"description: {_yaml_quoted(INJECTED['S06'])}}}",
-        "description: condensate return (boundary)}":
-            f"description: {_yaml_quoted(INJECTED['S07'])}}}",
+        "description: condensate return (boundary)}": f"description: {_yaml_quoted(INJECTED['S07'])}}}",
         "description: process water in}": f"description: {_yaml_quoted(INJECTED['S10'])}}}",
         "description: process water out}": f"description: {_yaml_quoted('bell' + chr(7))}}}",
         "description: boiler feed pump": f"description: {_yaml_quoted(INJECTED['P1'])}",
         "\nsteps:": f"\n  {_yaml_quoted(UNUSED_ID)}: {{fluid: Water, T: 20 degC, P: 1.013 bar, "
-                    f"flow: 1 kg/s, description: {_yaml_quoted('-unused')}}}\n\nsteps:",
+        f"flow: 1 kg/s, description: {_yaml_quoted('-unused')}}}\n\nsteps:",
     }
     for old, new in replacements.items():
         assert text.count(old) == 1, old
@@ -157,32 +163,78 @@ def _overview_value(ws, label: str):
 # -- structure -------------------------------------------------------------------------------------
 def test_sheets_have_plain_names_in_order(book):
     assert book.sheetnames == list(SHEETS)
-    assert book.sheetnames == ["Overview", "Findings", "Steps", "Streams", "Heat flows",
-                               "Exergy losses", "Method"]
+    assert book.sheetnames == [
+        "Overview",
+        "Findings",
+        "Steps",
+        "Streams",
+        "Heat flows",
+        "Exergy losses",
+        "Method",
+    ]
 
 
 def test_headers_name_engineering_units(book):
     streams = _headers(book[STREAMS])
-    for header in ("T [°C]", "P [bar abs]", "quality [-]", "mass flow [kg/s]", "h [kJ/kg]",
-                   "s [kJ/(kg·K)]", "u [kJ/kg]", "g = h − T·s [kJ/kg]", "a = u − T·s [kJ/kg]",
-                   "ψ flow exergy [kJ/kg]", "phase", "basis"):
+    for header in (
+        "T [°C]",
+        "P [bar abs]",
+        "quality [-]",
+        "mass flow [kg/s]",
+        "h [kJ/kg]",
+        "s [kJ/(kg·K)]",
+        "u [kJ/kg]",
+        "g = h − T·s [kJ/kg]",
+        "a = u − T·s [kJ/kg]",
+        "ψ flow exergy [kJ/kg]",
+        "phase",
+        "basis",
+    ):
         assert header in streams
     steps = _headers(book[STEPS])
-    for header in ("Q heat in [kW | vessel kJ]", "W work out [kW | vessel kJ]", "ΔH [kW | kJ]",
-                   "ΔU [kW | kJ]", "ΔS [kW/K | kJ/K]", "ΔG [kW | kJ]", "ΔA [kW | kJ]",
-                   "Ṡ_gen [kW/K | kJ/K]", "Ẇ_rev [kW | kJ]", "exergy destroyed T0·Ṡ_gen [kW | kJ]",
-                   "second-law efficiency [%]", "isentropic efficiency [%]", "bound basis",
-                   "claimed", "inferred", "basis", RESIDUAL_FORMULA, RESIDUAL_SOLVER):
+    for header in (
+        "Q heat in [kW | vessel kJ]",
+        "W work out [kW | vessel kJ]",
+        "ΔH [kW | kJ]",
+        "ΔU [kW | kJ]",
+        "ΔS [kW/K | kJ/K]",
+        "ΔG [kW | kJ]",
+        "ΔA [kW | kJ]",
+        "Ṡ_gen [kW/K | kJ/K]",
+        "Ẇ_rev [kW | kJ]",
+        "exergy destroyed T0·Ṡ_gen [kW | kJ]",
+        "second-law efficiency [%]",
+        "isentropic efficiency [%]",
+        "bound basis",
+        "claimed",
+        "inferred",
+        "basis",
+        RESIDUAL_FORMULA,
+        RESIDUAL_SOLVER,
+    ):
         assert header in steps
     assert _headers(book[FINDINGS])[:11] == [
-        "severity", "finding", "step", "stream", "claimed", "bound or expected", "unit", "margin",
-        "margin unit", "margin [%]", "tolerance [margin unit]"]
+        "severity",
+        "finding",
+        "step",
+        "stream",
+        "claimed",
+        "bound or expected",
+        "unit",
+        "margin",
+        "margin unit",
+        "margin [%]",
+        "tolerance [margin unit]",
+    ]
 
 
 def test_header_rows_frozen_and_filtered(book, seeded):
-    expected_rows = {FINDINGS: len(seeded.findings) + 1, STEPS: len(seeded.steps) + 1,
-                     STREAMS: len(seeded.streams) + 1,
-                     HEAT: sum(len(s.heat_flows) for s in seeded.steps) + 1}
+    expected_rows = {
+        FINDINGS: len(seeded.findings) + 1,
+        STEPS: len(seeded.steps) + 1,
+        STREAMS: len(seeded.streams) + 1,
+        HEAT: sum(len(s.heat_flows) for s in seeded.steps) + 1,
+    }
     for title, last_row in expected_rows.items():
         ws = book[title]
         assert ws.freeze_panes in ("B2", "C2"), title
@@ -203,8 +255,18 @@ def test_column_widths_fit_their_content(book):
 # -- numbers and units -----------------------------------------------------------------------------
 def test_numbers_are_stored_as_numbers_with_formats(book):
     ws = book[STREAMS]
-    text_columns = {"stream", "fluid", "description", "findings", "from step", "to step", "phase",
-                    "declared phase", "flow as written", "basis"}
+    text_columns = {
+        "stream",
+        "fluid",
+        "description",
+        "findings",
+        "from step",
+        "to step",
+        "phase",
+        "declared phase",
+        "flow as written",
+        "basis",
+    }
     for col, header in enumerate(_headers(ws), start=1):
         if header in text_columns:
             continue
@@ -219,23 +281,31 @@ def test_numbers_are_stored_as_numbers_with_formats(book):
     assert ws.cell(row=row, column=_column(ws, "T [°C]")).number_format == FORMATS["temperature"]
     assert ws.cell(row=row, column=_column(ws, "h [kJ/kg]")).number_format == "#,##0.00"
     findings = book[FINDINGS]
-    assert all(findings.cell(row=r, column=10).number_format == "0.0%"
-               for r in range(2, findings.max_row + 1))
+    assert all(
+        findings.cell(row=r, column=10).number_format == "0.0%" for r in range(2, findings.max_row + 1)
+    )
 
 
 def test_pandas_reads_numbers_as_numbers(book_path, seeded):
     sheets = pd.read_excel(book_path, sheet_name=None)
     assert list(sheets) == list(SHEETS)
     streams = sheets[STREAMS]
-    for header in ("T [°C]", "P [bar abs]", "mass flow [kg/s]", "h [kJ/kg]", "s [kJ/(kg·K)]",
-                   "ψ flow exergy [kJ/kg]"):
+    for header in (
+        "T [°C]",
+        "P [bar abs]",
+        "mass flow [kg/s]",
+        "h [kJ/kg]",
+        "s [kJ/(kg·K)]",
+        "ψ flow exergy [kJ/kg]",
+    ):
         assert pd.api.types.is_float_dtype(streams[header]), header
     steps = sheets[STEPS].set_index("step")
     # the formula column carries its cached value, so a reader that does not calculate sees it
     assert pd.api.types.is_float_dtype(steps[RESIDUAL_FORMULA])
     for step in seeded.steps:
         assert steps.loc[step.id, RESIDUAL_FORMULA] == pytest.approx(
-            step.energy_residual / 1e3, rel=1e-15, abs=1e-15)
+            step.energy_residual / 1e3, rel=1e-15, abs=1e-15
+        )
     findings = sheets[FINDINGS]
     expected = sorted((f.severity for f in seeded.findings), key=lambda s: -SEVERITY_RANK[s])
     assert findings["severity"].tolist() == expected
@@ -260,10 +330,10 @@ def test_stream_values_against_iapws95(book):
     hot = IAPWS95(T=673.15, P=4.1013)  # MPa
     feed = IAPWS95(T=378.15, P=0.16)
     dead = IAPWS95(T=298.15, P=0.101325)
-    assert cell("S03", "h [kJ/kg]") - cell("S01", "h [kJ/kg]") == pytest.approx(
-        hot.h - feed.h, abs=0.01)
+    assert cell("S03", "h [kJ/kg]") - cell("S01", "h [kJ/kg]") == pytest.approx(hot.h - feed.h, abs=0.01)
     assert cell("S03", "s [kJ/(kg·K)]") - cell("S01", "s [kJ/(kg·K)]") == pytest.approx(
-        hot.s - feed.s, abs=1e-5)
+        hot.s - feed.s, abs=1e-5
+    )
     psi = (hot.h - dead.h) - 298.15 * (hot.s - dead.s)
     assert cell("S03", "ψ flow exergy [kJ/kg]") == pytest.approx(psi, abs=0.01)
     assert cell("S03", "basis") == "formation"
@@ -275,8 +345,9 @@ def test_rates_in_kw_and_vessel_totals_in_kj(book):
     balance file): the workbook shows 1 450 kW (a rate) and 458 600 kJ, −1 500 kJ (totals), each
     with its unit in the basis column and in the cell's number format."""
     ws = book[STEPS]
-    q, w, basis = (_column(ws, h) for h in ("Q heat in [kW | vessel kJ]",
-                                            "W work out [kW | vessel kJ]", "basis"))
+    q, w, basis = (
+        _column(ws, h) for h in ("Q heat in [kW | vessel kJ]", "W work out [kW | vessel kJ]", "basis")
+    )
     turbine, vessel = _row_of(ws, "T1"), _row_of(ws, "CIP1")
     assert ws.cell(row=turbine, column=w).value == pytest.approx(1450.0, abs=1e-9)
     assert ws.cell(row=turbine, column=basis).value == "rate (kW)"
@@ -286,8 +357,7 @@ def test_rates_in_kw_and_vessel_totals_in_kj(book):
     assert ws.cell(row=vessel, column=basis).value == "total (kJ)"
     for col in (q, w, _column(ws, RESIDUAL_FORMULA), _column(ws, "ΔU [kW | kJ]")):
         assert ws.cell(row=vessel, column=col).number_format.endswith('" kJ"')
-    assert ws.cell(row=vessel, column=_column(ws, "ΔS [kW/K | kJ/K]")).number_format.endswith(
-        '" kJ/K"')
+    assert ws.cell(row=vessel, column=_column(ws, "ΔS [kW/K | kJ/K]")).number_format.endswith('" kJ/K"')
     heat = book[HEAT]
     row = _row_of(heat, "CIP1")
     assert heat.cell(row=row, column=2).value == "total (kJ)"
@@ -304,8 +374,10 @@ def test_exergy_destroyed_is_t0_times_entropy_generation(book, seeded):
 
 
 # -- the first-law residual formula ----------------------------------------------------------------
-_FORMULA = re.compile(r"^=([A-Z]+)(\d+)-([A-Z]+)\2-\(([A-Z]+)\2-([A-Z]+)\2\)"
-                      r"(?:-\(([A-Z]+)\2-([A-Z]+)\2\))?$")
+_FORMULA = re.compile(
+    r"^=([A-Z]+)(\d+)-([A-Z]+)\2-\(([A-Z]+)\2-([A-Z]+)\2\)"
+    r"(?:-\(([A-Z]+)\2-([A-Z]+)\2\))?$"
+)
 
 
 def test_residual_formula_reproduces_the_solver_from_its_cells(book, cached, seeded):
@@ -314,10 +386,14 @@ def test_residual_formula_reproduces_the_solver_from_its_cells(book, cached, see
     so the arithmetic agrees with the solver to 1e-13 of the terms' magnitude."""
     ws, values = book[STEPS], cached[STEPS]
     col = _column(ws, RESIDUAL_FORMULA)
-    names = {"Q heat in [kW | vessel kJ]": "Q", "W work out [kW | vessel kJ]": "W",
-             "enthalpy flow out Σṁh [kW | vessel m·u2 kJ]": "H_out",
-             "enthalpy flow in Σṁh [kW | vessel m·u1 kJ]": "H_in",
-             "kinetic+potential out [kW]": "KE_out", "kinetic+potential in [kW]": "KE_in"}
+    names = {
+        "Q heat in [kW | vessel kJ]": "Q",
+        "W work out [kW | vessel kJ]": "W",
+        "enthalpy flow out Σṁh [kW | vessel m·u2 kJ]": "H_out",
+        "enthalpy flow in Σṁh [kW | vessel m·u1 kJ]": "H_in",
+        "kinetic+potential out [kW]": "KE_out",
+        "kinetic+potential in [kW]": "KE_in",
+    }
     for step in seeded.steps:
         row = _row_of(ws, step.id)
         formula = ws.cell(row=row, column=col).value
@@ -336,9 +412,11 @@ def test_residual_formula_reproduces_the_solver_from_its_cells(book, cached, see
         assert residual == pytest.approx(step.energy_residual / 1e3, abs=1e-13 * magnitude)
         # the cached value is the solver's residual itself
         assert values.cell(row=row, column=col).value == pytest.approx(
-            step.energy_residual / 1e3, rel=1e-15, abs=1e-15)
+            step.energy_residual / 1e3, rel=1e-15, abs=1e-15
+        )
         assert values.cell(row=row, column=_column(ws, RESIDUAL_SOLVER)).value == pytest.approx(
-            step.energy_residual / 1e3, rel=1e-15, abs=1e-15)
+            step.energy_residual / 1e3, rel=1e-15, abs=1e-15
+        )
 
 
 def test_only_the_residual_column_holds_formulas(book):
@@ -347,15 +425,15 @@ def test_only_the_residual_column_holds_formulas(book):
             for cell in row:
                 if cell.data_type == "f":
                     assert ws.title == STEPS and ws.cell(row=1, column=cell.column).value == (
-                        RESIDUAL_FORMULA), (ws.title, cell.coordinate)
+                        RESIDUAL_FORMULA
+                    ), (ws.title, cell.coordinate)
 
 
 def test_residual_turns_red_beyond_tolerance(book):
     rules = book[STEPS].conditional_formatting
     formulas = [rule.formula[0] for entry in rules for rule in entry.rules]
     residual = openpyxl.utils.get_column_letter(_column(book[STEPS], RESIDUAL_FORMULA))
-    tolerance = openpyxl.utils.get_column_letter(
-        _column(book[STEPS], "energy tolerance [kW | kJ]"))
+    tolerance = openpyxl.utils.get_column_letter(_column(book[STEPS], "energy tolerance [kW | kJ]"))
     assert formulas == [f"AND(ISNUMBER({residual}2),ABS({residual}2)>{tolerance}2)"]
 
 
@@ -370,8 +448,10 @@ def test_libreoffice_recalculates_the_residual(injected, tmp_path):
     significant digits, so the tolerance is 1e-12 of the terms' magnitude."""
     soffice = _soffice()
     if soffice is None:
-        pytest.skip("LibreOffice (soffice) is not installed: the recalculation check needs it "
-                    "(apt-get install libreoffice-calc)")
+        pytest.skip(
+            "LibreOffice (soffice) is not installed: the recalculation check needs it "
+            "(apt-get install libreoffice-calc)"
+        )
     result, path, _ = injected
     zeroed = tmp_path / "zeroed.xlsx"
     with zipfile.ZipFile(path) as source, zipfile.ZipFile(zeroed, "w") as target:
@@ -392,12 +472,27 @@ def test_libreoffice_recalculates_the_residual(injected, tmp_path):
         'xmlns:xsi="http://www.w3.org/2001/XMLSchema-instance">\n'
         '<item oor:path="/org.openoffice.Office.Calc/Formula/Load">'
         '<prop oor:name="OOXMLRecalcMode" oor:op="fuse"><value>0</value></prop></item>\n'
-        '</oor:items>\n', encoding="utf-8")
+        "</oor:items>\n",
+        encoding="utf-8",
+    )
     out = tmp_path / "out"
     completed = subprocess.run(
-        [soffice, "--headless", "--norestore", f"-env:UserInstallation={profile.as_uri()}",
-         "--convert-to", "xlsx", "--outdir", str(out), str(zeroed)],
-        capture_output=True, text=True, timeout=240, check=False)
+        [
+            soffice,
+            "--headless",
+            "--norestore",
+            f"-env:UserInstallation={profile.as_uri()}",
+            "--convert-to",
+            "xlsx",
+            "--outdir",
+            str(out),
+            str(zeroed),
+        ],
+        capture_output=True,
+        text=True,
+        timeout=240,
+        check=False,
+    )
     converted = out / "zeroed.xlsx"
     assert converted.exists(), completed.stdout + completed.stderr
     recalculated = openpyxl.load_workbook(converted, data_only=True)
@@ -407,7 +502,8 @@ def test_libreoffice_recalculates_the_residual(injected, tmp_path):
         row = _row_of(ws, step.id)
         magnitude = (abs(step.Q) + abs(step.W) + abs(step.H_in) + abs(step.H_out)) / 1e3
         assert ws.cell(row=row, column=col).value == pytest.approx(
-            step.energy_residual / 1e3, abs=1e-12 * magnitude), step.id
+            step.energy_residual / 1e3, abs=1e-12 * magnitude
+        ), step.id
     streams = recalculated[STREAMS]
     assert streams.cell(row=_row_of(streams, "S10"), column=3).value == "=1+1"
     assert streams.cell(row=_row_of(streams, "S02"), column=3).value == INJECTED["S02"]
@@ -428,18 +524,19 @@ def test_findings_carry_their_numbers_in_display_units(book, seeded):
     """T1's work-above-bound: claimed 1.45 MW (the balance file) against a bound of about
     1.41 MW (sample_plant/README.md), in kW, with the margin in kW and %."""
     ws = book[FINDINGS]
-    row = next(r for r in range(2, ws.max_row + 1)
-               if ws.cell(row=r, column=2).value == "work-above-bound")
+    row = next(
+        r for r in range(2, ws.max_row + 1) if ws.cell(row=r, column=2).value == "work-above-bound"
+    )
     values = [ws.cell(row=row, column=c).value for c in range(1, 12)]
     severity, name, step, _, claimed, bound, unit, margin, margin_unit, relative, _ = values
-    assert (severity, name, step, unit, margin_unit) == (
-        "error", "work-above-bound", "T1", "kW", "kW")
+    assert (severity, name, step, unit, margin_unit) == ("error", "work-above-bound", "T1", "kW", "kW")
     assert claimed == pytest.approx(1450.0, abs=1e-9)
     assert bound == pytest.approx(1410.0, abs=5.0)  # README: "bound ≈ 1.41 MW"
     assert margin == pytest.approx(claimed - bound, rel=1e-12)
     assert relative == pytest.approx(margin / bound, rel=1e-12)
-    pinch = next(r for r in range(2, ws.max_row + 1)
-                 if ws.cell(row=r, column=2).value == "internal-pinch")
+    pinch = next(
+        r for r in range(2, ws.max_row + 1) if ws.cell(row=r, column=2).value == "internal-pinch"
+    )
     assert ws.cell(row=pinch, column=9).value == "K"  # a temperature difference
     assert ws.cell(row=pinch, column=8).value == pytest.approx(6.5, abs=0.05)  # README: ≈ 6.5 K
 
@@ -451,11 +548,12 @@ def test_severity_shown_by_fill_and_word(book, injected):
             cell = ws.cell(row=row, column=1)
             assert cell.value in SEVERITY_RANK
             assert cell.fill.fgColor.rgb.endswith(FILLS[cell.value].fgColor.rgb[-6:])
-    assert {other[FINDINGS].cell(row=r, column=1).value
-            for r in range(2, other[FINDINGS].max_row + 1)} == {ERROR, WARNING}
+    assert {
+        other[FINDINGS].cell(row=r, column=1).value for r in range(2, other[FINDINGS].max_row + 1)
+    } == {ERROR, WARNING}
 
     def grey(rgb: str) -> float:  # Rec. 601 luma, as a greyscale print renders a fill
-        r, g, b = (int(rgb[-6:][i:i + 2], 16) for i in (0, 2, 4))
+        r, g, b = (int(rgb[-6:][i : i + 2], 16) for i in (0, 2, 4))
         return 0.299 * r + 0.587 * g + 0.114 * b
 
     assert grey(FILLS[WARNING].fgColor.rgb) - grey(FILLS[ERROR].fgColor.rgb) > 30
@@ -474,8 +572,7 @@ def test_steps_with_errors_are_marked_and_lead_to_their_findings(book, seeded):
             assert cell.hyperlink is None
             continue
         assert re.fullmatch(r"error \(\d findings?\)", cell.value)
-        assert steps.cell(row=row, column=1).fill.fgColor.rgb.endswith(
-            FILLS[ERROR].fgColor.rgb[-6:])
+        assert steps.cell(row=row, column=1).fill.fgColor.rgb.endswith(FILLS[ERROR].fgColor.rgb[-6:])
         target = int(re.fullmatch(r"'Findings'!A(\d+)", cell.hyperlink.location).group(1))
         assert findings.cell(row=target, column=3).value == step_id
         marked.add(step_id)
@@ -486,8 +583,11 @@ def test_steps_with_errors_are_marked_and_lead_to_their_findings(book, seeded):
 def test_stream_findings_link_to_the_stream_row(injected):
     _, _, wb = injected
     findings, streams = wb[FINDINGS], wb[STREAMS]
-    row = next(r for r in range(2, findings.max_row + 1)
-               if findings.cell(row=r, column=2).value == "stream-unused")
+    row = next(
+        r
+        for r in range(2, findings.max_row + 1)
+        if findings.cell(row=r, column=2).value == "stream-unused"
+    )
     cell = findings.cell(row=row, column=4)
     assert cell.value == UNUSED_ID
     target = int(re.fullmatch(r"'Streams'!A(\d+)", cell.hyperlink.location).group(1))
@@ -529,12 +629,13 @@ def test_overview_states_the_balance_verdict_and_caution(book, seeded):
     assert _overview_value(ws, "findings: error").value >= 9  # sample_plant/README.md: 9 seeded
     assert _overview_value(ws, "name").value == "Quillon Bay site utility balance"
     assert _overview_value(ws, "revision").value == "C-seeded"
-    assert _overview_value(ws, "SHA-256 of the file").value == hashlib.sha256(
-        SEEDED.read_bytes()).hexdigest()
+    assert (
+        _overview_value(ws, "SHA-256 of the file").value
+        == hashlib.sha256(SEEDED.read_bytes()).hexdigest()
+    )
     assert _overview_value(ws, "dead state temperature T0").value == pytest.approx(25.0, abs=1e-9)
     assert _overview_value(ws, "dead state pressure P0").value == pytest.approx(1.01325, abs=1e-12)
-    assert _overview_value(ws, "site (atmospheric) pressure").value == pytest.approx(1.013,
-                                                                                     abs=1e-12)
+    assert _overview_value(ws, "site (atmospheric) pressure").value == pytest.approx(1.013, abs=1e-12)
     assert _overview_value(ws, "CoolProp").value == CoolProp.__version__
     assert _overview_value(ws, "Python").value == platform.python_version()
     assert _overview_value(ws, "plant-audit").value == audit.__version__
@@ -543,8 +644,13 @@ def test_overview_states_the_balance_verdict_and_caution(book, seeded):
     assert ws.cell(row=_overview_value(ws, "energy_absolute").row, column=3).value == "kW"
     caution = _overview_value(ws, "Caution").value
     assert caution == CAUTION
-    for words in ("thermodynamic consistency", "not a safety review", "design code",
-                  "local codes", "licensed engineers"):
+    for words in (
+        "thermodynamic consistency",
+        "not a safety review",
+        "design code",
+        "local codes",
+        "licensed engineers",
+    ):
         assert words in caution
 
 
@@ -579,10 +685,17 @@ def _docstring_references() -> list[tuple[str, str, str]]:
 
     import audit.steps.kinds
 
-    modules = ["audit.steps.laws", "audit.formation", "audit.properties.engine", "audit.properties.mixtures",
-               "audit.steps.reactions", "audit.review.uncertainty", "audit.review.propagation",
-               "audit.review.verdicts", "audit.review.margins"] + [
-        f"audit.steps.kinds.{m.name}" for m in pkgutil.iter_modules(audit.steps.kinds.__path__)]
+    modules = [
+        "audit.steps.laws",
+        "audit.formation",
+        "audit.properties.engine",
+        "audit.properties.mixtures",
+        "audit.steps.reactions",
+        "audit.review.uncertainty",
+        "audit.review.propagation",
+        "audit.review.verdicts",
+        "audit.review.margins",
+    ] + [f"audit.steps.kinds.{m.name}" for m in pkgutil.iter_modules(audit.steps.kinds.__path__)]
     found = []
     for name in modules:
         try:
@@ -707,13 +820,18 @@ def test_same_result_gives_the_same_bytes_and_document_times(seeded, tmp_path, b
     assert book.properties.created == when and book.properties.modified == when
     with zipfile.ZipFile(first) as archive:  # zip entry times have a 2-second resolution
         assert {info.date_time for info in archive.infolist()} == {
-            (*when.timetuple()[:5], when.second // 2 * 2)}
+            (*when.timetuple()[:5], when.second // 2 * 2)
+        }
 
 
 def _cells(path: Path) -> dict[tuple[str, str], object]:
     wb = openpyxl.load_workbook(path)
-    return {(ws.title, c.coordinate): (c.value, c.number_format, c.data_type)
-            for ws in wb.worksheets for row in ws.iter_rows() for c in row}
+    return {
+        (ws.title, c.coordinate): (c.value, c.number_format, c.data_type)
+        for ws in wb.worksheets
+        for row in ws.iter_rows()
+        for c in row
+    }
 
 
 def test_two_runs_give_the_same_cells(seeded, book_path, tmp_path):
@@ -725,8 +843,9 @@ def test_two_runs_give_the_same_cells(seeded, book_path, tmp_path):
     first, second = _cells(book_path), _cells(path)
     assert first.keys() == second.keys()
     overview = openpyxl.load_workbook(path)[OVERVIEW]
-    varying = {_overview_value(overview, label).coordinate
-               for label in ("run at (UTC)", "solve time [s]")}
+    varying = {
+        _overview_value(overview, label).coordinate for label in ("run at (UTC)", "solve time [s]")
+    }
     differing = {key for key in first if first[key] != second[key]}
     assert {coordinate for sheet, coordinate in differing if sheet == OVERVIEW} <= varying
     assert all(sheet == OVERVIEW for sheet, _ in differing)
@@ -735,10 +854,13 @@ def test_two_runs_give_the_same_cells(seeded, book_path, tmp_path):
 def test_a_balance_without_steps_still_gives_a_workbook(tmp_path):
     from conftest import audit_text
 
-    result = audit_text(tmp_path, """
+    result = audit_text(
+        tmp_path,
+        """
     streams:
       S1: {fluid: Water, T: 300 degC, P: 10 bar, flow: 1 kg/s}
-    """)
+    """,
+    )
     path = tmp_path / "empty.xlsx"
     write_workbook(result, path)
     wb = openpyxl.load_workbook(path)

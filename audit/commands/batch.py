@@ -20,25 +20,52 @@ HELP = "audit every balance in folders, globs and files, in parallel"
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
-    parser.add_argument("paths", nargs="+", metavar="PATH",
-                        help="balance files, folders (searched for *.yaml and *.yml) or globs")
-    parser.add_argument("-o", "--output", type=Path, metavar="DIR",
-                        help="write summary.xlsx and each file's own workbook into DIR")
-    parser.add_argument("--workers", type=_positive, metavar="N",
-                        help="worker processes (default: one per core)")
-    parser.add_argument("--scheduler", metavar="ADDRESS",
-                        help="run on the Dask cluster at ADDRESS (e.g. tcp://host:8786; needs the "
-                        "'distributed' extra) instead of local processes")
-    parser.add_argument("--fail-on", choices=["error", "warning"], default="error",
-                        help="lowest severity that fails a file (default: error)")
+    parser.add_argument(
+        "paths",
+        nargs="+",
+        metavar="PATH",
+        help="balance files, folders (searched for *.yaml and *.yml) or globs",
+    )
+    parser.add_argument(
+        "-o",
+        "--output",
+        type=Path,
+        metavar="DIR",
+        help="write summary.xlsx and each file's own workbook into DIR",
+    )
+    parser.add_argument(
+        "--workers", type=_positive, metavar="N", help="worker processes (default: one per core)"
+    )
+    parser.add_argument(
+        "--scheduler",
+        metavar="ADDRESS",
+        help="run on the Dask cluster at ADDRESS (e.g. tcp://host:8786; needs the "
+        "'distributed' extra) instead of local processes",
+    )
+    parser.add_argument(
+        "--fail-on",
+        choices=["error", "warning"],
+        default="error",
+        help="lowest severity that fails a file (default: error)",
+    )
     parser.add_argument("--junit", type=Path, metavar="PATH", help="write JUnit XML for CI")
-    parser.add_argument("--history", type=Path, metavar="DB",
-                        help="record every run in this SQLite file and say what is new since "
-                        "each file's last run")
-    parser.add_argument("--allow-outside", action="store_true",
-                        help="let balances read stream or claim tables outside their own folder")
-    parser.add_argument("-q", "--quiet", action="store_true",
-                        help="no progress bar and no per-file lines: print only the verdict")
+    parser.add_argument(
+        "--history",
+        type=Path,
+        metavar="DB",
+        help="record every run in this SQLite file and say what is new since each file's last run",
+    )
+    parser.add_argument(
+        "--allow-outside",
+        action="store_true",
+        help="let balances read stream or claim tables outside their own folder",
+    )
+    parser.add_argument(
+        "-q",
+        "--quiet",
+        action="store_true",
+        help="no progress bar and no per-file lines: print only the verdict",
+    )
 
 
 def _positive(text: str) -> int:
@@ -54,15 +81,22 @@ def run(args: argparse.Namespace) -> int:
     from audit.outcomes import batch_exit_code
 
     if args.scheduler and args.workers:
-        print("note: --workers is ignored with --scheduler (the cluster has its own workers)",
-              file=sys.stderr)
-    executor = (DaskCluster(address=args.scheduler) if args.scheduler
-                else LocalProcesses(args.workers))
+        print(
+            "note: --workers is ignored with --scheduler (the cluster has its own workers)",
+            file=sys.stderr,
+        )
+    executor = DaskCluster(address=args.scheduler) if args.scheduler else LocalProcesses(args.workers)
     progress = _Progress(enabled=not args.quiet and sys.stdout.isatty())
     with progress:
-        outcomes = run_batch(args.paths, output=args.output, fail_on=args.fail_on,
-                             executor=executor, on_start=progress.start,
-                             on_done=progress.advance, allow_outside=args.allow_outside)
+        outcomes = run_batch(
+            args.paths,
+            output=args.output,
+            fail_on=args.fail_on,
+            executor=executor,
+            on_start=progress.start,
+            on_done=progress.advance,
+            allow_outside=args.allow_outside,
+        )
     if args.history:
         from audit.history import record
 
@@ -95,8 +129,10 @@ def _line(outcome: FileOutcome, fail_on: str) -> str:
     counts = result.counts(include_accepted=False)
     accepted = sum(1 for f in result.findings if f.accepted)
     revision = f" revision {result.revision}" if result.revision else ""
-    text = (f"{verdict:<14} {outcome.path}{revision}: {counts['error']} error, "
-            f"{counts['warning']} warning" + (f", {accepted} accepted" if accepted else ""))
+    text = (
+        f"{verdict:<14} {outcome.path}{revision}: {counts['error']} error, "
+        f"{counts['warning']} warning" + (f", {accepted} accepted" if accepted else "")
+    )
     note = outcome.history_note()
     problem = f"; {outcome.problems[0]}" if outcome.problems else ""  # its workbook not written
     return text + (f"; {note}" if note else "") + problem
@@ -104,10 +140,15 @@ def _line(outcome: FileOutcome, fail_on: str) -> str:
 
 def _verdict(outcomes: list[FileOutcome], fail_on: str, code: int) -> str:
     verdicts = [o.verdict(fail_on) for o in outcomes]
-    parts = ", ".join(f"{verdicts.count(v)} {v.lower()}" for v in dict.fromkeys(
-        ["PASS", "FAIL", "INVALID", "INTERNAL ERROR", "REPORT NOT WRITTEN"]) if verdicts.count(v))
-    return (f"Batch: {len(outcomes)} files ({parts}); exit code {code}. Consistency check only: "
-            "not a safety or code-compliance review; defer to local codes and licensed engineers.")
+    parts = ", ".join(
+        f"{verdicts.count(v)} {v.lower()}"
+        for v in dict.fromkeys(["PASS", "FAIL", "INVALID", "INTERNAL ERROR", "REPORT NOT WRITTEN"])
+        if verdicts.count(v)
+    )
+    return (
+        f"Batch: {len(outcomes)} files ({parts}); exit code {code}. Consistency check only: "
+        "not a safety or code-compliance review; defer to local codes and licensed engineers."
+    )
 
 
 class _Progress:
@@ -131,9 +172,14 @@ class _Progress:
         from rich.progress import BarColumn, MofNCompleteColumn, Progress, TimeRemainingColumn
 
         # No refresh thread (auto_refresh off): worker processes are forked while it runs.
-        self._bar = Progress("[progress.description]{task.description}", BarColumn(),
-                             MofNCompleteColumn(), TimeRemainingColumn(), transient=True,
-                             auto_refresh=False)
+        self._bar = Progress(
+            "[progress.description]{task.description}",
+            BarColumn(),
+            MofNCompleteColumn(),
+            TimeRemainingColumn(),
+            transient=True,
+            auto_refresh=False,
+        )
         self._task = self._bar.add_task("auditing", total=total)
         self._bar.start()
 

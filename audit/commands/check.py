@@ -22,28 +22,47 @@ HELP = "audit one balance file"
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("file", type=Path, help="the balance file (YAML)")
-    parser.add_argument("-o", "--output", type=Path, metavar="XLSX",
-                        help="write the findings workbook")
+    parser.add_argument("-o", "--output", type=Path, metavar="XLSX", help="write the findings workbook")
     parser.add_argument("--json", type=Path, metavar="PATH", help="write all results as JSON")
-    parser.add_argument("--csv", type=Path, metavar="DIR",
-                        help="write findings, steps and streams as CSV files into DIR")
-    parser.add_argument("--fail-on", choices=["error", "warning"], default="error",
-                        help="lowest severity that fails the check (default: error)")
-    parser.add_argument("--fail-on-marginal", action="store_true",
-                        help="fail also on law findings that are marginal: beyond the tolerance "
-                        "but within the declared measurement uncertainty")
-    parser.add_argument("--monte-carlo", type=_draws, default=0, metavar="N",
-                        help="cross-check the uncertainty propagation with N Monte Carlo draws "
-                        "per step with a law finding (fixed seed)")
-    parser.add_argument("--brief", action="store_true",
-                        help="print the findings summary without the stream table")
+    parser.add_argument(
+        "--csv", type=Path, metavar="DIR", help="write findings, steps and streams as CSV files into DIR"
+    )
+    parser.add_argument(
+        "--fail-on",
+        choices=["error", "warning"],
+        default="error",
+        help="lowest severity that fails the check (default: error)",
+    )
+    parser.add_argument(
+        "--fail-on-marginal",
+        action="store_true",
+        help="fail also on law findings that are marginal: beyond the tolerance "
+        "but within the declared measurement uncertainty",
+    )
+    parser.add_argument(
+        "--monte-carlo",
+        type=_draws,
+        default=0,
+        metavar="N",
+        help="cross-check the uncertainty propagation with N Monte Carlo draws "
+        "per step with a law finding (fixed seed)",
+    )
+    parser.add_argument(
+        "--brief", action="store_true", help="print the findings summary without the stream table"
+    )
     parser.add_argument("-q", "--quiet", action="store_true", help="print only the verdict")
     parser.add_argument("--junit", type=Path, metavar="PATH", help="write JUnit XML for CI")
-    parser.add_argument("--history", type=Path, metavar="DB",
-                        help="record the run in this SQLite file and say what is new since the "
-                        "file's last run")
-    parser.add_argument("--allow-outside", action="store_true",
-                        help="let the balance read stream or claim tables outside its own folder")
+    parser.add_argument(
+        "--history",
+        type=Path,
+        metavar="DB",
+        help="record the run in this SQLite file and say what is new since the file's last run",
+    )
+    parser.add_argument(
+        "--allow-outside",
+        action="store_true",
+        help="let the balance read stream or claim tables outside its own folder",
+    )
 
 
 def _draws(text: str) -> int:
@@ -53,8 +72,9 @@ def _draws(text: str) -> int:
     except ValueError:
         value = 0
     if value < 2:
-        raise argparse.ArgumentTypeError(f"'{text}' is not a number of draws (a whole number of "
-                                         "at least 2)")
+        raise argparse.ArgumentTypeError(
+            f"'{text}' is not a number of draws (a whole number of at least 2)"
+        )
     return value
 
 
@@ -76,8 +96,7 @@ def run(args: argparse.Namespace) -> int:
             raise outcome.error  # type: ignore[attr-defined]  # the command line reports it
         result = outcome.result
     else:
-        result = audit_file(args.file, allow_outside=args.allow_outside,
-                            monte_carlo=args.monte_carlo)
+        result = audit_file(args.file, allow_outside=args.allow_outside, monte_carlo=args.monte_carlo)
     if args.json:
         from audit.report.machine import write_json
 
@@ -116,8 +135,9 @@ def _outcome(args: argparse.Namespace) -> FileOutcome:
         pass
     started = time.perf_counter()
     try:
-        outcome.result = audit_file(args.file, allow_outside=args.allow_outside,
-                                    monte_carlo=args.monte_carlo)
+        outcome.result = audit_file(
+            args.file, allow_outside=args.allow_outside, monte_carlo=args.monte_carlo
+        )
     except InputError as exc:
         outcome.status = INVALID
         outcome.problems = [str(p) for p in exc.problems]

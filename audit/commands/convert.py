@@ -27,12 +27,21 @@ _SCHEMA_LINE = re.compile(r"^#\s*yaml-language-server:\s*\$schema=(\S+)")
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("file", type=Path, help="the balance file (YAML)")
-    parser.add_argument("--to", choices=["yaml"], default="yaml",
-                        help="the output format (default: yaml)")
-    parser.add_argument("-o", "--output", type=Path, metavar="PATH",
-                        help="write to this file instead of the standard output")
-    parser.add_argument("--allow-outside", action="store_true",
-                        help="let the balance read stream or claim tables outside its own folder")
+    parser.add_argument(
+        "--to", choices=["yaml"], default="yaml", help="the output format (default: yaml)"
+    )
+    parser.add_argument(
+        "-o",
+        "--output",
+        type=Path,
+        metavar="PATH",
+        help="write to this file instead of the standard output",
+    )
+    parser.add_argument(
+        "--allow-outside",
+        action="store_true",
+        help="let the balance read stream or claim tables outside its own folder",
+    )
 
 
 def run(args: argparse.Namespace) -> int:
@@ -47,8 +56,9 @@ def run(args: argparse.Namespace) -> int:
     return EXIT_PASS
 
 
-def resolved_yaml(path: str | Path, allow_outside: bool = False,
-                  output: str | Path | None = None) -> str:
+def resolved_yaml(
+    path: str | Path, allow_outside: bool = False, output: str | Path | None = None
+) -> str:
     """The balance at ``path`` with its tables inlined, as YAML text.
 
     The first line points editors at the JSON Schema: the original file's ``$schema`` target,
@@ -65,14 +75,21 @@ def resolved_yaml(path: str | Path, allow_outside: bool = False,
     validate_document(document)
     data = {key: value for key, value in document.data.items() if key not in SOURCE_KEYS}
     schema = _schema_target(text, path, output) or json_schema()["$id"]
-    sources = ", ".join(f"{t.display}" + (f" (sheet '{t.sheet}')" if t.sheet else "")
-                        for t in tables)
-    lines = [f"# yaml-language-server: $schema={schema}",
-             f"# Written by plant-audit convert from {path}" + (" and" if sources else ";"),
-             *([f"# its tables {sources};"] if sources else []),
-             "# edit the sources, not this file."]
-    body = yaml.dump(_styled(data, depth=0), Dumper=_Dumper, sort_keys=False, allow_unicode=True,
-                     width=4096, default_flow_style=False)
+    sources = ", ".join(f"{t.display}" + (f" (sheet '{t.sheet}')" if t.sheet else "") for t in tables)
+    lines = [
+        f"# yaml-language-server: $schema={schema}",
+        f"# Written by plant-audit convert from {path}" + (" and" if sources else ";"),
+        *([f"# its tables {sources};"] if sources else []),
+        "# edit the sources, not this file.",
+    ]
+    body = yaml.dump(
+        _styled(data, depth=0),
+        Dumper=_Dumper,
+        sort_keys=False,
+        allow_unicode=True,
+        width=4096,
+        default_flow_style=False,
+    )
     return "\n".join(lines) + "\n" + body
 
 
@@ -104,10 +121,12 @@ class _InlineList(list):
     pass
 
 
-_Dumper.add_representer(_Inline, lambda d, v: d.represent_mapping(
-    "tag:yaml.org,2002:map", v, flow_style=True))
-_Dumper.add_representer(_InlineList, lambda d, v: d.represent_sequence(
-    "tag:yaml.org,2002:seq", v, flow_style=True))
+_Dumper.add_representer(
+    _Inline, lambda d, v: d.represent_mapping("tag:yaml.org,2002:map", v, flow_style=True)
+)
+_Dumper.add_representer(
+    _InlineList, lambda d, v: d.represent_sequence("tag:yaml.org,2002:seq", v, flow_style=True)
+)
 
 
 def _stream_order(stream: dict) -> dict:
@@ -130,8 +149,7 @@ def _styled(value: Any, depth: int, key: Any = None, item: bool = False) -> Any:
     (an item of a list) stays a block."""
     if isinstance(value, dict):
         if depth == 1 and key == "streams":
-            return {k: _Inline(_stream_order(v)) if isinstance(v, dict) else v
-                    for k, v in value.items()}
+            return {k: _Inline(_stream_order(v)) if isinstance(v, dict) else v for k, v in value.items()}
         items = {k: _styled(v, depth + 1, k) for k, v in value.items()}
         if depth >= 2 and not item and all(_plain(v) for v in value.values()):
             return _Inline(items)

@@ -22,13 +22,23 @@ HELP = "compare two revisions of a balance"
 def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("old", type=Path, help="the earlier revision (YAML)")
     parser.add_argument("new", type=Path, help="the later revision (YAML)")
-    parser.add_argument("-o", "--output", type=Path, metavar="XLSX",
-                        help="write the comparison workbook")
-    parser.add_argument("--rtol", type=float, default=None, metavar="R",
-                        help="relative change below which a number counts as unchanged "
-                        "(default 1e-6; absolute floors per quantity are in the README)")
-    parser.add_argument("--fail-on", choices=["error", "warning"], default="error",
-                        help="lowest severity of a new finding that fails (default: error)")
+    parser.add_argument(
+        "-o", "--output", type=Path, metavar="XLSX", help="write the comparison workbook"
+    )
+    parser.add_argument(
+        "--rtol",
+        type=float,
+        default=None,
+        metavar="R",
+        help="relative change below which a number counts as unchanged "
+        "(default 1e-6; absolute floors per quantity are in the README)",
+    )
+    parser.add_argument(
+        "--fail-on",
+        choices=["error", "warning"],
+        default="error",
+        help="lowest severity of a new finding that fails (default: error)",
+    )
 
 
 def run(args: argparse.Namespace) -> int:
@@ -53,8 +63,10 @@ def summary(diff: RevisionDiff, fail_on: str = "error") -> str:
     def revision(file: str, rev: str | None) -> str:
         return f"{file}" + (f" (revision {rev})" if rev else "")
 
-    lines = [f"Comparing {revision(diff.old_file, diff.old_revision)} → "
-             f"{revision(diff.new_file, diff.new_revision)}"]
+    lines = [
+        f"Comparing {revision(diff.old_file, diff.old_revision)} → "
+        f"{revision(diff.new_file, diff.new_revision)}"
+    ]
     if diff.unchanged:
         lines.append("No differences beyond tolerance.")
     titles = {NEW: "New findings", RESOLVED: "Resolved findings", CHANGED: "Changed findings"}
@@ -69,15 +81,19 @@ def summary(diff: RevisionDiff, fail_on: str = "error") -> str:
             text = f"  {f.severity.upper():<7} {describe_key(change.key)}"
             if status == CHANGED:
                 text += ": " + "; ".join(
-                    _margin_change(change) if w == "margin" else w for w in change.what)
+                    _margin_change(change) if w == "margin" else w for w in change.what
+                )
             else:
                 text += f": {f.message}"
             if change.new is not None and change.new.accepted:
                 text += f" [ACCEPTED: {change.new.accepted}]"
             lines.append(text)
-    for label, ids in (("Streams added", diff.streams_added),
-                       ("Streams removed", diff.streams_removed),
-                       ("Steps added", diff.steps_added), ("Steps removed", diff.steps_removed)):
+    for label, ids in (
+        ("Streams added", diff.streams_added),
+        ("Streams removed", diff.streams_removed),
+        ("Steps added", diff.steps_added),
+        ("Steps removed", diff.steps_removed),
+    ):
         if ids:
             lines.append(f"{label}: {', '.join(ids)}")
     for where in ("stream", "step"):
@@ -86,15 +102,20 @@ def summary(diff: RevisionDiff, fail_on: str = "error") -> str:
             if value.where == where:
                 by_id.setdefault(value.id, []).append(
                     f"{value.field} {_value(value.old, value.quantity)} → "
-                    f"{_value(value.new, value.quantity)}")
+                    f"{_value(value.new, value.quantity)}"
+                )
         if by_id:
             lines.append(f"{where.capitalize()}s changed ({len(by_id)}):")
             lines.extend(f"  {i}: " + "; ".join(parts) for i, parts in by_id.items())
     failing = diff.new_failing(fail_on)
-    lines.append(f"Verdict: {'FAIL' if failing else 'PASS'} ({len(failing)} new finding(s) at "
-                 f"or above '{fail_on}' not accepted)")
-    lines.append("Consistency check only: not a safety or code-compliance review; defer to local "
-                 "codes and licensed engineers.")
+    lines.append(
+        f"Verdict: {'FAIL' if failing else 'PASS'} ({len(failing)} new finding(s) at "
+        f"or above '{fail_on}' not accepted)"
+    )
+    lines.append(
+        "Consistency check only: not a safety or code-compliance review; defer to local "
+        "codes and licensed engineers."
+    )
     return "\n".join(lines)
 
 
@@ -116,5 +137,6 @@ def _margin_change(change: FindingChange) -> str:
         number = shown(value, f.quantity, difference=difference)
         return "—" if number is None else f"{number:.4g}"
 
-    return (f"margin {fmt(change.old.margin)} → {fmt(f.margin)} "
-            f"{unit(f.quantity, difference=difference)}").rstrip()
+    return (
+        f"margin {fmt(change.old.margin)} → {fmt(f.margin)} {unit(f.quantity, difference=difference)}"
+    ).rstrip()

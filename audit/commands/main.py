@@ -45,8 +45,7 @@ def main(argv: list[str] | None = None) -> int:
         print("interrupted", file=sys.stderr)
         return EXIT_INTERNAL
     except Exception:  # a bug of ours: say so plainly, with a short trace for the report
-        print("internal error in plant-audit (please report it with the input file):",
-              file=sys.stderr)
+        print("internal error in plant-audit (please report it with the input file):", file=sys.stderr)
         traceback.print_exc(limit=3, file=sys.stderr)
         return EXIT_INTERNAL
 

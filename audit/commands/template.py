@@ -15,10 +15,12 @@ HELP = "write an empty stream-table workbook with the expected headers and units
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
-    parser.add_argument("--streams", type=Path, required=True, metavar="XLSX",
-                        help="the workbook to write (.xlsx)")
-    parser.add_argument("--force", action="store_true",
-                        help="replace the file if it exists (its contents are lost)")
+    parser.add_argument(
+        "--streams", type=Path, required=True, metavar="XLSX", help="the workbook to write (.xlsx)"
+    )
+    parser.add_argument(
+        "--force", action="store_true", help="replace the file if it exists (its contents are lost)"
+    )
 
 
 def run(args: argparse.Namespace) -> int:
@@ -28,13 +30,23 @@ def run(args: argparse.Namespace) -> int:
 
     path: Path = args.streams
     if path.suffix.lower() != ".xlsx":
-        raise InputError("a stream-table template is an .xlsx workbook; give a name ending in "
-                         ".xlsx", file=str(path))
+        raise InputError(
+            "a stream-table template is an .xlsx workbook; give a name ending in .xlsx", file=str(path)
+        )
     if path.exists() and not args.force:
-        raise InputError("the file exists; writing a template would replace its contents "
-                         "(add --force to replace it)", file=str(path))
-    write_table_workbook(path, stream_template_headers(), claim_headers=CLAIM_HEADERS,
-                         choices=stream_choices(), title="plant-audit stream table")
-    print(f"wrote {path}: sheets 'streams', 'claims' and 'instructions'; name it in the balance "
-          f"file with 'streams_from: {{file: {path.name}, sheet: streams}}'")
+        raise InputError(
+            "the file exists; writing a template would replace its contents (add --force to replace it)",
+            file=str(path),
+        )
+    write_table_workbook(
+        path,
+        stream_template_headers(),
+        claim_headers=CLAIM_HEADERS,
+        choices=stream_choices(),
+        title="plant-audit stream table",
+    )
+    print(
+        f"wrote {path}: sheets 'streams', 'claims' and 'instructions'; name it in the balance "
+        f"file with 'streams_from: {{file: {path.name}, sheet: streams}}'"
+    )
     return EXIT_PASS

@@ -34,9 +34,7 @@ MAX_ALIAS_NODES = 100_000
 (a legitimate balance repeats a few hundred values through anchors at most)."""
 
 _STANDARD_TAG = "tag:yaml.org,2002:"
-_ALLOWED_SCALAR_TAGS = {
-    _STANDARD_TAG + t for t in ("str", "int", "float", "bool", "null", "timestamp")
-}
+_ALLOWED_SCALAR_TAGS = {_STANDARD_TAG + t for t in ("str", "int", "float", "bool", "null", "timestamp")}
 _STR_TAG = _STANDARD_TAG + "str"
 
 _FAST_LOADER = getattr(yaml, "CSafeLoader", None)
@@ -101,7 +99,9 @@ class _Builder:
 
     def _fail(self, node: yaml.Node, message: str) -> InputError:
         return InputError(
-            message, file=self.file, line=node.start_mark.line + 1,
+            message,
+            file=self.file,
+            line=node.start_mark.line + 1,
             column=node.start_mark.column + 1,
         )
 
@@ -142,8 +142,10 @@ class _Builder:
                     reason = f"it is not a valid {node.tag.rsplit(':', 1)[-1]}"
                 raise self._fail(node, f"the value '{shown}' cannot be read: {reason}") from None
         if id(node) in self._open:
-            raise self._fail(node, "an alias here refers to a collection that contains it, so "
-                             "the value would never end")
+            raise self._fail(
+                node,
+                "an alias here refers to a collection that contains it, so the value would never end",
+            )
         if isinstance(node, yaml.SequenceNode):
             if node.tag != _STANDARD_TAG + "seq":
                 raise self._fail(node, f"the tag '{node.tag}' is not allowed in a balance file")
@@ -172,8 +174,7 @@ class _Builder:
         merged: dict = {}
         for key_node, value_node in node.value:
             if key_node.tag == _STANDARD_TAG + "merge":
-                sources = value_node.value if isinstance(value_node, yaml.SequenceNode) else [
-                    value_node]
+                sources = value_node.value if isinstance(value_node, yaml.SequenceNode) else [value_node]
                 for source in sources:
                     built = self.build(source, path, depth + 1)
                     if not isinstance(built, dict):
@@ -186,8 +187,9 @@ class _Builder:
             key = self.build(key_node, path + ("<key>",), depth + 1)
             line = key_node.start_mark.line + 1
             if key in seen:
-                where = (f"on line {line}" if seen[key] == line else
-                         f"on line {seen[key]} and line {line}")
+                where = (
+                    f"on line {line}" if seen[key] == line else f"on line {seen[key]} and line {line}"
+                )
                 raise self._fail(
                     key_node,
                     f"the key '{key}' is written twice in the same mapping, {where}; a balance "
@@ -199,7 +201,6 @@ class _Builder:
         for k, v in merged.items():
             result.setdefault(k, v)
         return result
-
 
     def _flow_line(self, items: list, line: int, path: Path_, depth: int) -> dict:
         """A mapping :mod:`audit.input.flowlines` read from one line, built as :meth:`_mapping` builds
@@ -218,8 +219,9 @@ class _Builder:
                 if not result:
                     positions.setdefault(path + ("<key>",), (row, key_column + 1))
             else:
-                key = self.build(flowlines.scalar_node(key, key_tag, line, key_column),
-                                 path + ("<key>",), depth)
+                key = self.build(
+                    flowlines.scalar_node(key, key_tag, line, key_column), path + ("<key>",), depth
+                )
                 if key in result:
                     raise _FastPathDeclined  # the usual path words the duplicate-key error
             here = path + (key,)
@@ -230,8 +232,7 @@ class _Builder:
                 nodes += 1
                 result[key] = first
             else:
-                result[key] = self.build(flowlines.scalar_node(first, tag, line, second), here,
-                                         depth)
+                result[key] = self.build(flowlines.scalar_node(first, tag, line, second), here, depth)
             positions[here] = (row, key_column + 1)
         self.count += nodes
         if self.count > MAX_NODES:
@@ -255,7 +256,8 @@ def read_text(path: Path) -> str:
         if size > MAX_FILE_BYTES:
             raise InputError(
                 f"the file is {size / 2**20:.1f} MiB, larger than the {MAX_FILE_BYTES / 2**20:.0f} "
-                "MiB a balance file may be", file=name,
+                "MiB a balance file may be",
+                file=name,
             )
         raw = path.read_bytes()
     except OSError as exc:  # permission denied, a device, an I/O error
@@ -266,7 +268,8 @@ def read_text(path: Path) -> str:
         line = raw[: exc.start].count(b"\n") + 1
         raise InputError(
             f"the file is not valid UTF-8 text (byte 0x{raw[exc.start]:02x} at offset {exc.start})",
-            file=name, line=line,
+            file=name,
+            line=line,
         ) from None
 
 
@@ -294,31 +297,35 @@ def _parse(text: str, file: str, flow_lines: dict | None) -> Document:
             context = exc.context
             if exc.context_mark and mark and exc.context_mark.line != mark.line:
                 context += f" (begun on line {exc.context_mark.line + 1})"
-            problem = f"{context}: {problem}" if "found character '\\t'" not in problem else (
-                problem)
+            problem = f"{context}: {problem}" if "found character '\\t'" not in problem else (problem)
         if "expected <block end>" in problem:
             problem += " (check the indentation of this line)"
         if "\\t" in problem or "tab" in problem.lower():
             problem += " (YAML does not allow tabs for indentation; use spaces)"
         raise InputError(
-            f"not valid YAML: {problem}", file=file,
-            line=mark.line + 1 if mark else None, column=mark.column + 1 if mark else None,
+            f"not valid YAML: {problem}",
+            file=file,
+            line=mark.line + 1 if mark else None,
+            column=mark.column + 1 if mark else None,
         ) from None
     except yaml.reader.ReaderError as exc:  # a control character: position is a text offset
         line = text.count("\n", 0, exc.position) + 1
         column = exc.position - (text.rfind("\n", 0, exc.position) + 1) + 1
         raise InputError(
             f"not valid YAML: the control character #x{exc.character:04x} is not allowed in a "
-            "balance file", file=file, line=line, column=column,
+            "balance file",
+            file=file,
+            line=line,
+            column=column,
         ) from None
     except yaml.YAMLError as exc:
         raise InputError(f"not valid YAML: {exc}", file=file) from None
     except RecursionError:  # PyYAML composes nested collections recursively
-        raise InputError("the file nests deeper than 100 levels", file=file,
-                         **_too_deep(text)) from None
+        raise InputError("the file nests deeper than 100 levels", file=file, **_too_deep(text)) from None
     if node is None:
-        raise InputError("the file is empty; a balance needs 'balance', 'streams' and 'steps'",
-                         file=file, line=1)
+        raise InputError(
+            "the file is empty; a balance needs 'balance', 'streams' and 'steps'", file=file, line=1
+        )
     builder = _Builder(file, flow_lines)
     data = builder.build(node, ())
     if flow_lines and len(builder.flow_lines_built) != len(flow_lines):
@@ -346,8 +353,7 @@ def _too_deep(text: str) -> dict[str, int]:
             if isinstance(event, yaml.CollectionStartEvent):
                 depth += 1
                 if depth > 100:
-                    return {"line": event.start_mark.line + 1,
-                            "column": event.start_mark.column + 1}
+                    return {"line": event.start_mark.line + 1, "column": event.start_mark.column + 1}
             elif isinstance(event, yaml.CollectionEndEvent):
                 depth -= 1
     except yaml.YAMLError:

@@ -59,8 +59,14 @@ def scan(text: str) -> Scan | None:
     """Find the one-line flow mappings of ``text`` that the fast path reads; None when there are
     none, or when the text has line breaks other than LF and CR LF, a tab or a byte-order mark
     (those files are read the usual way)."""
-    if "\t" in text or "\x85" in text or "\u2028" in text or "\u2029" in text or (
-            text.startswith("\ufeff")) or text.count("\r") != text.count("\r\n"):
+    if (
+        "\t" in text
+        or "\x85" in text
+        or "\u2028" in text
+        or "\u2029" in text
+        or (text.startswith("\ufeff"))
+        or text.count("\r") != text.count("\r\n")
+    ):
         return None
     lines = text.split("\n")
     mappings: dict[tuple[int, int], list[Item]] = {}
@@ -75,7 +81,7 @@ def scan(text: str) -> Scan | None:
         if not items:
             continue
         mappings[(number, brace)] = items
-        lines[number] = line[:brace + 1] + line[end - 1:]
+        lines[number] = line[: brace + 1] + line[end - 1 :]
     if not mappings:
         return None
     return Scan("\n".join(lines), mappings)

@@ -21,7 +21,8 @@ class Acceptance(BaseModel):
     finding: str = Field(description="the finding's name, e.g. 'work-above-bound'")
     step: str | None = Field(None, description="the id of the step the finding is reported at")
     stream: str | None = Field(
-        None, description="the id of the stream, for findings reported at a stream")
+        None, description="the id of the stream, for findings reported at a stream"
+    )
     reason: str = Field(min_length=1, description="why the finding may stand")
     accepted_by: str = Field(min_length=1, description="who accepted it")
     expires: date = Field(description="last day the acceptance holds (YYYY-MM-DD)")
@@ -64,9 +65,11 @@ class Acceptance(BaseModel):
 
     def matches(self, finding: Finding) -> bool:
         """True when ``finding`` is the one this acceptance is about."""
-        return (finding.name == self.finding
-                and (self.step is None or finding.step == self.step)
-                and (self.stream is None or finding.stream == self.stream))
+        return (
+            finding.name == self.finding
+            and (self.step is None or finding.step == self.step)
+            and (self.stream is None or finding.stream == self.stream)
+        )
 
     def where(self) -> str:
         parts = []

@@ -53,13 +53,16 @@ class BalanceInfo(BaseModel):
     revision: str | None = None
     description: str | None = None
     site_pressure: Pressure | None = Field(
-        None, description="atmospheric pressure at the site (absolute); needed for gauge "
-        "pressures such as '10 barg'")
+        None,
+        description="atmospheric pressure at the site (absolute); needed for gauge "
+        "pressures such as '10 barg'",
+    )
     dead_state: DeadState = Field(default_factory=DeadState)
     tolerances: Tolerances = Field(default_factory=Tolerances)
     uncertainty: BalanceUncertainty | None = Field(
-        None, description="measurement uncertainties: defaults per kind of quantity "
-        "(audit.model.uncertainty)")
+        None,
+        description="measurement uncertainties: defaults per kind of quantity (audit.model.uncertainty)",
+    )
 
     @field_validator("revision", mode="before")
     @classmethod
@@ -77,13 +80,18 @@ class Balance(BaseModel):
     streams: dict[str, StreamSpec] = Field(min_length=1)
     steps: list[StepBase] = Field(default_factory=list)
     accepted: list[Acceptance] = Field(
-        default_factory=list, description="findings a reviewer has accepted (audit.review.acceptance)")
+        default_factory=list, description="findings a reviewer has accepted (audit.review.acceptance)"
+    )
     streams_from: str | TableSource | None = Field(
-        None, description="a stream table (.xlsx or .csv, relative to the balance file) whose "
-        "rows are merged into 'streams' (audit.input.tables)")
+        None,
+        description="a stream table (.xlsx or .csv, relative to the balance file) whose "
+        "rows are merged into 'streams' (audit.input.tables)",
+    )
     claims_from: str | TableSource | None = Field(
-        None, description="a claim table (step | field | value | unit) whose rows set fields of "
-        "the steps (audit.input.tables)")
+        None,
+        description="a claim table (step | field | value | unit) whose rows set fields of "
+        "the steps (audit.input.tables)",
+    )
 
 
 def balance_model(step_models: Sequence[type[StepBase]]) -> type[Balance]:
@@ -91,11 +99,12 @@ def balance_model(step_models: Sequence[type[StepBase]]) -> type[Balance]:
     ``kind`` (a discriminated union). :mod:`audit.steps` calls it once with every discovered kind."""
     union: Any = Annotated[Union[tuple(step_models)], Field(discriminator="kind")]  # noqa: UP007
     model: type[Balance] = create_model(
-        "Balance", __base__=Balance, __module__=__name__,
+        "Balance",
+        __base__=Balance,
+        __module__=__name__,
         steps=(list[union], Field(default_factory=list)),
     )
-    model.step_kinds = {
-        get_args(m.model_fields["kind"].annotation)[0]: m for m in step_models}
+    model.step_kinds = {get_args(m.model_fields["kind"].annotation)[0]: m for m in step_models}
     return model
 
 
@@ -105,8 +114,11 @@ def validate_document(document: Document, model: type[Balance]) -> Balance:
     :class:`InputErrors` whose messages name the file, line, column and field path."""
     data = document.data
     if not isinstance(data, dict):
-        raise InputError("a balance file is a mapping with 'balance', 'streams' and 'steps'",
-                         file=document.file, line=1)
+        raise InputError(
+            "a balance file is a mapping with 'balance', 'streams' and 'steps'",
+            file=document.file,
+            line=1,
+        )
     site = None
     info = data.get("balance")
     if isinstance(info, dict) and info.get("site_pressure") is not None:
@@ -114,28 +126,37 @@ def validate_document(document: Document, model: type[Balance]) -> Balance:
             if units.is_gauge(info["site_pressure"]):
                 raise UnitError(
                     f"'{info['site_pressure']}' is a gauge pressure, but the site pressure is the "
-                    "atmospheric pressure at the site: write it as absolute, e.g. '1.013 bar'")
+                    "atmospheric pressure at the site: write it as absolute, e.g. '1.013 bar'"
+                )
             site = units.to_si(info["site_pressure"], "pressure")
         except UnitError as exc:
             line, column = document.position(("balance", "site_pressure"))
-            raise InputError(exc.problem.message, file=document.file, line=line, column=column,
-                             field_path="balance.site_pressure") from None
+            raise InputError(
+                exc.problem.message,
+                file=document.file,
+                line=line,
+                column=column,
+                field_path="balance.site_pressure",
+            ) from None
     try:
         return model.model_validate(data, context={"site_pressure": site})
     except ValidationError as exc:
         raise InputErrors(_problems(exc, document, model)) from None
 
 
-def _problems(exc: ValidationError, document: Document, model: type[Balance]
-              ) -> list[Problem]:
+def _problems(exc: ValidationError, document: Document, model: type[Balance]) -> list[Problem]:
     problems = []
     for error in exc.errors(include_url=False):
         path, missing = _real_path(document.data, error["loc"])
         message = _message(error, missing, path, document.data, model)
-        problems.append(Problem(
-            message=message, **document.place(path),
-            field_path=_dotted(path, missing), where=_where(path, document.data),
-        ))
+        problems.append(
+            Problem(
+                message=message,
+                **document.place(path),
+                field_path=_dotted(path, missing),
+                where=_where(path, document.data),
+            )
+        )
     return problems
 
 
@@ -151,8 +172,12 @@ def _real_path(data: Any, loc: tuple) -> tuple[tuple, str | None]:
         elif isinstance(node, list) and isinstance(part, int) and 0 <= part < len(node):
             node = node[part]
             path.append(part)
-        elif (i == len(loc) - 1 and isinstance(part, str) and isinstance(node, dict)
-              and part != node.get("kind")):  # a step's kind is a union tag, not a field
+        elif (
+            i == len(loc) - 1
+            and isinstance(part, str)
+            and isinstance(node, dict)
+            and part != node.get("kind")
+        ):  # a step's kind is a union tag, not a field
             missing = part
     return tuple(path), missing
 
@@ -178,8 +203,7 @@ def _where(path: tuple, data: Any) -> str | None:
     return None
 
 
-def _message(error: Any, missing: str | None, path: tuple, data: Any,
-             balance: type[Balance]) -> str:
+def _message(error: Any, missing: str | None, path: tuple, data: Any, balance: type[Balance]) -> str:
     kind = error["type"]
     if kind == "missing":
         return f"'{missing or error['loc'][-1]}' is required here"
@@ -199,34 +223,47 @@ def _message(error: Any, missing: str | None, path: tuple, data: Any,
     if kind == "too_short":
         ctx = error.get("ctx", {})
         wanted, found = ctx.get("min_length", 1), ctx.get("actual_length", 0)
-        return (f"needs at least {wanted} {'entry' if wanted == 1 else 'entries'}; "
-                f"{'none is' if found == 0 else f'only {found} is' if found == 1 else f'{found} are'}"
-                " given")
+        return (
+            f"needs at least {wanted} {'entry' if wanted == 1 else 'entries'}; "
+            f"{'none is' if found == 0 else f'only {found} is' if found == 1 else f'{found} are'}"
+            " given"
+        )
     if kind in ("model_type", "model_attributes_type", "dict_type"):
-        return (f"expected a mapping of fields here ('name: value' lines or {{...}}), not "
-                f"{_describe(error.get('input'))}")
+        return (
+            f"expected a mapping of fields here ('name: value' lines or {{...}}), not "
+            f"{_describe(error.get('input'))}"
+        )
     if kind == "list_type":
-        return (f"expected a list here ('- item' lines or [...]), not "
-                f"{_describe(error.get('input'))}")
+        return f"expected a list here ('- item' lines or [...]), not {_describe(error.get('input'))}"
     if kind == "string_type" and error["loc"] and error["loc"][-1] == "[key]":
-        return (f"the name {error.get('input')!r} must be text; put it in quotes, e.g. "
-                f"'{error.get('input')}'")
+        return (
+            f"the name {error.get('input')!r} must be text; put it in quotes, e.g. "
+            f"'{error.get('input')}'"
+        )
     if kind == "string_type":
         value = error.get("input")
-        hint = (f"; put it in quotes ('{value}') if it is a name"
-                if isinstance(value, (int, float)) and not isinstance(value, bool) else "")
+        hint = (
+            f"; put it in quotes ('{value}') if it is a name"
+            if isinstance(value, (int, float)) and not isinstance(value, bool)
+            else ""
+        )
         return f"expected text here, not {_describe(value)}{hint}"
     if kind == "greater_than_equal" and error.get("ctx", {}).get("ge") == 0:
-        return ("must not be negative (write amounts without a sign: a claim's name says its "
-                "direction, e.g. 'heat_loss' is heat leaving the step)")
+        return (
+            "must not be negative (write amounts without a sign: a claim's name says its "
+            "direction, e.g. 'heat_loss' is heat leaving the step)"
+        )
     if kind in ("float_parsing", "float_type"):
-        hint = (" (quality is the vapour mass fraction, a number from 0 to 1, e.g. 0.95)"
-                if error["loc"] and error["loc"][-1] == "quality" else "")
+        hint = (
+            " (quality is the vapour mass fraction, a number from 0 to 1, e.g. 0.95)"
+            if error["loc"] and error["loc"][-1] == "quality"
+            else ""
+        )
         return f"expected a plain number here, not {_describe(error.get('input'))}{hint}"
     message = error["msg"]
     for prefix in ("Value error, ", "Assertion failed, "):
         if message.startswith(prefix):
-            message = message[len(prefix):]
+            message = message[len(prefix) :]
     return message
 
 
@@ -245,6 +282,7 @@ def _describe(value: Any) -> str:
     if isinstance(value, str):
         return f"the text '{value[:40]}'"
     return type(value).__name__
+
 
 def _allowed_fields(path: tuple, data: Any, balance: type[Balance]) -> list[str]:
     """The field names of the model that owns the mapping at ``path`` (for suggestions)."""

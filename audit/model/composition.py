@@ -27,13 +27,15 @@ def check_fractions(fractions: Mapping[str, float], basis: str = "mole") -> None
         known = ", ".join(sorted(s.formula for s in SPECIES.values()))
         raise ValueError(
             f"no formation data for {', '.join(repr(u) for u in unknown)} in the composition; "
-            f"the species known are {known} (DEVELOPERS.md says how to add one)")
+            f"the species known are {known} (DEVELOPERS.md says how to add one)"
+        )
     formulas = [lookup(name).formula for name in fractions]  # type: ignore[union-attr]
     if len(set(formulas)) != len(formulas):
         raise ValueError("a species is named twice in the composition")
     for name, value in fractions.items():
         if not (isinstance(value, (int, float)) and not isinstance(value, bool)) or not (
-                0.0 <= value <= 1.0):
+            0.0 <= value <= 1.0
+        ):
             raise ValueError(f"the fraction of {name} is {value!r}; write a number from 0 to 1")
     total = math.fsum(fractions.values())
     if abs(total - 1.0) > SUM_TOLERANCE:
@@ -41,7 +43,8 @@ def check_fractions(fractions: Mapping[str, float], basis: str = "mole") -> None
         side = "short of" if total < 1.0 else "over"
         raise ValueError(
             f"the {word} fractions sum to {total:.8g}, {abs(total - 1.0):.3g} {side} 1 "
-            f"(allowed: {SUM_TOLERANCE:g})")
+            f"(allowed: {SUM_TOLERANCE:g})"
+        )
 
 
 def named_composition(name: str) -> dict[str, float]:
@@ -52,4 +55,5 @@ def named_composition(name: str) -> dict[str, float]:
         known = ", ".join(sorted(NAMED_COMPOSITIONS))
         raise ValueError(
             f"unknown named composition '{name}'; the named ones are: {known} (or give mole "
-            "fractions, e.g. {N2: 0.79, O2: 0.21})") from None
+            "fractions, e.g. {N2: 0.79, O2: 0.21})"
+        ) from None

@@ -2,7 +2,8 @@
 
 ``Temperature``, ``Pressure``, ``Power`` ... are floats in SI after validation and strings with a unit
 in the file (and in the exported JSON Schema). Gauge pressures read the site pressure from the
-validation context (``{"site_pressure": <Pa>}``), which :func:`audit.model.balance.load_balance` supplies.
+validation context (``{"site_pressure": <Pa>}``), which
+:func:`audit.model.balance.validate_document` supplies.
 """
 
 from __future__ import annotations
@@ -31,11 +32,13 @@ def _parser(kind: str):
 
 def _schema(kind: str) -> WithJsonSchema:
     spec = units.KINDS[kind]
-    return WithJsonSchema({
-        "type": "string",
-        "pattern": QUANTITY_PATTERN,
-        "description": f"{kind.replace('_', ' ')} with its unit, e.g. {spec.example}",
-    })
+    return WithJsonSchema(
+        {
+            "type": "string",
+            "pattern": QUANTITY_PATTERN,
+            "description": f"{kind.replace('_', ' ')} with its unit, e.g. {spec.example}",
+        }
+    )
 
 
 def _parse_flow(value: Any) -> units.Flow:
@@ -50,15 +53,21 @@ def _parse_flow(value: Any) -> units.Flow:
 # Written out one by one (not built by a factory) so that type checkers see a float, as pydantic
 # does after validation.
 Temperature = Annotated[float, BeforeValidator(_parser("temperature")), _schema("temperature")]
-TemperatureDifference = Annotated[float, BeforeValidator(_parser("temperature_difference")), _schema("temperature_difference")]
+TemperatureDifference = Annotated[
+    float, BeforeValidator(_parser("temperature_difference")), _schema("temperature_difference")
+]
 Pressure = Annotated[float, BeforeValidator(_parser("pressure")), _schema("pressure")]
 MassFlow = Annotated[float, BeforeValidator(_parser("mass_flow")), _schema("mass_flow")]
 MolarFlow = Annotated[float, BeforeValidator(_parser("molar_flow")), _schema("molar_flow")]
 Power = Annotated[float, BeforeValidator(_parser("power")), _schema("power")]
 Energy = Annotated[float, BeforeValidator(_parser("energy")), _schema("energy")]
 Mass = Annotated[float, BeforeValidator(_parser("mass")), _schema("mass")]
-SpecificEnthalpy = Annotated[float, BeforeValidator(_parser("specific_enthalpy")), _schema("specific_enthalpy")]
-SpecificEntropy = Annotated[float, BeforeValidator(_parser("specific_entropy")), _schema("specific_entropy")]
+SpecificEnthalpy = Annotated[
+    float, BeforeValidator(_parser("specific_enthalpy")), _schema("specific_enthalpy")
+]
+SpecificEntropy = Annotated[
+    float, BeforeValidator(_parser("specific_entropy")), _schema("specific_entropy")
+]
 Velocity = Annotated[float, BeforeValidator(_parser("velocity")), _schema("velocity")]
 Length = Annotated[float, BeforeValidator(_parser("length")), _schema("length")]
 Volume = Annotated[float, BeforeValidator(_parser("volume")), _schema("volume")]

@@ -32,8 +32,13 @@ PAIRS = {
 _PROPERTIES = ("T", "P", "quality", "h", "s")
 _PAIR_OF_GIVEN = {tuple(name in given for name in _PROPERTIES): pair for given, pair in PAIRS.items()}
 """(T given, P given, quality given, h given, s given) -> pair: a cheap lookup per stream."""
-_INPUT_NAMES = {"TP": ("T", "P"), "PQ": ("P", "quality"), "TQ": ("T", "quality"),
-                "Ph": ("P", "h"), "Ps": ("P", "s")}
+_INPUT_NAMES = {
+    "TP": ("T", "P"),
+    "PQ": ("P", "quality"),
+    "TQ": ("T", "quality"),
+    "Ph": ("P", "h"),
+    "Ps": ("P", "s"),
+}
 
 
 class PropertyPair(BaseModel):
@@ -44,11 +49,14 @@ class PropertyPair(BaseModel):
     T: TemperatureClaim = Field(None, description="temperature")
     P: PressureClaim = Field(None, description="pressure (absolute, or gauge as 'barg')")
     quality: Annotated[float | None, ClaimField("quality")] = Field(
-        None, ge=0.0, le=1.0, description="vapour mass fraction, 0 to 1 (two-phase states)")
+        None, ge=0.0, le=1.0, description="vapour mass fraction, 0 to 1 (two-phase states)"
+    )
     h: Annotated[SpecificEnthalpy | None, ClaimField("specific_enthalpy")] = Field(
-        None, description="specific enthalpy on the fluid's usual table reference")
+        None, description="specific enthalpy on the fluid's usual table reference"
+    )
     s: Annotated[SpecificEntropy | None, ClaimField("specific_entropy")] = Field(
-        None, description="specific entropy on the fluid's usual table reference")
+        None, description="specific entropy on the fluid's usual table reference"
+    )
 
     @model_validator(mode="after")
     def _two_properties(self) -> PropertyPair:
@@ -64,8 +72,13 @@ class PropertyPair(BaseModel):
         return self
 
     def _given(self) -> tuple[bool, bool, bool, bool, bool]:
-        return (self.T is not None, self.P is not None, self.quality is not None,
-                self.h is not None, self.s is not None)
+        return (
+            self.T is not None,
+            self.P is not None,
+            self.quality is not None,
+            self.h is not None,
+            self.s is not None,
+        )
 
     @property
     def pair(self) -> str:
@@ -93,33 +106,41 @@ class StreamSpec(StateSpec):
     """
 
     fluid: str | None = Field(  # type: ignore[assignment]
-        None, description="CoolProp fluid name, e.g. 'Water', 'Ammonia', 'Air' (or give "
-        "'composition' for a gas mixture)")
+        None,
+        description="CoolProp fluid name, e.g. 'Water', 'Ammonia', 'Air' (or give "
+        "'composition' for a gas mixture)",
+    )
     composition: dict[str, float] | str | None = Field(
-        None, description="a gas mixture instead of 'fluid': fractions by species formula or "
+        None,
+        description="a gas mixture instead of 'fluid': fractions by species formula or "
         "CoolProp name, e.g. {CH4: 0.97, N2: 0.02, CO2: 0.01}, summing to 1; or a named "
-        "composition: 'air' (dry air)")
+        "composition: 'air' (dry air)",
+    )
     composition_basis: Literal["mole", "mass"] = Field(
-        "mole", description="whether the composition gives mole (default) or mass fractions")
+        "mole", description="whether the composition gives mole (default) or mass fractions"
+    )
     flow: StreamFlow = Field(description="mass, molar or volumetric flow")
     velocity: Velocity | None = Field(None, description="mean velocity, for kinetic energy")
     elevation: Length | None = Field(None, description="elevation, for potential energy")
     phase: Literal["liquid", "vapour", "two-phase", "supercritical"] | None = Field(
-        None, description="the phase the balance states; checked against the computed one")
+        None, description="the phase the balance states; checked against the computed one"
+    )
     description: str | None = None
     uncertainty: StreamUncertaintyField = None
 
     @model_validator(mode="after")
     def _fluid_or_composition(self) -> StreamSpec:
         if (self.fluid is None) == (self.composition is None):
-            raise ValueError("a stream needs exactly one of 'fluid' (a pure fluid) or "
-                             "'composition' (a gas mixture)")
+            raise ValueError(
+                "a stream needs exactly one of 'fluid' (a pure fluid) or 'composition' (a gas mixture)"
+            )
         if self.composition is None:
             return self
         if isinstance(self.composition, str):
             if self.composition_basis == "mass":
-                raise ValueError("a named composition gives mole fractions; drop "
-                                 "'composition_basis: mass'")
+                raise ValueError(
+                    "a named composition gives mole fractions; drop 'composition_basis: mass'"
+                )
             self.composition = named_composition(self.composition)
         check_fractions(self.composition, self.composition_basis)
         if self.pair != "TP":

@@ -18,45 +18,71 @@ class Tolerances(BaseModel):
     model_config = ConfigDict(extra="forbid")
 
     energy_relative: float = Field(
-        0.01, ge=0, description="energy residual and work-bound margin allowed, as a fraction of "
-        "the step's largest energy term (its energy turnover, duty or work)")
+        0.01,
+        ge=0,
+        description="energy residual and work-bound margin allowed, as a fraction of "
+        "the step's largest energy term (its energy turnover, duty or work)",
+    )
     energy_absolute: Power = Field(
-        "1 kW", validate_default=True,
-        description="energy residual and work-bound margin always allowed for a flow step")
+        "1 kW",
+        validate_default=True,
+        description="energy residual and work-bound margin always allowed for a flow step",
+    )
     energy_absolute_batch: Energy = Field(
-        "1 kJ", validate_default=True,
-        description="energy residual and work-bound margin always allowed for a closed vessel")
+        "1 kJ",
+        validate_default=True,
+        description="energy residual and work-bound margin always allowed for a closed vessel",
+    )
     mass_relative: float = Field(
-        0.002, ge=0, description="mass residual allowed, as a fraction of the inlet flow")
+        0.002, ge=0, description="mass residual allowed, as a fraction of the inlet flow"
+    )
     mass_absolute: MassFlow = Field(
-        "0.36 kg/h", validate_default=True, description="mass residual always allowed")
+        "0.36 kg/h", validate_default=True, description="mass residual always allowed"
+    )
     efficiency: float = Field(
-        0.0, ge=0, description="how far an isentropic efficiency may exceed 1 before it is flagged")
+        0.0, ge=0, description="how far an isentropic efficiency may exceed 1 before it is flagged"
+    )
     saturation_band: TemperatureDifference = Field(
-        "0.1 K", validate_default=True,
-        description="a (T, P) state this close to T_sat(P) is ambiguous and needs a quality")
+        "0.1 K",
+        validate_default=True,
+        description="a (T, P) state this close to T_sat(P) is ambiguous and needs a quality",
+    )
     state_match_temperature: TemperatureDifference = Field(
-        "0.5 K", validate_default=True,
-        description="splitter outlets may differ from the inlet temperature by this much")
+        "0.5 K",
+        validate_default=True,
+        description="splitter outlets may differ from the inlet temperature by this much",
+    )
     state_match_pressure_relative: float = Field(
-        0.005, ge=0, description="splitter outlets may differ from the inlet pressure by this "
-        "fraction")
+        0.005, ge=0, description="splitter outlets may differ from the inlet pressure by this fraction"
+    )
     min_approach: TemperatureDifference = Field(
-        "0 K", validate_default=True,
+        "0 K",
+        validate_default=True,
         description="smallest temperature difference allowed between the two sides of a heat "
-        "exchanger (a stated design minimum; 0 K checks only that the temperatures do not cross)")
+        "exchanger (a stated design minimum; 0 K checks only that the temperatures do not cross)",
+    )
     exhaust_moisture_max: float = Field(
-        0.12, ge=0, le=1, description="turbine exhaust moisture (1 - quality) above which a "
-        "warning is given (common practice: 10-12 %)")
+        0.12,
+        ge=0,
+        le=1,
+        description="turbine exhaust moisture (1 - quality) above which a "
+        "warning is given (common practice: 10-12 %)",
+    )
     pump_subcooling_min: TemperatureDifference = Field(
-        "2 K", validate_default=True,
-        description="a pump inlet less subcooled than this is warned of (cavitation risk)")
+        "2 K",
+        validate_default=True,
+        description="a pump inlet less subcooled than this is warned of (cavitation risk)",
+    )
     isothermal_band: TemperatureDifference = Field(
-        "0.5 K", validate_default=True,
-        description="streams within this temperature span count as isothermal for the bound basis")
+        "0.5 K",
+        validate_default=True,
+        description="streams within this temperature span count as isothermal for the bound basis",
+    )
     isobaric_relative: float = Field(
-        0.005, ge=0, description="streams within this relative pressure span count as isobaric "
-        "for the bound basis")
+        0.005,
+        ge=0,
+        description="streams within this relative pressure span count as isobaric for the bound basis",
+    )
 
 
 class ToleranceOverrides(BaseModel):

@@ -98,7 +98,8 @@ def parse_spread(text: Any, kind: str) -> Spread:
     if isinstance(text, str) and text.strip() == "exact":
         return EXACT
     if (isinstance(text, str) and text.strip().startswith("-")) or (
-            isinstance(text, (int, float)) and not isinstance(text, bool) and text < 0):
+        isinstance(text, (int, float)) and not isinstance(text, bool) and text < 0
+    ):
         raise UnitError(f"an uncertainty is at least zero; got '{text}'")
     if kind == "quality":
         if isinstance(text, bool) or not isinstance(text, (int, float, str)):
@@ -108,33 +109,42 @@ def parse_spread(text: Any, kind: str) -> Spread:
         except ValueError:
             raise UnitError(
                 f"a quality uncertainty is a plain number such as 0.01 (an absolute fraction), "
-                f"not '{text}'") from None
+                f"not '{text}'"
+            ) from None
         return _checked(value, False, str(text))
     if isinstance(text, str):
         match = _PERCENT.match(text)
         if match:
             if not relative_ok:
                 raise UnitError(
-                    f"a {what} uncertainty is absolute, such as {example}; '{text}' is relative")
+                    f"a {what} uncertainty is absolute, such as {example}; '{text}' is relative"
+                )
             return _checked(float(match.group(1)) / 100.0, True, text)
     if unit_kind == "flow":
         try:
             flow = units.to_flow(text)
         except UnitError as exc:
-            raise UnitError(f"a flow uncertainty is written like {example}: "
-                            f"{exc.problem.message}") from None
+            raise UnitError(
+                f"a flow uncertainty is written like {example}: {exc.problem.message}"
+            ) from None
         return _checked(flow.value, False, str(text), flow.basis, flow.reference)
     try:
         # site_pressure 0: a spread is a difference, so '0.02 barg' and '0.02 bar' agree.
         value = units.to_si(text, unit_kind, site_pressure=0.0)  # type: ignore[arg-type]
     except UnitError as exc:
-        raise UnitError(f"a {what} uncertainty is written like {example}: "
-                        f"{exc.problem.message}") from None
+        raise UnitError(
+            f"a {what} uncertainty is written like {example}: {exc.problem.message}"
+        ) from None
     return _checked(value, False, str(text))
 
 
-def _checked(value: float, relative: bool, text: str, basis: str | None = None,
-             reference: tuple[float, float] | None = None) -> Spread:
+def _checked(
+    value: float,
+    relative: bool,
+    text: str,
+    basis: str | None = None,
+    reference: tuple[float, float] | None = None,
+) -> Spread:
     if not math.isfinite(value):
         raise UnitError(f"an uncertainty is a finite number; got '{text}'")
     if value < 0.0:
@@ -168,7 +178,8 @@ def _spread_validator(kind: str) -> PlainValidator:
 def _spread_schema(kind: str) -> WithJsonSchema:
     example = SPREAD_KINDS[kind][2]
     schema: dict[str, Any] = {
-        "description": f"{kind.replace('_', ' ')} uncertainty: 'exact', or like {example}"}
+        "description": f"{kind.replace('_', ' ')} uncertainty: 'exact', or like {example}"
+    }
     schema.update({"type": ["number", "string"]} if kind == "quality" else {"type": "string"})
     return WithJsonSchema(schema)
 
@@ -178,8 +189,12 @@ TemperatureSpread = Annotated[Spread, _spread_validator("temperature"), _spread_
 PressureSpread = Annotated[Spread, _spread_validator("pressure"), _spread_schema("pressure")]
 FlowSpread = Annotated[Spread, _spread_validator("flow"), _spread_schema("flow")]
 QualitySpread = Annotated[Spread, _spread_validator("quality"), _spread_schema("quality")]
-EnthalpySpread = Annotated[Spread, _spread_validator("specific_enthalpy"), _spread_schema("specific_enthalpy")]
-EntropySpread = Annotated[Spread, _spread_validator("specific_entropy"), _spread_schema("specific_entropy")]
+EnthalpySpread = Annotated[
+    Spread, _spread_validator("specific_enthalpy"), _spread_schema("specific_enthalpy")
+]
+EntropySpread = Annotated[
+    Spread, _spread_validator("specific_entropy"), _spread_schema("specific_entropy")
+]
 PowerSpread = Annotated[Spread, _spread_validator("power"), _spread_schema("power")]
 EnergySpread = Annotated[Spread, _spread_validator("energy"), _spread_schema("energy")]
 MassSpread = Annotated[Spread, _spread_validator("mass"), _spread_schema("mass")]
@@ -189,14 +204,24 @@ def _coverage(value: Any) -> str:
     if isinstance(value, str) and _COVERAGE.match(value.strip()):
         return value.strip()
     raise PydanticCustomError(
-        "uncertainty", f"unknown coverage {value!r}; write 'standard' (standard uncertainties) or "
-        "'expanded-k2' (expanded uncertainties with coverage factor k = 2)")
+        "uncertainty",
+        f"unknown coverage {value!r}; write 'standard' (standard uncertainties) or "
+        "'expanded-k2' (expanded uncertainties with coverage factor k = 2)",
+    )
 
 
-Coverage = Annotated[str, PlainValidator(_coverage), WithJsonSchema({
-    "type": "string", "pattern": _COVERAGE.pattern,
-    "description": "how the spreads are stated: 'standard' (one standard uncertainty) or "
-    "'expanded-k2' (expanded with coverage factor k = 2)"})]
+Coverage = Annotated[
+    str,
+    PlainValidator(_coverage),
+    WithJsonSchema(
+        {
+            "type": "string",
+            "pattern": _COVERAGE.pattern,
+            "description": "how the spreads are stated: 'standard' (one standard uncertainty) or "
+            "'expanded-k2' (expanded with coverage factor k = 2)",
+        }
+    ),
+]
 
 
 class BalanceUncertainty(BaseModel):
@@ -205,12 +230,17 @@ class BalanceUncertainty(BaseModel):
     model_config = ConfigDict(extra="forbid")
 
     basis: Literal["measured", "design"] = Field(
-        "measured", description="'measured': the defaults apply to every stream and claim; "
-        "'design': values are exact unless a stream or step declares its own uncertainty")
+        "measured",
+        description="'measured': the defaults apply to every stream and claim; "
+        "'design': values are exact unless a stream or step declares its own uncertainty",
+    )
     coverage: Coverage = "standard"
     coverage_factor: float = Field(
-        2.0, gt=0, description="coverage factor k of the expanded uncertainty the verdicts "
-        "compare (default 2, about 95 % for a normal distribution)")
+        2.0,
+        gt=0,
+        description="coverage factor k of the expanded uncertainty the verdicts "
+        "compare (default 2, about 95 % for a normal distribution)",
+    )
     temperature: TemperatureSpread | None = None
     pressure: PressureSpread | None = None
     flow: FlowSpread | None = None
@@ -237,17 +267,27 @@ class StreamUncertainty(BaseModel):
 
 StreamUncertaintyField = Annotated[
     Literal["exact", "measured"] | StreamUncertainty | None,
-    Field(description="this stream's uncertainties: 'exact', 'measured' (the balance's defaults) "
-          "or a mapping such as {T: 0.2 K, flow: 2 %} over the balance's defaults"),
+    Field(
+        description="this stream's uncertainties: 'exact', 'measured' (the balance's defaults) "
+        "or a mapping such as {T: 0.2 K, flow: 2 %} over the balance's defaults"
+    ),
 ]
 
 StepUncertaintyField = Annotated[
     Literal["exact", "measured"] | dict[str, str | float] | None,
-    Field(description="this step's claim uncertainties: 'exact', 'measured' (the balance's "
-          "defaults) or a mapping of claim names to spreads, e.g. {shaft_power: 1 %, "
-          "coverage: expanded-k2}"),
+    Field(
+        description="this step's claim uncertainties: 'exact', 'measured' (the balance's "
+        "defaults) or a mapping of claim names to spreads, e.g. {shaft_power: 1 %, "
+        "coverage: expanded-k2}"
+    ),
 ]
 
 STREAM_CATEGORY = {"T": "temperature", "P": "pressure", "quality": "quality", "flow": "flow"}
-_STREAM_KIND = {"T": "temperature", "P": "pressure", "quality": "quality",
-                "h": "specific_enthalpy", "s": "specific_entropy", "flow": "flow"}
+_STREAM_KIND = {
+    "T": "temperature",
+    "P": "pressure",
+    "quality": "quality",
+    "h": "specific_enthalpy",
+    "s": "specific_entropy",
+    "flow": "flow",
+}

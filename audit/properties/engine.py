@@ -67,8 +67,14 @@ from audit.properties.state import BASIS_FLUID, BASIS_FORMATION, BASIS_MIXTURE, 
 from audit.wording import to_bar, to_celsius
 
 __all__ = [
-    "BACKEND", "BASIS_FLUID", "BASIS_FORMATION", "BASIS_MIXTURE", "COOLPROP_VERSION",
-    "GAS_CONSTANT", "PropertyEngine", "State",
+    "BACKEND",
+    "BASIS_FLUID",
+    "BASIS_FORMATION",
+    "BASIS_MIXTURE",
+    "COOLPROP_VERSION",
+    "GAS_CONSTANT",
+    "PropertyEngine",
+    "State",
 ]
 
 COOLPROP_VERSION = CoolProp.__version__
@@ -228,8 +234,9 @@ class PropertyEngine:
             if imposed is not None:
                 state.unspecify_phase()
         isfinite = math.isfinite
-        if not (isfinite(T) and isfinite(P) and isfinite(rho) and isfinite(h) and isfinite(s)
-                and isfinite(u)):
+        if not (
+            isfinite(T) and isfinite(P) and isfinite(rho) and isfinite(h) and isfinite(s) and isfinite(u)
+        ):
             raise StateError(f"the equation of state of {info.name} returned a non-finite value")
         check_temperature(info, T)
         check_pressure(info, P)
@@ -242,9 +249,20 @@ class PropertyEngine:
         s += info.s_shift
         h0, s0 = self._dead_state(info)
         return State(
-            fluid=info.name, T=T, P=P, rho=rho, h=h, s=s, u=u, phase=phase, quality=quality,
-            g=h - T * s, a=u - T * s, psi=(h - h0) - self.dead_T * (s - s0),
-            molar_mass=info.molar_mass, basis=info.basis,
+            fluid=info.name,
+            T=T,
+            P=P,
+            rho=rho,
+            h=h,
+            s=s,
+            u=u,
+            phase=phase,
+            quality=quality,
+            g=h - T * s,
+            a=u - T * s,
+            psi=(h - h0) - self.dead_T * (s - s0),
+            molar_mass=info.molar_mass,
+            basis=info.basis,
         )
 
     def _phase_for_TP(self, info: Fluid, T: float, P: float) -> CP.phases | None:
@@ -298,14 +316,16 @@ class PropertyEngine:
         return self._dead_state(self.fluid(fluid))
 
     # -- gas mixtures and the species of reactions --------------------------------------------------
-    def mixture_components(self, fractions: Mapping[str, float], basis: str = "mole"
-                           ) -> tuple[mixtures.Component, ...]:
+    def mixture_components(
+        self, fractions: Mapping[str, float], basis: str = "mole"
+    ) -> tuple[mixtures.Component, ...]:
         """The species of a composition (formulas or CoolProp names; ``basis`` ``"mole"`` or
         ``"mass"``) as mole fractions [-] by formula; :class:`StateError` for a bad composition."""
         return self._mixtures.components(fractions, basis)
 
-    def mixture_state(self, fractions: Mapping[str, float], T: float, P: float,
-                      basis: str = "mole") -> State:
+    def mixture_state(
+        self, fractions: Mapping[str, float], T: float, P: float, basis: str = "mole"
+    ) -> State:
         """An ideal-gas mixture at T [K] and P [Pa] on the formation basis
         (:mod:`audit.properties.mixtures`).
 
@@ -327,10 +347,20 @@ class PropertyEngine:
         dead = self._mixtures.state(components, self.dead_T, self.dead_P, check_ideal=False)
         T0 = self.dead_T
         result = State(
-            fluid=mixtures.mixture_name(components), T=T, P=P, rho=values.rho, h=values.h,
-            s=values.s, u=values.u, phase="gas", quality=None, g=values.h - T * values.s,
-            a=values.u - T * values.s, psi=(values.h - dead.h) - T0 * (values.s - dead.s),
-            molar_mass=values.molar_mass, basis=BASIS_MIXTURE,
+            fluid=mixtures.mixture_name(components),
+            T=T,
+            P=P,
+            rho=values.rho,
+            h=values.h,
+            s=values.s,
+            u=values.u,
+            phase="gas",
+            quality=None,
+            g=values.h - T * values.s,
+            a=values.u - T * values.s,
+            psi=(values.h - dead.h) - T0 * (values.s - dead.s),
+            molar_mass=values.molar_mass,
+            basis=BASIS_MIXTURE,
             composition=tuple((c.formula, c.x) for c in components),
             condensing=values.condensing,
         )
@@ -338,8 +368,9 @@ class PropertyEngine:
         self._mixture_names[result.fluid] = components
         return result
 
-    def _mixture_from_pair(self, components: tuple[mixtures.Component, ...], pair: str, a: float,
-                           b: float) -> State:
+    def _mixture_from_pair(
+        self, components: tuple[mixtures.Component, ...], pair: str, a: float, b: float
+    ) -> State:
         """A mixture (already evaluated once by name) from (T, P), (P, h) or (P, s); h [J/kg] and
         s [J/(kg K)] on the formation basis, T found by regula falsi (Illinois) on the verified
         range, where h and s rise monotonically with T."""
@@ -362,7 +393,8 @@ class PropertyEngine:
             raise StateError(
                 f"no state of this gas mixture at {to_bar(P):.6g} bar has {name} = {target:.6g} "
                 f"within its verified temperature range ({to_celsius(low):.6g} to "
-                f"{to_celsius(high):.6g} °C)")
+                f"{to_celsius(high):.6g} °C)"
+            )
         T = rising_root(residual, low, high, f_low, f_high, target)
         return self.mixture_state(fractions, T, P)
 
@@ -382,7 +414,8 @@ class PropertyEngine:
         if state.phase != "liquid":
             raise StateError(
                 f"{data.formula}(l) is not liquid at {to_celsius(T):.6g} °C and {to_bar(P):.6g} bar "
-                f"(it is {state.phase} there); write {data.formula}(g) or give other conditions")
+                f"(it is {state.phase} there); write {data.formula}(g) or give other conditions"
+            )
         return state.h * state.molar_mass, state.s * state.molar_mass
 
     def species_molar_mass(self, name: str) -> float:
@@ -395,5 +428,3 @@ class PropertyEngine:
     def saturation_pressure(self, fluid: str, T: float) -> float | None:
         """p_sat(T) [Pa] of a pure fluid below its critical temperature, else None."""
         return self._mixtures.saturation_pressure(self.canonical_name(fluid), T)
-
-

@@ -134,8 +134,7 @@ class IdealGasMixtures:
         self.flash_count = 0
 
     # -- composition ----------------------------------------------------------------------------
-    def components(self, fractions: Mapping[str, float], basis: str = "mole"
-                   ) -> tuple[Component, ...]:
+    def components(self, fractions: Mapping[str, float], basis: str = "mole") -> tuple[Component, ...]:
         """Species of a composition as written (formulas or CoolProp names, mole or mass
         fractions), as mole fractions by formula; zero fractions are dropped."""
         try:
@@ -164,8 +163,9 @@ class IdealGasMixtures:
         return h, s0 - GAS_CONSTANT * math.log(P / P_STANDARD)
 
     # -- mixtures ---------------------------------------------------------------------------------
-    def state(self, components: tuple[Component, ...], T: float, P: float,
-              check_ideal: bool = True) -> MixtureValues:
+    def state(
+        self, components: tuple[Component, ...], T: float, P: float, check_ideal: bool = True
+    ) -> MixtureValues:
         """The mixture at T [K], P [Pa]; see the module docstring for the model and its limits
         (``check_ideal=False`` skips the pressure limit, for the trial states of an iteration)."""
         if not (math.isfinite(T) and math.isfinite(P)):
@@ -183,21 +183,35 @@ class IdealGasMixtures:
                 f"ideal gas (compressibility Z ≈ {z:.4f} by its second virial coefficient; the "
                 f"ideal-gas mixture model is used only while |Z − 1| ≤ {IDEAL_GAS_Z_LIMIT:g}); "
                 "real-fluid mixtures are not supported: give the stream at a lower pressure or as "
-                "a pure fluid")
+                "a pure fluid"
+            )
         h = s = 0.0
         for c in components:
             h_i, s_i = self._standard(c.fluid, T)
             h += c.x * h_i
             s += c.x * (s_i - GAS_CONSTANT * math.log(c.x * P / P_STANDARD))
         M = math.fsum(c.x * c.molar_mass for c in components)
-        condensing = tuple(
-            (c.formula, c.x * P, p_sat) for c in components
-            if (p_sat := self.saturation_pressure(c.fluid, T)) is not None and c.x * P > p_sat
-        ) if check_ideal else ()
+        condensing = (
+            tuple(
+                (c.formula, c.x * P, p_sat)
+                for c in components
+                if (p_sat := self.saturation_pressure(c.fluid, T)) is not None and c.x * P > p_sat
+            )
+            if check_ideal
+            else ()
+        )
         rho = P * M / (GAS_CONSTANT * T)
         return MixtureValues(
-            T=T, P=P, h=h / M, s=s / M, u=(h - GAS_CONSTANT * T) / M, rho=rho, molar_mass=M,
-            z_estimate=z, condensing=condensing)
+            T=T,
+            P=P,
+            h=h / M,
+            s=s / M,
+            u=(h - GAS_CONSTANT * T) / M,
+            rho=rho,
+            molar_mass=M,
+            z_estimate=z,
+            condensing=condensing,
+        )
 
     def z_estimate(self, components: tuple[Component, ...], T: float, P: float) -> float:
         """Z ≈ 1 + B_mix P / (R T) with B_mix = Σ x_i B_i(T) [-] (an estimate of non-ideality)."""
@@ -240,8 +254,11 @@ class IdealGasMixtures:
             return known
         data = SPECIES[fluid]
         h_ig, s_ig = self._coolprop_ideal(fluid, T_STANDARD)
-        anchor = (data.enthalpy_of_formation - h_ig, data.standard_entropy - s_ig,
-                  self._state(fluid).molar_mass())
+        anchor = (
+            data.enthalpy_of_formation - h_ig,
+            data.standard_entropy - s_ig,
+            self._state(fluid).molar_mass(),
+        )
         self._anchor[fluid] = anchor
         return anchor
 
@@ -254,8 +271,9 @@ class IdealGasMixtures:
             h = state.hmolar_idealgas()
             s = state.smolar_idealgas()
         except ValueError as exc:  # pragma: no cover - inside the verified range it evaluates
-            raise StateError(f"CoolProp cannot evaluate the ideal-gas part of {fluid} at "
-                             f"{T:.6g} K: {str(exc)[:160]}") from None
+            raise StateError(
+                f"CoolProp cannot evaluate the ideal-gas part of {fluid} at {T:.6g} K: {str(exc)[:160]}"
+            ) from None
         try:  # the second virial coefficient at the same update (for the Z estimate)
             B = state.Bvirial()
         except ValueError:  # pragma: no cover - an estimate only
@@ -290,10 +308,12 @@ class IdealGasMixtures:
         low, high = VERIFIED_RANGE.get(fluid, (math.nan, math.nan))
         formula = SPECIES[fluid].formula
         if math.isnan(low):  # pragma: no cover - every species in SPECIES has a range
-            raise StateError(f"{formula} has no verified ideal-gas range; it cannot be used in a "
-                             "gas mixture")
+            raise StateError(
+                f"{formula} has no verified ideal-gas range; it cannot be used in a gas mixture"
+            )
         if not low <= T <= high:
             raise StateError(
                 f"temperature {to_celsius(T):.6g} °C is outside the range over which the ideal-gas "
                 f"properties of {formula} were verified ({to_celsius(low):.6g} to "
-                f"{to_celsius(high):.6g} °C, against NIST-JANAF)")
+                f"{to_celsius(high):.6g} °C, against NIST-JANAF)"
+            )

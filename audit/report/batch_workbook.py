@@ -39,8 +39,10 @@ from audit.outcomes import (
 from audit.report.display import shown, unit
 from audit.report.files import write_atomically
 
-CAUTION = ("The audit checks thermodynamic consistency only; it is not a safety or "
-           "code-compliance review. Defer to local codes and licensed engineers.")
+CAUTION = (
+    "The audit checks thermodynamic consistency only; it is not a safety or "
+    "code-compliance review. Defer to local codes and licensed engineers."
+)
 
 _FORMULA_TRIGGERS = ("=", "+", "-", "@", "\t", "\r")
 _HEADER_FILL = PatternFill("solid", fgColor="DDE4EE")
@@ -53,19 +55,37 @@ _VERDICT_FILL = {
 }
 
 SUMMARY_COLUMNS = [
-    ("File", 48), ("Balance", 30), ("Revision", 12), ("Verdict", 15), ("Errors", 8),
-    ("Warnings", 10), ("Info", 6), ("Accepted", 10), ("Worst finding", 60),
-    ("Exergy destroyed [kW]", 14), ("New since last run", 50), ("Workbook", 36),
+    ("File", 48),
+    ("Balance", 30),
+    ("Revision", 12),
+    ("Verdict", 15),
+    ("Errors", 8),
+    ("Warnings", 10),
+    ("Info", 6),
+    ("Accepted", 10),
+    ("Worst finding", 60),
+    ("Exergy destroyed [kW]", 14),
+    ("New since last run", 50),
+    ("Workbook", 36),
     ("Problems", 80),
 ]
 FINDING_COLUMNS = [
-    ("File", 48), ("Step", 10), ("Stream", 10), ("Severity", 9), ("Finding", 28),
-    ("Accepted", 40), ("New since last run", 12), ("Margin", 12), ("Unit", 10), ("Message", 100),
+    ("File", 48),
+    ("Step", 10),
+    ("Stream", 10),
+    ("Severity", 9),
+    ("Finding", 28),
+    ("Accepted", 40),
+    ("New since last run", 12),
+    ("Margin", 12),
+    ("Unit", 10),
+    ("Message", 100),
 ]
 
 
-def summary_rows(outcomes: list[FileOutcome], output: str | Path | None = None,
-                 fail_on: str = "error") -> list[list[Any]]:
+def summary_rows(
+    outcomes: list[FileOutcome], output: str | Path | None = None, fail_on: str = "error"
+) -> list[list[Any]]:
     """The Summary sheet's rows (one per file), as plain values; the workbook column is the
     workbook's path relative to ``output``."""
     rows = []
@@ -75,29 +95,35 @@ def summary_rows(outcomes: list[FileOutcome], output: str | Path | None = None,
         worst = outcome.worst_finding()
         link = None
         if outcome.workbook:
-            link = (os.path.relpath(outcome.workbook, output) if output is not None
-                    else outcome.workbook)
-        rows.append([
-            outcome.path,
-            result.name if result else None,
-            result.revision if result else None,
-            outcome.verdict(fail_on),
-            counts.get(ERROR) if result else None,
-            counts.get(WARNING) if result else None,
-            counts.get(INFO) if result else None,
-            sum(1 for f in result.findings if f.accepted) if result else None,
-            (f"{worst.severity} {worst.name} at {worst.step or worst.stream or 'plant'}: "
-             f"{worst.message}") if worst else None,
-            shown(result.plant.exergy_destroyed, "power") if result else None,
-            outcome.history_note() or None,
-            link,
-            "\n".join(outcome.problems) or None,
-        ])
+            link = os.path.relpath(outcome.workbook, output) if output is not None else outcome.workbook
+        rows.append(
+            [
+                outcome.path,
+                result.name if result else None,
+                result.revision if result else None,
+                outcome.verdict(fail_on),
+                counts.get(ERROR) if result else None,
+                counts.get(WARNING) if result else None,
+                counts.get(INFO) if result else None,
+                sum(1 for f in result.findings if f.accepted) if result else None,
+                (
+                    f"{worst.severity} {worst.name} at {worst.step or worst.stream or 'plant'}: "
+                    f"{worst.message}"
+                )
+                if worst
+                else None,
+                shown(result.plant.exergy_destroyed, "power") if result else None,
+                outcome.history_note() or None,
+                link,
+                "\n".join(outcome.problems) or None,
+            ]
+        )
     return rows
 
 
-def write_batch_workbook(outcomes: list[FileOutcome], path: str | Path, fail_on: str = "error",
-                         run_at: datetime | None = None) -> Path:
+def write_batch_workbook(
+    outcomes: list[FileOutcome], path: str | Path, fail_on: str = "error", run_at: datetime | None = None
+) -> Path:
     """Write the batch summary workbook to ``path`` (atomically); return the path. Raises
     :class:`audit.errors.ReportError` when the file cannot be written."""
     path = Path(path)
@@ -110,9 +136,18 @@ def write_batch_workbook(outcomes: list[FileOutcome], path: str | Path, fail_on:
     sheet["A1"].font = Font(bold=True, size=14)
     append_row(sheet, ["Run at (UTC)", when.strftime("%Y-%m-%d %H:%M:%S")])
     append_row(sheet, ["Fails on", f"findings at or above '{fail_on}' that no reviewer accepted"])
-    append_row(sheet, ["Files", f"{len(outcomes)}: " + ", ".join(
-        f"{verdicts[v]} {v.lower()}" for v in (PASS, FAIL, VERDICT_INVALID, VERDICT_INTERNAL)
-        + ((VERDICT_UNWRITTEN,) if verdicts[VERDICT_UNWRITTEN] else ()))])
+    append_row(
+        sheet,
+        [
+            "Files",
+            f"{len(outcomes)}: "
+            + ", ".join(
+                f"{verdicts[v]} {v.lower()}"
+                for v in (PASS, FAIL, VERDICT_INVALID, VERDICT_INTERNAL)
+                + ((VERDICT_UNWRITTEN,) if verdicts[VERDICT_UNWRITTEN] else ())
+            ),
+        ],
+    )
     append_row(sheet, ["Caution", CAUTION])
     append_row(sheet, [])
     write_header(sheet, SUMMARY_COLUMNS)
@@ -128,11 +163,11 @@ def write_batch_workbook(outcomes: list[FileOutcome], path: str | Path, fail_on:
             link.style = "Hyperlink"
         verdict = sheet.cell(r, verdict_column)
         verdict.fill = _VERDICT_FILL[verdict.value]
-        sheet.cell(r, len(SUMMARY_COLUMNS)).alignment = Alignment(wrap_text=True,
-                                                                  vertical="top")
+        sheet.cell(r, len(SUMMARY_COLUMNS)).alignment = Alignment(wrap_text=True, vertical="top")
     sheet.freeze_panes = sheet.cell(header_row + 1, 2)
-    sheet.auto_filter.ref = (f"A{header_row}:{get_column_letter(len(SUMMARY_COLUMNS))}"
-                             f"{max(sheet.max_row, header_row)}")
+    sheet.auto_filter.ref = (
+        f"A{header_row}:{get_column_letter(len(SUMMARY_COLUMNS))}{max(sheet.max_row, header_row)}"
+    )
 
     findings = book.create_sheet("Findings")
     write_header(findings, FINDING_COLUMNS)
@@ -143,12 +178,21 @@ def write_batch_workbook(outcomes: list[FileOutcome], path: str | Path, fail_on:
         new = set(outcome.new_since_last or []) if compared else None
         for f in outcome.result.findings:
             difference = f.quantity == "temperature"
-            append_row(findings, [
-                outcome.path, f.step, f.stream, f.severity, f.name, f.accepted,
-                None if new is None else ("yes" if finding_key(f) in new else "no"),
-                shown(f.margin, f.quantity, difference=difference),
-                unit(f.quantity, difference=difference), f.message,
-            ])
+            append_row(
+                findings,
+                [
+                    outcome.path,
+                    f.step,
+                    f.stream,
+                    f.severity,
+                    f.name,
+                    f.accepted,
+                    None if new is None else ("yes" if finding_key(f) in new else "no"),
+                    shown(f.margin, f.quantity, difference=difference),
+                    unit(f.quantity, difference=difference),
+                    f.message,
+                ],
+            )
     findings.freeze_panes = "B2"
     findings.auto_filter.ref = f"A1:{get_column_letter(len(FINDING_COLUMNS))}{findings.max_row}"
     append_row(findings, [])

@@ -10,9 +10,11 @@ from audit.wording import to_bar, to_celsius
 
 def stream_table(result: AuditResult) -> str:
     """One line per stream: T, P, phase, quality, flow, h, s, ψ in engineering units."""
-    header = (f"{'stream':<8} {'T [°C]':>9} {'P [bar]':>9} {'phase':<13} "
-              f"{'quality':>7} {'flow [kg/s]':>11} {'h [kJ/kg]':>11} {'s [kJ/(kg·K)]':>13} "
-              f"{'ψ [kJ/kg]':>10}  {'basis':<15}  fluid")
+    header = (
+        f"{'stream':<8} {'T [°C]':>9} {'P [bar]':>9} {'phase':<13} "
+        f"{'quality':>7} {'flow [kg/s]':>11} {'h [kJ/kg]':>11} {'s [kJ/(kg·K)]':>13} "
+        f"{'ψ [kJ/kg]':>10}  {'basis':<15}  fluid"
+    )
     lines = [header, "-" * len(header)]
     for s in result.streams:
         quality = f"{s.quality:.4f}" if s.quality is not None else ""
@@ -33,14 +35,18 @@ def _uncertainty_lines(f: Finding) -> list[str]:
         text = f"{indent}verdict: {f.verdict}"
         if f.uncertainty is not None:
             size = shown(f.uncertainty, f.quantity, difference=True)
-            text += (f" (margin ± {size:.3g} {unit(f.quantity, difference=True)}, "
-                     f"k = {f.coverage_factor:g})")
+            text += (
+                f" (margin ± {size:.3g} {unit(f.quantity, difference=True)}, k = {f.coverage_factor:g})"
+            )
         if f.monte_carlo_uncertainty is not None:
             size = shown(f.monte_carlo_uncertainty, f.quantity, difference=True)
             text += f"; Monte Carlo ± {size:.3g} {unit(f.quantity, difference=True)}"
         lines.append(text)
-        first = [f"{c.input} ({c.share:.0%})" for c in f.contributors[:3]
-                 if c.share != c.share or c.share >= 0.005]  # not evaluated (NaN), or ≥ 0.5 %
+        first = [
+            f"{c.input} ({c.share:.0%})"
+            for c in f.contributors[:3]
+            if c.share != c.share or c.share >= 0.005
+        ]  # not evaluated (NaN), or ≥ 0.5 %
         if first:
             lines.append(f"{indent}check first: " + ", ".join(first))
     lines.extend(f"{indent}probable cause: {cause}" for cause in f.probable_causes)
@@ -54,10 +60,14 @@ def findings_summary(result: AuditResult, fail_on: str = "error", marginal: bool
     lines = [
         f"Audit of {title} ({result.file})",
         f"{len(result.streams)} streams, {len(result.steps)} steps; findings: "
-        + ", ".join(f"{counts[s]} {s}" for s in sorted(counts, key=SEVERITY_RANK.__getitem__,
-                                                        reverse=True))
-        + (f" ({accepted} accepted by a reviewer)" if (accepted := sum(
-            1 for f in result.findings if f.accepted)) else ""),
+        + ", ".join(
+            f"{counts[s]} {s}" for s in sorted(counts, key=SEVERITY_RANK.__getitem__, reverse=True)
+        )
+        + (
+            f" ({accepted} accepted by a reviewer)"
+            if (accepted := sum(1 for f in result.findings if f.accepted))
+            else ""
+        ),
     ]
     ordered = sorted(result.findings, key=lambda f: -SEVERITY_RANK[f.severity])
     for f in ordered:
@@ -75,8 +85,12 @@ def findings_summary(result: AuditResult, fail_on: str = "error", marginal: bool
         lines.append(f"  {f.severity.upper():<7} {f.name:<28} {where:<10} {f.message}{margin}")
         lines.extend(_uncertainty_lines(f))
     verdict = "FAIL" if result.fails(fail_on, marginal=marginal) else "PASS"
-    lines.append(f"Verdict: {verdict} (fails on findings at or above '{fail_on}'"
-                 + (", and on marginal ones)" if marginal else ")"))
-    lines.append("Consistency check only: not a safety or code-compliance review; defer to local "
-                 "codes and licensed engineers.")
+    lines.append(
+        f"Verdict: {verdict} (fails on findings at or above '{fail_on}'"
+        + (", and on marginal ones)" if marginal else ")")
+    )
+    lines.append(
+        "Consistency check only: not a safety or code-compliance review; defer to local "
+        "codes and licensed engineers."
+    )
     return "\n".join(lines)

@@ -41,42 +41,56 @@ def junit_tree(outcomes: list[FileOutcome], fail_on: str = "error") -> ET.Elemen
         counts = {"tests": 0, "failures": 0, "errors": 0}
         classname = outcome.path
         if outcome.status in (INVALID, INTERNAL) or outcome.result is None:
-            case = ET.SubElement(suite, "testcase", classname=classname, name=LOAD_CASE,
-                                 time=f"{outcome.seconds:.3f}")
+            case = ET.SubElement(
+                suite, "testcase", classname=classname, name=LOAD_CASE, time=f"{outcome.seconds:.3f}"
+            )
             kind = "invalid-input" if outcome.status == INVALID else "internal-error"
-            error = ET.SubElement(case, "error", type=kind,
-                                  message=(outcome.problems or [kind])[0])
+            error = ET.SubElement(case, "error", type=kind, message=(outcome.problems or [kind])[0])
             error.text = "\n".join(outcome.problems)
             counts["tests"] += 1
             counts["errors"] += 1
         else:
             result = outcome.result
-            ET.SubElement(ET.SubElement(suite, "properties"), "property", name="revision",
-                          value=result.revision or "")
+            ET.SubElement(
+                ET.SubElement(suite, "properties"),
+                "property",
+                name="revision",
+                value=result.revision or "",
+            )
             cases = [(f"{s.id} ({s.kind})", s.id) for s in result.steps] + [(PLANT_CASE, None)]
             step_ids = {s.id for s in result.steps}
             for name, step_id in cases:
-                own = [f for f in result.findings if (f.step == step_id) or (
-                    step_id is None and f.step not in step_ids)]
-                case = ET.SubElement(suite, "testcase", classname=classname, name=name,
-                                     time="0")
+                own = [
+                    f
+                    for f in result.findings
+                    if (f.step == step_id) or (step_id is None and f.step not in step_ids)
+                ]
+                case = ET.SubElement(suite, "testcase", classname=classname, name=name, time="0")
                 failing = [f for f in own if at_or_above(f.severity, fail_on) and not f.accepted]
                 counts["tests"] += 1
                 if failing:
                     counts["failures"] += 1
                     names = ", ".join(dict.fromkeys(f.name for f in failing))
                     failure = ET.SubElement(
-                        case, "failure", type=failing[0].name,
-                        message=f"{len(failing)} finding(s) at or above '{fail_on}': {names}")
+                        case,
+                        "failure",
+                        type=failing[0].name,
+                        message=f"{len(failing)} finding(s) at or above '{fail_on}': {names}",
+                    )
                     failure.text = "\n".join(_line(f) for f in failing)
                 others = [f for f in own if f not in failing]
                 if others:
                     ET.SubElement(case, "system-out").text = "\n".join(_line(f) for f in others)
             if outcome.status == UNWRITTEN:
-                case = ET.SubElement(suite, "testcase", classname=classname, name=WORKBOOK_CASE,
-                                     time="0")
-                error = ET.SubElement(case, "error", type="report-not-written",
-                                      message=(outcome.problems or ["report-not-written"])[0])
+                case = ET.SubElement(
+                    suite, "testcase", classname=classname, name=WORKBOOK_CASE, time="0"
+                )
+                error = ET.SubElement(
+                    case,
+                    "error",
+                    type="report-not-written",
+                    message=(outcome.problems or ["report-not-written"])[0],
+                )
                 error.text = "\n".join(outcome.problems)
                 counts["tests"] += 1
                 counts["errors"] += 1

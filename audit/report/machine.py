@@ -42,9 +42,15 @@ JSON_VERSION = "1"
 FORMULA_TRIGGERS = ("=", "+", "-", "@", "\t", "\r")
 
 UNITS = {
-    "T": "K", "P": "Pa", "rho": "kg/m3", "h, u, g, a, psi": "J/kg", "s": "J/(kg K)",
-    "mass_flow": "kg/s", "molar_flow": "mol/s", "Q, W, dH, dU, dG, dA, W_rev, exergy_destroyed, "
-    "energy_residual": "W (flow steps) or J (vessels)", "dS, S_gen": "W/K or J/K",
+    "T": "K",
+    "P": "Pa",
+    "rho": "kg/m3",
+    "h, u, g, a, psi": "J/kg",
+    "s": "J/(kg K)",
+    "mass_flow": "kg/s",
+    "molar_flow": "mol/s",
+    "Q, W, dH, dU, dG, dA, W_rev, exergy_destroyed, energy_residual": "W (flow steps) or J (vessels)",
+    "dS, S_gen": "W/K or J/K",
 }
 
 
@@ -60,23 +66,28 @@ def _clean(value: Any) -> Any:
 
 def to_dict(result: AuditResult) -> dict:
     """The versioned JSON structure of a result (see the module docstring)."""
-    return _clean({
-        "format": "plant-audit-results",
-        "version": JSON_VERSION,
-        "balance": {
-            "name": result.name, "revision": result.revision, "file": result.file,
-            "sha256": result.sha256,
-            "dead_state": {"T": result.dead_T, "P": result.dead_P},
-            "site_pressure": result.site_pressure, "tolerances": result.tolerances,
-        },
-        "provenance": result.provenance,
-        "verdict": {"counts": result.counts()},
-        "units": UNITS,
-        "streams": [STREAMS.json_row(s) for s in result.streams],
-        "steps": [STEPS.json_row(s) for s in result.steps],
-        "findings": [FINDINGS.json_row(f) for f in result.findings],
-        "plant": asdict(result.plant),
-    })
+    return _clean(
+        {
+            "format": "plant-audit-results",
+            "version": JSON_VERSION,
+            "balance": {
+                "name": result.name,
+                "revision": result.revision,
+                "file": result.file,
+                "sha256": result.sha256,
+                "dead_state": {"T": result.dead_T, "P": result.dead_P},
+                "site_pressure": result.site_pressure,
+                "tolerances": result.tolerances,
+            },
+            "provenance": result.provenance,
+            "verdict": {"counts": result.counts()},
+            "units": UNITS,
+            "streams": [STREAMS.json_row(s) for s in result.streams],
+            "steps": [STEPS.json_row(s) for s in result.steps],
+            "findings": [FINDINGS.json_row(f) for f in result.findings],
+            "plant": asdict(result.plant),
+        }
+    )
 
 
 def write_json(result: AuditResult, path: str | Path) -> None:
@@ -101,14 +112,12 @@ def write_csv(result: AuditResult, folder: str | Path) -> list[Path]:
     :class:`audit.errors.ReportError` when a file cannot be written."""
     folder = Path(folder)
     written = []
-    for table, rows in ((FINDINGS, result.findings), (STEPS, result.steps),
-                        (STREAMS, result.streams)):
+    for table, rows in ((FINDINGS, result.findings), (STEPS, result.steps), (STREAMS, result.streams)):
         target = folder / f"{table.name}.csv"
         frame = table_frame(table, rows)
         frame = frame.apply(lambda column: column.map(csv_safe))
         frame.index = frame.index.map(csv_safe)
-        write_text(target, frame.to_csv(index=table.index is not None),
-                   f"the CSV table of {table.name}")
+        write_text(target, frame.to_csv(index=table.index is not None), f"the CSV table of {table.name}")
         written.append(target)
     return written
 

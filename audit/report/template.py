@@ -35,48 +35,80 @@ _HEADER_FILL = PatternFill("solid", fgColor="DDEBF7")
 _HEADER_FONT = Font(bold=True)
 _VALIDATED_ROWS = 2000  # rows of the streams sheet given the phase drop-down list
 
-CAUTION = ("The audit checks thermodynamic consistency only; it is not a safety or "
-           "code-compliance review. Defer to local codes and licensed engineers.")
+CAUTION = (
+    "The audit checks thermodynamic consistency only; it is not a safety or "
+    "code-compliance review. Defer to local codes and licensed engineers."
+)
 
 INSTRUCTIONS = [
     ("Stream table", None),
     ("One row per stream; the first row holds the headers. Empty rows are ignored.", None),
-    ("A header is a stream field and, for a quantity, its unit in square brackets: "
-     "'T [degC]', 'P [barg]', 'flow [t/h]'. Change the unit in the header to any unit plant-audit "
-     "reads ('T [K]', 'P [bar]', 'P [kPa]', 'flow [kg/s]', 'flow [Nm3/h]', 'h [kJ/kg]').", None),
-    ("Numbers go in the cells as numbers (105.73, not '105.73 degC'). A quantity may have several "
-     "columns in different units, e.g. 'P [barg]' and 'P [bar]'; fill one of them per row.", None),
-    ("Each stream needs 'id', 'fluid', 'flow' and exactly two of T, P, quality, h, s, in one of the "
-     "pairs (T, P), (P, quality), (T, quality), (P, h), (P, s).", None),
-    ("Gauge pressures (barg, psig, kPa(g)) need 'site_pressure' under 'balance' in the balance "
-     "file; write 'P [bar]' for absolute pressures.", None),
-    ("'quality' is the vapour mass fraction, 0 to 1, without a unit. 'phase' (optional) is one of "
-     "the listed words and is checked against the computed state.", None),
+    (
+        "A header is a stream field and, for a quantity, its unit in square brackets: "
+        "'T [degC]', 'P [barg]', 'flow [t/h]'. Change the unit in the header to any unit plant-audit "
+        "reads ('T [K]', 'P [bar]', 'P [kPa]', 'flow [kg/s]', 'flow [Nm3/h]', 'h [kJ/kg]').",
+        None,
+    ),
+    (
+        "Numbers go in the cells as numbers (105.73, not '105.73 degC'). A quantity may have several "
+        "columns in different units, e.g. 'P [barg]' and 'P [bar]'; fill one of them per row.",
+        None,
+    ),
+    (
+        "Each stream needs 'id', 'fluid', 'flow' and exactly two of T, P, quality, h, s, in one of the "
+        "pairs (T, P), (P, quality), (T, quality), (P, h), (P, s).",
+        None,
+    ),
+    (
+        "Gauge pressures (barg, psig, kPa(g)) need 'site_pressure' under 'balance' in the balance "
+        "file; write 'P [bar]' for absolute pressures.",
+        None,
+    ),
+    (
+        "'quality' is the vapour mass fraction, 0 to 1, without a unit. 'phase' (optional) is one of "
+        "the listed words and is checked against the computed state.",
+        None,
+    ),
     ("'fluid' is a CoolProp fluid name such as Water, Ammonia, Air, Nitrogen.", None),
-    ("Do not merge cells inside the table. Formulas are fine if the workbook was last saved by a "
-     "spreadsheet program that calculated them.", None),
+    (
+        "Do not merge cells inside the table. Formulas are fine if the workbook was last saved by a "
+        "spreadsheet program that calculated them.",
+        None,
+    ),
     ("Claim table (optional)", None),
-    ("Columns step | field | value | unit | note: each row sets one field of one step written "
-     "in the balance file, e.g. T1 | shaft_power | 1.148 | MW. 'note' is not read.", None),
+    (
+        "Columns step | field | value | unit | note: each row sets one field of one step written "
+        "in the balance file, e.g. T1 | shaft_power | 1.148 | MW. 'note' is not read.",
+        None,
+    ),
     ("A claim is written in one place: in the table or in the balance file, not in both.", None),
     ("Using the tables", None),
     ("In the balance file, next to 'balance' and 'steps':", None),
     ("  streams_from: {file: streams.xlsx, sheet: streams}", "code"),
     ("  claims_from: {file: streams.xlsx, sheet: claims}", "code"),
-    ("The file is relative to the balance file and must be inside its folder (or run "
-     "'plant-audit check --allow-outside'). Every error names the sheet and the cell.", None),
-    ("'plant-audit convert BALANCE --to yaml' writes the balance with the table inlined, for review "
-     "diffs in version control.", None),
+    (
+        "The file is relative to the balance file and must be inside its folder (or run "
+        "'plant-audit check --allow-outside'). Every error names the sheet and the cell.",
+        None,
+    ),
+    (
+        "'plant-audit convert BALANCE --to yaml' writes the balance with the table inlined, for review "
+        "diffs in version control.",
+        None,
+    ),
     (CAUTION, "caution"),
 ]
 
 
-def write_table_workbook(path: str | Path, stream_headers: Sequence[str],
-                         stream_rows: Sequence[Sequence[Any]] = (),
-                         claim_headers: Sequence[str] = (),
-                         claim_rows: Sequence[Sequence[Any]] = (),
-                         choices: Mapping[str, Sequence[str]] | None = None,
-                         title: str | None = None) -> None:
+def write_table_workbook(
+    path: str | Path,
+    stream_headers: Sequence[str],
+    stream_rows: Sequence[Sequence[Any]] = (),
+    claim_headers: Sequence[str] = (),
+    claim_rows: Sequence[Sequence[Any]] = (),
+    choices: Mapping[str, Sequence[str]] | None = None,
+    title: str | None = None,
+) -> None:
     """Write a stream-table workbook to ``path`` (an .xlsx file), atomically.
 
     ``stream_headers`` and ``claim_headers`` are the header rows (an empty ``claim_headers``
@@ -112,8 +144,12 @@ def _put(ws: Worksheet, row: int, col: int, value: Any) -> None:
         cell.value = value
 
 
-def _table(ws: Worksheet, headers: Sequence[str], rows: Sequence[Sequence[Any]],
-           choices: Mapping[str, Sequence[str]]) -> None:
+def _table(
+    ws: Worksheet,
+    headers: Sequence[str],
+    rows: Sequence[Sequence[Any]],
+    choices: Mapping[str, Sequence[str]],
+) -> None:
     widths = [len(h) for h in headers]
     for col, header in enumerate(headers, start=1):
         _put(ws, 1, col, header)
@@ -133,9 +169,14 @@ def _table(ws: Worksheet, headers: Sequence[str], rows: Sequence[Sequence[Any]],
         if header not in headers:
             continue
         letter = get_column_letter(list(headers).index(header) + 1)
-        check = DataValidation(type="list", formula1='"' + ",".join(words) + '"',
-                               allow_blank=True, showErrorMessage=True,
-                               errorTitle=f"{header}", error="Pick one of the listed words.")
+        check = DataValidation(
+            type="list",
+            formula1='"' + ",".join(words) + '"',
+            allow_blank=True,
+            showErrorMessage=True,
+            errorTitle=f"{header}",
+            error="Pick one of the listed words.",
+        )
         check.add(f"{letter}2:{letter}{max(_VALIDATED_ROWS, len(rows) + 1)}")
         ws.add_data_validation(check)
 

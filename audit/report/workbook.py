@@ -65,8 +65,19 @@ from audit.report.sheets.context import (
 from audit.report.workbook_cells import safe_text
 from audit.results import AuditResult
 
-__all__ = ["EXERGY", "FINDINGS", "HEAT", "METHOD", "OVERVIEW", "SHEETS", "STEPS", "STREAMS",
-           "TOLERANCE_QUANTITY", "build", "write_workbook"]
+__all__ = [
+    "EXERGY",
+    "FINDINGS",
+    "HEAT",
+    "METHOD",
+    "OVERVIEW",
+    "SHEETS",
+    "STEPS",
+    "STREAMS",
+    "TOLERANCE_QUANTITY",
+    "build",
+    "write_workbook",
+]
 
 WRITERS = (overview, findings, steps, streams, heat, exergy, method)
 """The sheet modules, in the order of :data:`SHEETS`."""
@@ -114,5 +125,6 @@ def write_workbook(result: AuditResult, path: str | Path, fail_on: str = "error"
     wb.properties.created = when
     wb.properties.modified = when
     formulas = {title: book.sheets[title].formulas for title in SHEETS}
-    write_atomically(path, lambda stream: workbook_file.package(wb, formulas, when, stream),
-                     "the workbook")
+    write_atomically(
+        path, lambda stream: workbook_file.package(wb, formulas, when, stream), "the workbook"
+    )

@@ -61,6 +61,7 @@ PERCENT = "0.0%"
 INTEGER = "0"
 GENERAL = "General"
 
+
 def safe_text(value: str) -> str:
     """``value`` with the control characters a workbook cannot hold replaced by U+FFFD, and
     carriage returns as line feeds (XML readers turn them into line feeds anyway)."""
@@ -88,9 +89,18 @@ class Sheet:
         self.header_titles: list[str] = []
         self.header_row = 1
 
-    def put(self, row: int, col: int, value: Any, fmt: str | None = None,
-            fill: PatternFill | None = None, font: Font | None = None,
-            link: str | None = None, wrap: bool = False, width: bool = True) -> Any:
+    def put(
+        self,
+        row: int,
+        col: int,
+        value: Any,
+        fmt: str | None = None,
+        fill: PatternFill | None = None,
+        font: Font | None = None,
+        link: str | None = None,
+        wrap: bool = False,
+        width: bool = True,
+    ) -> Any:
         cell = self.ws.cell(row=row, column=col)
         if isinstance(value, Formula):
             cell.value = value.text
@@ -159,7 +169,8 @@ class Sheet:
         for col in range(1, self.ws.max_column + 1):
             head = len(titles[col - 1]) if col <= len(titles) else 0
             width = self.fixed.get(col) or min(
-                max(self.widths.get(col, 0), min(head, header_cap), 6) + 2, cap)
+                max(self.widths.get(col, 0), min(head, header_cap), 6) + 2, cap
+            )
             final[col] = width
             self.ws.column_dimensions[get_column_letter(col)].width = width
         if titles:

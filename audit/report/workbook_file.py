@@ -29,8 +29,9 @@ def run_time(result: AuditResult) -> datetime:
     return max(when, datetime(*_ZIP_EPOCH))
 
 
-def package(wb: Workbook, formulas: dict[str, list[tuple[str, float]]], when: datetime,
-            stream: BinaryIO) -> None:
+def package(
+    wb: Workbook, formulas: dict[str, list[tuple[str, float]]], when: datetime, stream: BinaryIO
+) -> None:
     """Write the workbook to ``stream``: openpyxl's parts, with cached formula values and fixed
     entry times."""
     raw = io.BytesIO()
@@ -38,8 +39,10 @@ def package(wb: Workbook, formulas: dict[str, list[tuple[str, float]]], when: da
         ExcelWriter(wb, archive).write_data()  # save_workbook would stamp 'modified' with now
     parts = {ws.path.lstrip("/"): formulas.get(ws.title, []) for ws in wb.worksheets}
     stamp = when.timetuple()[:6]
-    with zipfile.ZipFile(raw) as source, zipfile.ZipFile(stream, "w", zipfile.ZIP_DEFLATED,
-                                                         allowZip64=True) as target:
+    with (
+        zipfile.ZipFile(raw) as source,
+        zipfile.ZipFile(stream, "w", zipfile.ZIP_DEFLATED, allowZip64=True) as target,
+    ):
         for info in source.infolist():
             content = source.read(info.filename)
             if parts.get(info.filename):

@@ -46,8 +46,9 @@ def beside_file(balance_path: str | Path) -> Path | None:
     """The acceptance file beside ``balance_path``, if one exists."""
     path = Path(balance_path)
     for suffix in BESIDE_SUFFIXES:
-        candidate = path.with_name(path.name[: -len(path.suffix)] + suffix if path.suffix
-                                   else path.name + suffix)
+        candidate = path.with_name(
+            path.name[: -len(path.suffix)] + suffix if path.suffix else path.name + suffix
+        )
         if candidate.is_file():
             return candidate
     return None
@@ -65,8 +66,13 @@ def parse_acceptances(items: Any, document: Any, base: tuple = ("accepted",)) ->
         return []
     if not isinstance(items, list):
         line, column = document.position(base)
-        raise InputError("'accepted' is a list of acceptances", file=document.file, line=line,
-                         column=column, field_path=".".join(map(str, base)))
+        raise InputError(
+            "'accepted' is a list of acceptances",
+            file=document.file,
+            line=line,
+            column=column,
+            field_path=".".join(map(str, base)),
+        )
     accepted: list[Acceptance] = []
     problems: list[Problem] = []
     for index, item in enumerate(items):
@@ -84,10 +90,19 @@ def parse_acceptances(items: Any, document: Any, base: tuple = ("accepted",)) ->
                     message = f"'{loc[-1]}' is required here"
                 elif error["type"] == "extra_forbidden":
                     message = f"unknown field '{loc[-1]}'"
-                field_path = "".join(f"[{p}]" if isinstance(p, int) else f".{p}" for p in (
-                    *path, *loc)).lstrip(".")
-                problems.append(Problem(message, file=document.file, line=e_line, column=e_column,
-                                        field_path=field_path, where=f"acceptance #{index + 1}"))
+                field_path = "".join(
+                    f"[{p}]" if isinstance(p, int) else f".{p}" for p in (*path, *loc)
+                ).lstrip(".")
+                problems.append(
+                    Problem(
+                        message,
+                        file=document.file,
+                        line=e_line,
+                        column=e_column,
+                        field_path=field_path,
+                        where=f"acceptance #{index + 1}",
+                    )
+                )
             continue
         accepted.append(acceptance.placed(f"{document.file}:{line}" if line else document.file))
     if problems:
@@ -103,13 +118,17 @@ def load_beside(balance_path: str | Path) -> list[Acceptance]:
     document = load_document(path)
     data = document.data
     if not isinstance(data, dict) or set(data) != {"accepted"}:
-        raise InputError("an acceptance file holds one key, 'accepted:', with a list of "
-                         "acceptances", file=document.file, line=1)
+        raise InputError(
+            "an acceptance file holds one key, 'accepted:', with a list of acceptances",
+            file=document.file,
+            line=1,
+        )
     return parse_acceptances(data["accepted"], document)
 
 
-def apply_acceptances(result: AuditResult, acceptances: list[Acceptance],
-                      today: date | None = None) -> AuditResult:
+def apply_acceptances(
+    result: AuditResult, acceptances: list[Acceptance], today: date | None = None
+) -> AuditResult:
     """Mark the findings of ``result`` that a valid acceptance covers, and report expired and
     unmatched acceptances as findings (see the module docstring). Returns ``result``, changed."""
     if not acceptances:
@@ -121,18 +140,29 @@ def apply_acceptances(result: AuditResult, acceptances: list[Acceptance],
         matched = [i for i, f in enumerate(findings) if acceptance.matches(f)]
         origin = f" ({acceptance.source})" if acceptance.source else ""
         if not matched:
-            extra.append(Finding(
-                WARNING, "acceptance-unmatched", acceptance.step,
-                f"an acceptance of '{acceptance.finding}' at {acceptance.where()}{origin} matches "
-                "no finding of this audit: remove it, or correct its step or finding name",
-                stream=acceptance.stream))
+            extra.append(
+                Finding(
+                    WARNING,
+                    "acceptance-unmatched",
+                    acceptance.step,
+                    f"an acceptance of '{acceptance.finding}' at {acceptance.where()}{origin} matches "
+                    "no finding of this audit: remove it, or correct its step or finding name",
+                    stream=acceptance.stream,
+                )
+            )
             continue
         if acceptance.expires < today:
-            extra.append(Finding(
-                WARNING, "acceptance-expired", acceptance.step,
-                f"the acceptance of '{acceptance.finding}' at {acceptance.where()}{origin} by "
-                f"{acceptance.accepted_by} expired on {acceptance.expires.isoformat()}; the "
-                "finding counts again", stream=acceptance.stream))
+            extra.append(
+                Finding(
+                    WARNING,
+                    "acceptance-expired",
+                    acceptance.step,
+                    f"the acceptance of '{acceptance.finding}' at {acceptance.where()}{origin} by "
+                    f"{acceptance.accepted_by} expired on {acceptance.expires.isoformat()}; the "
+                    "finding counts again",
+                    stream=acceptance.stream,
+                )
+            )
             continue
         for i in matched:
             if not findings[i].accepted:

@@ -64,8 +64,9 @@ class StepKind:
 REGISTRY: dict[str, StepKind] = {}
 
 
-def register(name: str, model: type[StepBase], evaluate: Callable[[Any, StepContext],
-             StepResult], summary: str) -> None:
+def register(
+    name: str, model: type[StepBase], evaluate: Callable[[Any, StepContext], StepResult], summary: str
+) -> None:
     """Register a step kind under ``name`` (the value of ``kind:`` in the file)."""
     if name in REGISTRY:
         raise ValueError(f"step kind {name!r} registered twice")  # pragma: no cover
@@ -94,7 +95,9 @@ def inferred_heat(balance_without_heat: Balance) -> float:
 
 
 def bound_basis_flow(
-    streams: Sequence[StreamResult], heat_flows: Sequence[HeatFlow], tol: Tolerances,
+    streams: Sequence[StreamResult],
+    heat_flows: Sequence[HeatFlow],
+    tol: Tolerances,
     dG: float,
 ) -> tuple[str, float | None]:
     """Which potential governs a flow step, and its value [W].
@@ -105,7 +108,8 @@ def bound_basis_flow(
     exergy drop of design note 2.4.
     """
     temperatures = [s.T for s in streams] + [
-        q.temperature for q in heat_flows if q.claimed and math.isfinite(q.temperature)]
+        q.temperature for q in heat_flows if q.claimed and math.isfinite(q.temperature)
+    ]
     if temperatures and max(temperatures) - min(temperatures) <= tol.isothermal_band:
         return "-ΔG (isothermal flow)", isothermal_flow_work_bound(dG)
     return "exergy drop", None
@@ -138,18 +142,35 @@ def finish_flow_step(
     conservative = any(q.conservative for q in heat_flows)
     inlet_mass = sum(s.mass_flow for s in inlets)
     for finding in law_findings(
-        step.id, balance, tol, ctx.T0, batch=False, inlet_mass=inlet_mass,
+        step.id,
+        balance,
+        tol,
+        ctx.T0,
+        batch=False,
+        inlet_mass=inlet_mass,
         conservative_note=CONSERVATIVE_NOTE if conservative else "",
-        check_energy=check_energy, energy_finding=energy_finding, check_mass=check_mass,
+        check_energy=check_energy,
+        energy_finding=energy_finding,
+        check_mass=check_mass,
     ):
         ctx.add(finding)
     basis, classical = bound_basis_flow([*inlets, *outlets], heat_flows, tol, balance.dG)
     result = StepResult(
-        id=step.id, kind=kind, batch=False, inlets=[s.id for s in inlets],
-        outlets=[s.id for s in outlets], balance=balance, heat_flows=heat_flows,
-        energy_tolerance=energy_tolerance(balance, tol, batch=False), bound_basis=basis,
-        classical_bound=classical, second_law_efficiency=second_law_efficiency(W, balance.W_rev),
-        claimed=claimed, inferred=inferred, notes=list(notes), description=step.description,
+        id=step.id,
+        kind=kind,
+        batch=False,
+        inlets=[s.id for s in inlets],
+        outlets=[s.id for s in outlets],
+        balance=balance,
+        heat_flows=heat_flows,
+        energy_tolerance=energy_tolerance(balance, tol, batch=False),
+        bound_basis=basis,
+        classical_bound=classical,
+        second_law_efficiency=second_law_efficiency(W, balance.W_rev),
+        claimed=claimed,
+        inferred=inferred,
+        notes=list(notes),
+        description=step.description,
         line=ctx.line,
     )
     if conservative:
@@ -161,12 +182,18 @@ def heat_flows_from_claims(
     claims: Sequence[HeatClaim], T0: float, coldest: float | None = None
 ) -> list[HeatFlow]:
     """Heat flows into the step from written claims, with conservative boundary temperatures."""
-    return [heat_flow(claim.into_step, claim.temperature, T0, claimed=True, coldest=coldest)
-            for claim in claims]
+    return [
+        heat_flow(claim.into_step, claim.temperature, T0, claimed=True, coldest=coldest)
+        for claim in claims
+    ]
 
 
 def heat_flow(
-    Q: float, declared: float | None, T0: float, claimed: bool, label: str = "",
+    Q: float,
+    declared: float | None,
+    T0: float,
+    claimed: bool,
+    label: str = "",
     coldest: float | None = None,
 ) -> HeatFlow:
     """A heat flow Q [W] into the step at the ``declared`` boundary temperature [K] or, when there
@@ -176,5 +203,10 @@ def heat_flow(
     note = label
     if boundary is BoundaryChoice.CONSERVATIVE:
         note = f"{label}, {CONSERVATIVE_WORDS}" if label else CONSERVATIVE_WORDS
-    return HeatFlow(Q=Q, temperature=boundary_temperature(Q, declared, T0, coldest),
-                    claimed=claimed, note=note, boundary=boundary)
+    return HeatFlow(
+        Q=Q,
+        temperature=boundary_temperature(Q, declared, T0, coldest),
+        claimed=claimed,
+        note=note,
+        boundary=boundary,
+    )

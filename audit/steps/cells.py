@@ -78,19 +78,22 @@ class CellStep(StepBase):
     inlets: list[str] = Field(min_length=1)
     outlets: list[str] = Field(min_length=1)
     reaction: str | None = Field(
-        None, description="the cell reaction, e.g. 'H2O(l) -> H2 + 1/2 O2' (default: water "
-        "splitting or forming, the water's phase from its stream)")
+        None,
+        description="the cell reaction, e.g. 'H2O(l) -> H2 + 1/2 O2' (default: water "
+        "splitting or forming, the water's phase from its stream)",
+    )
     electrons: int | None = Field(
-        None, ge=1, description="electrons per mole of reaction (default: 4 per mole of O2)")
+        None, ge=1, description="electrons per mole of reaction (default: 4 per mole of O2)"
+    )
     cell_voltage: VoltageClaim = Field(None, description="voltage of one cell")
     current: CurrentClaim = Field(None, description="stack current through each cell")
     cells: int = Field(1, ge=1, description="number of cells in series")
     power: PowerClaim = Field(None, description="electrical (DC) power of the stack")
     faradaic_efficiency: float | None = Field(
-        None, description="fraction of the charge that drives the cell reaction, 0 to 1")
+        None, description="fraction of the charge that drives the cell reaction, 0 to 1"
+    )
     heat: list[HeatClaim] | None = None
-    heat_temperature: TemperatureClaim = Field(
-        None, description="boundary temperature of inferred heat")
+    heat_temperature: TemperatureClaim = Field(None, description="boundary temperature of inferred heat")
     temperature: TemperatureClaim = Field(None, description="cell operating temperature")
     pressure: PressureClaim = Field(None, description="cell operating pressure")
 
@@ -107,18 +110,22 @@ class CellStep(StepBase):
         if value is not None and not 0.0 < value <= 1.0:
             raise ValueError(
                 f"a faradaic efficiency is above 0 and at most 1 (got {value:g}): the charge "
-                "passed cannot drive more reaction than Faraday's law allows")
+                "passed cannot drive more reaction than Faraday's law allows"
+            )
         return value
 
     @model_validator(mode="after")
     def _claims(self) -> CellStep:
         if self.power is None and (self.cell_voltage is None or self.current is None):
-            raise ValueError("give the stack 'power', or 'cell_voltage' and 'current' (with "
-                             "'cells'), or all three")
-        if self.reaction is not None and self.electrons is None and (
-                "O2" not in parse_reaction(self.reaction).nu()):
-            raise ValueError("give 'electrons' (per mole of reaction) for a cell reaction "
-                             "without O2")
+            raise ValueError(
+                "give the stack 'power', or 'cell_voltage' and 'current' (with 'cells'), or all three"
+            )
+        if (
+            self.reaction is not None
+            and self.electrons is None
+            and ("O2" not in parse_reaction(self.reaction).nu())
+        ):
+            raise ValueError("give 'electrons' (per mole of reaction) for a cell reaction without O2")
         for name in ("cell_voltage", "current", "power"):
             value = getattr(self, name)
             if value is not None and value <= 0:
@@ -129,13 +136,17 @@ class CellStep(StepBase):
         return list(self.inlets), list(self.outlets)
 
 
-def default_reaction(kind: str, inlets: Sequence[StreamResult],
-                     outlets: Sequence[StreamResult]) -> str:
+def default_reaction(kind: str, inlets: Sequence[StreamResult], outlets: Sequence[StreamResult]) -> str:
     """Water splitting (electrolyser) or forming (fuel cell), liquid water when the water stream
     (a pure-water inlet of an electrolyser, outlet of a fuel cell) is liquid."""
     streams = inlets if kind == ELECTROLYSER else outlets
-    liquid = any(s.composition is None and (d := species(s.fluid)) is not None
-                 and d.formula == "H2O" and s.phase == "liquid" for s in streams)
+    liquid = any(
+        s.composition is None
+        and (d := species(s.fluid)) is not None
+        and d.formula == "H2O"
+        and s.phase == "liquid"
+        for s in streams
+    )
     water = "H2O(l)" if liquid else "H2O"
     return f"{water} -> H2 + 1/2 O2" if kind == ELECTROLYSER else f"H2 + 1/2 O2 -> {water}"
 
@@ -164,24 +175,39 @@ def evaluate_cell(step: CellStep, ctx: StepContext, kind: str) -> StepResult:
     sign = 1.0 if driven else -1.0
 
     elements = element_findings(step.id, ctx, inlets, outlets)
-    extents, species_found = extents_and_findings(step.id, ctx, [reaction], [None], inlets,
-                                                  outlets)
+    extents, species_found = extents_and_findings(step.id, ctx, [reaction], [None], inlets, outlets)
     xi = extents[0]
-    stack = (step.cell_voltage * step.current * step.cells
-             if step.cell_voltage is not None and step.current is not None else None)
+    stack = (
+        step.cell_voltage * step.current * step.cells
+        if step.cell_voltage is not None and step.current is not None
+        else None
+    )
     electrical = step.power if step.power is not None else stack
     assert electrical is not None  # the model requires one
     heat, W, claimed, inferred = heat_and_work(
-        ctx, inlets, outlets, step.heat, step.heat_temperature,
-        -electrical if driven else electrical)
+        ctx, inlets, outlets, step.heat, step.heat_temperature, -electrical if driven else electrical
+    )
     claimed = [c for c in claimed if c != "work"] + [
-        name for name in ("power", "cell_voltage", "current", "faradaic_efficiency")
-        if getattr(step, name) is not None]
+        name
+        for name in ("power", "cell_voltage", "current", "faradaic_efficiency")
+        if getattr(step, name) is not None
+    ]
     if step.power is None:
         inferred.append("power (V × I × cells)")
     result = finish_reacting_step(
-        step, kind, ctx, inlets, outlets, heat, W, claimed, inferred, elements,
-        energy_scale_floor=abs(xi * reported.dH), notes=notes)
+        step,
+        kind,
+        ctx,
+        inlets,
+        outlets,
+        heat,
+        W,
+        claimed,
+        inferred,
+        elements,
+        energy_scale_floor=abs(xi * reported.dH),
+        notes=notes,
+    )
     if not elements[0]:
         for finding in species_found:
             ctx.add(finding)
@@ -195,122 +221,215 @@ def evaluate_cell(step: CellStep, ctx: StepContext, kind: str) -> StepResult:
     efficiency = None
     if charge is not None and xi > 0.0:
         efficiency = faradaic_efficiency(n, xi, charge, electrolytic=driven)
-    result.extra.update({
-        "reaction": reaction.equation, "electrons": n, "extent": xi,
-        "reaction_T": T_rep, "reaction_P": P_rep, "dH_rxn": reported.dH, "dS_rxn": reported.dS,
-        "dG_rxn": reported.dG, "E_rev": reversible_voltage(-sign * reported.dG, n),
-        "E_tn": thermoneutral_voltage(-sign * reported.dH, n), "E_rev_checked": E_rev_checked,
-        "E_tn_checked": E_tn_checked, "gibbs_work": sign * xi * reported.dG,
-        "electrical_power": electrical, "stack_power": stack, "charge_rate": charge,
-        "faradaic_efficiency": efficiency,
-    })
+    result.extra.update(
+        {
+            "reaction": reaction.equation,
+            "electrons": n,
+            "extent": xi,
+            "reaction_T": T_rep,
+            "reaction_P": P_rep,
+            "dH_rxn": reported.dH,
+            "dS_rxn": reported.dS,
+            "dG_rxn": reported.dG,
+            "E_rev": reversible_voltage(-sign * reported.dG, n),
+            "E_tn": thermoneutral_voltage(-sign * reported.dH, n),
+            "E_rev_checked": E_rev_checked,
+            "E_tn_checked": E_tn_checked,
+            "gibbs_work": sign * xi * reported.dG,
+            "electrical_power": electrical,
+            "stack_power": stack,
+            "charge_rate": charge,
+            "faradaic_efficiency": efficiency,
+        }
+    )
     if not elements[0]:
-        for finding in _cell_findings(step, ctx, result, driven, n, xi, E_rev_checked,
-                                      E_tn_checked, efficiency, stack, heat):
+        for finding in _cell_findings(
+            step, ctx, result, driven, n, xi, E_rev_checked, E_tn_checked, efficiency, stack, heat
+        ):
             ctx.add(finding)
     return result
 
 
-def _corners(ctx: StepContext, reaction: Reaction, step: CellStep,
-             streams: Sequence[StreamResult]) -> list[ReactionProperties]:
-    temperatures = ([step.temperature] if step.temperature is not None
-                    else sorted({min(s.T for s in streams), max(s.T for s in streams)}))
-    pressures = ([step.pressure] if step.pressure is not None
-                 else sorted({min(s.P for s in streams), max(s.P for s in streams)}))
-    return [properties_at(ctx, [reaction], T, P)[0]
-            for T, P in itertools.product(temperatures, pressures)]
+def _corners(
+    ctx: StepContext, reaction: Reaction, step: CellStep, streams: Sequence[StreamResult]
+) -> list[ReactionProperties]:
+    temperatures = (
+        [step.temperature]
+        if step.temperature is not None
+        else sorted({min(s.T for s in streams), max(s.T for s in streams)})
+    )
+    pressures = (
+        [step.pressure]
+        if step.pressure is not None
+        else sorted({min(s.P for s in streams), max(s.P for s in streams)})
+    )
+    return [
+        properties_at(ctx, [reaction], T, P)[0] for T, P in itertools.product(temperatures, pressures)
+    ]
 
 
-def _cell_findings(step: CellStep, ctx: StepContext, result: StepResult, driven: bool, n: int,
-                   xi: float, E_rev: float, E_tn: float, efficiency: float | None,
-                   stack: float | None, heat: list) -> list[Finding]:
+def _cell_findings(
+    step: CellStep,
+    ctx: StepContext,
+    result: StepResult,
+    driven: bool,
+    n: int,
+    xi: float,
+    E_rev: float,
+    E_tn: float,
+    efficiency: float | None,
+    stack: float | None,
+    heat: list,
+) -> list[Finding]:
     tol = ctx.tolerances
     found = []
     V = step.cell_voltage
     tol_V = tol.energy_relative * E_rev
-    where = ("at the cell's declared conditions" if step.temperature is not None
-             and step.pressure is not None else
-             "the most lenient over the streams' temperatures and pressures")
+    where = (
+        "at the cell's declared conditions"
+        if step.temperature is not None and step.pressure is not None
+        else "the most lenient over the streams' temperatures and pressures"
+    )
     if V is not None and driven and V < E_rev - tol_V:
-        found.append(Finding(
-            ERROR, "voltage-beyond-reversible", step.id,
-            f"the cell voltage {V:.4g} V is below the reversible voltage {E_rev:.4g} V "
-            f"(ΔG_rxn / nF, {where}) by {E_rev - V:.3g} V: an electrolyser cannot split at "
-            f"less (tolerance {tol_V:.2g} V)",
-            claimed=V, bound=E_rev, margin=E_rev - V, margin_relative=relative(E_rev - V, E_rev),
-            quantity="voltage", tolerance=tol_V,
-        ))
+        found.append(
+            Finding(
+                ERROR,
+                "voltage-beyond-reversible",
+                step.id,
+                f"the cell voltage {V:.4g} V is below the reversible voltage {E_rev:.4g} V "
+                f"(ΔG_rxn / nF, {where}) by {E_rev - V:.3g} V: an electrolyser cannot split at "
+                f"less (tolerance {tol_V:.2g} V)",
+                claimed=V,
+                bound=E_rev,
+                margin=E_rev - V,
+                margin_relative=relative(E_rev - V, E_rev),
+                quantity="voltage",
+                tolerance=tol_V,
+            )
+        )
     if V is not None and not driven and V > E_rev + tol_V:
-        found.append(Finding(
-            ERROR, "voltage-beyond-reversible", step.id,
-            f"the cell voltage {V:.4g} V is above the reversible voltage {E_rev:.4g} V "
-            f"(−ΔG_rxn / nF, {where}) by {V - E_rev:.3g} V: a fuel cell cannot deliver more "
-            f"(tolerance {tol_V:.2g} V)",
-            claimed=V, bound=E_rev, margin=V - E_rev, margin_relative=relative(V - E_rev, E_rev),
-            quantity="voltage", tolerance=tol_V,
-        ))
-    if (V is not None and driven and step.heat is not None and xi > 0.0
-            and V < E_tn - tol.energy_relative * E_tn):
+        found.append(
+            Finding(
+                ERROR,
+                "voltage-beyond-reversible",
+                step.id,
+                f"the cell voltage {V:.4g} V is above the reversible voltage {E_rev:.4g} V "
+                f"(−ΔG_rxn / nF, {where}) by {V - E_rev:.3g} V: a fuel cell cannot deliver more "
+                f"(tolerance {tol_V:.2g} V)",
+                claimed=V,
+                bound=E_rev,
+                margin=V - E_rev,
+                margin_relative=relative(V - E_rev, E_rev),
+                quantity="voltage",
+                tolerance=tol_V,
+            )
+        )
+    if (
+        V is not None
+        and driven
+        and step.heat is not None
+        and xi > 0.0
+        and V < E_tn - tol.energy_relative * E_tn
+    ):
         needed = faraday_current(n, xi) * (E_tn - V)
         shown = sum(q.Q for q in heat if q.claimed)
         if shown < needed - result.energy_tolerance:
-            found.append(Finding(
-                ERROR, "heat-needed-below-thermoneutral", step.id,
-                f"the cells run at {V:.4g} V, below the thermoneutral voltage {E_tn:.4g} V "
-                f"(ΔH_rxn / nF), so they must take in at least {format_power(needed)} of heat "
-                f"(n F ξ̇ (E_tn − V)), but the balance shows {format_power(shown)} of heat in",
-                claimed=shown, bound=needed, margin=needed - shown,
-                margin_relative=relative(needed - shown, needed), quantity="power",
-                tolerance=result.energy_tolerance,
-            ))
+            found.append(
+                Finding(
+                    ERROR,
+                    "heat-needed-below-thermoneutral",
+                    step.id,
+                    f"the cells run at {V:.4g} V, below the thermoneutral voltage {E_tn:.4g} V "
+                    f"(ΔH_rxn / nF), so they must take in at least {format_power(needed)} of heat "
+                    f"(n F ξ̇ (E_tn − V)), but the balance shows {format_power(shown)} of heat in",
+                    claimed=shown,
+                    bound=needed,
+                    margin=needed - shown,
+                    margin_relative=relative(needed - shown, needed),
+                    quantity="power",
+                    tolerance=result.energy_tolerance,
+                )
+            )
     if step.current is not None:
         charge = step.current * step.cells
         if xi <= 0.0:
-            found.append(Finding(
-                ERROR, "faraday-mismatch", step.id,
-                f"a current of {step.current:.4g} A through {step.cells} cells is claimed, but "
-                f"the streams show the cell reaction at {xi:.4g} mol/s: no "
-                f"{'production' if driven else 'consumption'} for the charge to account for",
-                claimed=charge, bound=0.0, quantity="fraction",
-            ))
+            found.append(
+                Finding(
+                    ERROR,
+                    "faraday-mismatch",
+                    step.id,
+                    f"a current of {step.current:.4g} A through {step.cells} cells is claimed, but "
+                    f"the streams show the cell reaction at {xi:.4g} mol/s: no "
+                    f"{'production' if driven else 'consumption'} for the charge to account for",
+                    claimed=charge,
+                    bound=0.0,
+                    quantity="fraction",
+                )
+            )
         elif efficiency is not None:
             made = faraday_current(n, xi)
             if efficiency > 1.0 + tol.energy_relative:
-                words = (f"the streams show {xi:.4g} mol/s of reaction, which needs "
-                         f"{made:.5g} A of charge (n F ξ̇), more than the {charge:.5g} A "
-                         f"passed (I × cells)" if driven else
-                         f"the current {charge:.5g} A (I × cells) is more than the {made:.5g} A "
-                         f"its fuel consumption of {xi:.4g} mol/s of reaction can carry (n F ξ̇)")
-                found.append(Finding(
-                    ERROR, "faraday-mismatch", step.id,
-                    f"{words}: a faradaic efficiency of {efficiency:.4f}, above 1",
-                    claimed=efficiency, bound=1.0, margin=efficiency - 1.0,
-                    margin_relative=efficiency - 1.0, quantity="fraction",
-                    tolerance=tol.energy_relative,
-                ))
-            elif (step.faradaic_efficiency is not None
-                  and abs(efficiency - step.faradaic_efficiency) > tol.energy_relative):
+                words = (
+                    f"the streams show {xi:.4g} mol/s of reaction, which needs "
+                    f"{made:.5g} A of charge (n F ξ̇), more than the {charge:.5g} A "
+                    f"passed (I × cells)"
+                    if driven
+                    else f"the current {charge:.5g} A (I × cells) is more than the {made:.5g} A "
+                    f"its fuel consumption of {xi:.4g} mol/s of reaction can carry (n F ξ̇)"
+                )
+                found.append(
+                    Finding(
+                        ERROR,
+                        "faraday-mismatch",
+                        step.id,
+                        f"{words}: a faradaic efficiency of {efficiency:.4f}, above 1",
+                        claimed=efficiency,
+                        bound=1.0,
+                        margin=efficiency - 1.0,
+                        margin_relative=efficiency - 1.0,
+                        quantity="fraction",
+                        tolerance=tol.energy_relative,
+                    )
+                )
+            elif (
+                step.faradaic_efficiency is not None
+                and abs(efficiency - step.faradaic_efficiency) > tol.energy_relative
+            ):
                 gap = efficiency - step.faradaic_efficiency
-                found.append(Finding(
-                    ERROR, "faraday-mismatch", step.id,
-                    f"the claimed faradaic efficiency {step.faradaic_efficiency:.4g} differs from "
-                    f"the {efficiency:.4f} that the current ({charge:.5g} A through the cells) "
-                    f"and the streams' {xi:.4g} mol/s of reaction give",
-                    claimed=step.faradaic_efficiency, bound=efficiency, margin=abs(gap),
-                    margin_relative=relative(abs(gap), efficiency), quantity="fraction",
-                    tolerance=tol.energy_relative,
-                ))
+                found.append(
+                    Finding(
+                        ERROR,
+                        "faraday-mismatch",
+                        step.id,
+                        f"the claimed faradaic efficiency {step.faradaic_efficiency:.4g} differs from "
+                        f"the {efficiency:.4f} that the current ({charge:.5g} A through the cells) "
+                        f"and the streams' {xi:.4g} mol/s of reaction give",
+                        claimed=step.faradaic_efficiency,
+                        bound=efficiency,
+                        margin=abs(gap),
+                        margin_relative=relative(abs(gap), efficiency),
+                        quantity="fraction",
+                        tolerance=tol.energy_relative,
+                    )
+                )
     if step.power is not None and stack is not None:
         gap = step.power - stack
         if abs(gap) > result.energy_tolerance:
-            found.append(Finding(
-                ERROR, "power-mismatch", step.id,
-                f"the claimed power {format_power(step.power)} differs from voltage × current × "
-                f"cells = {V:.4g} V × {step.current:.5g} A × {step.cells} = "
-                f"{format_power(stack)}, by {format_power(abs(gap))} (tolerance "
-                f"{format_power(result.energy_tolerance)})",
-                claimed=step.power, bound=stack, margin=abs(gap),
-                margin_relative=relative(abs(gap), stack), quantity="power",
-                tolerance=result.energy_tolerance,
-            ))
+            found.append(
+                Finding(
+                    ERROR,
+                    "power-mismatch",
+                    step.id,
+                    f"the claimed power {format_power(step.power)} differs from voltage × current × "
+                    f"cells = {V:.4g} V × {step.current:.5g} A × {step.cells} = "
+                    f"{format_power(stack)}, by {format_power(abs(gap))} (tolerance "
+                    f"{format_power(result.energy_tolerance)})",
+                    claimed=step.power,
+                    bound=stack,
+                    margin=abs(gap),
+                    margin_relative=relative(abs(gap), stack),
+                    quantity="power",
+                    tolerance=result.energy_tolerance,
+                )
+            )
     return found

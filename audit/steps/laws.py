@@ -69,7 +69,9 @@ def flow_balance(
     T0 : dead-state temperature [K]
     """
     (H_in, U_in, S_in, G_in, A_in, KE_in), (H_out, U_out, S_out, G_out, A_out, KE_out) = (
-        _flow_totals(inlets), _flow_totals(outlets))
+        _flow_totals(inlets),
+        _flow_totals(outlets),
+    )
     dH = H_out - H_in
     dU = U_out - U_in
     dS = S_out - S_in
@@ -88,14 +90,27 @@ def flow_balance(
     heat_scale = sum(abs(q.Q) for q in heat_flows)
     scale = max(abs(W), heat_scale, energy_turnover(inlets, outlets))
     return Balance(
-        H_in=H_in, H_out=H_out, KE_PE_in=KE_in, KE_PE_out=KE_out, dH=dH, dU=dU, dS=dS, dG=dG,
-        dA=dA, Q=Q, W=W, energy_residual=residual, mass_residual=mass, S_gen=S_gen,
-        W_rev=W_rev, exergy_destroyed=exergy_destroyed(S_gen, T0), energy_scale=scale,
+        H_in=H_in,
+        H_out=H_out,
+        KE_PE_in=KE_in,
+        KE_PE_out=KE_out,
+        dH=dH,
+        dU=dU,
+        dS=dS,
+        dG=dG,
+        dA=dA,
+        Q=Q,
+        W=W,
+        energy_residual=residual,
+        mass_residual=mass,
+        S_gen=S_gen,
+        W_rev=W_rev,
+        exergy_destroyed=exergy_destroyed(S_gen, T0),
+        energy_scale=scale,
     )
 
 
-def _flow_totals(streams: Sequence[StreamResult]) -> tuple[float, float, float, float, float,
-                                                             float]:
+def _flow_totals(streams: Sequence[StreamResult]) -> tuple[float, float, float, float, float, float]:
     """Σ ṁ h, Σ ṁ u, Σ ṁ s, Σ ṁ g, Σ ṁ a [W, W/K] and Σ ṁ (V²/2 + g z) [W] of ``streams``, in one
     pass (summed in the order given, as ``sum`` would)."""
     H = U = S = G = A = KE = 0.0
@@ -154,12 +169,28 @@ def closed_balance(
     S_gen = entropy_generation(dS, entropy_of_heat(heat_flows))
     W_rev = reversible_work(dU, dS, T0, exergy_of_heat(heat_flows, T0))
     scale = max(abs(W), sum(abs(q.Q) for q in heat_flows), abs(dU))
-    mass_residual = {initial.fluid: 0.0} if initial.fluid == final.fluid else {
-        initial.fluid: mass, final.fluid: -mass}
+    mass_residual = (
+        {initial.fluid: 0.0}
+        if initial.fluid == final.fluid
+        else {initial.fluid: mass, final.fluid: -mass}
+    )
     return Balance(
-        H_in=mass * initial.u, H_out=mass * final.u, KE_PE_in=0.0, KE_PE_out=0.0, dH=dH, dU=dU,
-        dS=dS, dG=dG, dA=dA, Q=Q, W=W, energy_residual=residual, mass_residual=mass_residual,
-        S_gen=S_gen, W_rev=W_rev, exergy_destroyed=exergy_destroyed(S_gen, T0),
+        H_in=mass * initial.u,
+        H_out=mass * final.u,
+        KE_PE_in=0.0,
+        KE_PE_out=0.0,
+        dH=dH,
+        dU=dU,
+        dS=dS,
+        dG=dG,
+        dA=dA,
+        Q=Q,
+        W=W,
+        energy_residual=residual,
+        mass_residual=mass_residual,
+        S_gen=S_gen,
+        W_rev=W_rev,
+        exergy_destroyed=exergy_destroyed(S_gen, T0),
         energy_scale=scale,
     )
 
@@ -196,20 +227,34 @@ def law_findings(
             break
         if abs(residual) > mass_tol and not batch:
             direction = "vanishes" if residual > 0 else "appears"
-            findings.append(Finding(
-                ERROR, "mass-imbalance", step_id,
-                f"{abs(residual):.4g} kg/s of {fluid} {direction} in the step: inlets carry "
-                f"{abs(residual):.4g} kg/s {'more' if residual > 0 else 'less'} than outlets",
-                claimed=residual, bound=0.0, margin=abs(residual),
-                margin_relative=relative(abs(residual), inlet_mass), quantity="mass_flow",
-                tolerance=mass_tol,
-            ))
+            findings.append(
+                Finding(
+                    ERROR,
+                    "mass-imbalance",
+                    step_id,
+                    f"{abs(residual):.4g} kg/s of {fluid} {direction} in the step: inlets carry "
+                    f"{abs(residual):.4g} kg/s {'more' if residual > 0 else 'less'} than outlets",
+                    claimed=residual,
+                    bound=0.0,
+                    margin=abs(residual),
+                    margin_relative=relative(abs(residual), inlet_mass),
+                    quantity="mass_flow",
+                    tolerance=mass_tol,
+                )
+            )
         elif batch and abs(residual) > 0:
-            findings.append(Finding(
-                ERROR, "mass-imbalance", step_id,
-                f"the vessel's contents change fluid ({fluid}); a closed step keeps its fluid",
-                quantity="mass", claimed=residual, bound=0.0, margin=abs(residual),
-            ))
+            findings.append(
+                Finding(
+                    ERROR,
+                    "mass-imbalance",
+                    step_id,
+                    f"the vessel's contents change fluid ({fluid}); a closed step keeps its fluid",
+                    quantity="mass",
+                    claimed=residual,
+                    bound=0.0,
+                    margin=abs(residual),
+                )
+            )
 
     if findings:
         # Mass does not balance: the energy and entropy sums compare different amounts of matter
@@ -218,50 +263,74 @@ def law_findings(
 
     if check_energy and abs(balance.energy_residual) > tol_E:
         r = balance.energy_residual
-        change = (balance.dU if batch else
-                  balance.dH + balance.KE_PE_out - balance.KE_PE_in)
-        findings.append(Finding(
-            ERROR, energy_finding, step_id,
-            f"the first law does not close: heat in minus work out is "
-            f"{_kw(balance.Q - balance.W, batch)}, but the "
-            f"{'contents' if batch else 'streams'}' energy changes by {_kw(change, batch)}, a "
-            f"residual of {_kw(r, batch)} (tolerance {_kw(tol_E, batch)})",
-            claimed=balance.Q - balance.W, bound=balance.dH + balance.KE_PE_out
-            - balance.KE_PE_in if not batch else balance.dU, margin=abs(r),
-            margin_relative=relative(abs(r), balance.energy_scale), quantity=energy_q,
-            tolerance=tol_E,
-        ))
+        change = balance.dU if batch else balance.dH + balance.KE_PE_out - balance.KE_PE_in
+        findings.append(
+            Finding(
+                ERROR,
+                energy_finding,
+                step_id,
+                f"the first law does not close: heat in minus work out is "
+                f"{_kw(balance.Q - balance.W, batch)}, but the "
+                f"{'contents' if batch else 'streams'}' energy changes by {_kw(change, batch)}, a "
+                f"residual of {_kw(r, batch)} (tolerance {_kw(tol_E, batch)})",
+                claimed=balance.Q - balance.W,
+                bound=balance.dH + balance.KE_PE_out - balance.KE_PE_in if not batch else balance.dU,
+                margin=abs(r),
+                margin_relative=relative(abs(r), balance.energy_scale),
+                quantity=energy_q,
+                tolerance=tol_E,
+            )
+        )
 
     excess = balance.W - balance.W_rev
     if excess > tol_E:
         if balance.W > 0:
             name = "work-above-bound"
-            message = (f"claims {_kw(balance.W, batch)} of work delivered, more than the "
-                       f"{_kw(balance.W_rev, batch)} its exergy drop allows, by "
-                       f"{_kw(excess, batch)}")
+            message = (
+                f"claims {_kw(balance.W, batch)} of work delivered, more than the "
+                f"{_kw(balance.W_rev, batch)} its exergy drop allows, by "
+                f"{_kw(excess, batch)}"
+            )
         else:
             name = "input-below-minimum"
-            message = (f"claims {_kw(-balance.W, batch)} of work absorbed, less than the "
-                       f"reversible minimum of {_kw(-balance.W_rev, batch)}, by "
-                       f"{_kw(excess, batch)}")
-        findings.append(Finding(
-            ERROR, name, step_id, message + f"; tolerance {_kw(tol_E, batch)}.{note}",
-            claimed=balance.W, bound=balance.W_rev, margin=excess,
-            margin_relative=relative(excess, balance.W_rev or balance.W), quantity=energy_q,
-            tolerance=tol_E,
-        ))
+            message = (
+                f"claims {_kw(-balance.W, batch)} of work absorbed, less than the "
+                f"reversible minimum of {_kw(-balance.W_rev, batch)}, by "
+                f"{_kw(excess, batch)}"
+            )
+        findings.append(
+            Finding(
+                ERROR,
+                name,
+                step_id,
+                message + f"; tolerance {_kw(tol_E, batch)}.{note}",
+                claimed=balance.W,
+                bound=balance.W_rev,
+                margin=excess,
+                margin_relative=relative(excess, balance.W_rev or balance.W),
+                quantity=energy_q,
+                tolerance=tol_E,
+            )
+        )
 
     tol_S = tol_E / T0
     if balance.S_gen < -tol_S:
-        findings.append(Finding(
-            ERROR, "negative-entropy-generation", step_id,
-            f"entropy generation is {balance.S_gen / 1e3:.4g} {'kJ/K' if batch else 'kW/K'}, "
-            f"below zero: the step as written would destroy entropy (tolerance "
-            f"{tol_S / 1e3:.3g} {'kJ/K' if batch else 'kW/K'}).{note}",
-            claimed=balance.S_gen, bound=0.0, margin=-balance.S_gen,
-            margin_relative=relative(-balance.S_gen, balance.dS), quantity=entropy_q,
-            tolerance=tol_S,
-        ))
+        findings.append(
+            Finding(
+                ERROR,
+                "negative-entropy-generation",
+                step_id,
+                f"entropy generation is {balance.S_gen / 1e3:.4g} {'kJ/K' if batch else 'kW/K'}, "
+                f"below zero: the step as written would destroy entropy (tolerance "
+                f"{tol_S / 1e3:.3g} {'kJ/K' if batch else 'kW/K'}).{note}",
+                claimed=balance.S_gen,
+                bound=0.0,
+                margin=-balance.S_gen,
+                margin_relative=relative(-balance.S_gen, balance.dS),
+                quantity=entropy_q,
+                tolerance=tol_S,
+            )
+        )
     return findings
 
 

@@ -37,11 +37,15 @@ def isentropic_outlet_enthalpy(
     try:
         state = ctx.engine.state(inlet.fluid, "Ps", outlet.P, inlet.s, table_basis=False)
     except StateError as exc:
-        ctx.add(Finding(
-            WARNING, "step-not-evaluated", step_id,
-            f"the isentropic outlet state could not be evaluated, so the isentropic efficiency "
-            f"is not checked: {exc.problem.message}",
-        ))
+        ctx.add(
+            Finding(
+                WARNING,
+                "step-not-evaluated",
+                step_id,
+                f"the isentropic outlet state could not be evaluated, so the isentropic efficiency "
+                f"is not checked: {exc.problem.message}",
+            )
+        )
         return None
     return state.h
 
@@ -57,26 +61,34 @@ def evaluate_work_absorber(step, kind: str, ctx: StepContext, noun: str):
     from audit.steps.base import finish_flow_step
 
     inlet, outlet = ctx.stream(step.inlet), ctx.stream(step.outlet)
-    heat = heat_loss_flow(step.heat_loss, step.heat_loss_temperature, ctx.T0,
-                          min(inlet.T, outlet.T))
+    heat = heat_loss_flow(step.heat_loss, step.heat_loss_temperature, ctx.T0, min(inlet.T, outlet.T))
     claimed, inferred = [], []
     if step.shaft_power is not None:
         W = -step.shaft_power
         claimed.append("shaft_power")
     else:
         Q = sum(q.Q for q in heat)
-        W = Q - (outlet.mass_flow * (outlet.h + outlet.kinetic_potential)
-                 - inlet.mass_flow * (inlet.h + inlet.kinetic_potential))
+        W = Q - (
+            outlet.mass_flow * (outlet.h + outlet.kinetic_potential)
+            - inlet.mass_flow * (inlet.h + inlet.kinetic_potential)
+        )
         inferred.append("shaft_power")
     claimed.append("heat_loss" if step.heat_loss is not None else "adiabatic")
     result, _ = finish_flow_step(step, kind, ctx, [inlet], [outlet], heat, W, claimed, inferred)
     if outlet.P <= inlet.P:
-        ctx.add(Finding(
-            ERROR, "pressure-wrong-way", step.id,
-            f"the outlet pressure ({to_bar(outlet.P):.4g} bar) is not above the inlet pressure "
-            f"({to_bar(inlet.P):.4g} bar); a {noun} raises the pressure (inlet and outlet swapped?)",
-            claimed=outlet.P, bound=inlet.P, margin=inlet.P - outlet.P, quantity="pressure",
-        ))
+        ctx.add(
+            Finding(
+                ERROR,
+                "pressure-wrong-way",
+                step.id,
+                f"the outlet pressure ({to_bar(outlet.P):.4g} bar) is not above the inlet pressure "
+                f"({to_bar(inlet.P):.4g} bar); a {noun} raises the pressure (inlet and outlet swapped?)",
+                claimed=outlet.P,
+                bound=inlet.P,
+                margin=inlet.P - outlet.P,
+                quantity="pressure",
+            )
+        )
         return result
     h_s = isentropic_outlet_enthalpy(step.id, inlet, outlet, ctx)
     cooled = step.heat_loss is not None and step.shaft_power is not None
@@ -88,13 +100,15 @@ def evaluate_work_absorber(step, kind: str, ctx: StepContext, noun: str):
     else:
         eta = None
     if eta is not None and h_s is not None:
-        efficiency_findings(step, result, ctx, eta, h_s, noun,
-                            "from the shaft power" if cooled else "from the streams")
+        efficiency_findings(
+            step, result, ctx, eta, h_s, noun, "from the shaft power" if cooled else "from the streams"
+        )
     return result
 
 
-def efficiency_findings(step, result, ctx: StepContext, eta: float, h_s: float, noun: str,
-                        basis: str = "from the streams") -> None:
+def efficiency_findings(
+    step, result, ctx: StepContext, eta: float, h_s: float, noun: str, basis: str = "from the streams"
+) -> None:
     """Record the isentropic efficiency ``eta`` [-] of a machine (with its isentropic outlet
     enthalpy ``h_s`` [J/kg]) and flag it above 1 (``efficiency-above-one``) or unlike a claimed
     value by more than 0.01 (``efficiency-mismatch``)."""
@@ -102,20 +116,35 @@ def efficiency_findings(step, result, ctx: StepContext, eta: float, h_s: float, 
     result.isentropic_efficiency = eta
     result.extra["h_out_isentropic"] = h_s
     if eta > 1.0 + tol.efficiency:
-        ctx.add(Finding(
-            ERROR, "efficiency-above-one", step.id,
-            f"the isentropic efficiency {basis} is {eta:.3f} (isentropic outlet "
-            f"{h_s / 1e3:.1f} kJ/kg), above 1, which no real {noun} reaches",
-            claimed=eta, bound=1.0, margin=eta - 1.0, margin_relative=eta - 1.0,
-            quantity="fraction", tolerance=tol.efficiency,
-        ))
+        ctx.add(
+            Finding(
+                ERROR,
+                "efficiency-above-one",
+                step.id,
+                f"the isentropic efficiency {basis} is {eta:.3f} (isentropic outlet "
+                f"{h_s / 1e3:.1f} kJ/kg), above 1, which no real {noun} reaches",
+                claimed=eta,
+                bound=1.0,
+                margin=eta - 1.0,
+                margin_relative=eta - 1.0,
+                quantity="fraction",
+                tolerance=tol.efficiency,
+            )
+        )
     claimed_eta = getattr(step, "isentropic_efficiency", None)
     if claimed_eta is not None and abs(claimed_eta - eta) > EFFICIENCY_MATCH:
-        ctx.add(Finding(
-            WARNING, "efficiency-mismatch", step.id,
-            f"the claimed isentropic efficiency {claimed_eta:.3f} differs from the {eta:.3f} "
-            f"computed {basis}",
-            claimed=claimed_eta, bound=eta, margin=claimed_eta - eta,
-            margin_relative=(claimed_eta - eta) / eta, quantity="fraction",
-            tolerance=EFFICIENCY_MATCH,
-        ))
+        ctx.add(
+            Finding(
+                WARNING,
+                "efficiency-mismatch",
+                step.id,
+                f"the claimed isentropic efficiency {claimed_eta:.3f} differs from the {eta:.3f} "
+                f"computed {basis}",
+                claimed=claimed_eta,
+                bound=eta,
+                margin=claimed_eta - eta,
+                margin_relative=(claimed_eta - eta) / eta,
+                quantity="fraction",
+                tolerance=EFFICIENCY_MATCH,
+            )
+        )

@@ -52,7 +52,8 @@ class ReactionClaim(BaseModel):
 
     equation: str = Field(description="e.g. 'CH4 + 2 O2 -> CO2 + 2 H2O'")
     extent: MolarFlow | None = Field(
-        None, description="moles of reaction per unit time, e.g. '12.5 mol/s' or '45 kmol/h'")
+        None, description="moles of reaction per unit time, e.g. '12.5 mol/s' or '45 kmol/h'"
+    )
 
     @field_validator("equation")
     @classmethod
@@ -66,8 +67,9 @@ class ReactionClaim(BaseModel):
 
 
 # -- elements ------------------------------------------------------------------------------------
-def element_findings(step_id: str, ctx: StepContext, inlets: Sequence[StreamResult],
-                     outlets: Sequence[StreamResult]) -> tuple[list[Finding], dict[str, float]]:
+def element_findings(
+    step_id: str, ctx: StepContext, inlets: Sequence[StreamResult], outlets: Sequence[StreamResult]
+) -> tuple[list[Finding], dict[str, float]]:
     """The element balance: findings and the residual per element [kg/s] (inlets − outlets)."""
     into = element_flows(total_species(inlets))
     out = element_flows(total_species(outlets))
@@ -82,23 +84,33 @@ def element_findings(step_id: str, ctx: StepContext, inlets: Sequence[StreamResu
         residuals[element] = mass
         if abs(mass) > mass_tol:
             direction = "vanishes" if mass > 0 else "appears"
-            findings.append(Finding(
-                ERROR, "element-imbalance", step_id,
-                f"{abs(mass):.4g} kg/s of {element} ({abs(moles):.4g} mol/s of atoms) {direction} "
-                f"in the step: the inlets carry {element_mass(element, into.get(element, 0.0)):.4g}"
-                f" kg/s, the outlets {element_mass(element, out.get(element, 0.0)):.4g} kg/s "
-                f"(tolerance {mass_tol:.3g} kg/s)",
-                claimed=mass, bound=0.0, margin=abs(mass),
-                margin_relative=relative(abs(mass), inlet_mass), quantity="mass_flow",
-                tolerance=mass_tol,
-            ))
+            findings.append(
+                Finding(
+                    ERROR,
+                    "element-imbalance",
+                    step_id,
+                    f"{abs(mass):.4g} kg/s of {element} ({abs(moles):.4g} mol/s of atoms) {direction} "
+                    f"in the step: the inlets carry {element_mass(element, into.get(element, 0.0)):.4g}"
+                    f" kg/s, the outlets {element_mass(element, out.get(element, 0.0)):.4g} kg/s "
+                    f"(tolerance {mass_tol:.3g} kg/s)",
+                    claimed=mass,
+                    bound=0.0,
+                    margin=abs(mass),
+                    margin_relative=relative(abs(mass), inlet_mass),
+                    quantity="mass_flow",
+                    tolerance=mass_tol,
+                )
+            )
     return findings, residuals
 
 
 # -- extents ------------------------------------------------------------------------------------------
 def extents_and_findings(
-    step_id: str, ctx: StepContext, reactions: Sequence[Reaction],
-    claimed: Sequence[float | None], inlets: Sequence[StreamResult],
+    step_id: str,
+    ctx: StepContext,
+    reactions: Sequence[Reaction],
+    claimed: Sequence[float | None],
+    inlets: Sequence[StreamResult],
     outlets: Sequence[StreamResult],
 ) -> tuple[list[float], list[Finding]]:
     """Extents [mol/s] (claimed, or fitted to the streams) and a ``species-imbalance`` finding
@@ -121,58 +133,90 @@ def extents_and_findings(
     worst = max(abs(m) for _, _, m in off)
     detail = ", ".join(
         f"{formula} {'appears' if moles > 0 else 'vanishes'} at {abs(moles):.4g} mol/s "
-        f"({abs(mass):.4g} kg/s)" for formula, moles, mass in off)
-    written = "; ".join(f"'{r.equation}' at {x:.4g} mol/s" for r, x in
-                        zip(reactions, extents, strict=True))
-    words = ("the claimed extents do not match the streams" if any_claimed else
-             "the written reactions do not explain the streams' change in composition")
-    return extents, [Finding(
-        ERROR if any_claimed else WARNING, "species-imbalance", step_id,
-        f"{words}: beyond {written}, {detail} (tolerance {mass_tol:.3g} kg/s)",
-        claimed=worst, bound=0.0, margin=worst, margin_relative=relative(worst, inlet_mass),
-        quantity="mass_flow", tolerance=mass_tol,
-    )]
+        f"({abs(mass):.4g} kg/s)"
+        for formula, moles, mass in off
+    )
+    written = "; ".join(
+        f"'{r.equation}' at {x:.4g} mol/s" for r, x in zip(reactions, extents, strict=True)
+    )
+    words = (
+        "the claimed extents do not match the streams"
+        if any_claimed
+        else "the written reactions do not explain the streams' change in composition"
+    )
+    return extents, [
+        Finding(
+            ERROR if any_claimed else WARNING,
+            "species-imbalance",
+            step_id,
+            f"{words}: beyond {written}, {detail} (tolerance {mass_tol:.3g} kg/s)",
+            claimed=worst,
+            bound=0.0,
+            margin=worst,
+            margin_relative=relative(worst, inlet_mass),
+            quantity="mass_flow",
+            tolerance=mass_tol,
+        )
+    ]
 
 
 # -- conditions ---------------------------------------------------------------------------------
-def step_conditions(declared_T: float | None, declared_P: float | None,
-                    outlets: Sequence[StreamResult]) -> tuple[float, float]:
+def step_conditions(
+    declared_T: float | None, declared_P: float | None, outlets: Sequence[StreamResult]
+) -> tuple[float, float]:
     """The (T [K], P [Pa]) at which a step's reaction properties are reported: the declared ones,
     else the outlets' molar-flow-weighted mean temperature and pressure."""
     total = sum(s.molar_flow for s in outlets) or 1.0
-    T = declared_T if declared_T is not None else sum(
-        s.molar_flow * s.T for s in outlets) / total
-    P = declared_P if declared_P is not None else sum(
-        s.molar_flow * s.P for s in outlets) / total
+    T = declared_T if declared_T is not None else sum(s.molar_flow * s.T for s in outlets) / total
+    P = declared_P if declared_P is not None else sum(s.molar_flow * s.P for s in outlets) / total
     return T, P
 
 
-def properties_at(ctx: StepContext, reactions: Sequence[Reaction], T: float, P: float
-                  ) -> list[ReactionProperties]:
+def properties_at(
+    ctx: StepContext, reactions: Sequence[Reaction], T: float, P: float
+) -> list[ReactionProperties]:
     return [reaction_properties(ctx.engine, r, T, P) for r in reactions]
 
 
-def reaction_rows(reactions: Sequence[Reaction], extents: Sequence[float],
-                  claimed: Sequence[float | None], props: Sequence[ReactionProperties]
-                  ) -> list[dict]:
+def reaction_rows(
+    reactions: Sequence[Reaction],
+    extents: Sequence[float],
+    claimed: Sequence[float | None],
+    props: Sequence[ReactionProperties],
+) -> list[dict]:
     """The reactions for ``StepResult.extra``: equation, extent [mol/s] and ΔH, ΔS, ΔG of
     reaction [J/mol, J/(mol K)] at the reported conditions."""
-    return [{"equation": r.equation, "extent": x, "extent_claimed": c is not None,
-             "dH_rxn": p.dH, "dS_rxn": p.dS, "dG_rxn": p.dG, "T": p.T, "P": p.P}
-            for r, x, c, p in zip(reactions, extents, claimed, props, strict=True)]
+    return [
+        {
+            "equation": r.equation,
+            "extent": x,
+            "extent_claimed": c is not None,
+            "dH_rxn": p.dH,
+            "dS_rxn": p.dS,
+            "dG_rxn": p.dG,
+            "T": p.T,
+            "P": p.P,
+        }
+        for r, x, c, p in zip(reactions, extents, claimed, props, strict=True)
+    ]
 
 
 # -- heat and work ---------------------------------------------------------------------------
 def heat_and_work(
-    ctx: StepContext, inlets: Sequence[StreamResult], outlets: Sequence[StreamResult],
-    heat: list[HeatClaim] | None, heat_temperature: float | None, W: float | None,
+    ctx: StepContext,
+    inlets: Sequence[StreamResult],
+    outlets: Sequence[StreamResult],
+    heat: list[HeatClaim] | None,
+    heat_temperature: float | None,
+    W: float | None,
 ) -> tuple[list[HeatFlow], float, list[str], list[str]]:
     """Heat flows into the step [W] and work out [W] from the claims, inferring the one that is
     not given from the first law (as the general step does): claimed heat with no work → work
     inferred; no heat → heat inferred (work as claimed, or zero)."""
     coldest = min(s.T for s in [*inlets, *outlets])
-    dE = (sum(s.mass_flow * (s.h + s.kinetic_potential) for s in outlets)
-          - sum(s.mass_flow * (s.h + s.kinetic_potential) for s in inlets))
+    dE = sum(s.mass_flow * (s.h + s.kinetic_potential) for s in outlets) - sum(
+        s.mass_flow * (s.h + s.kinetic_potential) for s in inlets
+    )
     claimed: list[str] = []
     inferred: list[str] = []
     if heat is not None:
@@ -187,17 +231,24 @@ def heat_and_work(
     work = 0.0 if W is None else W
     claimed.append("no work" if W is None else "work")
     Q = dE + work
-    flows = [heat_flow(Q, heat_temperature, ctx.T0, claimed=False, label="inferred",
-                       coldest=coldest)]
+    flows = [heat_flow(Q, heat_temperature, ctx.T0, claimed=False, label="inferred", coldest=coldest)]
     inferred.append("heat")
     return flows, work, claimed, inferred
 
 
 def finish_reacting_step(
-    step: StepBase, kind: str, ctx: StepContext, inlets: Sequence[StreamResult],
-    outlets: Sequence[StreamResult], heat: list[HeatFlow], W: float, claimed: list[str],
-    inferred: list[str], elements: tuple[list[Finding], dict[str, float]],
-    energy_scale_floor: float = 0.0, notes: Sequence[str] = (),
+    step: StepBase,
+    kind: str,
+    ctx: StepContext,
+    inlets: Sequence[StreamResult],
+    outlets: Sequence[StreamResult],
+    heat: list[HeatFlow],
+    W: float,
+    claimed: list[str],
+    inferred: list[str],
+    elements: tuple[list[Finding], dict[str, float]],
+    energy_scale_floor: float = 0.0,
+    notes: Sequence[str] = (),
 ) -> StepResult:
     """The laws of a reacting step, with the element balance in place of the per-fluid mass
     balance (see the module docstring); ``StepResult.mass_residual`` holds the residual per
@@ -205,12 +256,24 @@ def finish_reacting_step(
     element_problems, residuals = elements
     target = dataclasses.replace(ctx, findings=[]) if element_problems else ctx
     result, _ = finish_flow_step(
-        step, kind, target, inlets, outlets, heat, W, claimed, inferred, notes=notes,
-        check_mass=False, energy_scale_floor=energy_scale_floor)
+        step,
+        kind,
+        target,
+        inlets,
+        outlets,
+        heat,
+        W,
+        claimed,
+        inferred,
+        notes=notes,
+        check_mass=False,
+        energy_scale_floor=energy_scale_floor,
+    )
     for finding in element_problems:
         ctx.add(finding)
     result.balance.mass_residual = residuals
     if element_problems:
-        result.notes.append("The elements do not balance, so the energy and entropy checks were "
-                            "not applied.")
+        result.notes.append(
+            "The elements do not balance, so the energy and entropy checks were not applied."
+        )
     return result

@@ -50,7 +50,8 @@ from audit.wording import to_bar, to_celsius
 
 _ARROWS = ("->", "→", "=>")
 _TERM = re.compile(
-    r"^\s*(?:(\d+(?:\.\d+)?(?:/\d+)?|\.\d+|½)\s*)?([A-Za-z][A-Za-z0-9]*)\s*(?:\((g|l)\))?\s*$")
+    r"^\s*(?:(\d+(?:\.\d+)?(?:/\d+)?|\.\d+|½)\s*)?([A-Za-z][A-Za-z0-9]*)\s*(?:\((g|l)\))?\s*$"
+)
 _INERT_IN_FUEL = {"CO2", "H2O", "N2", "O2", "Ar"}
 
 
@@ -78,7 +79,8 @@ class Reaction:
     def signed_terms(self) -> list[tuple[float, Term]]:
         """(ν, term) with ν < 0 for reactants and ν > 0 for products."""
         return [(-t.coefficient, t) for t in self.reactants] + [
-            (t.coefficient, t) for t in self.products]
+            (t.coefficient, t) for t in self.products
+        ]
 
     def nu(self) -> dict[str, float]:
         """Net stoichiometric coefficient per formula [-] (products positive)."""
@@ -96,8 +98,10 @@ def parse_reaction(text: str) -> Reaction:
     arrows = [a for a in _ARROWS if a in text]
     parts = text.split(arrows[0]) if len(arrows) == 1 else []
     if len(parts) != 2:
-        raise ValueError(f"the reaction '{text}' needs one arrow '->' between reactants and "
-                         "products, like 'CH4 + 2 O2 -> CO2 + 2 H2O'")
+        raise ValueError(
+            f"the reaction '{text}' needs one arrow '->' between reactants and "
+            "products, like 'CH4 + 2 O2 -> CO2 + 2 H2O'"
+        )
     sides = [_side(part, text) for part in parts]
     reaction = Reaction(text.strip(), sides[0], sides[1])
     balance = element_change(reaction.nu())
@@ -105,8 +109,10 @@ def parse_reaction(text: str) -> Reaction:
     if wrong:
         left = _elements((t.coefficient, t.formula) for t in reaction.reactants)
         right = _elements((t.coefficient, t.formula) for t in reaction.products)
-        detail = "; ".join(f"{e} {left.get(e, 0):g} on the left, {right.get(e, 0):g} on the right"
-                           for e in sorted(wrong))
+        detail = "; ".join(
+            f"{e} {left.get(e, 0):g} on the left, {right.get(e, 0):g} on the right"
+            for e in sorted(wrong)
+        )
         raise ValueError(f"the reaction '{text}' does not balance: {detail}")
     return reaction
 
@@ -116,18 +122,21 @@ def _side(part: str, text: str) -> tuple[Term, ...]:
     for piece in part.split("+"):
         match = _TERM.match(piece)
         if not match:
-            raise ValueError(f"cannot read '{piece.strip()}' in the reaction '{text}'; write a "
-                             "coefficient and a formula, like '2 H2O' or '1/2 O2(g)'")
+            raise ValueError(
+                f"cannot read '{piece.strip()}' in the reaction '{text}'; write a "
+                "coefficient and a formula, like '2 H2O' or '1/2 O2(g)'"
+            )
         number, name, phase = match.groups()
-        coefficient = 1.0 if number is None else (
-            0.5 if number == "½" else float(Fraction(number)))
+        coefficient = 1.0 if number is None else (0.5 if number == "½" else float(Fraction(number)))
         if coefficient <= 0.0:
             raise ValueError(f"the coefficient of {name} in '{text}' must be positive")
         data = lookup(name)
         if data is None:
             known = ", ".join(sorted(s.formula for s in SPECIES.values()))
-            raise ValueError(f"no formation data for '{name}' in the reaction '{text}'; the "
-                             f"species known are {known} (DEVELOPERS.md says how to add one)")
+            raise ValueError(
+                f"no formation data for '{name}' in the reaction '{text}'; the "
+                f"species known are {known} (DEVELOPERS.md says how to add one)"
+            )
         terms.append(Term(coefficient, data.formula, phase or "g"))
     return tuple(terms)
 
@@ -159,7 +168,8 @@ def species_flows(stream: StreamResult) -> dict[str, float]:
         raise StateError(
             f"stream {stream.id} ({stream.fluid}) has no formation data, so it cannot take part "
             "in a reacting step; every stream of such a step must be a species of "
-            "audit/formation.py or a mixture of them")
+            "audit/formation.py or a mixture of them"
+        )
     return {data.formula: stream.molar_flow}
 
 
@@ -183,8 +193,9 @@ def element_mass(element: str, moles: float) -> float:
 
 
 # -- extents --------------------------------------------------------------------------------------------
-def fit_extents(reactions: Sequence[Reaction], change: Mapping[str, float],
-                claimed: Sequence[float | None]) -> tuple[list[float], dict[str, float]]:
+def fit_extents(
+    reactions: Sequence[Reaction], change: Mapping[str, float], claimed: Sequence[float | None]
+) -> tuple[list[float], dict[str, float]]:
     """Extents ξ_k [mol/s] of the reactions and the species change they leave unexplained.
 
     ``change`` is outlet minus inlet flow per species [mol/s]. Claimed extents are taken as given;
@@ -217,8 +228,9 @@ class ReactionProperties:
     dG: float
 
 
-def reaction_properties(engine: PropertyEngine, reaction: Reaction, T: float, P: float
-                        ) -> ReactionProperties:
+def reaction_properties(
+    engine: PropertyEngine, reaction: Reaction, T: float, P: float
+) -> ReactionProperties:
     """Reaction properties with every species pure at T [K] and P [Pa] in its written phase
     (ideal gas, or the real liquid for ``(l)``), on the formation basis; see the module docstring.
 
@@ -231,7 +243,8 @@ def reaction_properties(engine: PropertyEngine, reaction: Reaction, T: float, P:
         except StateError as exc:
             raise StateError(
                 f"the reaction '{reaction.equation}' at {to_celsius(T):.6g} °C and {to_bar(P):.6g} "
-                f"bar: {exc.problem.message}") from None
+                f"bar: {exc.problem.message}"
+            ) from None
         dH += nu * h
         dS += nu * s
     return ReactionProperties(T=T, P=P, dH=dH, dS=dS, dG=dH - T * dS)

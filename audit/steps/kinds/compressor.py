@@ -47,11 +47,18 @@ def evaluate(step: Compressor, ctx: StepContext) -> StepResult:
     inlet = ctx.stream(step.inlet)
     if inlet.phase in ("liquid", "two-phase", "supercritical liquid"):
         detail = f"quality {inlet.quality:.3f}" if inlet.quality is not None else inlet.phase
-        ctx.add(Finding(
-            ERROR, "liquid-at-suction", step.id,
-            f"the suction stream {inlet.id} is {detail}; a compressor must take dry vapour "
-            "or gas", stream=inlet.id, claimed=inlet.quality, bound=1.0, quantity="fraction",
-        ))
+        ctx.add(
+            Finding(
+                ERROR,
+                "liquid-at-suction",
+                step.id,
+                f"the suction stream {inlet.id} is {detail}; a compressor must take dry vapour or gas",
+                stream=inlet.id,
+                claimed=inlet.quality,
+                bound=1.0,
+                quantity="fraction",
+            )
+        )
     return result
 
 

@@ -50,22 +50,37 @@ def evaluate(step: Cooler, ctx: StepContext) -> StepResult:
     if step.duty is not None:
         Q, claimed, inferred = -step.duty, ["duty"], []
     else:
-        Q = (outlet.mass_flow * (outlet.h + outlet.kinetic_potential)
-             - inlet.mass_flow * (inlet.h + inlet.kinetic_potential))
+        Q = outlet.mass_flow * (outlet.h + outlet.kinetic_potential) - inlet.mass_flow * (
+            inlet.h + inlet.kinetic_potential
+        )
         claimed, inferred = [], ["duty"]
-    heat = [heat_flow(Q, step.sink_temperature, ctx.T0, claimed=step.duty is not None,
-                      coldest=min(inlet.T, outlet.T))]
-    result, _ = finish_flow_step(step, "cooler", ctx, [inlet], [outlet], heat, 0.0,
-                                 claimed + ["no work"], inferred)
+    heat = [
+        heat_flow(
+            Q,
+            step.sink_temperature,
+            ctx.T0,
+            claimed=step.duty is not None,
+            coldest=min(inlet.T, outlet.T),
+        )
+    ]
+    result, _ = finish_flow_step(
+        step, "cooler", ctx, [inlet], [outlet], heat, 0.0, claimed + ["no work"], inferred
+    )
     if step.sink_temperature is not None and step.sink_temperature > outlet.T:
         gap = step.sink_temperature - outlet.T
-        ctx.add(Finding(
-            ERROR, "sink-too-hot", step.id,
-            f"the heat sink at {to_celsius(step.sink_temperature):.1f} °C is {gap:.1f} K hotter than "
-            f"the outlet {outlet.id} ({to_celsius(outlet.T):.1f} °C) it is said to cool",
-            claimed=step.sink_temperature, bound=outlet.T, margin=gap,
-            quantity="temperature",
-        ))
+        ctx.add(
+            Finding(
+                ERROR,
+                "sink-too-hot",
+                step.id,
+                f"the heat sink at {to_celsius(step.sink_temperature):.1f} °C is {gap:.1f} K hotter "
+                f"than the outlet {outlet.id} ({to_celsius(outlet.T):.1f} °C) it is said to cool",
+                claimed=step.sink_temperature,
+                bound=outlet.T,
+                margin=gap,
+                quantity="temperature",
+            )
+        )
     return result
 
 

@@ -37,5 +37,9 @@ def evaluate(step: Electrolyser, ctx: StepContext) -> StepResult:
     return evaluate_cell(step, ctx, ELECTROLYSER)
 
 
-register("electrolyser", Electrolyser, evaluate,
-         "electrolyser: electrical work splits water (or another reaction)")
+register(
+    "electrolyser",
+    Electrolyser,
+    evaluate,
+    "electrolyser: electrical work splits water (or another reaction)",
+)

@@ -74,35 +74,40 @@ def _parse_heating_value(value: Any) -> HeatingValueClaim:
     text = str(value) if isinstance(value, str) else value
     try:
         if isinstance(text, str) and (match := _PER_VOLUME.match(text.strip())):
-            reference = (units.NORMAL_CONDITIONS if match.group(2) == "N"
-                         else units.STANDARD_CONDITIONS)
+            reference = units.NORMAL_CONDITIONS if match.group(2) == "N" else units.STANDARD_CONDITIONS
             energy = units.to_si(match.group(1), "energy")
             return HeatingValueClaim(energy, "normal_volume", text, reference)
         try:
             return HeatingValueClaim(units.to_si(text, "specific_enthalpy"), "mass", str(text))
         except UnitError:
-            return HeatingValueClaim(units.to_si(text, "specific_energy_molar"), "molar",
-                                     str(text))
+            return HeatingValueClaim(units.to_si(text, "specific_energy_molar"), "molar", str(text))
     except UnitError:
         pass
     if isinstance(text, str) and re.search(r"m(3|\^3|\*\*3|³)\s*$", text):
-        message = (f"'{text}': a heating value per volume needs its reference conditions; write "
-                   "it per normal m³ ('35.9 MJ/Nm3', 0 °C and 101.325 kPa) or per standard m³ "
-                   "('37.7 MJ/Sm3', 15 °C and 101.325 kPa)")
+        message = (
+            f"'{text}': a heating value per volume needs its reference conditions; write "
+            "it per normal m³ ('35.9 MJ/Nm3', 0 °C and 101.325 kPa) or per standard m³ "
+            "('37.7 MJ/Sm3', 15 °C and 101.325 kPa)"
+        )
     else:
-        message = (f"'{text}' is not a heating value; write it per kg ('47.0 MJ/kg'), per mole "
-                   "('802 kJ/mol') or per normal cubic metre ('35.9 MJ/Nm3')")
+        message = (
+            f"'{text}' is not a heating value; write it per kg ('47.0 MJ/kg'), per mole "
+            "('802 kJ/mol') or per normal cubic metre ('35.9 MJ/Nm3')"
+        )
     raise PydanticCustomError("quantity", message)
 
 
 HeatingValue = Annotated[
     HeatingValueClaim,
     BeforeValidator(_parse_heating_value),
-    WithJsonSchema({
-        "type": "string", "pattern": QUANTITY_PATTERN,
-        "description": "a fuel heating value with its unit, e.g. '47.0 MJ/kg', '802 kJ/mol', "
-        "'35.9 MJ/Nm3' (0 °C, 101.325 kPa) or '37.7 MJ/Sm3' (15 °C, 101.325 kPa)",
-    }),
+    WithJsonSchema(
+        {
+            "type": "string",
+            "pattern": QUANTITY_PATTERN,
+            "description": "a fuel heating value with its unit, e.g. '47.0 MJ/kg', '802 kJ/mol', "
+            "'35.9 MJ/Nm3' (0 °C, 101.325 kPa) or '37.7 MJ/Sm3' (15 °C, 101.325 kPa)",
+        }
+    ),
 ]
 
 
@@ -150,83 +155,135 @@ def evaluate(step: FiredHeater, ctx: StepContext) -> StepResult:
     values = heating_values(ctx.engine, fuel_species)
     n_fuel = sum(fuel_species.values())
     input_lhv, input_hhv = n_fuel * values.lower, n_fuel * values.higher
-    heat = heat_loss_flow(step.heat_loss, step.heat_loss_temperature, ctx.T0,
-                          min(s.T for s in (fuel, air, flue, hin, hout)))
+    heat = heat_loss_flow(
+        step.heat_loss,
+        step.heat_loss_temperature,
+        ctx.T0,
+        min(s.T for s in (fuel, air, flue, hin, hout)),
+    )
     claimed = ["heat_loss" if step.heat_loss is not None else "no heat loss", "no work"]
-    claimed += [name for name in ("duty", "fuel_lhv", "fuel_hhv")
-                if getattr(step, name) is not None]
+    claimed += [name for name in ("duty", "fuel_lhv", "fuel_hhv") if getattr(step, name) is not None]
     result = finish_reacting_step(
-        step, "fired_heater", ctx, [fuel, air, hin], [flue, hout], heat, 0.0, claimed, [],
-        (problems, residuals), energy_scale_floor=input_lhv)
+        step,
+        "fired_heater",
+        ctx,
+        [fuel, air, hin],
+        [flue, hout],
+        heat,
+        0.0,
+        claimed,
+        [],
+        (problems, residuals),
+        energy_scale_floor=input_lhv,
+    )
 
-    received = (hout.mass_flow * (hout.h + hout.kinetic_potential)
-                - hin.mass_flow * (hin.h + hin.kinetic_potential))
+    received = hout.mass_flow * (hout.h + hout.kinetic_potential) - hin.mass_flow * (
+        hin.h + hin.kinetic_potential
+    )
     oxygen = species_flows(air).get("O2", 0.0) + fuel_species.get("O2", 0.0)
     needed = n_fuel * values.oxygen_needed
-    result.extra.update({
-        "heated_duty": received, "fuel_lhv": values.per_kg("lower"),
-        "fuel_hhv": values.per_kg("higher"), "heat_input_lhv": input_lhv,
-        "heat_input_hhv": input_hhv,
-        "efficiency_lhv": received / input_lhv if input_lhv > 0 else None,
-        "efficiency_hhv": received / input_hhv if input_hhv > 0 else None,
-        "air_ratio": oxygen / needed if needed > 0 else None,
-    })
+    result.extra.update(
+        {
+            "heated_duty": received,
+            "fuel_lhv": values.per_kg("lower"),
+            "fuel_hhv": values.per_kg("higher"),
+            "heat_input_lhv": input_lhv,
+            "heat_input_hhv": input_hhv,
+            "efficiency_lhv": received / input_lhv if input_lhv > 0 else None,
+            "efficiency_hhv": received / input_hhv if input_hhv > 0 else None,
+            "air_ratio": oxygen / needed if needed > 0 else None,
+        }
+    )
 
     if step.duty is not None and abs(received - step.duty) > result.energy_tolerance:
         gap = step.duty - received
-        ctx.add(Finding(
-            ERROR, "duty-mismatch", step.id,
-            f"the claimed duty {format_power(step.duty)} differs from the "
-            f"{format_power(received)} the heated side ({hin.id} → {hout.id}) receives, by "
-            f"{format_power(abs(gap))} (tolerance {format_power(result.energy_tolerance)})",
-            claimed=step.duty, bound=received, margin=abs(gap),
-            margin_relative=relative(abs(gap), received), quantity="power",
-            tolerance=result.energy_tolerance,
-        ))
+        ctx.add(
+            Finding(
+                ERROR,
+                "duty-mismatch",
+                step.id,
+                f"the claimed duty {format_power(step.duty)} differs from the "
+                f"{format_power(received)} the heated side ({hin.id} → {hout.id}) receives, by "
+                f"{format_power(abs(gap))} (tolerance {format_power(result.energy_tolerance)})",
+                claimed=step.duty,
+                bound=received,
+                margin=abs(gap),
+                margin_relative=relative(abs(gap), received),
+                quantity="power",
+                tolerance=result.energy_tolerance,
+            )
+        )
     for which, claim in (("lower", step.fuel_lhv), ("higher", step.fuel_hhv)):
         if claim is not None:
-            finding = _heating_value_finding(step.id, ctx, fuel, values, which, claim,
-                                             tol.energy_relative)
+            finding = _heating_value_finding(
+                step.id, ctx, fuel, values, which, claim, tol.energy_relative
+            )
             if finding is not None:
                 ctx.add(finding)
     if flue.T < hin.T:
         gap = hin.T - flue.T
-        ctx.add(Finding(
-            ERROR, "temperature-cross", step.id,
-            f"the flue gas {flue.id} leaves at {to_celsius(flue.T):.1f} °C, {gap:.1f} K colder than "
-            f"the heated stream {hin.id} enters ({to_celsius(hin.T):.1f} °C): the gas cannot heat "
-            "it at that end",
-            claimed=flue.T, bound=hin.T, margin=gap, quantity="temperature_difference",
-        ))
+        ctx.add(
+            Finding(
+                ERROR,
+                "temperature-cross",
+                step.id,
+                f"the flue gas {flue.id} leaves at {to_celsius(flue.T):.1f} °C, {gap:.1f} K colder than "
+                f"the heated stream {hin.id} enters ({to_celsius(hin.T):.1f} °C): the gas cannot heat "
+                "it at that end",
+                claimed=flue.T,
+                bound=hin.T,
+                margin=gap,
+                quantity="temperature_difference",
+            )
+        )
     return result
 
 
-def _side_findings(step_id: str, ctx: StepContext, inlet: StreamResult, outlet: StreamResult
-                   ) -> list[Finding]:
+def _side_findings(
+    step_id: str, ctx: StepContext, inlet: StreamResult, outlet: StreamResult
+) -> list[Finding]:
     found = []
     if inlet.fluid != outlet.fluid:
-        found.append(Finding(
-            ERROR, "side-changes-fluid", step_id,
-            f"the heated side enters as {inlet.fluid} ({inlet.id}) and leaves as {outlet.fluid} "
-            f"({outlet.id}); it keeps its own fluid",
-        ))
+        found.append(
+            Finding(
+                ERROR,
+                "side-changes-fluid",
+                step_id,
+                f"the heated side enters as {inlet.fluid} ({inlet.id}) and leaves as {outlet.fluid} "
+                f"({outlet.id}); it keeps its own fluid",
+            )
+        )
     tol = ctx.tolerances
     residual = inlet.mass_flow - outlet.mass_flow
     mass_tol = max(tol.mass_relative * inlet.mass_flow, tol.mass_absolute)
     if abs(residual) > mass_tol:
-        found.append(Finding(
-            ERROR, "mass-imbalance", step_id,
-            f"the heated side enters with {inlet.mass_flow:.4g} kg/s ({inlet.id}) and leaves with "
-            f"{outlet.mass_flow:.4g} kg/s ({outlet.id})",
-            claimed=residual, bound=0.0, margin=abs(residual),
-            margin_relative=relative(abs(residual), inlet.mass_flow), quantity="mass_flow",
-            tolerance=mass_tol,
-        ))
+        found.append(
+            Finding(
+                ERROR,
+                "mass-imbalance",
+                step_id,
+                f"the heated side enters with {inlet.mass_flow:.4g} kg/s ({inlet.id}) and leaves with "
+                f"{outlet.mass_flow:.4g} kg/s ({outlet.id})",
+                claimed=residual,
+                bound=0.0,
+                margin=abs(residual),
+                margin_relative=relative(abs(residual), inlet.mass_flow),
+                quantity="mass_flow",
+                tolerance=mass_tol,
+            )
+        )
     return found
 
 
-def _heating_value_finding(step_id: str, ctx: StepContext, fuel: StreamResult, values: Any,
-                           which: str, claim: HeatingValueClaim, rtol: float) -> Finding | None:
+def _heating_value_finding(
+    step_id: str,
+    ctx: StepContext,
+    fuel: StreamResult,
+    values: Any,
+    which: str,
+    claim: HeatingValueClaim,
+    rtol: float,
+) -> Finding | None:
     """Compare a claimed heating value with the computed one, in the claim's own basis."""
     molar = {"lower": values.lower, "higher": values.higher}
     if claim.basis == "mass":
@@ -238,8 +295,7 @@ def _heating_value_finding(step_id: str, ctx: StepContext, fuel: StreamResult, v
         if fuel.composition is not None:
             scale = P_ref / (GAS_CONSTANT * T_ref)  # mol/m**3, ideal gas as for the flows
         else:
-            scale = ctx.engine.state(fuel.fluid, "TP", T_ref, P_ref).rho / (
-                values.molar_mass)
+            scale = ctx.engine.state(fuel.fluid, "TP", T_ref, P_ref).rho / (values.molar_mass)
         unit = "MJ/Nm³" if T_ref == units.NORMAL_CONDITIONS[0] else "MJ/Sm³"
         shown = 1e-6
     computed = molar[which] * scale
@@ -251,19 +307,30 @@ def _heating_value_finding(step_id: str, ctx: StepContext, fuel: StreamResult, v
     short = {"lower": "LHV", "higher": "HHV"}
     hint = ""
     if abs(claim.value - other) <= rtol * abs(other):
-        hint = (f"; it matches the {other_name} heating value ({other * shown:.4g} {unit}): "
-                f"{short[other_name]} written for {short[which]}?")
+        hint = (
+            f"; it matches the {other_name} heating value ({other * shown:.4g} {unit}): "
+            f"{short[other_name]} written for {short[which]}?"
+        )
     return Finding(
-        ERROR, "heating-value-mismatch", step_id,
+        ERROR,
+        "heating-value-mismatch",
+        step_id,
         f"the claimed {which} heating value of the fuel {fuel.id}, {claim.value * shown:.4g} "
         f"{unit}, differs from the {computed * shown:.4g} {unit} computed from formation data "
         f"(25 °C, 1 bar) by {abs(gap) * shown:.3g} {unit} ({abs(gap) / abs(computed):.1%}; "
         f"tolerance {rtol:.1%}){hint}",
-        claimed=claim.value, bound=computed, margin=abs(gap),
+        claimed=claim.value,
+        bound=computed,
+        margin=abs(gap),
         margin_relative=relative(abs(gap), computed),
-        quantity="specific_energy" if claim.basis == "mass" else None, tolerance=rtol * computed,
+        quantity="specific_energy" if claim.basis == "mass" else None,
+        tolerance=rtol * computed,
     )
 
 
-register("fired_heater", FiredHeater, evaluate,
-         "fired heater or boiler: fuel + air → flue gas, heating a stream")
+register(
+    "fired_heater",
+    FiredHeater,
+    evaluate,
+    "fired heater or boiler: fuel + air → flue gas, heating a stream",
+)

@@ -37,5 +37,9 @@ def evaluate(step: FuelCell, ctx: StepContext) -> StepResult:
     return evaluate_cell(step, ctx, FUEL_CELL)
 
 
-register("fuel_cell", FuelCell, evaluate,
-         "fuel cell: a reaction (hydrogen with oxygen) delivers electrical work")
+register(
+    "fuel_cell",
+    FuelCell,
+    evaluate,
+    "fuel cell: a reaction (hydrogen with oxygen) delivers electrical work",
+)

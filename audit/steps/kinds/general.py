@@ -32,8 +32,7 @@ class GeneralStep(StepBase):
     inlets: list[str] = Field(default_factory=list)
     outlets: list[str] = Field(default_factory=list)
     heat: list[HeatClaim] | None = None
-    heat_temperature: TemperatureClaim = Field(
-        None, description="boundary temperature of inferred heat")
+    heat_temperature: TemperatureClaim = Field(None, description="boundary temperature of inferred heat")
     work_delivered: Annotated[Power | None, ClaimField("power", "work_absorbed")] = Field(None, ge=0)
     work_absorbed: Annotated[Power | None, ClaimField("power", "work_delivered")] = Field(None, ge=0)
 
@@ -60,12 +59,16 @@ def evaluate(step: GeneralStep, ctx: StepContext) -> StepResult:
     inlets = [ctx.stream(i) for i in step.inlets]
     outlets = [ctx.stream(o) for o in step.outlets]
     coldest = min(s.T for s in [*inlets, *outlets])
-    dE = (sum(s.mass_flow * (s.h + s.kinetic_potential) for s in outlets)
-          - sum(s.mass_flow * (s.h + s.kinetic_potential) for s in inlets))
+    dE = sum(s.mass_flow * (s.h + s.kinetic_potential) for s in outlets) - sum(
+        s.mass_flow * (s.h + s.kinetic_potential) for s in inlets
+    )
     claimed, inferred = [], []
     work_given = step.work_delivered is not None or step.work_absorbed is not None
-    W = step.work_delivered if step.work_delivered is not None else (
-        -step.work_absorbed if step.work_absorbed is not None else 0.0)
+    W = (
+        step.work_delivered
+        if step.work_delivered is not None
+        else (-step.work_absorbed if step.work_absorbed is not None else 0.0)
+    )
     if step.heat is not None:
         heat = heat_flows_from_claims(step.heat, ctx.T0, coldest)
         claimed.append("heat")

@@ -76,13 +76,13 @@ def evaluate(step: HeatExchanger, ctx: StepContext) -> StepResult:
     hi, ho = ctx.stream(step.hot.inlet), ctx.stream(step.hot.outlet)
     ci, co = ctx.stream(step.cold.inlet), ctx.stream(step.cold.outlet)
     streams = [hi, ho, ci, co]
-    heat = heat_loss_flow(step.heat_loss, step.heat_loss_temperature, ctx.T0,
-                          min(s.T for s in streams))
+    heat = heat_loss_flow(step.heat_loss, step.heat_loss_temperature, ctx.T0, min(s.T for s in streams))
     claimed = ["heat_loss" if step.heat_loss is not None else "no heat loss", "no work"]
     if step.duty is not None:
         claimed.append("duty")
-    result, balance = finish_flow_step(step, "heat_exchanger", ctx, [hi, ci], [ho, co], heat, 0.0,
-                                       claimed, [], check_mass=False)
+    result, balance = finish_flow_step(
+        step, "heat_exchanger", ctx, [hi, ci], [ho, co], heat, 0.0, claimed, [], check_mass=False
+    )
     tol = ctx.tolerances
     released = hi.mass_flow * hi.h - ho.mass_flow * ho.h
     received = co.mass_flow * co.h - ci.mass_flow * ci.h
@@ -93,22 +93,33 @@ def evaluate(step: HeatExchanger, ctx: StepContext) -> StepResult:
 
     for name, inlet, outlet in (("hot", hi, ho), ("cold", ci, co)):
         if inlet.fluid != outlet.fluid:
-            ctx.add(Finding(
-                ERROR, "side-changes-fluid", step.id,
-                f"the {name} side enters as {inlet.fluid} ({inlet.id}) and leaves as "
-                f"{outlet.fluid} ({outlet.id}); each side keeps its own fluid",
-            ))
+            ctx.add(
+                Finding(
+                    ERROR,
+                    "side-changes-fluid",
+                    step.id,
+                    f"the {name} side enters as {inlet.fluid} ({inlet.id}) and leaves as "
+                    f"{outlet.fluid} ({outlet.id}); each side keeps its own fluid",
+                )
+            )
         residual = inlet.mass_flow - outlet.mass_flow
         mass_tol = max(tol.mass_relative * inlet.mass_flow, tol.mass_absolute)
         if abs(residual) > mass_tol:
-            ctx.add(Finding(
-                ERROR, "mass-imbalance", step.id,
-                f"the {name} side enters with {inlet.mass_flow:.4g} kg/s ({inlet.id}) and leaves "
-                f"with {outlet.mass_flow:.4g} kg/s ({outlet.id})",
-                claimed=residual, bound=0.0, margin=abs(residual),
-                margin_relative=relative(abs(residual), inlet.mass_flow), quantity="mass_flow",
-                tolerance=mass_tol,
-            ))
+            ctx.add(
+                Finding(
+                    ERROR,
+                    "mass-imbalance",
+                    step.id,
+                    f"the {name} side enters with {inlet.mass_flow:.4g} kg/s ({inlet.id}) and leaves "
+                    f"with {outlet.mass_flow:.4g} kg/s ({outlet.id})",
+                    claimed=residual,
+                    bound=0.0,
+                    margin=abs(residual),
+                    margin_relative=relative(abs(residual), inlet.mass_flow),
+                    quantity="mass_flow",
+                    tolerance=mass_tol,
+                )
+            )
     duty = step.duty
     if duty is not None:
         tol_E = result.energy_tolerance
@@ -118,32 +129,51 @@ def evaluate(step: HeatExchanger, ctx: StepContext) -> StepResult:
         worst = max((released - loss, received), key=lambda d: abs(d - duty))
         if abs(worst - duty) > tol_E:
             lost = f" ({format_power(loss)} of it lost to ambient)" if loss else ""
-            ctx.add(Finding(
-                ERROR, "duty-mismatch", step.id,
-                f"the claimed duty {format_power(duty)} differs from the streams: the hot "
-                f"side releases {format_power(released)}{lost}, the cold side receives "
-                f"{format_power(received)}",
-                claimed=duty, bound=worst, margin=abs(worst - duty),
-                margin_relative=relative(abs(worst - duty), worst), quantity="power",
-                tolerance=tol_E,
-            ))
+            ctx.add(
+                Finding(
+                    ERROR,
+                    "duty-mismatch",
+                    step.id,
+                    f"the claimed duty {format_power(duty)} differs from the streams: the hot "
+                    f"side releases {format_power(released)}{lost}, the cold side receives "
+                    f"{format_power(received)}",
+                    claimed=duty,
+                    bound=worst,
+                    margin=abs(worst - duty),
+                    margin_relative=relative(abs(worst - duty), worst),
+                    quantity="power",
+                    tolerance=tol_E,
+                )
+            )
     if released <= 0 or received <= 0:
-        ctx.add(Finding(
-            ERROR, "temperature-cross", step.id,
-            f"the hot side {'gains' if released <= 0 else 'releases'} heat "
-            f"({format_power(released)}) and the cold side "
-            f"{'loses' if received <= 0 else 'receives'} heat ({format_power(received)}): "
-            "hot and cold sides swapped?",
-            quantity="power", claimed=released, bound=0.0,
-        ))
+        ctx.add(
+            Finding(
+                ERROR,
+                "temperature-cross",
+                step.id,
+                f"the hot side {'gains' if released <= 0 else 'releases'} heat "
+                f"({format_power(released)}) and the cold side "
+                f"{'loses' if received <= 0 else 'receives'} heat ({format_power(received)}): "
+                "hot and cold sides swapped?",
+                quantity="power",
+                claimed=released,
+                bound=0.0,
+            )
+        )
         return result
     _check_temperatures(step, ctx, result, hi, ho, ci, co)
     return result
 
 
-def _check_temperatures(step: HeatExchanger, ctx: StepContext, result: StepResult,
-                        hi: StreamResult, ho: StreamResult, ci: StreamResult,
-                        co: StreamResult) -> None:
+def _check_temperatures(
+    step: HeatExchanger,
+    ctx: StepContext,
+    result: StepResult,
+    hi: StreamResult,
+    ho: StreamResult,
+    ci: StreamResult,
+    co: StreamResult,
+) -> None:
     counter = step.arrangement == "counter-current"
     # Terminal differences: (end name, hot T, cold T)
     if counter:
@@ -153,21 +183,32 @@ def _check_temperatures(step: HeatExchanger, ctx: StepContext, result: StepResul
     for end, hot, cold in ends:
         gap = hot.T - cold.T
         if gap < 0:
-            ctx.add(Finding(
-                ERROR, "temperature-cross", step.id,
-                f"at the {end} of this {step.arrangement} exchanger the hot stream {hot.id} "
-                f"({to_celsius(hot.T):.1f} °C) is {-gap:.1f} K colder than the cold stream "
-                f"{cold.id} ({to_celsius(cold.T):.1f} °C): heat cannot flow that way",
-                claimed=cold.T, bound=hot.T, margin=-gap, quantity="temperature",
-            ))
+            ctx.add(
+                Finding(
+                    ERROR,
+                    "temperature-cross",
+                    step.id,
+                    f"at the {end} of this {step.arrangement} exchanger the hot stream {hot.id} "
+                    f"({to_celsius(hot.T):.1f} °C) is {-gap:.1f} K colder than the cold stream "
+                    f"{cold.id} ({to_celsius(cold.T):.1f} °C): heat cannot flow that way",
+                    claimed=cold.T,
+                    bound=hot.T,
+                    margin=-gap,
+                    quantity="temperature",
+                )
+            )
             return
     try:
         fractions, approach = approach_profile(ctx, hi, ho, ci, co, counter)
     except StateError as exc:
-        ctx.add(Finding(
-            WARNING, "step-not-evaluated", step.id,
-            f"the temperature profiles could not be evaluated: {exc.problem.message}",
-        ))
+        ctx.add(
+            Finding(
+                WARNING,
+                "step-not-evaluated",
+                step.id,
+                f"the temperature profiles could not be evaluated: {exc.problem.message}",
+            )
+        )
         return
     i_min = min(range(len(approach)), key=approach.__getitem__)
     minimum = approach[i_min]
@@ -176,26 +217,46 @@ def _check_temperatures(step: HeatExchanger, ctx: StepContext, result: StepResul
     terminal = min(hot.T - cold.T for _, hot, cold in ends)
     required = ctx.tolerances.min_approach
     if minimum < 0:
-        ctx.add(Finding(
-            ERROR, "internal-pinch", step.id,
-            f"the terminal temperatures leave {terminal:.1f} K, but inside the exchanger the "
-            f"profiles cross: at {fractions[i_min]:.0%} of the duty (from the cold inlet) the hot "
-            f"side is {-minimum:.1f} K colder than the cold side",
-            claimed=minimum, bound=max(required, 0.0), margin=max(required, 0.0) - minimum,
-            quantity="temperature_difference", tolerance=required,
-        ))
+        ctx.add(
+            Finding(
+                ERROR,
+                "internal-pinch",
+                step.id,
+                f"the terminal temperatures leave {terminal:.1f} K, but inside the exchanger the "
+                f"profiles cross: at {fractions[i_min]:.0%} of the duty (from the cold inlet) the hot "
+                f"side is {-minimum:.1f} K colder than the cold side",
+                claimed=minimum,
+                bound=max(required, 0.0),
+                margin=max(required, 0.0) - minimum,
+                quantity="temperature_difference",
+                tolerance=required,
+            )
+        )
     elif minimum < required:
-        ctx.add(Finding(
-            WARNING, "approach-below-minimum", step.id,
-            f"the smallest approach is {minimum:.2f} K (at {fractions[i_min]:.0%} of the duty "
-            f"from the cold inlet), below the stated minimum of {required:g} K",
-            claimed=minimum, bound=required, margin=required - minimum,
-            quantity="temperature_difference", tolerance=required,
-        ))
+        ctx.add(
+            Finding(
+                WARNING,
+                "approach-below-minimum",
+                step.id,
+                f"the smallest approach is {minimum:.2f} K (at {fractions[i_min]:.0%} of the duty "
+                f"from the cold inlet), below the stated minimum of {required:g} K",
+                claimed=minimum,
+                bound=required,
+                margin=required - minimum,
+                quantity="temperature_difference",
+                tolerance=required,
+            )
+        )
 
 
-def approach_profile(ctx: StepContext, hi: StreamResult, ho: StreamResult, ci: StreamResult,
-                     co: StreamResult, counter: bool) -> tuple[list[float], list[float]]:
+def approach_profile(
+    ctx: StepContext,
+    hi: StreamResult,
+    ho: StreamResult,
+    ci: StreamResult,
+    co: StreamResult,
+    counter: bool,
+) -> tuple[list[float], list[float]]:
     """Hot-minus-cold temperature difference [K] at fractions of duty from the cold inlet [-]."""
     fractions = {i / PROFILE_POINTS for i in range(PROFILE_POINTS + 1)}
     for side_in, side_out in ((ci, co), (hi, ho)):
@@ -224,8 +285,7 @@ def _side_T(ctx: StepContext, inlet: StreamResult, outlet: StreamResult, f: floa
     return ctx.engine.state(inlet.fluid, "Ph", P, h, table_basis=False).T
 
 
-def _saturation_fractions(ctx: StepContext, inlet: StreamResult, outlet: StreamResult
-                          ) -> list[float]:
+def _saturation_fractions(ctx: StepContext, inlet: StreamResult, outlet: StreamResult) -> list[float]:
     """Fractions of a side's enthalpy change at which it meets its bubble and dew points."""
     if inlet.fluid != outlet.fluid or outlet.h == inlet.h:
         return []
@@ -242,5 +302,9 @@ def _saturation_fractions(ctx: StepContext, inlet: StreamResult, outlet: StreamR
     return found
 
 
-register("heat_exchanger", HeatExchanger, evaluate,
-         "two-stream heat exchanger: hot side releases, cold side receives")
+register(
+    "heat_exchanger",
+    HeatExchanger,
+    evaluate,
+    "two-stream heat exchanger: hot side releases, cold side receives",
+)

@@ -34,8 +34,7 @@ class Heater(StepBase):
     inlet: str
     outlet: str
     duty: DutyClaim = Field(None, ge=0, description="heat received by the stream")
-    source_temperature: TemperatureClaim = Field(
-        None, description="temperature of the heat source")
+    source_temperature: TemperatureClaim = Field(None, description="temperature of the heat source")
 
     def stream_ids(self) -> tuple[list[str], list[str]]:
         return [self.inlet], [self.outlet]
@@ -52,22 +51,37 @@ def evaluate(step: Heater, ctx: StepContext) -> StepResult:
     if step.duty is not None:
         Q, claimed, inferred = step.duty, ["duty"], []
     else:
-        Q = (outlet.mass_flow * (outlet.h + outlet.kinetic_potential)
-             - inlet.mass_flow * (inlet.h + inlet.kinetic_potential))
+        Q = outlet.mass_flow * (outlet.h + outlet.kinetic_potential) - inlet.mass_flow * (
+            inlet.h + inlet.kinetic_potential
+        )
         claimed, inferred = [], ["duty"]
-    heat = [heat_flow(Q, step.source_temperature, ctx.T0, claimed=step.duty is not None,
-                      coldest=min(inlet.T, outlet.T))]
-    result, _ = finish_flow_step(step, "heater", ctx, [inlet], [outlet], heat, 0.0,
-                                 claimed + ["no work"], inferred)
+    heat = [
+        heat_flow(
+            Q,
+            step.source_temperature,
+            ctx.T0,
+            claimed=step.duty is not None,
+            coldest=min(inlet.T, outlet.T),
+        )
+    ]
+    result, _ = finish_flow_step(
+        step, "heater", ctx, [inlet], [outlet], heat, 0.0, claimed + ["no work"], inferred
+    )
     if step.source_temperature is not None and step.source_temperature < outlet.T:
         gap = outlet.T - step.source_temperature
-        ctx.add(Finding(
-            ERROR, "source-too-cold", step.id,
-            f"the heat source at {to_celsius(step.source_temperature):.1f} °C is {gap:.1f} K colder "
-            f"than the outlet {outlet.id} ({to_celsius(outlet.T):.1f} °C) it is said to heat",
-            claimed=step.source_temperature, bound=outlet.T, margin=gap,
-            quantity="temperature",
-        ))
+        ctx.add(
+            Finding(
+                ERROR,
+                "source-too-cold",
+                step.id,
+                f"the heat source at {to_celsius(step.source_temperature):.1f} °C is {gap:.1f} K colder "
+                f"than the outlet {outlet.id} ({to_celsius(outlet.T):.1f} °C) it is said to heat",
+                claimed=step.source_temperature,
+                bound=outlet.T,
+                margin=gap,
+                quantity="temperature",
+            )
+        )
     return result
 
 

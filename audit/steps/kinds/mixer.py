@@ -41,18 +41,26 @@ def evaluate(step: Mixer, ctx: StepContext) -> StepResult:
     """
     inlets = [ctx.stream(i) for i in step.inlets]
     outlet = ctx.stream(step.outlet)
-    heat = heat_loss_flow(step.heat_loss, step.heat_loss_temperature, ctx.T0,
-                          min(s.T for s in [*inlets, outlet]))
+    heat = heat_loss_flow(
+        step.heat_loss, step.heat_loss_temperature, ctx.T0, min(s.T for s in [*inlets, outlet])
+    )
     claimed = ["heat_loss" if step.heat_loss is not None else "adiabatic", "no work"]
     result, _ = finish_flow_step(step, "mixer", ctx, inlets, [outlet], heat, 0.0, claimed, [])
     lowest = min(inlets, key=lambda s: s.P)
     if outlet.P > lowest.P * (1.0 + ctx.tolerances.isobaric_relative):
-        ctx.add(Finding(
-            WARNING, "mixer-outlet-pressure", step.id,
-            f"the outlet pressure ({to_bar(outlet.P):.4g} bar) is above the lowest inlet pressure "
-            f"({lowest.id}, {to_bar(lowest.P):.4g} bar); mixing cannot raise pressure",
-            claimed=outlet.P, bound=lowest.P, margin=outlet.P - lowest.P, quantity="pressure",
-        ))
+        ctx.add(
+            Finding(
+                WARNING,
+                "mixer-outlet-pressure",
+                step.id,
+                f"the outlet pressure ({to_bar(outlet.P):.4g} bar) is above the lowest inlet pressure "
+                f"({lowest.id}, {to_bar(lowest.P):.4g} bar); mixing cannot raise pressure",
+                claimed=outlet.P,
+                bound=lowest.P,
+                margin=outlet.P - lowest.P,
+                quantity="pressure",
+            )
+        )
     return result
 
 

@@ -48,11 +48,15 @@ def evaluate(step: Pump, ctx: StepContext) -> StepResult:
     inlet = ctx.stream(step.inlet)
     saturated_liquid = inlet.phase == "two-phase" and (inlet.quality or 0.0) <= 1e-9
     if inlet.phase not in ("liquid", "supercritical liquid") and not saturated_liquid:
-        ctx.add(Finding(
-            ERROR, "pump-inlet-not-liquid", step.id,
-            f"the pump inlet {inlet.id} is {inlet.phase}; a pump needs liquid at its inlet",
-            stream=inlet.id,
-        ))
+        ctx.add(
+            Finding(
+                ERROR,
+                "pump-inlet-not-liquid",
+                step.id,
+                f"the pump inlet {inlet.id} is {inlet.phase}; a pump needs liquid at its inlet",
+                stream=inlet.id,
+            )
+        )
         return result
     T_sat = ctx.engine.saturation_temperature(inlet.fluid, inlet.P)
     if T_sat is not None:
@@ -60,14 +64,22 @@ def evaluate(step: Pump, ctx: StepContext) -> StepResult:
         result.extra["inlet_subcooling"] = subcooling
         minimum = ctx.tolerances.pump_subcooling_min
         if subcooling < minimum:
-            ctx.add(Finding(
-                WARNING, "pump-near-saturation", step.id,
-                f"the pump inlet {inlet.id} is only {subcooling:.2f} K below its saturation "
-                f"temperature ({to_celsius(T_sat):.2f} °C): cavitation risk (minimum "
-                f"{minimum:g} K, common practice)",
-                claimed=subcooling, bound=minimum, margin=minimum - subcooling,
-                quantity="temperature_difference", tolerance=minimum, stream=inlet.id,
-            ))
+            ctx.add(
+                Finding(
+                    WARNING,
+                    "pump-near-saturation",
+                    step.id,
+                    f"the pump inlet {inlet.id} is only {subcooling:.2f} K below its saturation "
+                    f"temperature ({to_celsius(T_sat):.2f} °C): cavitation risk (minimum "
+                    f"{minimum:g} K, common practice)",
+                    claimed=subcooling,
+                    bound=minimum,
+                    margin=minimum - subcooling,
+                    quantity="temperature_difference",
+                    tolerance=minimum,
+                    stream=inlet.id,
+                )
+            )
     return result
 
 

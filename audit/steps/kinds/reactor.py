@@ -46,15 +46,17 @@ class Reactor(StepBase):
     inlets: list[str] = Field(min_length=1)
     outlets: list[str] = Field(min_length=1)
     reactions: list[ReactionClaim] = Field(
-        min_length=1, description="equations, or {equation, extent}; extents omitted are "
-        "fitted to the streams")
+        min_length=1,
+        description="equations, or {equation, extent}; extents omitted are fitted to the streams",
+    )
     temperature: TemperatureClaim = Field(
-        None, description="temperature at which ΔH_rxn, ΔS_rxn, ΔG_rxn are reported")
+        None, description="temperature at which ΔH_rxn, ΔS_rxn, ΔG_rxn are reported"
+    )
     pressure: PressureClaim = Field(
-        None, description="pressure at which ΔH_rxn, ΔS_rxn, ΔG_rxn are reported")
+        None, description="pressure at which ΔH_rxn, ΔS_rxn, ΔG_rxn are reported"
+    )
     heat: list[HeatClaim] | None = None
-    heat_temperature: TemperatureClaim = Field(
-        None, description="boundary temperature of inferred heat")
+    heat_temperature: TemperatureClaim = Field(None, description="boundary temperature of inferred heat")
     work_delivered: Annotated[Power | None, ClaimField("power", "work_absorbed")] = Field(None, ge=0)
     work_absorbed: Annotated[Power | None, ClaimField("power", "work_delivered")] = Field(None, ge=0)
 
@@ -89,8 +91,7 @@ def evaluate(step: Reactor, ctx: StepContext) -> StepResult:
     elements = element_findings(step.id, ctx, inlets, outlets)
     reactions = [claim.reaction for claim in step.reactions]
     claimed_extents = [claim.extent for claim in step.reactions]
-    extents, species = extents_and_findings(step.id, ctx, reactions, claimed_extents, inlets,
-                                            outlets)
+    extents, species = extents_and_findings(step.id, ctx, reactions, claimed_extents, inlets, outlets)
     T, P = step_conditions(step.temperature, step.pressure, outlets)
     notes = []
     try:
@@ -103,29 +104,47 @@ def evaluate(step: Reactor, ctx: StepContext) -> StepResult:
         notes.append(f"Reaction properties reported at 25 °C and 1 bar: {exc.problem.message}")
         T, P = T_STANDARD, P_STANDARD
         props = properties_at(ctx, reactions, T, P)
-    W = step.work_delivered if step.work_delivered is not None else (
-        -step.work_absorbed if step.work_absorbed is not None else None)
-    heat, W, claimed, inferred = heat_and_work(ctx, inlets, outlets, step.heat,
-                                               step.heat_temperature, W)
+    W = (
+        step.work_delivered
+        if step.work_delivered is not None
+        else (-step.work_absorbed if step.work_absorbed is not None else None)
+    )
+    heat, W, claimed, inferred = heat_and_work(ctx, inlets, outlets, step.heat, step.heat_temperature, W)
     claimed += [f"extent of '{c.equation}'" for c in step.reactions if c.extent is not None]
     inferred += [f"extent of '{c.equation}'" for c in step.reactions if c.extent is None]
     reaction_heat = -sum(x * p.dH for x, p in zip(extents, props, strict=True))
     result = finish_reacting_step(
-        step, "reactor", ctx, inlets, outlets, heat, W, claimed, inferred, elements,
+        step,
+        "reactor",
+        ctx,
+        inlets,
+        outlets,
+        heat,
+        W,
+        claimed,
+        inferred,
+        elements,
         energy_scale_floor=sum(abs(x * p.dH) for x, p in zip(extents, props, strict=True)),
-        notes=notes)
+        notes=notes,
+    )
     if not elements[0]:
         for finding in species:
             ctx.add(finding)
-    result.extra.update({
-        "reactions": reaction_rows(reactions, extents, claimed_extents, props),
-        "reaction_T": T, "reaction_P": P, "heat_of_reaction": reaction_heat,
-    })
+    result.extra.update(
+        {
+            "reactions": reaction_rows(reactions, extents, claimed_extents, props),
+            "reaction_T": T,
+            "reaction_P": P,
+            "heat_of_reaction": reaction_heat,
+        }
+    )
     if len(reactions) == 1:
-        result.extra.update({"extent": extents[0], "dH_rxn": props[0].dH,
-                             "dS_rxn": props[0].dS, "dG_rxn": props[0].dG})
+        result.extra.update(
+            {"extent": extents[0], "dH_rxn": props[0].dH, "dS_rxn": props[0].dS, "dG_rxn": props[0].dG}
+        )
     return result
 
 
-register("reactor", Reactor, evaluate,
-         "reactor or combustor: reactions by stoichiometry, element balance")
+register(
+    "reactor", Reactor, evaluate, "reactor or combustor: reactions by stoichiometry, element balance"
+)

@@ -36,8 +36,9 @@ def evaluate(step: Splitter, ctx: StepContext) -> StepResult:
     """
     inlet = ctx.stream(step.inlet)
     outlets = [ctx.stream(o) for o in step.outlets]
-    result, _ = finish_flow_step(step, "splitter", ctx, [inlet], outlets, [], 0.0,
-                                 ["adiabatic", "no work"], [])
+    result, _ = finish_flow_step(
+        step, "splitter", ctx, [inlet], outlets, [], 0.0, ["adiabatic", "no work"], []
+    )
     tol = ctx.tolerances
     for out in outlets:
         differences = []
@@ -51,13 +52,21 @@ def evaluate(step: Splitter, ctx: StepContext) -> StepResult:
             shown = "none" if out.quality is None else f"{out.quality:.3f}"
             differences.append(f"quality {shown} instead of {inlet.quality:.3f}")
         if differences:
-            ctx.add(Finding(
-                ERROR, "splitter-state-differs", step.id,
-                f"outlet {out.id} differs from the inlet {inlet.id}: " + "; ".join(differences)
-                + " (a splitter only divides the flow)",
-                stream=out.id, claimed=out.T, bound=inlet.T, margin=abs(out.T - inlet.T),
-                quantity="temperature",
-            ))
+            ctx.add(
+                Finding(
+                    ERROR,
+                    "splitter-state-differs",
+                    step.id,
+                    f"outlet {out.id} differs from the inlet {inlet.id}: "
+                    + "; ".join(differences)
+                    + " (a splitter only divides the flow)",
+                    stream=out.id,
+                    claimed=out.T,
+                    bound=inlet.T,
+                    margin=abs(out.T - inlet.T),
+                    quantity="temperature",
+                )
+            )
     return result
 
 

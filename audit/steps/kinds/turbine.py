@@ -55,43 +55,56 @@ def evaluate(step: Turbine, ctx: StepContext) -> StepResult:
     delivered is W > 0; a claimed heat loss is Q < 0.
     """
     inlet, outlet = ctx.stream(step.inlet), ctx.stream(step.outlet)
-    heat = heat_loss_flow(step.heat_loss, step.heat_loss_temperature, ctx.T0,
-                          min(inlet.T, outlet.T))
+    heat = heat_loss_flow(step.heat_loss, step.heat_loss_temperature, ctx.T0, min(inlet.T, outlet.T))
     claimed, inferred = [], []
     if step.shaft_power is not None:
         W = step.shaft_power
         claimed.append("shaft_power")
     else:
         Q = sum(q.Q for q in heat)
-        W = Q - (outlet.mass_flow * (outlet.h + outlet.kinetic_potential)
-                 - inlet.mass_flow * (inlet.h + inlet.kinetic_potential))
+        W = Q - (
+            outlet.mass_flow * (outlet.h + outlet.kinetic_potential)
+            - inlet.mass_flow * (inlet.h + inlet.kinetic_potential)
+        )
         inferred.append("shaft_power")
     claimed.append("heat_loss" if step.heat_loss is not None else "adiabatic")
-    result, _ = finish_flow_step(step, "turbine", ctx, [inlet], [outlet], heat, W, claimed,
-                                 inferred)
+    result, _ = finish_flow_step(step, "turbine", ctx, [inlet], [outlet], heat, W, claimed, inferred)
     tol = ctx.tolerances
 
     if outlet.P >= inlet.P:
-        ctx.add(Finding(
-            ERROR, "pressure-wrong-way", step.id,
-            f"the outlet pressure ({to_bar(outlet.P):.4g} bar) is not below the inlet pressure "
-            f"({to_bar(inlet.P):.4g} bar); a turbine expands its fluid (inlet and outlet swapped?)",
-            claimed=outlet.P, bound=inlet.P, margin=outlet.P - inlet.P, quantity="pressure",
-        ))
+        ctx.add(
+            Finding(
+                ERROR,
+                "pressure-wrong-way",
+                step.id,
+                f"the outlet pressure ({to_bar(outlet.P):.4g} bar) is not below the inlet pressure "
+                f"({to_bar(inlet.P):.4g} bar); a turbine expands its fluid (inlet and outlet swapped?)",
+                claimed=outlet.P,
+                bound=inlet.P,
+                margin=outlet.P - inlet.P,
+                quantity="pressure",
+            )
+        )
     h_s = isentropic_outlet_enthalpy(step.id, inlet, outlet, ctx)
     if h_s is not None and inlet.h - h_s > 0:
         eta = isentropic_efficiency_expansion(inlet.h, outlet.h, h_s)
         efficiency_findings(step, result, ctx, eta, h_s, "turbine")
     if outlet.quality is not None and 1.0 - outlet.quality > tol.exhaust_moisture_max:
         moisture = 1.0 - outlet.quality
-        ctx.add(Finding(
-            WARNING, "wet-exhaust", step.id,
-            f"the exhaust carries {moisture:.1%} moisture, above the {tol.exhaust_moisture_max:.0%}"
-            " limit (blade erosion; common practice)",
-            claimed=moisture, bound=tol.exhaust_moisture_max,
-            margin=moisture - tol.exhaust_moisture_max, quantity="fraction",
-            stream=outlet.id,
-        ))
+        ctx.add(
+            Finding(
+                WARNING,
+                "wet-exhaust",
+                step.id,
+                f"the exhaust carries {moisture:.1%} moisture, above the {tol.exhaust_moisture_max:.0%}"
+                " limit (blade erosion; common practice)",
+                claimed=moisture,
+                bound=tol.exhaust_moisture_max,
+                margin=moisture - tol.exhaust_moisture_max,
+                quantity="fraction",
+                stream=outlet.id,
+            )
+        )
     return result
 
 

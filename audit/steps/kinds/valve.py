@@ -33,16 +33,31 @@ def evaluate(step: Valve, ctx: StepContext) -> StepResult:
     """
     inlet, outlet = ctx.stream(step.inlet), ctx.stream(step.outlet)
     result, _ = finish_flow_step(
-        step, "valve", ctx, [inlet], [outlet], [], 0.0, ["adiabatic", "no work"], [],
+        step,
+        "valve",
+        ctx,
+        [inlet],
+        [outlet],
+        [],
+        0.0,
+        ["adiabatic", "no work"],
+        [],
         energy_finding="valve-not-isenthalpic",
     )
     if outlet.P >= inlet.P:
-        ctx.add(Finding(
-            ERROR, "pressure-wrong-way", step.id,
-            f"the outlet pressure ({to_bar(outlet.P):.4g} bar) is not below the inlet pressure "
-            f"({to_bar(inlet.P):.4g} bar); a throttle valve only lowers pressure",
-            claimed=outlet.P, bound=inlet.P, margin=outlet.P - inlet.P, quantity="pressure",
-        ))
+        ctx.add(
+            Finding(
+                ERROR,
+                "pressure-wrong-way",
+                step.id,
+                f"the outlet pressure ({to_bar(outlet.P):.4g} bar) is not below the inlet pressure "
+                f"({to_bar(inlet.P):.4g} bar); a throttle valve only lowers pressure",
+                claimed=outlet.P,
+                bound=inlet.P,
+                margin=outlet.P - inlet.P,
+                quantity="pressure",
+            )
+        )
     return result
 
 

@@ -79,9 +79,23 @@ def _contents(step: Vessel, ctx: StepContext, which: str, spec: PropertyPair) ->
     except StateError as exc:
         raise StateError(f"the {which} state: {exc.problem.message}") from None
     return StreamResult(
-        id=f"{step.id}.{which}", fluid=s.fluid, T=s.T, P=s.P, rho=s.rho, h=s.h, s=s.s, u=s.u,
-        g=s.g, a=s.a, psi=s.psi, phase=s.phase, quality=s.quality, basis=s.basis,
-        mass_flow=step.mass, molar_flow=step.mass / s.molar_mass, flow_as_written="",
+        id=f"{step.id}.{which}",
+        fluid=s.fluid,
+        T=s.T,
+        P=s.P,
+        rho=s.rho,
+        h=s.h,
+        s=s.s,
+        u=s.u,
+        g=s.g,
+        a=s.a,
+        psi=s.psi,
+        phase=s.phase,
+        quality=s.quality,
+        basis=s.basis,
+        mass_flow=step.mass,
+        molar_flow=step.mass / s.molar_mass,
+        flow_as_written="",
     )
 
 
@@ -124,16 +138,26 @@ def evaluate(step: Vessel, ctx: StepContext) -> StepResult:
     balance = closed_balance(m, initial, final, heat, W, ctx.T0)
     tol = ctx.tolerances
     conservative = any(q.conservative for q in heat)
-    for finding in law_findings(step.id, balance, tol, ctx.T0, batch=True, inlet_mass=m,
-                                conservative_note=CONSERVATIVE_NOTE if conservative else ""):
+    for finding in law_findings(
+        step.id,
+        balance,
+        tol,
+        ctx.T0,
+        batch=True,
+        inlet_mass=m,
+        conservative_note=CONSERVATIVE_NOTE if conservative else "",
+    ):
         ctx.add(finding)
     temps = [initial.T, final.T] + [
-        q.temperature for q in heat if q.claimed and math.isfinite(q.temperature)]
+        q.temperature for q in heat if q.claimed and math.isfinite(q.temperature)
+    ]
     isothermal = max(temps) - min(temps) <= tol.isothermal_band
     isobaric = abs(final.P - initial.P) <= tol.isobaric_relative * initial.P
     if isothermal and isobaric:
-        basis, classical = ("-ΔG other work (isothermal, isobaric closed)",
-                            isothermal_flow_work_bound(balance.dG))
+        basis, classical = (
+            "-ΔG other work (isothermal, isobaric closed)",
+            isothermal_flow_work_bound(balance.dG),
+        )
     elif isothermal:
         basis, classical = "-ΔA (isothermal closed)", isothermal_closed_work_bound(balance.dA)
     else:
@@ -141,13 +165,23 @@ def evaluate(step: Vessel, ctx: StepContext) -> StepResult:
     V1, V2 = m / initial.rho, m / final.rho
     second = second_law_efficiency(W, balance.W_rev)
     return StepResult(
-        id=step.id, kind="vessel", batch=True, inlets=[], outlets=[], balance=balance,
-        heat_flows=heat, energy_tolerance=energy_tolerance(balance, tol, batch=True), bound_basis=basis,
-        classical_bound=classical, second_law_efficiency=second, claimed=claimed,
-        inferred=inferred, notes=[CONSERVATIVE_NOTE] if conservative else [],
-        extra={"V_initial": V1, "V_final": V2,
-               "useful_work_bound": balance.W_rev - ctx.P0 * (V2 - V1)},
-        description=step.description, line=ctx.line,
+        id=step.id,
+        kind="vessel",
+        batch=True,
+        inlets=[],
+        outlets=[],
+        balance=balance,
+        heat_flows=heat,
+        energy_tolerance=energy_tolerance(balance, tol, batch=True),
+        bound_basis=basis,
+        classical_bound=classical,
+        second_law_efficiency=second,
+        claimed=claimed,
+        inferred=inferred,
+        notes=[CONSERVATIVE_NOTE] if conservative else [],
+        extra={"V_initial": V1, "V_final": V2, "useful_work_bound": balance.W_rev - ctx.P0 * (V2 - V1)},
+        description=step.description,
+        line=ctx.line,
     )
 
 
