@@ -15,10 +15,8 @@ Order of work:
 
 from __future__ import annotations
 
-import difflib
 import platform
 import time
-from collections import defaultdict
 from dataclasses import dataclass, field
 from datetime import datetime, timezone
 from typing import Any, cast
@@ -29,8 +27,9 @@ from audit.input.document import Document
 from audit.model.balance import Balance
 from audit.model.streams import StreamSpec
 from audit.model.tolerances import merged
+from audit.plant import check_topology, plant_totals
 from audit.properties.engine import BACKEND, COOLPROP_VERSION, GAS_CONSTANT, PropertyEngine, State
-from audit.results import AuditResult, PlantTotals, StepResult, StreamResult
+from audit.results import AuditResult, StepResult, StreamResult
 from audit.steps import REGISTRY, StepContext
 from audit.units import Flow
 from audit.version import __version__
@@ -69,7 +68,7 @@ def solve(balance: Balance, document: Document) -> Solution:
     engine = PropertyEngine(info.dead_state.T, info.dead_state.P, info.tolerances.saturation_band)
     findings: list[Finding] = []
     streams, problems = _evaluate_streams(balance, document, engine, findings)
-    problems += _check_topology(balance, document, findings, streams)
+    problems += check_topology(balance, document, findings, streams)
     if problems:
         raise InputErrors(problems)
 
@@ -135,7 +134,7 @@ def to_result(
         streams=list(streams.values()),
         steps=solution.results,
         findings=findings,
-        plant=_plant_totals(balance, streams, solution.results),
+        plant=plant_totals(balance, streams, solution.results),
         provenance={
             "plant-audit": __version__,
             "CoolProp": COOLPROP_VERSION,
@@ -276,129 +275,3 @@ def _mass_flow(flow: Flow, fluid: str, rho: float, molar_mass: float, engine: Pr
             f"{reference.phase} there; give a mass or molar flow"
         )
     return flow.value * reference.rho
-
-
-# -- topology ----------------------------------------------------------------------------------------
-def _check_topology(
-    balance: Balance, document: Document, findings: list[Finding], streams: dict[str, StreamResult]
-) -> list[Problem]:
-    problems: list[Problem] = []
-    producers: dict[str, list[str]] = defaultdict(list)
-    consumers: dict[str, list[str]] = defaultdict(list)
-    seen_ids: dict[str, int] = {}
-    raw_steps = document.data.get("steps") or []
-    for index, step in enumerate(balance.steps):
-        line, _ = document.position(("steps", index))
-        if step.id in seen_ids:
-            problems.append(
-                Problem(
-                    f"the step id '{step.id}' is used twice (also on line {seen_ids[step.id]})",
-                    file=document.file,
-                    line=line,
-                    where=f"step {step.id}",
-                )
-            )
-        seen_ids.setdefault(step.id, line or 0)
-        inlets, outlets = step.stream_ids()
-        for role, ids, table in (("inlet", inlets, consumers), ("outlet", outlets, producers)):
-            for stream_id in ids:
-                if stream_id not in balance.streams:
-                    path = _find_reference(raw_steps[index], stream_id, ("steps", index))
-                    ref_line, ref_col = document.position(path)
-                    close = difflib.get_close_matches(stream_id, list(balance.streams), n=1)
-                    problems.append(
-                        Problem(
-                            f"{role} '{stream_id}' is not a stream of this balance"
-                            + (f"; did you mean '{close[0]}'?" if close else ""),
-                            file=document.file,
-                            line=ref_line,
-                            column=ref_col,
-                            where=f"step {step.id}",
-                        )
-                    )
-                    continue
-                if step.id in table[stream_id]:
-                    problems.append(
-                        Problem(
-                            f"stream '{stream_id}' is named twice as an {role} of the same step",
-                            file=document.file,
-                            line=line,
-                            where=f"step {step.id}",
-                        )
-                    )
-                table[stream_id].append(step.id)
-    for stream_id, steps in producers.items():
-        if len(steps) > 1:
-            problems.append(
-                Problem(
-                    f"is produced by more than one step ({', '.join(steps)}); a stream leaves one "
-                    "step only",
-                    **document.place(("streams", stream_id)),
-                    where=f"stream {stream_id}",
-                )
-            )
-    for stream_id, steps in consumers.items():
-        if len(steps) > 1:
-            problems.append(
-                Problem(
-                    f"is consumed by more than one step ({', '.join(steps)}); a stream enters one "
-                    "step only (add a splitter)",
-                    **document.place(("streams", stream_id)),
-                    where=f"stream {stream_id}",
-                )
-            )
-    if balance.steps:
-        for stream_id in balance.streams:
-            if stream_id not in producers and stream_id not in consumers:
-                findings.append(
-                    Finding(
-                        WARNING,
-                        "stream-unused",
-                        None,
-                        f"stream {stream_id} is neither produced nor consumed by any step",
-                        stream=stream_id,
-                    )
-                )
-    return problems
-
-
-def _find_reference(raw: Any, value: str, path: tuple) -> tuple:
-    """The path of the first string equal to ``value`` inside ``raw`` (for error positions)."""
-    if isinstance(raw, str):
-        return path if raw == value else ()
-    items = raw.items() if isinstance(raw, dict) else enumerate(raw) if isinstance(raw, list) else []
-    for key, item in items:
-        if key in ("id", "description"):
-            continue
-        found = _find_reference(item, value, (*path, key))
-        if found:
-            return found
-    return () if len(path) > 2 else path
-
-
-# -- plant totals --------------------------------------------------------------------------------
-def _plant_totals(
-    balance: Balance, streams: dict[str, StreamResult], steps: list[StepResult]
-) -> PlantTotals:
-    flow_steps = [s for s in steps if not s.batch]
-    produced = {o for s in flow_steps for o in s.outlets}
-    consumed = {i for s in flow_steps for i in s.inlets}
-    boundary_in = sorted(consumed - produced)
-    boundary_out = sorted(produced - consumed)
-
-    def energy(ids: list[str]) -> float:
-        return sum(streams[i].mass_flow * (streams[i].h + streams[i].kinetic_potential) for i in ids)
-
-    Q_net = sum(s.Q for s in flow_steps)
-    W_net = sum(s.W for s in flow_steps)
-    return PlantTotals(
-        heat_in=sum(q.Q for s in flow_steps for q in s.heat_flows if q.Q > 0),
-        heat_out=-sum(q.Q for s in flow_steps for q in s.heat_flows if q.Q < 0),
-        work_out=sum(s.W for s in flow_steps if s.W > 0),
-        work_in=-sum(s.W for s in flow_steps if s.W < 0),
-        exergy_destroyed=sum(s.exergy_destroyed for s in flow_steps),
-        boundary_inlets=boundary_in,
-        boundary_outlets=boundary_out,
-        boundary_energy_residual=Q_net - W_net - (energy(boundary_out) - energy(boundary_in)),
-        sum_of_step_residuals=sum(s.energy_residual for s in flow_steps),
-    )

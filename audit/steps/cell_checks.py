@@ -1,0 +1,209 @@
+"""The electrochemical checks of a cell step: its voltage against the reversible and thermoneutral
+voltages over the step's range of temperature and pressure, its current against Faraday's law.
+"""
+
+from __future__ import annotations
+
+import itertools
+from collections.abc import Sequence
+from typing import Any
+
+from audit.findings import ERROR, Finding, relative
+from audit.physics.electrochemistry import (
+    faraday_current,
+)
+from audit.results import StepResult, StreamResult
+from audit.steps.base import StepContext
+from audit.steps.laws import format_power
+from audit.steps.reacting import (
+    properties_at,
+)
+from audit.steps.reactions import Reaction, ReactionProperties
+
+CellStep = Any
+"""A cell step (:class:`audit.steps.cells.CellStep`; not imported here, to keep the import order)."""
+
+
+def reaction_corners(
+    ctx: StepContext, reaction: Reaction, step: CellStep, streams: Sequence[StreamResult]
+) -> list[ReactionProperties]:
+    temperatures = (
+        [step.temperature]
+        if step.temperature is not None
+        else sorted({min(s.T for s in streams), max(s.T for s in streams)})
+    )
+    pressures = (
+        [step.pressure]
+        if step.pressure is not None
+        else sorted({min(s.P for s in streams), max(s.P for s in streams)})
+    )
+    return [
+        properties_at(ctx, [reaction], T, P)[0] for T, P in itertools.product(temperatures, pressures)
+    ]
+
+
+def cell_findings(
+    step: CellStep,
+    ctx: StepContext,
+    result: StepResult,
+    driven: bool,
+    n: int,
+    xi: float,
+    E_rev: float,
+    E_tn: float,
+    efficiency: float | None,
+    stack: float | None,
+    heat: list,
+) -> list[Finding]:
+    tol = ctx.tolerances
+    found = []
+    V = step.cell_voltage
+    tol_V = tol.energy_relative * E_rev
+    where = (
+        "at the cell's declared conditions"
+        if step.temperature is not None and step.pressure is not None
+        else "the most lenient over the streams' temperatures and pressures"
+    )
+    if V is not None and driven and V < E_rev - tol_V:
+        found.append(
+            Finding(
+                ERROR,
+                "voltage-beyond-reversible",
+                step.id,
+                f"the cell voltage {V:.4g} V is below the reversible voltage {E_rev:.4g} V "
+                f"(ΔG_rxn / nF, {where}) by {E_rev - V:.3g} V: an electrolyser cannot split at "
+                f"less (tolerance {tol_V:.2g} V)",
+                claimed=V,
+                bound=E_rev,
+                margin=E_rev - V,
+                margin_relative=relative(E_rev - V, E_rev),
+                quantity="voltage",
+                tolerance=tol_V,
+            )
+        )
+    if V is not None and not driven and V > E_rev + tol_V:
+        found.append(
+            Finding(
+                ERROR,
+                "voltage-beyond-reversible",
+                step.id,
+                f"the cell voltage {V:.4g} V is above the reversible voltage {E_rev:.4g} V "
+                f"(−ΔG_rxn / nF, {where}) by {V - E_rev:.3g} V: a fuel cell cannot deliver more "
+                f"(tolerance {tol_V:.2g} V)",
+                claimed=V,
+                bound=E_rev,
+                margin=V - E_rev,
+                margin_relative=relative(V - E_rev, E_rev),
+                quantity="voltage",
+                tolerance=tol_V,
+            )
+        )
+    if (
+        V is not None
+        and driven
+        and step.heat is not None
+        and xi > 0.0
+        and V < E_tn - tol.energy_relative * E_tn
+    ):
+        needed = faraday_current(n, xi) * (E_tn - V)
+        shown = sum(q.Q for q in heat if q.claimed)
+        if shown < needed - result.energy_tolerance:
+            found.append(
+                Finding(
+                    ERROR,
+                    "heat-needed-below-thermoneutral",
+                    step.id,
+                    f"the cells run at {V:.4g} V, below the thermoneutral voltage {E_tn:.4g} V "
+                    f"(ΔH_rxn / nF), so they must take in at least {format_power(needed)} of heat "
+                    f"(n F ξ̇ (E_tn − V)), but the balance shows {format_power(shown)} of heat in",
+                    claimed=shown,
+                    bound=needed,
+                    margin=needed - shown,
+                    margin_relative=relative(needed - shown, needed),
+                    quantity="power",
+                    tolerance=result.energy_tolerance,
+                )
+            )
+    if step.current is not None:
+        charge = step.current * step.cells
+        if xi <= 0.0:
+            found.append(
+                Finding(
+                    ERROR,
+                    "faraday-mismatch",
+                    step.id,
+                    f"a current of {step.current:.4g} A through {step.cells} cells is claimed, but "
+                    f"the streams show the cell reaction at {xi:.4g} mol/s: no "
+                    f"{'production' if driven else 'consumption'} for the charge to account for",
+                    claimed=charge,
+                    bound=0.0,
+                    quantity="fraction",
+                )
+            )
+        elif efficiency is not None:
+            made = faraday_current(n, xi)
+            if efficiency > 1.0 + tol.energy_relative:
+                words = (
+                    f"the streams show {xi:.4g} mol/s of reaction, which needs "
+                    f"{made:.5g} A of charge (n F ξ̇), more than the {charge:.5g} A "
+                    f"passed (I × cells)"
+                    if driven
+                    else f"the current {charge:.5g} A (I × cells) is more than the {made:.5g} A "
+                    f"its fuel consumption of {xi:.4g} mol/s of reaction can carry (n F ξ̇)"
+                )
+                found.append(
+                    Finding(
+                        ERROR,
+                        "faraday-mismatch",
+                        step.id,
+                        f"{words}: a faradaic efficiency of {efficiency:.4f}, above 1",
+                        claimed=efficiency,
+                        bound=1.0,
+                        margin=efficiency - 1.0,
+                        margin_relative=efficiency - 1.0,
+                        quantity="fraction",
+                        tolerance=tol.energy_relative,
+                    )
+                )
+            elif (
+                step.faradaic_efficiency is not None
+                and abs(efficiency - step.faradaic_efficiency) > tol.energy_relative
+            ):
+                gap = efficiency - step.faradaic_efficiency
+                found.append(
+                    Finding(
+                        ERROR,
+                        "faraday-mismatch",
+                        step.id,
+                        f"the claimed faradaic efficiency {step.faradaic_efficiency:.4g} differs from "
+                        f"the {efficiency:.4f} that the current ({charge:.5g} A through the cells) "
+                        f"and the streams' {xi:.4g} mol/s of reaction give",
+                        claimed=step.faradaic_efficiency,
+                        bound=efficiency,
+                        margin=abs(gap),
+                        margin_relative=relative(abs(gap), efficiency),
+                        quantity="fraction",
+                        tolerance=tol.energy_relative,
+                    )
+                )
+    if step.power is not None and stack is not None:
+        gap = step.power - stack
+        if abs(gap) > result.energy_tolerance:
+            found.append(
+                Finding(
+                    ERROR,
+                    "power-mismatch",
+                    step.id,
+                    f"the claimed power {format_power(step.power)} differs from voltage × current × "
+                    f"cells = {V:.4g} V × {step.current:.5g} A × {step.cells} = "
+                    f"{format_power(stack)}, by {format_power(abs(gap))} (tolerance "
+                    f"{format_power(result.energy_tolerance)})",
+                    claimed=step.power,
+                    bound=stack,
+                    margin=abs(gap),
+                    margin_relative=relative(abs(gap), stack),
+                    quantity="power",
+                    tolerance=result.energy_tolerance,
+                )
+            )
+    return found
