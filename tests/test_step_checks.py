@@ -8,6 +8,7 @@ import pytest
 from conftest import SAMPLE, audit_text, names
 
 import audit
+from audit.errors import InputError
 
 CLEAN = (SAMPLE / "quillon-bay-clean.yaml").read_text(encoding="utf-8")
 
@@ -215,5 +216,5 @@ steps:
   - {id: T9, kind: turbine, inlet: OUT, outlet: IN}
   - {id: C9, kind: compressor, inlet: OUT, outlet: IN, tolerances: {energy_relative: 1}}
 """
-    with pytest.raises(Exception, match="consumed by more than one step"):
+    with pytest.raises(InputError, match="consumed by more than one step"):
         audit_text(tmp_path, body, HEADER)
