@@ -12,10 +12,11 @@ from __future__ import annotations
 
 import gc
 import hashlib
-from collections.abc import Iterator
+from collections.abc import Iterator, Mapping
 from contextlib import contextmanager
 from datetime import date
 from pathlib import Path
+from typing import Any
 
 from audit.input.document import Document, parse_document, read_text
 from audit.model.balance import Balance
@@ -27,7 +28,11 @@ from audit.solve import solve, to_result
 
 
 def run(
-    path: str | Path, today: date | None = None, allow_outside: bool = False, monte_carlo: int = 0
+    path: str | Path,
+    today: date | None = None,
+    allow_outside: bool = False,
+    monte_carlo: int = 0,
+    tolerances: Mapping[str, Any] | None = None,
 ) -> AuditResult:
     """Audit the balance file at ``path``, then apply the reviewers' acceptances written in it or
     beside it (:mod:`audit.review.acceptance`; ``today`` decides which have expired, default: today).
@@ -35,7 +40,8 @@ def run(
     Streams and claims the balance takes from tables (:mod:`audit.input.tables`) are read first; a table
     outside the balance file's folder tree is refused unless ``allow_outside`` is true.
     ``monte_carlo`` > 0 cross-checks the measurement uncertainties with that many Monte Carlo
-    draws per step (:mod:`audit.review.uncertainty`).
+    draws per step (:mod:`audit.review.uncertainty`). ``tolerances``: default tolerances (the
+    project configuration's, :mod:`audit.config`) for those the balance does not set itself.
 
     Raises :class:`audit.errors.InputError` when the file cannot be read, parsed, validated or
     evaluated; every message names the file and line.
@@ -45,6 +51,8 @@ def run(
         text = read_text(path)
         sha256 = hashlib.sha256(path.read_bytes()).hexdigest()
         document = parse_document(text, str(path))
+        if tolerances:
+            _default_tolerances(document.data, tolerances)
         document, tables = resolve_tables(document, allow_outside=allow_outside)
         balance = validate_document(document)
         result = audit_balance(balance, document, sha256=sha256, monte_carlo=monte_carlo)
@@ -88,3 +96,16 @@ def _acceptances(balance: Balance, document: Document, path: Path) -> list[Accep
         line, _ = document.position(("accepted", index))
         inside.append(acceptance.placed(f"{document.file}:{line}"))
     return inside + load_beside(path)
+
+
+def _default_tolerances(data: Any, defaults: Mapping[str, Any]) -> None:
+    """Fill the tolerances the balance does not set (``balance: tolerances:``) from ``defaults``."""
+    info = data.get("balance") if isinstance(data, dict) else None
+    if not isinstance(info, dict):
+        return
+    own = info.get("tolerances")
+    if own is None:
+        own = info["tolerances"] = {}
+    if isinstance(own, dict):
+        for name, value in defaults.items():
+            own.setdefault(name, value)

@@ -24,9 +24,10 @@ from collections.abc import Callable, Iterable
 from dataclasses import dataclass
 from pathlib import Path
 
+from audit.discovery import DEFAULT_INCLUDE, NOT_A_BALANCE, looks_like_balance, walk
 from audit.errors import InputError, ReportError
 from audit.executors import Executor, LocalProcesses, TaskFailed
-from audit.outcomes import AUDITED, INTERNAL, INVALID, UNWRITTEN, FileOutcome
+from audit.outcomes import AUDITED, INTERNAL, INVALID, SKIPPED, UNWRITTEN, FileOutcome
 from audit.review.acceptance import is_acceptance_file
 
 BALANCE_SUFFIXES = (".yaml", ".yml")
@@ -38,6 +39,15 @@ _UNSAFE = re.compile(r"[^A-Za-z0-9._-]+")
 
 
 @dataclass(frozen=True)
+class Skipped:
+    """A file in a searched folder that is not a balance (:mod:`audit.discovery`): listed, never
+    audited, never invalid."""
+
+    path: str
+    message: str = NOT_A_BALANCE
+
+
+@dataclass(frozen=True)
 class Missing:
     """A path argument that names nothing: reported as that argument's invalid input."""
 
@@ -45,29 +55,35 @@ class Missing:
     message: str
 
 
-def discover(arguments: Iterable[str | Path]) -> list[str | Missing]:
+def discover(
+    arguments: Iterable[str | Path],
+    include: Iterable[str] = DEFAULT_INCLUDE,
+    exclude: Iterable[str] = (),
+) -> list[str | Missing | Skipped]:
     """The balance files named by ``arguments`` (files, folders searched recursively, globs), in
-    sorted order without duplicates; an argument that names nothing becomes a :class:`Missing`."""
-    found: list[str | Missing] = []
+    sorted order without duplicates; an argument that names nothing becomes a :class:`Missing`, a
+    YAML file of a folder or glob that is not a balance a :class:`Skipped` (:mod:`audit.discovery`:
+    hidden files and folders, ``include`` and ``exclude`` globs)."""
+    found: list[str | Missing | Skipped] = []
     seen: set[str] = set()
 
-    def add(path: Path) -> None:
+    def add(path: Path, searched: bool = True) -> None:
         key = os.path.normpath(str(path))
         if key not in seen:
             seen.add(key)
-            found.append(key)
+            found.append(key if not searched or looks_like_balance(path) else Skipped(key))
 
     for argument in arguments:
         text = str(argument)
         path = Path(text)
         if path.is_dir():
-            files = sorted(p for p in path.rglob("*") if _is_balance(p))
+            files = sorted(p for p in walk(path, include, exclude) if _is_balance(p))
             if not files:
                 found.append(Missing(text, "the folder holds no balance file (*.yaml, *.yml)"))
             for file in files:
                 add(file)
         elif path.exists():
-            add(path)
+            add(path, searched=False)
         elif _GLOB_CHARS.search(text):
             matches = sorted(Path(m) for m in glob.glob(text, recursive=True))
             files = [m for m in matches if _is_balance(m)]
@@ -122,6 +138,7 @@ class Job:
     workbook: str | None = None
     fail_on: str = "error"
     allow_outside: bool = False
+    tolerances: dict | None = None  # the configuration's default tolerances
 
 
 def audit_job(job: Job) -> FileOutcome:
@@ -138,7 +155,9 @@ def audit_job(job: Job) -> FileOutcome:
     try:
         from audit.api import run as audit_file
 
-        outcome.result = audit_file(job.path, allow_outside=job.allow_outside)
+        outcome.result = audit_file(
+            job.path, allow_outside=job.allow_outside, tolerances=job.tolerances
+        )
     except InputError as exc:
         outcome.status = INVALID
         outcome.problems = [str(p) for p in exc.problems]
@@ -191,6 +210,9 @@ def run_batch(
     on_done: Callable[[FileOutcome, int, int], None] | None = None,
     on_start: Callable[[int], None] | None = None,
     allow_outside: bool = False,
+    include: Iterable[str] | None = None,
+    exclude: Iterable[str] = (),
+    tolerances: dict | None = None,
 ) -> list[FileOutcome]:
     """Audit every balance named by ``arguments``; one outcome per file, in discovery order.
 
@@ -198,9 +220,11 @@ def run_batch(
     ``executor``: where to run (default: local worker processes, one per core); ``task``: what
     runs per file (default :func:`audit_job`); ``on_start(total)`` and ``on_done(outcome, done,
     total)`` report progress (the command line draws its progress bar with them);
-    ``allow_outside`` lets balances read tables outside their own folder (see :func:`audit.run`).
+    ``allow_outside`` lets balances read tables outside their own folder (see :func:`audit.run`);
+    ``include``/``exclude`` choose the files of folders (:mod:`audit.discovery`); ``tolerances``
+    the default tolerances (the project configuration's).
     """
-    found = discover(arguments)
+    found = discover(arguments, include or DEFAULT_INCLUDE, exclude)
     files = [f for f in found if isinstance(f, str)]
     names = workbook_names(files) if output is not None else {}
     jobs = [
@@ -209,6 +233,7 @@ def run_batch(
             workbook=str(Path(output) / names[f]) if output is not None else None,
             fail_on=fail_on,
             allow_outside=allow_outside,
+            tolerances=tolerances,
         )
         for f in files
     ]
@@ -217,9 +242,10 @@ def run_batch(
     done = 0
     if on_start:
         on_start(total)
-    for missing in (f for f in found if isinstance(f, Missing)):
+    for missing in (f for f in found if not isinstance(f, str)):
+        status = SKIPPED if isinstance(missing, Skipped) else INVALID
         outcomes[missing.path] = FileOutcome(
-            missing.path, INVALID, problems=[f"{missing.path}: {missing.message}"]
+            missing.path, status, problems=[f"{missing.path}: {missing.message}"]
         )
         done += 1
         if on_done:

@@ -1,8 +1,9 @@
 """Run history in an SQLite database: every audit of a file, its content hash, revision, time and
 findings, so a report can say what is new since the last run of each file.
 
-Files are keyed by their absolute path. "New since the last run" compares with the file's last
-*audited* run (an invalid file or an internal error has no findings to compare with).
+Balances are keyed by their identity (:mod:`audit.identity`: a declared id or the path relative to
+the project root), so a fresh checkout continues the same history; the column is named ``file``.
+"New since the last run" compares with the file's last *audited* run (an invalid file or an internal error has no findings to compare with).
 
 Tables (``PRAGMA user_version`` = :data:`SCHEMA_VERSION`)::
 
@@ -26,7 +27,8 @@ from pathlib import Path
 
 from audit.errors import InputError
 from audit.findings import ERROR, INFO, WARNING
-from audit.outcomes import FileOutcome, FindingKey, finding_key
+from audit.identity import ID_PREFIX
+from audit.outcomes import SKIPPED, FileOutcome, FindingKey, finding_key
 from audit.version import __version__
 
 SCHEMA_VERSION = 1
@@ -89,8 +91,14 @@ class Run:
 
 
 def file_key(path: str | Path) -> str:
-    """How a file is named in the history: its absolute, normalised path."""
+    """How a file without a stable identity is named in the history: its absolute, normalised
+    path (:mod:`audit.identity` gives the stable one, stored as ``FileOutcome.identity``)."""
     return os.path.normpath(os.path.abspath(str(path)))
+
+
+def outcome_key(outcome: FileOutcome) -> str:
+    """The history key of an outcome: its identity, else its file's path."""
+    return outcome.identity or file_key(outcome.path)
 
 
 @contextmanager
@@ -134,8 +142,10 @@ def record(
     run_at = (now or datetime.now(timezone.utc)).astimezone(timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ")
     with _connect(database, create=True) as connection:
         for outcome in outcomes:
-            key = file_key(outcome.path)
-            previous = _last_run(connection, key)
+            if outcome.status == SKIPPED:
+                continue
+            key = outcome_key(outcome)
+            previous = _last_run(connection, key) or _last_run(connection, file_key(outcome.path))
             current = _keys(outcome)
             outcome.recorded = True
             if previous is not None and outcome.result is not None:
@@ -188,16 +198,33 @@ def record(
     return outcomes
 
 
-def runs(database: str | Path, path: str | Path, limit: int | None = None) -> list[Run]:
-    """The recorded runs of the file at ``path``, newest first."""
+def runs(
+    database: str | Path, path: str | Path, limit: int | None = None, key: str | None = None
+) -> list[Run]:
+    """The recorded runs of the balance at ``path``, newest first: those under its identity
+    ``key`` (:mod:`audit.identity`), under its absolute path (runs recorded outside a project or
+    before identities), and, without a declared id, under a relative path its absolute path ends
+    with (runs recorded by a batch relative to the folder it searched)."""
     with _connect(database, create=False) as connection:
-        query = "SELECT * FROM runs WHERE file = ? ORDER BY id DESC"
-        parameters: tuple = (file_key(path),)
+        keys = _keys_of(connection, file_key(path), key)
+        marks = ", ".join("?" * len(keys))
+        query = f"SELECT * FROM runs WHERE file IN ({marks}) ORDER BY id DESC"
+        parameters: tuple = tuple(keys)
         if limit is not None:
             query += " LIMIT ?"
             parameters += (limit,)
         rows = connection.execute(query, parameters).fetchall()
         return [_run(connection, row) for row in rows]
+
+
+def _keys_of(connection: sqlite3.Connection, full: str, key: str | None) -> list[str]:
+    keys = [full] + ([key] if key else [])
+    if key and key.startswith(ID_PREFIX):
+        return keys
+    posix = full.replace(os.sep, "/")
+    stored = connection.execute("SELECT DISTINCT file FROM runs").fetchall()
+    keys += [k for (k,) in stored if not k.startswith(("/", ID_PREFIX)) and posix.endswith("/" + k)]
+    return list(dict.fromkeys(keys))
 
 
 def _last_run(connection: sqlite3.Connection, key: str) -> Run | None:

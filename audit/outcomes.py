@@ -23,12 +23,14 @@ AUDITED = "audited"
 INVALID = "invalid"
 INTERNAL = "internal"
 UNWRITTEN = "unwritten"
+SKIPPED = "skipped"  # a YAML file of a searched folder that is not a balance (audit.discovery)
 
 PASS = "PASS"
 FAIL = "FAIL"
 VERDICT_INVALID = "INVALID"
 VERDICT_INTERNAL = "INTERNAL ERROR"
 VERDICT_UNWRITTEN = "REPORT NOT WRITTEN"
+VERDICT_SKIPPED = "SKIPPED"
 
 WORST_LAST = (EXIT_PASS, EXIT_FINDINGS, EXIT_INPUT, EXIT_REPORT, EXIT_INTERNAL)
 """Exit codes from the best to the worst outcome (a batch exits with its worst file's)."""
@@ -66,6 +68,7 @@ class FileOutcome:
     recorded: bool = False
     previous_run: str | None = None
     new_since_last: list[FindingKey] | None = None
+    identity: str | None = None  # the run history's key (audit.identity); None: the file's path
 
     def exit_code(self, fail_on: str = "error") -> int:
         if self.status == INTERNAL:
@@ -74,10 +77,14 @@ class FileOutcome:
             return EXIT_INPUT
         if self.status == UNWRITTEN:
             return EXIT_REPORT
+        if self.status == SKIPPED:
+            return EXIT_PASS
         assert self.result is not None
         return EXIT_FINDINGS if self.result.fails(fail_on) else EXIT_PASS
 
     def verdict(self, fail_on: str = "error") -> str:
+        if self.status == SKIPPED:
+            return VERDICT_SKIPPED
         return {
             EXIT_PASS: PASS,
             EXIT_FINDINGS: FAIL,

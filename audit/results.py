@@ -258,6 +258,7 @@ class AuditResult:
     findings: list[Finding]
     plant: PlantTotals
     provenance: dict[str, str]
+    balance_id: str | None = None  # the declared ``balance: id:`` (the run history's key)
 
     # -- verdicts ------------------------------------------------------------------------------
     def counts(self, include_accepted: bool = True) -> dict[str, int]:

@@ -124,6 +124,7 @@ def to_result(
     elapsed = time.perf_counter() - solution.started
     return AuditResult(
         name=info.name,
+        balance_id=info.id,
         revision=info.revision,
         file=solution.document.file,
         sha256=sha256,

@@ -7,6 +7,7 @@ pressure reads the same (``12.5 bar a``) in every message, sheet and console lin
 from __future__ import annotations
 
 import math
+import re
 
 from audit.constants import ZERO_CELSIUS
 
@@ -44,3 +45,17 @@ def to_bar(P: float) -> float:
 def finite_or_none(value: float | None) -> float | None:
     """``value`` unless it is None or not finite (reports write an empty cell then)."""
     return value if value is not None and math.isfinite(value) else None
+
+
+_UNSAFE_CHARACTERS = re.compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f\u200e\u200f\u202a-\u202e\u2066-\u2069]")
+
+
+def safe_text(text: object) -> str:
+    """Text written in a balance (a name, an id, a description), safe to show on a terminal:
+    control characters (the escape that starts a terminal sequence, bidirectional overrides) are
+    shown as ``\\x1b``-style escapes, line breaks and tabs as spaces."""
+    value = str(text).replace("\r\n", " ").replace("\n", " ").replace("\t", " ")
+    return _UNSAFE_CHARACTERS.sub(
+        lambda m: f"\\x{ord(m.group()):02x}" if ord(m.group()) < 256 else f"\\u{ord(m.group()):04x}",
+        value,
+    )

@@ -11,6 +11,8 @@ import sys
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
+from audit.commands.settings import add_history_options, configured
+
 if TYPE_CHECKING:
     from audit.outcomes import FileOutcome
 
@@ -45,15 +47,18 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument(
         "--fail-on",
         choices=["error", "warning"],
-        default="error",
-        help="lowest severity that fails a file (default: error)",
+        help="lowest severity that fails a file (default: the configuration's, else error)",
     )
     parser.add_argument("--junit", type=Path, metavar="PATH", help="write JUnit XML for CI")
+    add_history_options(
+        parser, "record every run in this SQLite file and say what is new since each balance's last run"
+    )
     parser.add_argument(
-        "--history",
-        type=Path,
-        metavar="DB",
-        help="record every run in this SQLite file and say what is new since each file's last run",
+        "--exclude",
+        action="append",
+        metavar="GLOB",
+        help="skip files matching GLOB (relative to the folder searched; may be repeated; "
+        "added to the configuration's)",
     )
     parser.add_argument(
         "--allow-outside",
@@ -80,6 +85,7 @@ def run(args: argparse.Namespace) -> int:
     from audit.executors import DaskCluster, LocalProcesses
     from audit.outcomes import batch_exit_code
 
+    configured(args)
     if args.scheduler and args.workers:
         print(
             "note: --workers is ignored with --scheduler (the cluster has its own workers)",
@@ -96,10 +102,15 @@ def run(args: argparse.Namespace) -> int:
             on_start=progress.start,
             on_done=progress.advance,
             allow_outside=args.allow_outside,
+            exclude=args.exclude,
+            include=args.include,
+            tolerances=args.tolerances,
         )
     if args.history:
+        from audit.commands.settings import identify
         from audit.history import record
 
+        identify(outcomes, args.settings, args.paths)
         record(args.history, outcomes, fail_on=args.fail_on)
     if args.output:
         from audit.report.batch_workbook import write_batch_workbook
@@ -142,7 +153,9 @@ def _verdict(outcomes: list[FileOutcome], fail_on: str, code: int) -> str:
     verdicts = [o.verdict(fail_on) for o in outcomes]
     parts = ", ".join(
         f"{verdicts.count(v)} {v.lower()}"
-        for v in dict.fromkeys(["PASS", "FAIL", "INVALID", "INTERNAL ERROR", "REPORT NOT WRITTEN"])
+        for v in dict.fromkeys(
+            ["PASS", "FAIL", "INVALID", "INTERNAL ERROR", "REPORT NOT WRITTEN", "SKIPPED"]
+        )
         if verdicts.count(v)
     )
     return (

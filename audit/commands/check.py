@@ -10,6 +10,7 @@ import time
 from pathlib import Path
 from typing import TYPE_CHECKING
 
+from audit.commands.settings import add_history_options, configured
 from audit.errors import InputError
 from audit.exitcodes import EXIT_FINDINGS, EXIT_PASS
 
@@ -30,8 +31,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument(
         "--fail-on",
         choices=["error", "warning"],
-        default="error",
-        help="lowest severity that fails the check (default: error)",
+        help="lowest severity that fails the check (default: the configuration's, else error)",
     )
     parser.add_argument(
         "--fail-on-marginal",
@@ -52,11 +52,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     )
     parser.add_argument("-q", "--quiet", action="store_true", help="print only the verdict")
     parser.add_argument("--junit", type=Path, metavar="PATH", help="write JUnit XML for CI")
-    parser.add_argument(
-        "--history",
-        type=Path,
-        metavar="DB",
-        help="record the run in this SQLite file and say what is new since the file's last run",
+    add_history_options(
+        parser, "record the run in this SQLite file and say what is new since the balance's last run"
     )
     parser.add_argument(
         "--allow-outside",
@@ -82,11 +79,14 @@ def run(args: argparse.Namespace) -> int:
     from audit.api import run as audit_file
     from audit.report.console import findings_summary, stream_table
 
+    configured(args)
     if args.junit or args.history:
         outcome = _outcome(args)
         if args.history:
+            from audit.commands.settings import identify
             from audit.history import record
 
+            identify([outcome], args.settings)
             record(args.history, [outcome], fail_on=args.fail_on)
         if args.junit:
             from audit.report.junit import write_junit
@@ -96,7 +96,12 @@ def run(args: argparse.Namespace) -> int:
             raise outcome.error  # type: ignore[attr-defined]  # the command line reports it
         result = outcome.result
     else:
-        result = audit_file(args.file, allow_outside=args.allow_outside, monte_carlo=args.monte_carlo)
+        result = audit_file(
+            args.file,
+            allow_outside=args.allow_outside,
+            monte_carlo=args.monte_carlo,
+            tolerances=args.tolerances,
+        )
     if args.json:
         from audit.report.machine import write_json
 
@@ -136,7 +141,10 @@ def _outcome(args: argparse.Namespace) -> FileOutcome:
     started = time.perf_counter()
     try:
         outcome.result = audit_file(
-            args.file, allow_outside=args.allow_outside, monte_carlo=args.monte_carlo
+            args.file,
+            allow_outside=args.allow_outside,
+            monte_carlo=args.monte_carlo,
+            tolerances=args.tolerances,
         )
     except InputError as exc:
         outcome.status = INVALID

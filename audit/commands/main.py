@@ -7,12 +7,23 @@ import argparse
 import sys
 import traceback
 
-from audit.commands import batch, check, convert, diff, history, reconcile, schema, template
+from audit.commands import (
+    batch,
+    check,
+    config,
+    convert,
+    diff,
+    fields,
+    history,
+    reconcile,
+    schema,
+    template,
+)
 from audit.errors import InputError, ReportError
 from audit.exitcodes import EXIT_INPUT, EXIT_INTERNAL, EXIT_REPORT
 from audit.version import __version__
 
-COMMANDS = [check, batch, diff, history, schema, template, convert, reconcile]
+COMMANDS = [check, batch, diff, history, schema, template, convert, reconcile, config, fields]
 
 
 def _parser() -> argparse.ArgumentParser:

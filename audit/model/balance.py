@@ -50,6 +50,11 @@ class BalanceInfo(BaseModel):
     model_config = ConfigDict(extra="forbid")
 
     name: str
+    id: str | None = Field(
+        None,
+        description="a stable identity of the balance for the run history (default: its path "
+        "relative to the project root)",
+    )
     revision: str | None = None
     description: str | None = None
     site_pressure: Pressure | None = Field(
