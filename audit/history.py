@@ -3,7 +3,8 @@ findings, so a report can say what is new since the last run of each file.
 
 Balances are keyed by their identity (:mod:`audit.identity`: a declared id or the path relative to
 the project root), so a fresh checkout continues the same history; the column is named ``file``.
-"New since the last run" compares with the file's last *audited* run (an invalid file or an internal error has no findings to compare with).
+"New since the last run" compares with the file's last *audited* run (an invalid file or an
+internal error has no findings to compare with).
 
 Tables (``PRAGMA user_version`` = :data:`SCHEMA_VERSION`)::
 

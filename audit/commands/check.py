@@ -105,7 +105,7 @@ def run(args: argparse.Namespace) -> int:
     if args.json:
         from audit.report.machine import write_json
 
-        write_json(result, args.json)
+        write_json(result, args.json, fail_on=args.fail_on, marginal=args.fail_on_marginal)
     if args.csv:
         from audit.report.machine import write_csv
 

@@ -1,4 +1,5 @@
-"""``plant-audit schema``: print (or write) the JSON Schema of a balance file."""
+"""``plant-audit schema``: print (or write) the JSON Schema of a balance file, of an acceptance
+file or of the JSON results."""
 
 from __future__ import annotations
 
@@ -14,12 +15,27 @@ HELP = "print the JSON Schema of a balance file (for editor completion)"
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("-o", "--output", type=Path, help="write it to this file instead")
+    parser.add_argument(
+        "--results", action="store_true", help="the schema of the JSON results (--json) instead"
+    )
+    parser.add_argument(
+        "--accepted", action="store_true", help="the schema of an acceptance file (*.accepted.yaml)"
+    )
 
 
 def run(args: argparse.Namespace) -> int:
     from audit.reading import schema_text
 
-    text = schema_text()
+    if args.results:
+        from audit.report.results_schema import results_schema_text
+
+        text = results_schema_text()
+    elif args.accepted:
+        from audit.model.editor_schema import acceptance_schema_text
+
+        text = acceptance_schema_text()
+    else:
+        text = schema_text()
     if args.output:
         from audit.report.files import write_text
 

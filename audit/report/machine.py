@@ -5,7 +5,8 @@ JSON structure, version ``JSON_VERSION``::
     {"format": "plant-audit-results", "version": "1",
      "balance": {name, revision, file, sha256, dead_state {T [K], P [Pa]}, site_pressure [Pa],
                  tolerances {...}},
-     "provenance": {...}, "verdict": {"counts": {...}},
+     "provenance": {...},
+     "verdict": {counts {...}, fail_on, marginal, passed, exit_code},
      "units": {...},
      "streams": [{id, fluid, T, P, rho, h, s, u, g, a, psi, phase, quality, basis, mass_flow, ...}],
      "steps": [{id, kind, batch, Q, W, dH, dU, dS, dG, dA, energy_residual, S_gen, W_rev, ...}],
@@ -13,7 +14,11 @@ JSON structure, version ``JSON_VERSION``::
      "plant": {heat_in, heat_out, work_out, work_in, exergy_destroyed, ...}}
 
 The fields of streams, steps and findings, and the CSV columns, come from the column registry
-(:mod:`audit.report.columns`). Non-finite numbers (an infinitely hot source) are written as null.
+(:mod:`audit.report.columns`); the CSV tables name their SI units in the headers and hold plain
+cells (:mod:`audit.report.plain_tables`). The structure is published as a JSON Schema,
+``schemas/plant-audit-results.schema.json``, and every output is checked against it in the tests.
+``verdict.passed`` and ``verdict.exit_code`` are those of ``check`` with ``verdict.fail_on``.
+Non-finite numbers (an infinitely hot source) are written as null.
 Keys are sorted and the run-time fields are kept in ``provenance`` only, so two runs on the same
 input differ only there.
 
@@ -32,26 +37,16 @@ from typing import Any
 
 import pandas as pd  # type: ignore[import-untyped]
 
+from audit.exitcodes import EXIT_FINDINGS, EXIT_PASS
 from audit.report.columns import FINDINGS, STEPS, STREAMS, Table
 from audit.report.files import write_text
+from audit.report.plain_tables import json_units, plain_frame
 from audit.results import AuditResult
 
 JSON_VERSION = "1"
 
 # First characters that make a spreadsheet program evaluate a cell as a formula (OWASP, CSV injection)
 FORMULA_TRIGGERS = ("=", "+", "-", "@", "\t", "\r")
-
-UNITS = {
-    "T": "K",
-    "P": "Pa",
-    "rho": "kg/m3",
-    "h, u, g, a, psi": "J/kg",
-    "s": "J/(kg K)",
-    "mass_flow": "kg/s",
-    "molar_flow": "mol/s",
-    "Q, W, dH, dU, dG, dA, W_rev, exergy_destroyed, energy_residual": "W (flow steps) or J (vessels)",
-    "dS, S_gen": "W/K or J/K",
-}
 
 
 def _clean(value: Any) -> Any:
@@ -64,14 +59,17 @@ def _clean(value: Any) -> Any:
     return value
 
 
-def to_dict(result: AuditResult) -> dict:
-    """The versioned JSON structure of a result (see the module docstring)."""
+def to_dict(result: AuditResult, fail_on: str = "error", marginal: bool = False) -> dict:
+    """The versioned JSON structure of a result (see the module docstring), its verdict at the
+    gate ``fail_on`` (and on marginal findings with ``marginal``)."""
+    failed = result.fails(fail_on, marginal=marginal)
     return _clean(
         {
             "format": "plant-audit-results",
             "version": JSON_VERSION,
             "balance": {
                 "name": result.name,
+                "id": result.balance_id,
                 "revision": result.revision,
                 "file": result.file,
                 "sha256": result.sha256,
@@ -80,8 +78,14 @@ def to_dict(result: AuditResult) -> dict:
                 "tolerances": result.tolerances,
             },
             "provenance": result.provenance,
-            "verdict": {"counts": result.counts()},
-            "units": UNITS,
+            "verdict": {
+                "counts": result.counts(),
+                "fail_on": fail_on,
+                "marginal": marginal,
+                "passed": not failed,
+                "exit_code": EXIT_FINDINGS if failed else EXIT_PASS,
+            },
+            "units": json_units(),
             "streams": [STREAMS.json_row(s) for s in result.streams],
             "steps": [STEPS.json_row(s) for s in result.steps],
             "findings": [FINDINGS.json_row(f) for f in result.findings],
@@ -90,10 +94,15 @@ def to_dict(result: AuditResult) -> dict:
     )
 
 
-def write_json(result: AuditResult, path: str | Path) -> None:
+def write_json(
+    result: AuditResult, path: str | Path, fail_on: str = "error", marginal: bool = False
+) -> None:
     """Write the JSON results atomically (a temporary file moved into place); raises
     :class:`audit.errors.ReportError` when the file cannot be written."""
-    text = json.dumps(to_dict(result), indent=2, sort_keys=True, ensure_ascii=False) + "\n"
+    text = (
+        json.dumps(to_dict(result, fail_on, marginal), indent=2, sort_keys=True, ensure_ascii=False)
+        + "\n"
+    )
     write_text(path, text, "the JSON results")
 
 
@@ -108,13 +117,14 @@ def table_frame(table: Table, rows: list[Any]) -> pd.DataFrame:
 
 
 def write_csv(result: AuditResult, folder: str | Path) -> list[Path]:
-    """Write findings.csv, steps.csv and streams.csv (SI units) into ``folder``; raises
+    """Write findings.csv, steps.csv and streams.csv into ``folder``: SI units named in the
+    headers, plain cells (:mod:`audit.report.plain_tables`); raises
     :class:`audit.errors.ReportError` when a file cannot be written."""
     folder = Path(folder)
     written = []
     for table, rows in ((FINDINGS, result.findings), (STEPS, result.steps), (STREAMS, result.streams)):
         target = folder / f"{table.name}.csv"
-        frame = table_frame(table, rows)
+        frame = plain_frame(table, rows)
         frame = frame.apply(lambda column: column.map(csv_safe))
         frame.index = frame.index.map(csv_safe)
         write_text(target, frame.to_csv(index=table.index is not None), f"the CSV table of {table.name}")
