@@ -25,6 +25,7 @@ from audit.errors import InputError, InputErrors, Problem, UnitError
 from audit.input.document import Document
 from audit.input.tables import TableSource
 from audit.model.acceptance import Acceptance
+from audit.model.editor_schema import SCHEMA_KEY, editor_schema
 from audit.model.quantities import Pressure, Temperature
 from audit.model.steps import StepBase
 from audit.model.streams import StreamSpec
@@ -124,6 +125,7 @@ def validate_document(document: Document, model: type[Balance]) -> Balance:
             file=document.file,
             line=1,
         )
+    data = {k: v for k, v in data.items() if k != SCHEMA_KEY}  # for editors only
     site = None
     info = data.get("balance")
     if isinstance(info, dict) and info.get("site_pressure") is not None:
@@ -320,8 +322,10 @@ def _allowed_fields(path: tuple, data: Any, balance: type[Balance]) -> list[str]
 
 # -- schema --------------------------------------------------------------------------------------
 def json_schema(model: type[Balance]) -> dict:
-    """The JSON Schema of a balance file (for editors), as committed in ``schemas/``."""
-    schema = model.model_json_schema(mode="validation")
+    """The JSON Schema of a balance file (for editors), as committed in ``schemas/``: pydantic's,
+    with standard keywords only and each step kind selected by its ``kind``
+    (:mod:`audit.model.editor_schema`)."""
+    schema = editor_schema(model.model_json_schema(mode="validation"))
     schema["$schema"] = "https://json-schema.org/draft/2020-12/schema"
     schema["$id"] = f"https://plant-audit.invalid/schemas/{SCHEMA_FILE}"
     schema["description"] = (

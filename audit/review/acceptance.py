@@ -36,6 +36,7 @@ from audit.errors import InputError, InputErrors, Problem
 from audit.findings import WARNING, Finding
 from audit.input.document import load_document
 from audit.model.acceptance import Acceptance
+from audit.model.editor_schema import SCHEMA_KEY
 from audit.results import AuditResult
 
 BESIDE_SUFFIXES = (".accepted.yaml", ".accepted.yml")
@@ -117,6 +118,8 @@ def load_beside(balance_path: str | Path) -> list[Acceptance]:
         return []
     document = load_document(path)
     data = document.data
+    if isinstance(data, dict):
+        data = {k: v for k, v in data.items() if k != SCHEMA_KEY}  # for editors only
     if not isinstance(data, dict) or set(data) != {"accepted"}:
         raise InputError(
             "an acceptance file holds one key, 'accepted:', with a list of acceptances",
