@@ -25,6 +25,7 @@ from audit.report import columns
 from audit.report.files import write_text
 from audit.report.junit import junit_tree
 from audit.report.machine import to_dict, write_csv
+from audit.report.plain_tables import plain_headers
 from audit.results import STEP_FIELDS, StepResult, StreamResult
 
 CLEAN = SAMPLE / "quillon-bay-clean.yaml"
@@ -175,7 +176,10 @@ def test_csv_headers_come_from_the_registry(seeded, tmp_path):
     for table in columns.TABLES:
         with open(tmp_path / f"{table.name}.csv", newline="", encoding="utf-8") as handle:
             header = next(csv.reader(handle))
-        plain = [c.key for c in table.machine_columns if c.csv and not c.flatten]
+        plain = plain_headers(table)  # the registry's columns, each with its SI unit
+        assert list(dict.fromkeys(h.split(" [")[0] for h in plain if h != "unit")) == [
+            c.key for c in table.machine_columns if c.csv and not c.flatten
+        ]
         assert header[: len(plain)] == plain, table.name
         assert all(h.startswith("extra.") for h in header[len(plain) :]), table.name
 
@@ -184,7 +188,7 @@ def test_csv_of_a_result_without_findings_has_the_header(seeded, tmp_path):
     empty = dataclasses.replace(seeded, findings=[])
     write_csv(empty, tmp_path)
     text = (tmp_path / "findings.csv").read_text(encoding="utf-8")
-    assert text.splitlines() == [",".join(c.key for c in columns.FINDINGS.machine_columns)]
+    assert text.splitlines() == [",".join(plain_headers(columns.FINDINGS))]
 
 
 def test_largest_mass_residual():

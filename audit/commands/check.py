@@ -6,6 +6,7 @@ from __future__ import annotations
 
 import argparse
 import hashlib
+import sys
 import time
 from pathlib import Path
 from typing import TYPE_CHECKING
@@ -77,7 +78,7 @@ def _draws(text: str) -> int:
 
 def run(args: argparse.Namespace) -> int:
     from audit.api import run as audit_file
-    from audit.report.console import findings_summary, stream_table
+    from audit.report.console import colour_wanted, findings_summary, step_table, stream_table
 
     configured(args)
     if args.junit or args.history:
@@ -118,10 +119,13 @@ def run(args: argparse.Namespace) -> int:
     if args.quiet:
         print(f"{args.file}: {'FAIL' if failed else 'PASS'}")
     else:
+        colour = colour_wanted(sys.stdout.isatty())
         if not args.brief:
-            print(stream_table(result))
+            print(stream_table(result, colour=colour))
             print()
-        print(findings_summary(result, args.fail_on, marginal=args.fail_on_marginal))
+            print(step_table(result, colour=colour))
+            print()
+        print(findings_summary(result, args.fail_on, marginal=args.fail_on_marginal, colour=colour))
     if args.history and not args.quiet:
         print(f"History ({args.history}): {outcome.history_note()}")
     return EXIT_FINDINGS if failed else EXIT_PASS
