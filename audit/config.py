@@ -33,7 +33,7 @@ from audit.identity import repository_root
 if sys.version_info >= (3, 11):
     import tomllib
 else:  # pragma: no cover - Python 3.10
-    import tomli as tomllib
+    import tomli as tomllib  # type: ignore[import-not-found,unused-ignore]
 
 CONFIG_FILE = "plant-audit.toml"
 PYPROJECT = "pyproject.toml"

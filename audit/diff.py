@@ -7,7 +7,8 @@ with the same key, they pair in the order reported. Streams and steps are matche
 A number has *changed* when ``|new − old| > atol + rtol · max(|old|, |new|)``: ``atol`` per kind of
 quantity (:data:`ABSOLUTE`, below the precision a balance is written with: 1 mK, 1 Pa, 1 g/h …)
 and ``rtol`` (default 1e-6) given by the caller; text (fluid, phase, kind, inlets) changes when it
-differs. Values are SI throughout.
+differs. Values are SI throughout. Every claim a step writes differently in the two files is
+listed too, as written (:mod:`audit.claim_changes`).
 """
 
 from __future__ import annotations
@@ -16,6 +17,7 @@ import math
 from collections import defaultdict
 from dataclasses import dataclass, field
 
+from audit.claim_changes import claim_changes
 from audit.findings import Finding, at_or_above
 from audit.outcomes import FindingKey, finding_key
 from audit.results import AuditResult
@@ -179,6 +181,9 @@ def compare(old: AuditResult, new: AuditResult, rtol: float = DEFAULT_RTOL) -> R
             a, b = getattr(before_step, name), getattr(after_step, name)
             if differs(a, b, energy, rtol):
                 diff.changes.append(ValueChange("step", step_id, name, a, b, energy))
+    # every claim written differently (a fuel's heating value, an efficiency, ...), as written
+    for step_id, name, a_text, b_text in claim_changes(old.file, new.file):
+        diff.changes.append(ValueChange("step", step_id, f"written {name}", a_text, b_text))
     return diff
 
 

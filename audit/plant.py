@@ -76,10 +76,16 @@ def check_topology(
             )
     for stream_id, steps in consumers.items():
         if len(steps) > 1:
+            backwards = _connected_backwards(balance, steps, producers, consumers)
+            advice = (
+                f"{backwards}: swap its inlet and outlet"
+                if backwards
+                else "add a splitter if the stream divides"
+            )
             problems.append(
                 Problem(
                     f"is consumed by more than one step ({', '.join(steps)}); a stream enters one "
-                    "step only (add a splitter)",
+                    f"step only ({advice})",
                     **document.place(("streams", stream_id)),
                     where=f"stream {stream_id}",
                 )
@@ -97,6 +103,28 @@ def check_topology(
                     )
                 )
     return problems
+
+
+def _connected_backwards(
+    balance: Balance,
+    steps: list[str],
+    producers: dict[str, list[str]],
+    consumers: dict[str, list[str]],
+) -> str:
+    """'step P1 looks connected backwards (its outlet S01 enters no step and leaves no other)'
+    when one of ``steps`` (the consumers of one stream) has one inlet and one outlet, and that
+    outlet enters no step: its ports are probably swapped. '' otherwise."""
+    by_id = {step.id: step for step in balance.steps}
+    for step_id in steps:
+        step = by_id.get(step_id)
+        if step is None:
+            continue
+        inlets, outlets = step.stream_ids()
+        if len(inlets) == 1 and len(outlets) == 1:
+            outlet = outlets[0]
+            if not consumers.get(outlet) and producers.get(outlet) == [step_id]:
+                return f"step {step_id} looks connected backwards, its outlet {outlet} entering no step"
+    return ""
 
 
 def _find_reference(raw: Any, value: str, path: tuple) -> tuple:

@@ -259,6 +259,7 @@ class AuditResult:
     plant: PlantTotals
     provenance: dict[str, str]
     balance_id: str | None = None  # the declared ``balance: id:`` (the run history's key)
+    step_seconds: dict[str, float] = field(default_factory=dict)  # run time: not in the JSON
 
     # -- verdicts ------------------------------------------------------------------------------
     def counts(self, include_accepted: bool = True) -> dict[str, int]:

@@ -56,6 +56,7 @@ class Solution:
     results: list[StepResult]
     findings: list[Finding]
     started: float = field(default_factory=time.perf_counter)
+    step_seconds: dict[str, float] = field(default_factory=dict)  # evaluation time of each step
 
 
 def solve(balance: Balance, document: Document) -> Solution:
@@ -73,9 +74,12 @@ def solve(balance: Balance, document: Document) -> Solution:
         raise InputErrors(problems)
 
     results: list[StepResult] = []
+    seconds: dict[str, float] = {}
     for index, step in enumerate(balance.steps):
+        began = time.perf_counter()
         try:
             result, step_findings = evaluate_step(balance, document, engine, streams, index)
+            seconds[step.id] = time.perf_counter() - began
         except StateError as exc:
             line, _ = document.position(("steps", index))
             problems.append(
@@ -86,7 +90,7 @@ def solve(balance: Balance, document: Document) -> Solution:
         findings.extend(step_findings)
     if problems:
         raise InputErrors(problems)
-    return Solution(balance, document, engine, streams, results, findings, started)
+    return Solution(balance, document, engine, streams, results, findings, started, seconds)
 
 
 def evaluate_step(
@@ -136,6 +140,7 @@ def to_result(
         steps=solution.results,
         findings=findings,
         plant=plant_totals(balance, streams, solution.results),
+        step_seconds=solution.step_seconds,
         provenance={
             "plant-audit": __version__,
             "CoolProp": COOLPROP_VERSION,

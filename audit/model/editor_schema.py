@@ -47,7 +47,7 @@ def standard_keywords(node: Any) -> Any:
         if key in ("properties", "$defs", "patternProperties"):
             out[key] = {name: standard_keywords(sub) for name, sub in value.items()}
         else:
-            out[_LEAKED.get(key, key)] = standard_keywords(value)
+            out[_LEAKED.get(str(key), str(key))] = standard_keywords(value)
     return out
 
 

@@ -61,12 +61,21 @@ class Fluid:
     basis: str
 
 
+WATER_NAMES = {"steam", "vapour", "vapor", "ice", "h2o(g)", "h2o(l)", "liquid water", "condensate"}
+"""Names a balance may give water in one of its phases; the fluid is 'Water' in every phase."""
+
+
 def open_fluid(name: str) -> tuple[Fluid, CP.AbstractState]:
     """A fluid's constants and a CoolProp state object for it, by CoolProp name or alias;
     :class:`StateError` for an unknown fluid."""
     try:
         state = CP.AbstractState(BACKEND, name)
     except ValueError:
+        if name.strip().lower() in WATER_NAMES:
+            raise StateError(
+                f"unknown fluid '{name}': write 'Water' (steam, water and ice are all 'Water'; "
+                "the phase follows from the state)"
+            ) from None
         raise StateError(
             f"unknown fluid '{name}': not a CoolProp fluid name (for example 'Water', "
             "'Ammonia', 'Nitrogen', 'Air', 'CarbonDioxide', 'R134a')"

@@ -86,8 +86,8 @@ def _number(value: float | None, digits: str) -> str:
 
 
 def stream_table_view(result: AuditResult) -> Table:
-    """The streams: T, absolute P, phase (with the quality x of a two-phase state), flow, h, s, ψ in engineering units; the basis
-    of h and s is named under the table (:func:`basis_note`)."""
+    """The streams: T, absolute P, phase (with the quality x of a two-phase state), flow, h, s, ψ
+    in engineering units; the basis of h and s is named under the table (:func:`basis_note`)."""
     table = _table("Streams (pressures absolute)")
     longest = max((len(s.id) for s in result.streams), default=6)
     for name, numeric, least in (

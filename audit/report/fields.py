@@ -71,7 +71,8 @@ def model_table(model: type[BaseModel]) -> list[str]:
             continue
         field = model.model_fields[name]
         if field.metadata:  # a quantity: its own schema names the unit (audit.model.quantities)
-            own = TypeAdapter(Annotated[(field.annotation, *field.metadata)]).json_schema()
+            annotated: Any = Annotated.__class_getitem__((field.annotation, *field.metadata))  # type: ignore[attr-defined]
+            own = TypeAdapter(annotated).json_schema()
             spec = {**spec, **own} if "pattern" in own else spec
         if name in required:
             default = "**required**"

@@ -1,10 +1,12 @@
 """JUnit XML, so a CI system shows an audit like a test run (standard library only).
 
-Layout: one ``<testsuite>`` per file, named by the file's path. An audited file has one
-``<testcase>`` per step (named ``<step id> (<kind>)``) plus one named ``plant and streams`` for
-findings that belong to no step. A test case *fails* (one ``<failure>``, its text listing every
-such finding) when it has findings at or above the gate that no reviewer accepted; accepted and
-lower findings are listed in its ``<system-out>``. An invalid file is one test case ``load and
+Layout: one ``<testsuite>`` per file, named by the file's path; its test cases' ``classname`` is
+the path as a dotted name (:func:`dotted_name`). An audited file has one ``<testcase>`` per step
+(named ``<step id> (<kind>)``, its ``time`` the step's evaluation time) plus one named ``plant and
+streams`` for findings that belong to no step (its time the rest of the file's). A file that is
+not a balance (skipped by a batch) is one test case marked ``<skipped>``. A test case *fails*
+(one ``<failure>``, its text listing every such finding) when it has findings at or above the
+gate that no reviewer accepted; accepted and lower findings are listed in its ``<system-out>``. An invalid file is one test case ``load and
 validate`` with an ``<error type="invalid-input">``; an internal error, one with
 ``<error type="internal-error">``. An audited file whose own workbook could not be written has one
 more test case, ``write the workbook``, with an ``<error type="report-not-written">``.
@@ -16,7 +18,7 @@ import xml.etree.ElementTree as ET
 from pathlib import Path
 
 from audit.findings import Finding, at_or_above
-from audit.outcomes import INTERNAL, INVALID, UNWRITTEN, FileOutcome
+from audit.outcomes import INTERNAL, INVALID, SKIPPED, UNWRITTEN, FileOutcome
 from audit.report.files import write_text
 
 PLANT_CASE = "plant and streams"
@@ -32,6 +34,20 @@ def _line(finding: Finding) -> str:
     return text
 
 
+def dotted_name(path: str) -> str:
+    """A test class name for a balance file, as CI systems group them: its path without the
+    suffix, folders joined with dots (``plants/north/boiler.yaml`` → ``plants.north.boiler``); dots
+    inside a name become ``_``."""
+    relative = Path(path)
+    if relative.is_absolute():
+        try:
+            relative = relative.relative_to(Path.cwd())
+        except ValueError:
+            relative = Path(*relative.parts[1:])
+    parts = [p.replace(".", "_") for p in relative.with_suffix("").parts if p not in ("", ".", "..")]
+    return ".".join(parts) or "balance"
+
+
 def junit_tree(outcomes: list[FileOutcome], fail_on: str = "error") -> ET.ElementTree:
     """The JUnit XML tree of a batch (or of one ``check``); see the module docstring."""
     root = ET.Element("testsuites", name="plant-audit")
@@ -39,8 +55,15 @@ def junit_tree(outcomes: list[FileOutcome], fail_on: str = "error") -> ET.Elemen
     for outcome in outcomes:
         suite = ET.SubElement(root, "testsuite", name=outcome.path)
         counts = {"tests": 0, "failures": 0, "errors": 0}
-        classname = outcome.path
-        if outcome.status in (INVALID, INTERNAL) or outcome.result is None:
+        skipped = 0
+        classname = dotted_name(outcome.path)
+        steps_time = 0.0
+        if outcome.status == SKIPPED:
+            case = ET.SubElement(suite, "testcase", classname=classname, name=LOAD_CASE, time="0.000")
+            ET.SubElement(case, "skipped", message=(outcome.problems or ["not a balance"])[0])
+            counts["tests"] += 1
+            skipped += 1
+        elif outcome.status in (INVALID, INTERNAL) or outcome.result is None:
             case = ET.SubElement(
                 suite, "testcase", classname=classname, name=LOAD_CASE, time=f"{outcome.seconds:.3f}"
             )
@@ -65,7 +88,14 @@ def junit_tree(outcomes: list[FileOutcome], fail_on: str = "error") -> ET.Elemen
                     for f in result.findings
                     if (f.step == step_id) or (step_id is None and f.step not in step_ids)
                 ]
-                case = ET.SubElement(suite, "testcase", classname=classname, name=name, time="0")
+                if step_id is not None:
+                    seconds = result.step_seconds.get(step_id, 0.0)
+                    steps_time += seconds
+                else:  # the rest of the file's time: reading, streams, review
+                    seconds = max(outcome.seconds - steps_time, 0.0)
+                case = ET.SubElement(
+                    suite, "testcase", classname=classname, name=name, time=f"{seconds:.3f}"
+                )
                 failing = [f for f in own if at_or_above(f.severity, fail_on) and not f.accepted]
                 counts["tests"] += 1
                 if failing:
@@ -83,7 +113,7 @@ def junit_tree(outcomes: list[FileOutcome], fail_on: str = "error") -> ET.Elemen
                     ET.SubElement(case, "system-out").text = "\n".join(_line(f) for f in others)
             if outcome.status == UNWRITTEN:
                 case = ET.SubElement(
-                    suite, "testcase", classname=classname, name=WORKBOOK_CASE, time="0"
+                    suite, "testcase", classname=classname, name=WORKBOOK_CASE, time="0.000"
                 )
                 error = ET.SubElement(
                     case,
@@ -97,7 +127,7 @@ def junit_tree(outcomes: list[FileOutcome], fail_on: str = "error") -> ET.Elemen
         for key, value in counts.items():
             suite.set(key, str(value))
             totals[key] += value
-        suite.set("skipped", "0")
+        suite.set("skipped", str(skipped))
         suite.set("time", f"{outcome.seconds:.3f}")
     for key, value in totals.items():
         root.set(key, str(value))

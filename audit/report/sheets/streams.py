@@ -5,6 +5,7 @@ link to their rows."""
 from __future__ import annotations
 
 from audit.findings import Finding
+from audit.report.blame import blamed_text
 from audit.report.columns import STREAMS as COLUMNS
 from audit.report.sheets.context import FINDINGS, STEPS, STREAMS, Book, cell_value, marker, worst
 from audit.report.workbook_cells import FILLS, FORMATS, location
@@ -40,7 +41,7 @@ def write(book: Book) -> None:
                         link=location(FINDINGS, book.first_finding_row[("stream", s.id)]),
                     )
                 else:
-                    sh.put(row, col, "none")
+                    sh.put(row, col, blamed_text(book.result, s.id) or "none")
             elif key in ("from_step", "to_step"):
                 step_id = (producer if key == "from_step" else consumer).get(s.id)
                 if step_id:

@@ -121,7 +121,8 @@ def evaluate(step: HeatExchanger, ctx: StepContext) -> StepResult:
                 )
             )
     duty = step.duty
-    if duty is not None:
+    swapped = released <= 0 and received <= 0  # reported once, as the sides swapped (below)
+    if duty is not None and not swapped:
         tol_E = result.energy_tolerance
         # the duty is what passes from the hot side to the cold side: the hot side releases it
         # plus the claimed heat loss
