@@ -155,9 +155,7 @@ def audit_job(job: Job) -> FileOutcome:
     try:
         from audit.api import run as audit_file
 
-        outcome.result = audit_file(
-            job.path, allow_outside=job.allow_outside, tolerances=job.tolerances
-        )
+        outcome.result = audit_file(job.path, allow_outside=job.allow_outside, tolerances=job.tolerances)
     except InputError as exc:
         outcome.status = INVALID
         outcome.problems = [str(p) for p in exc.problems]

@@ -168,6 +168,4 @@ def test_history_command_messages(tmp_path: Path, capsys: pytest.CaptureFixture[
     record(database, [], now=at(1))
     assert main(["history", str(CLEAN), "--history", str(database)]) == EXIT_PASS
     # inside the repository a balance is known by its path from the repository root
-    assert capsys.readouterr().out.startswith(
-        "No recorded runs of sample_plant/quillon-bay-clean.yaml"
-    )
+    assert capsys.readouterr().out.startswith("No recorded runs of sample_plant/quillon-bay-clean.yaml")

@@ -6,10 +6,11 @@ the path as a dotted name (:func:`dotted_name`). An audited file has one ``<test
 streams`` for findings that belong to no step (its time the rest of the file's). A file that is
 not a balance (skipped by a batch) is one test case marked ``<skipped>``. A test case *fails*
 (one ``<failure>``, its text listing every such finding) when it has findings at or above the
-gate that no reviewer accepted; accepted and lower findings are listed in its ``<system-out>``. An invalid file is one test case ``load and
-validate`` with an ``<error type="invalid-input">``; an internal error, one with
-``<error type="internal-error">``. An audited file whose own workbook could not be written has one
-more test case, ``write the workbook``, with an ``<error type="report-not-written">``.
+gate that no reviewer accepted; accepted and lower findings are listed in its ``<system-out>``.
+An invalid file is one test case ``load and validate`` with an ``<error type="invalid-input">``;
+an internal error, one with ``<error type="internal-error">``. An audited file whose own workbook
+could not be written has one more test case, ``write the workbook``, with an
+``<error type="report-not-written">``.
 """
 
 from __future__ import annotations
