@@ -8,13 +8,12 @@ import shutil
 from pathlib import Path
 
 import pytest
+from conftest import SAMPLE
 
 from audit.commands.main import main
 from audit.config import DEFAULT, load_settings
 from audit.errors import InputError
 from audit.exitcodes import EXIT_FINDINGS, EXIT_INPUT, EXIT_PASS
-
-from conftest import SAMPLE
 
 SEEDED = SAMPLE / "quillon-bay-seeded.yaml"
 CLEAN = SAMPLE / "quillon-bay-clean.yaml"
@@ -56,7 +55,7 @@ def test_a_pyproject_without_the_table_is_passed_over(tmp_path: Path) -> None:
 
 
 def test_plant_audit_toml_wins_in_the_same_folder(tmp_path: Path) -> None:
-    (tmp_path / "pyproject.toml").write_text('[tool.plant-audit]\nworkers = 3\n', encoding="utf-8")
+    (tmp_path / "pyproject.toml").write_text("[tool.plant-audit]\nworkers = 3\n", encoding="utf-8")
     (tmp_path / "plant-audit.toml").write_text("workers = 1\n", encoding="utf-8")
     assert load_settings(tmp_path)["workers"] == 1
 

@@ -89,7 +89,10 @@ def test_a_repository_runs_nightly_with_a_stable_history(
     code = main(["batch", ".", "--exclude", "drafts/**", "--history", str(database), "--workers", "1"])
     out = capsys.readouterr().out
     assert code == EXIT_PASS
-    assert "SKIPPED        mkdocs.yml: not a balance (no top-level 'balance', 'streams' or 'steps' key)" in out
+    assert (
+        "SKIPPED        mkdocs.yml: not a balance (no top-level 'balance', 'streams' or 'steps' key)"
+        in out
+    )
     assert out.count("first audited run") == 3
     assert "Batch: 4 files (3 pass, 1 skipped); exit code 0." in out
 
