@@ -46,6 +46,8 @@ def _type(spec: dict[str, Any], definitions: dict[str, Any]) -> str:
     if kind == "object":
         extra = spec.get("additionalProperties")
         return f"mapping of {_type(extra, definitions)}" if isinstance(extra, dict) else "mapping"
+    if kind == "string" and spec.get("format") == "date":
+        return "date (YYYY-MM-DD)"
     words = {"number": "number", "integer": "whole number", "string": "text", "boolean": "true/false"}
     text = words.get(str(kind), str(kind or "any"))
     limits = [
