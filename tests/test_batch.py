@@ -66,6 +66,7 @@ def comparable(outcome: FileOutcome) -> tuple:
     if outcome.result is not None:
         data = asdict(outcome.result)
         data.pop("provenance")
+        data.pop("step_seconds")  # run times too
         result = data
     return (outcome.path, outcome.status, outcome.problems, outcome.sha256, result)
 

@@ -95,7 +95,7 @@ def junit_tree(outcomes: list[FileOutcome], fail_on: str = "error") -> ET.Elemen
                 else:  # the rest of the file's time: reading, streams, review
                     seconds = max(outcome.seconds - steps_time, 0.0)
                 case = ET.SubElement(
-                    suite, "testcase", classname=classname, name=name, time=f"{seconds:.3f}"
+                    suite, "testcase", classname=classname, name=name, time=f"{seconds:.6f}"
                 )
                 failing = [f for f in own if at_or_above(f.severity, fail_on) and not f.accepted]
                 counts["tests"] += 1
