@@ -762,7 +762,7 @@ def test_csv_text_fields_are_guarded(injected, tmp_path):
         assert rows[stream_id]["description"] == "'" + INJECTED[stream_id].replace("\r", "\n")
     assert rows["S01"]["description"] == "feedwater from the deaerator (boundary)"
     assert "'" + UNUSED_ID in rows and rows["'" + UNUSED_ID]["description"] == "'-unused"
-    assert float(rows["S20"]["T"]) == pytest.approx(result.stream("S20").T)  # numbers unchanged
+    assert float(rows["S20"]["T [K]"]) == pytest.approx(result.stream("S20").T)  # numbers unchanged
     with open(tmp_path / "csv" / "findings.csv", newline="", encoding="utf-8") as handle:
         findings = list(csv.DictReader(handle))
     unused = next(f for f in findings if f["name"] == "stream-unused")
