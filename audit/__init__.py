@@ -35,4 +35,11 @@ def run(path, **options):  # noqa: ANN001, ANN003, ANN201 - see audit.api.run fo
     return _run(path, **options)
 
 
-__all__ = ["run", "__version__"]
+def frames(result):  # noqa: ANN001, ANN201 - see audit.api.frames
+    """The result's tables as DataFrames with SI units in their headers (:func:`audit.api.frames`)."""
+    from audit.api import frames as _frames
+
+    return _frames(result)
+
+
+__all__ = ["frames", "run", "__version__"]

@@ -6,6 +6,7 @@ Example (in a notebook)::
     result = audit.run("sample_plant/maple-creek-clean.yaml")
     result.steps_frame()[["Q", "W", "S_gen", "W_rev"]]
     result.findings_frame()
+    audit.frames(result)["steps"][["Q [W]", "W [W]", "exergy_destroyed [W]"]]  # units in headers
 """
 
 from __future__ import annotations
@@ -60,6 +61,15 @@ def run(
         sheet = f", sheet '{table.sheet}'" if table.sheet is not None else ""
         result.provenance[f"table {table.display}{sheet}"] = f"sha256 {table.sha256}"
     return apply_acceptances(result, _acceptances(balance, document, path), today)
+
+
+def frames(result: AuditResult) -> dict[str, Any]:
+    """The result's ``streams``, ``steps`` and ``findings`` as pandas DataFrames whose headers
+    name their SI units (``T [K]``, ``Q [W]``; a vessel's totals in ``Q [J]``) and whose cells are
+    plain values, as in the CSV output (:mod:`audit.report.plain_tables`)."""
+    from audit.report.plain_tables import result_frames
+
+    return result_frames(result)
 
 
 def audit_balance(

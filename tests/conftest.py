@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import functools
+import json
 import math
 import textwrap
 from pathlib import Path
@@ -84,3 +86,33 @@ def names(result) -> set[tuple[str | None, str]]:
 @pytest.fixture
 def sample_dir() -> Path:
     return SAMPLE
+
+
+@functools.lru_cache(maxsize=1)
+def _results_validator():  # noqa: ANN202 - a jsonschema validator, or None without jsonschema
+    try:
+        import jsonschema
+    except ImportError:  # the test extra installs it
+        return None
+    schema = json.loads((ROOT / "schemas" / "plant-audit-results.schema.json").read_text("utf-8"))
+    return jsonschema.Draft202012Validator(schema)
+
+
+@pytest.fixture(autouse=True)
+def _json_results_follow_the_published_schema(monkeypatch: pytest.MonkeyPatch) -> None:
+    """Every JSON results structure a test builds or writes is checked against
+    schemas/plant-audit-results.schema.json."""
+    validator = _results_validator()
+    if validator is None:
+        return
+    from audit.report import machine
+
+    original = machine.to_dict
+
+    def checked(*args, **kwargs):  # noqa: ANN002, ANN003, ANN202
+        data = original(*args, **kwargs)
+        errors = [f"{list(e.path)}: {e.message}" for e in validator.iter_errors(data)]
+        assert not errors, f"JSON results not valid against the published schema: {errors[:5]}"
+        return data
+
+    monkeypatch.setattr(machine, "to_dict", checked)

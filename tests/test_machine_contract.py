@@ -8,6 +8,7 @@ import json
 import re
 from pathlib import Path
 
+import pandas as pd
 import pytest
 from conftest import ROOT, SAMPLE
 
@@ -117,3 +118,11 @@ def test_csv_cells_are_plain_values(results, tmp_path: Path) -> None:
 def test_every_kind_specific_value_has_a_unit(results) -> None:
     reported = {key for r in results.values() for s in r.steps for key in s.extra}
     assert reported <= set(EXTRA_UNITS), reported - set(EXTRA_UNITS)
+
+
+def test_dataframes_name_their_units(results) -> None:
+    tables = audit.frames(results["quillon-bay-seeded.yaml"])
+    steps = tables["steps"]
+    assert steps.loc["T1", "W [W]"] == pytest.approx(1.45e6)
+    assert pd.isna(steps.loc["CIP1", "Q [W]"]) and steps.loc["CIP1", "Q [J]"] > 0
+    assert "T [K]" in tables["streams"].columns and "unit" in tables["findings"].columns

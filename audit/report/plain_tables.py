@@ -198,3 +198,13 @@ def json_units() -> dict[str, dict[str, Any]]:
         units[table.name] = own
     units["steps"]["extra"] = {k: v for k, v in EXTRA_UNITS.items() if v is not None}
     return units
+
+
+def result_frames(result: Any) -> dict[str, pd.DataFrame]:
+    """The streams, steps and findings of an :class:`audit.results.AuditResult` as DataFrames
+    with SI units in the headers and plain cells (the CSV tables' content)."""
+    return {
+        STREAMS.name: plain_frame(STREAMS, result.streams),
+        STEPS.name: plain_frame(STEPS, result.steps),
+        FINDINGS.name: plain_frame(FINDINGS, result.findings),
+    }
