@@ -120,7 +120,10 @@ def test_junit_lists_a_skipped_file(tmp_path: Path) -> None:
     (tmp_path / "mkdocs.yml").write_text("site_name: x\n", encoding="utf-8")
     (tmp_path / "plant.yaml").write_text(CLEAN.read_text(encoding="utf-8"), encoding="utf-8")
     junit = tmp_path / "out.xml"
-    assert main(["batch", str(tmp_path), "--junit", str(junit), "-q", "--workers", "1"]) == 0
+    out = tmp_path / "out"
+    command = ["batch", str(tmp_path), "--junit", str(junit), "-q", "--workers", "1", "-o", str(out)]
+    assert main(command) == 0
+    assert (out / "summary.xlsx").is_file()  # the summary lists the skipped file too
     suites = ET.parse(junit).getroot().findall("testsuite")
     skipped = [s for s in suites if s.get("skipped") == "1"]
     assert len(skipped) == 1 and skipped[0].find("testcase/skipped") is not None

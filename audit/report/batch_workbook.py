@@ -32,6 +32,7 @@ from audit.outcomes import (
     PASS,
     VERDICT_INTERNAL,
     VERDICT_INVALID,
+    VERDICT_SKIPPED,
     VERDICT_UNWRITTEN,
     FileOutcome,
     finding_key,
@@ -52,6 +53,7 @@ _VERDICT_FILL = {
     VERDICT_INVALID: PatternFill("solid", fgColor="FBE8C8"),
     VERDICT_INTERNAL: PatternFill("solid", fgColor="E0D4EC"),
     VERDICT_UNWRITTEN: PatternFill("solid", fgColor="E0D4EC"),
+    VERDICT_SKIPPED: PatternFill("solid", fgColor="EEEEEE"),  # not a balance (audit.discovery)
 }
 
 SUMMARY_COLUMNS = [
