@@ -82,7 +82,11 @@ def _table(title: str) -> Table:
 
 
 def _number(value: float | None, digits: str) -> str:
-    return "" if value is None else format(value, digits)
+    """``value`` formatted, '' for None; never '-0.0' (a value that rounds to zero)."""
+    if value is None:
+        return ""
+    text = format(value, digits)
+    return text[1:] if text.startswith("-") and not text.strip("-0.") else text
 
 
 def stream_table_view(result: AuditResult) -> Table:
@@ -116,13 +120,13 @@ def stream_table_view(result: AuditResult) -> Table:
                 if s.fluid.startswith("mixture(")
                 else safe_text(s.fluid)
             ),
-            f"{to_celsius(s.T):.2f}",
+            _number(to_celsius(s.T), ".2f"),
             f"{to_bar(s.P):.3f}",
             s.phase if s.quality is None else f"{s.phase} x = {s.quality:.4f}",
             f"{s.mass_flow:.4f}",
-            f"{s.h / 1e3:.1f}",
+            _number(s.h / 1e3, ".1f"),
             f"{s.s / 1e3:.4f}",
-            f"{s.psi / 1e3:.1f}",
+            _number(s.psi / 1e3, ".1f"),
         )
     return table
 
