@@ -10,8 +10,9 @@ the exergy of each heat flow into the step, W the work delivered, X_d = T0 Ṡ_g
 destroyed, X_chem = W_rev − Σ X_Q − (Σ ṁ_i ψ_i − Σ ṁ_e ψ_e) the chemical exergy the step releases
 (reactions, mixing of different fluids: zero for a step whose streams each keep their fluid), and
 X_res = W_rev − W − X_d what the step's first-law residual leaves unaccounted (when the step's
-mass does not balance, the dead-state terms do not cancel and its X_chem is counted in X_res). Summed over the
-steps the internal streams cancel, leaving the plant's account: exergy entering with feeds and
+mass does not balance, the dead-state terms do not cancel and its X_chem is counted in X_res).
+Residuals within the step's energy tolerance are not listed. Summed over the steps the internal
+streams cancel, leaving the plant's account: exergy entering with feeds and
 fuels (boundary inlets and chemical exergy released), power and heat, and leaving with products,
 power, heat, destruction and the residual.
 

@@ -25,7 +25,7 @@ class ExchangerProfile:
     @property
     def approach(self) -> list[float]:
         """Hot-minus-cold temperature difference at each point [K]."""
-        return [h - c for h, c in zip(self.hot_T, self.cold_T)]
+        return [h - c for h, c in zip(self.hot_T, self.cold_T, strict=True)]
 
 
 @dataclass(slots=True)

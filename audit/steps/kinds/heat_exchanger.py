@@ -229,7 +229,7 @@ def _check_temperatures(
             )
         )
         return
-    approach = [h - c for h, c in zip(hot_T, cold_T)]
+    approach = [h - c for h, c in zip(hot_T, cold_T, strict=True)]
     i_min = min(range(len(approach)), key=approach.__getitem__)
     minimum = approach[i_min]
     result.extra["min_approach"] = minimum
