@@ -91,7 +91,7 @@ def exergy_account(result: AuditResult) -> ExergyAccount:
 
     for stream_id in result.plant.boundary_inlets:
         x = stream_exergy(streams[stream_id])
-        add(x, STREAM, f"{stream_id} (feed)", f"{stream_id} (feed, negative exergy)", stream=stream_id)
+        add(x, STREAM, f"{stream_id} feed", f"{stream_id} feed (negative)", stream=stream_id)
     for step in flow:
         x_heat = sum(heat_exergy(q.Q, q.temperature, T0) for q in step.heat_flows)
         add(x_heat, HEAT, f"heat into {step.id}", f"heat from {step.id}", step=step.id)
@@ -106,8 +106,8 @@ def exergy_account(result: AuditResult) -> ExergyAccount:
             add(
                 chemical,
                 CHEMICAL,
-                f"chemical exergy released in {step.id}",
-                f"chemical exergy stored in {step.id}",
+                f"chemical, released in {step.id}",
+                f"chemical, stored in {step.id}",
                 step=step.id,
             )
         if step.exergy_destroyed >= 0:
@@ -117,18 +117,18 @@ def exergy_account(result: AuditResult) -> ExergyAccount:
         else:
             account.entering.append(
                 ExergyItem(
-                    f"created in {step.id} (negative destruction: impossible)",
+                    f"created in {step.id} (impossible)",
                     -step.exergy_destroyed,
                     DESTROYED,
                     step=step.id,
                 )
             )
         if abs(unaccounted) > step.energy_tolerance:  # within tolerance: the step closes
-            label = f"unaccounted in {step.id} (balance residual)"
+            label = f"unaccounted in {step.id}"
             add(-unaccounted, UNACCOUNTED, label, label, step=step.id)
     for stream_id in result.plant.boundary_outlets:
         x = stream_exergy(streams[stream_id])
-        add(-x, STREAM, f"{stream_id} (negative exergy)", f"{stream_id} (product)", stream=stream_id)
+        add(-x, STREAM, f"{stream_id} product (negative)", f"{stream_id} product", stream=stream_id)
     account.destroyed.sort(key=lambda i: -i.value)
     return account
 
