@@ -14,6 +14,7 @@ from typing import Any
 
 import pandas as pd  # type: ignore[import-untyped]  # no stubs installed
 
+from audit.exchangers import ExchangerProfile, ExchangerValues
 from audit.findings import SEVERITY_RANK, Finding, at_or_above
 
 STANDARD_GRAVITY = 9.806_65  # m/s**2, exact by definition (3rd CGPM, 1901)
@@ -137,6 +138,8 @@ class StepResult:
     extra: dict[str, Any] = field(default_factory=dict)
     description: str | None = None
     line: int | None = None
+    profile: ExchangerProfile | None = None  # heat exchangers: the T–Q profile of both sides
+    exchanger: ExchangerValues | None = None  # heat exchangers: duty, approaches, LMTD
 
     # -- the balance's values, read as the step's own (reports read them by name) --
     @property
@@ -361,6 +364,8 @@ STEP_FIELDS = (
     "extra",
     "description",
     "line",
+    "profile",
+    "exchanger",
 )
 """The published fields of a :class:`StepResult`, in order: the keys of its JSON object and the
 columns of the steps table (the balance's values appear flat, as attributes of the step)."""

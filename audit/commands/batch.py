@@ -31,7 +31,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
         "--output",
         type=Path,
         metavar="DIR",
-        help="write summary.xlsx and each file's own workbook into DIR",
+        help="write summary.xlsx, index.html and each file's own workbook and HTML report into DIR",
     )
     parser.add_argument(
         "--workers", type=_positive, metavar="N", help="worker processes (default: one per core)"
@@ -105,6 +105,9 @@ def run(args: argparse.Namespace) -> int:
         from audit.report.batch_workbook import write_batch_workbook
 
         write_batch_workbook(outcomes, args.output / SUMMARY_NAME, fail_on=args.fail_on)
+        from audit.report.html.index import write_batch_html
+
+        write_batch_html(outcomes, args.output, fail_on=args.fail_on, history=args.history)
     if args.junit:
         from audit.report.junit import write_junit
 

@@ -53,6 +53,9 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("-q", "--quiet", action="store_true", help="print only the verdict")
     parser.add_argument("--junit", type=Path, metavar="PATH", help="write JUnit XML for CI")
     parser.add_argument(
+        "--html", type=Path, metavar="PATH", help="write the report as one self-contained HTML file"
+    )
+    parser.add_argument(
         "--history",
         type=Path,
         metavar="DB",
@@ -109,6 +112,10 @@ def run(args: argparse.Namespace) -> int:
         from audit.report.workbook import write_workbook
 
         write_workbook(result, args.output, fail_on=args.fail_on)
+    if args.html:
+        from audit.report.html.report import write_html
+
+        write_html(result, args.html, fail_on=args.fail_on, marginal=args.fail_on_marginal)
     failed = result.fails(args.fail_on, marginal=args.fail_on_marginal)
     if args.quiet:
         print(f"{args.file}: {'FAIL' if failed else 'PASS'}")

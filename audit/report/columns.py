@@ -217,6 +217,8 @@ STEPS = Table(
         Column("extra", flatten=True),  # kind-specific values: JSON object, CSV extra.* columns
         Column("description", "description", wrap=True),
         Column("line", "line in file", fmt=INTEGER),
+        Column("profile", csv=False, json=False),  # heat exchangers' T–Q points: the pictures
+        Column("exchanger", csv=False, json=False),  # heat exchangers' rating values
         # the workbook's own columns
         Column("findings", "findings", machine=False),
         Column("basis", "basis", machine=False),

@@ -32,8 +32,10 @@ from typing import Literal
 from pydantic import BaseModel, ConfigDict, Field
 
 from audit.errors import StateError
+from audit.exchangers import ExchangerProfile, ExchangerValues
 from audit.findings import ERROR, WARNING, Finding, relative
 from audit.model.steps import DutyClaim, TemperatureClaim
+from audit.physics.heat_transfer import log_mean_temperature_difference
 from audit.results import StepResult, StreamResult
 from audit.steps.base import StepBase, StepContext, finish_flow_step, register
 from audit.steps.laws import format_power
@@ -165,6 +167,21 @@ def evaluate(step: HeatExchanger, ctx: StepContext) -> StepResult:
     return result
 
 
+def _rating(
+    step: HeatExchanger, received: float, ends: list[tuple[str, StreamResult, StreamResult]]
+) -> ExchangerValues:
+    """Duty, terminal approaches and LMTD (the profile's values are added once it is known)."""
+    (end1, hot1, cold1), (end2, hot2, cold2) = ends
+    dT1, dT2 = hot1.T - cold1.T, hot2.T - cold2.T
+    return ExchangerValues(
+        duty=received,
+        arrangement=step.arrangement,
+        ends=(end1, end2),
+        end_approach=(dT1, dT2),
+        lmtd=log_mean_temperature_difference(dT1, dT2),
+    )
+
+
 def _check_temperatures(
     step: HeatExchanger,
     ctx: StepContext,
@@ -180,6 +197,8 @@ def _check_temperatures(
         ends = [("hot end", hi, co), ("cold end", ho, ci)]
     else:
         ends = [("inlet end", hi, ci), ("outlet end", ho, co)]
+    received = co.mass_flow * co.h - ci.mass_flow * ci.h
+    result.exchanger = rating = _rating(step, received, ends)
     for end, hot, cold in ends:
         gap = hot.T - cold.T
         if gap < 0:
@@ -199,7 +218,7 @@ def _check_temperatures(
             )
             return
     try:
-        fractions, approach = approach_profile(ctx, hi, ho, ci, co, counter)
+        fractions, hot_T, cold_T = approach_profile(ctx, hi, ho, ci, co, counter)
     except StateError as exc:
         ctx.add(
             Finding(
@@ -210,10 +229,16 @@ def _check_temperatures(
             )
         )
         return
+    approach = [h - c for h, c in zip(hot_T, cold_T, strict=True)]
     i_min = min(range(len(approach)), key=approach.__getitem__)
     minimum = approach[i_min]
     result.extra["min_approach"] = minimum
     result.extra["min_approach_at_duty_fraction"] = fractions[i_min]
+    duty = [f * received for f in fractions]
+    result.profile = ExchangerProfile(duty=duty, hot_T=hot_T, cold_T=cold_T, pinch_index=i_min)
+    rating.min_approach = minimum
+    rating.min_approach_duty = duty[i_min]
+    rating.min_approach_fraction = fractions[i_min]
     terminal = min(hot.T - cold.T for _, hot, cold in ends)
     required = ctx.tolerances.min_approach
     if minimum < 0:
@@ -256,8 +281,9 @@ def approach_profile(
     ci: StreamResult,
     co: StreamResult,
     counter: bool,
-) -> tuple[list[float], list[float]]:
-    """Hot-minus-cold temperature difference [K] at fractions of duty from the cold inlet [-]."""
+) -> tuple[list[float], list[float], list[float]]:
+    """Fractions of duty from the cold inlet [-], and the hot and cold sides' temperatures there
+    [K]."""
     fractions = {i / PROFILE_POINTS for i in range(PROFILE_POINTS + 1)}
     for side_in, side_out in ((ci, co), (hi, ho)):
         for f in _saturation_fractions(ctx, side_in, side_out):
@@ -265,13 +291,12 @@ def approach_profile(
             # cold inlet, which is the hot outlet end in counter-current flow
             fractions.add(1.0 - f if (side_in is hi and counter) else f)
     ordered = sorted(x for x in fractions if 0.0 <= x <= 1.0)
-    approach = []
+    hot_T, cold_T = [], []
     for x in ordered:
-        cold_T = _side_T(ctx, ci, co, x)
+        cold_T.append(_side_T(ctx, ci, co, x))
         hot_f = 1.0 - x if counter else x  # fraction along the hot side from its inlet
-        hot_T = _side_T(ctx, hi, ho, hot_f)
-        approach.append(hot_T - cold_T)
-    return ordered, approach
+        hot_T.append(_side_T(ctx, hi, ho, hot_f))
+    return ordered, hot_T, cold_T
 
 
 def _side_T(ctx: StepContext, inlet: StreamResult, outlet: StreamResult, f: float) -> float:
