@@ -10,8 +10,8 @@ A. Pruß, J. Phys. Chem. Ref. Data 31 (2002) 387), called here directly, not thr
 from __future__ import annotations
 
 import pytest
-from CoolProp.CoolProp import PropsSI
 from conftest import assert_close, audit_text, names
+from CoolProp.CoolProp import PropsSI
 
 HEADER = """
 balance:
