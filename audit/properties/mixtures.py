@@ -167,12 +167,16 @@ class IdealGasMixtures:
         enthalpy h − h_ig [J/mol] and its fugacity coefficient φ = f/P [-], from the reference
         equation of state (ln φ = (g − g_ig)/(R T), CoolProp HEOS). (0, 1) where the real fluid
         would not be a gas (at or above its vapour pressure): the written gas is then a
-        hypothetical ideal-gas state, as in the standard state."""
+        hypothetical ideal-gas state, as in the standard state; (0, 1) too above the equation's
+        upper temperature or pressure, where it is not valid (and a gas at cell pressures is ideal
+        to well within the property allowance)."""
         self._check_range(fluid, T)
         p_sat = self.saturation_pressure(fluid, T)
         if p_sat is not None and P >= p_sat:
             return 0.0, 1.0
         state = self._state(fluid)
+        if T > state.Tmax() or P > state.pmax():
+            return 0.0, 1.0
         try:
             state.update(CP.PT_INPUTS, P, T)
             self.flash_count += 1
