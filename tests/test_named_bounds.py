@@ -140,3 +140,29 @@ steps:
     assert step.bound_basis == "exergy drop"
     assert step.W_rev == step.W_rev_exergy
     assert step.minus_dG_isothermal is None and step.T_isothermal is None
+
+
+def test_json_and_workbook_carry_each_bound_under_its_own_name(tmp_path):
+    import openpyxl
+
+    from audit.report.machine import to_dict
+    from audit.report.workbook import write_workbook
+
+    result = _vessel(tmp_path, "20 kJ")
+    (step,) = to_dict(result)["steps"]
+    assert step["bound_basis"] == "-ΔA (isothermal closed)"
+    assert step["W_rev"] == step["minus_dA_isothermal"]
+    for key in ("W_rev_exergy", "T_isothermal", "minus_dG_isothermal", "useful_work_bound"):
+        assert key in step
+    book_path = tmp_path / "book.xlsx"
+    write_workbook(result, book_path)
+    sheet = openpyxl.load_workbook(book_path)["Steps"]
+    headers = [c.value for c in next(sheet.iter_rows(max_row=1))]
+    for header in (
+        "exergy drop Ẇ_rev [kW | kJ]",
+        "isothermal at [°C]",
+        "−ΔG at that temperature [kW | kJ]",
+        "−ΔA at that temperature [kJ]",
+        "useful-work bound Ẇ_rev − P0·ΔV [kJ]",
+    ):
+        assert header in headers

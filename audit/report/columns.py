@@ -213,7 +213,7 @@ STEPS = Table(
         Column("T_isothermal", "isothermal at [°C]", "temperature"),
         Column("minus_dG_isothermal", "−ΔG at that temperature [kW | kJ]", "power"),
         Column("minus_dA_isothermal", "−ΔA at that temperature [kJ]", "power"),
-        Column("useful_work_bound", "useful-work bound −P0·ΔV [kJ]", "power"),
+        Column("useful_work_bound", "useful-work bound Ẇ_rev − P0·ΔV [kJ]", "power"),
         Column("second_law_efficiency", "second-law efficiency [%]", "fraction", fmt=PERCENT),
         Column("isentropic_efficiency", "isentropic efficiency [%]", "fraction", fmt=PERCENT),
         Column("claimed", "claimed", joined=", "),
