@@ -166,3 +166,28 @@ def test_json_and_workbook_carry_each_bound_under_its_own_name(tmp_path):
         "useful-work bound Ẇ_rev − P0·ΔV [kJ]",
     ):
         assert header in headers
+
+
+@pytest.mark.parametrize("work,fails", [("0 kW", False), ("5 kW", True)])
+def test_boiling_water_claims_no_other_work_however_large_its_duty(tmp_path, work, fails):
+    # Water boiling at 101.325 kPa (IAPWS-95: 99.974 °C, h_fg = 2256.4 kJ/kg; reference-values
+    # row 9): ΔG = 0 at that one temperature, so no work beyond the tolerance (here 1e-5 of the
+    # duty, set explicitly; the default tolerance is another matter). The heat's source temperature
+    # is not declared: on an isothermal step it is exchanged at the step's temperature.
+    body = f"""
+streams:
+  L: {{fluid: Water, P: 101.325 kPa, quality: 0, flow: 1 kg/s}}
+  V: {{fluid: Water, P: 101.325 kPa, quality: 1, flow: 1 kg/s}}
+steps:
+  - id: BOIL
+    kind: general
+    inlets: [L]
+    outlets: [V]
+    work_delivered: {work}
+"""
+    result = audit_text(tmp_path, body, HEADER)
+    step = result.step("BOIL")
+    assert step.bound_basis == "-ΔG (isothermal flow)"
+    assert abs(step.W_rev) < 1e-6 * step.Q
+    assert_close(step.Q, 2256.4e3 + step.W, "W", atol=100.0, what="inferred duty = h_fg + W")
+    assert (("BOIL", "work-above-bound") in names(result)) is fails
