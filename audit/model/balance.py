@@ -18,7 +18,15 @@ import json
 from collections.abc import Sequence
 from typing import Annotated, Any, ClassVar, Union, get_args
 
-from pydantic import BaseModel, ConfigDict, Field, ValidationError, create_model, field_validator
+from pydantic import (
+    BaseModel,
+    ConfigDict,
+    Field,
+    ValidationError,
+    create_model,
+    field_validator,
+    model_validator,
+)
 
 from audit import units
 from audit.errors import InputError, InputErrors, Problem, UnitError
@@ -77,7 +85,10 @@ class Balance(BaseModel):
     step_kinds: ClassVar[dict[str, type[StepBase]]] = {}
 
     balance: BalanceInfo
-    streams: dict[str, StreamSpec] = Field(min_length=1)
+    streams: dict[str, StreamSpec] = Field(
+        default_factory=dict,
+        description="id -> stream; may be empty (or left out) for a balance of vessels only",
+    )
     steps: list[StepBase] = Field(default_factory=list)
     accepted: list[Acceptance] = Field(
         default_factory=list, description="findings a reviewer has accepted (audit.review.acceptance)"
@@ -92,6 +103,15 @@ class Balance(BaseModel):
         description="a claim table (step | field | value | unit) whose rows set fields of "
         "the steps (audit.input.tables)",
     )
+
+    @model_validator(mode="after")
+    def _something_to_audit(self) -> Balance:
+        if not self.streams and self.streams_from is None and not self.steps:
+            raise ValueError(
+                "a balance needs 'streams' (or 'streams_from'), or closed steps (kind 'vessel') "
+                "that hold no streams"
+            )
+        return self
 
 
 def balance_model(step_models: Sequence[type[StepBase]]) -> type[Balance]:
@@ -323,9 +343,7 @@ def json_schema(model: type[Balance]) -> dict:
         f"A plant energy balance for plant-audit (schema version {SCHEMA_VERSION}). Quantities "
         "are strings with units, e.g. '420 degC', '40 barg', '12 t/h', '2.5 MW'."
     )
-    # The streams may come from a table instead (audit.input.tables): one of the two is needed.
-    schema["required"] = [name for name in schema.get("required", []) if name != "streams"]
-    schema["anyOf"] = [{"required": ["streams"]}, {"required": ["streams_from"]}]
+    # No streams at all is valid: a balance of vessels (closed steps) has none.
     return schema
 
 

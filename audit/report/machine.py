@@ -50,6 +50,8 @@ UNITS = {
     "mass_flow": "kg/s",
     "molar_flow": "mol/s",
     "Q, W, dH, dU, dG, dA, W_rev, exergy_destroyed, energy_residual": "W (flow steps) or J (vessels)",
+    "W_rev_exergy, minus_dG_isothermal, minus_dA_isothermal, useful_work_bound": "W or J",
+    "T_isothermal": "K",
     "dS, S_gen": "W/K or J/K",
 }
 

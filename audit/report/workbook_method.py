@@ -67,11 +67,15 @@ METHOD_TEXT: tuple[tuple[str, str], ...] = (
     ),
     (
         "Bound basis",
-        "Which potential governs the step: 'exergy drop' in general; '−ΔG (isothermal flow)' when "
-        "every stream and declared heat temperature lies within the isothermal band (then "
-        "Ẇ_rev = −ΔG); for vessels, −ΔA when isothermal, −ΔG for the work other than expansion work "
-        "when also isobaric, else the closed-system exergy drop. The classical bound column holds "
-        "that −ΔG or −ΔA when it applies.",
+        "Which potential governs the step, and the bound the work check uses (Ẇ_rev): 'exergy "
+        "drop' in general (heat at its boundary temperatures); '−ΔG (isothermal flow)' when every "
+        "stream and declared heat temperature lies within the isothermal band of one temperature "
+        "T (undeclared heat is then exchanged at T): Ẇ_rev = −ΔG = −(ΔĖ − T·ΔṠ) of the streams at "
+        "that one T, so Ẇ_rev − W = T·Ṡ_gen + residual; for vessels, '−ΔA (isothermal closed)': "
+        "W_rev = −ΔA = −(ΔU − T·ΔS), useful work at most −ΔA − P0·ΔV (and, when also isobaric, "
+        "work other than expansion work at most −ΔG = −ΔA − P·ΔV), else the closed-system exergy "
+        "drop. Each bound has its own column: exergy drop, −ΔG and −ΔA at that temperature, the "
+        "useful-work bound; the classical bound column repeats −ΔG or −ΔA when it governs.",
     ),
     (
         "Heat without a declared temperature",

@@ -107,6 +107,7 @@ def flow_balance(
         W_rev=W_rev,
         exergy_destroyed=exergy_destroyed(S_gen, T0),
         energy_scale=scale,
+        W_rev_exergy=W_rev,
     )
 
 
@@ -192,6 +193,7 @@ def closed_balance(
         W_rev=W_rev,
         exergy_destroyed=exergy_destroyed(S_gen, T0),
         energy_scale=scale,
+        W_rev_exergy=W_rev,
     )
 
 

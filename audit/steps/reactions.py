@@ -226,6 +226,8 @@ class ReactionProperties:
     dH: float
     dS: float
     dG: float
+    pressures: Mapping[str, float] | None = None
+    fugacity: Mapping[str, float] | None = None
 
 
 def reaction_properties(
@@ -248,6 +250,41 @@ def reaction_properties(
         dH += nu * h
         dS += nu * s
     return ReactionProperties(T=T, P=P, dH=dH, dS=dS, dG=dH - T * dS)
+
+
+def reaction_properties_at_states(
+    engine: PropertyEngine,
+    reaction: Reaction,
+    T: float,
+    pressures: Mapping[str, float],
+    default_P: float,
+) -> ReactionProperties:
+    """Reaction properties at T [K] with every species at its own pressure [Pa] (``pressures`` by
+    label, ``H2O(l)`` for the liquid; ``default_P`` for one not given): each gas a real gas at its
+    own (partial) pressure, its fugacity from the reference equation of state, the liquid at its
+    own pressure [1, ch. 14]. This is ΔG = ΔG°(T) + R T Σ ν_i ln(f_i / p°) for the gases plus the
+    liquid's own g, the Nernst equation with fugacities.
+
+    Raises :class:`StateError` where a species cannot be evaluated at its state.
+    """
+    dH = dS = 0.0
+    used: dict[str, float] = {}
+    phis: dict[str, float] = {}
+    for nu, term in reaction.signed_terms():
+        P = pressures.get(term.label, default_P)
+        try:
+            h, s, phi = engine.species_real_molar(term.formula, term.phase, T, P)
+        except StateError as exc:
+            raise StateError(
+                f"the reaction '{reaction.equation}' with {term.label} at {to_celsius(T):.6g} °C "
+                f"and {to_bar(P):.6g} bar: {exc.problem.message}"
+            ) from None
+        dH += nu * h
+        dS += nu * s
+        used[term.label], phis[term.label] = P, phi
+    return ReactionProperties(
+        T=T, P=default_P, dH=dH, dS=dS, dG=dH - T * dS, pressures=used, fugacity=phis
+    )
 
 
 # -- heating values ---------------------------------------------------------------------------
