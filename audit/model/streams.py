@@ -21,9 +21,9 @@ from audit.model.composition import check_fractions, named_composition
 from audit.model.quantities import (
     Density,
     Length,
-    SpecificVolume,
     SpecificEnthalpy,
     SpecificEntropy,
+    SpecificVolume,
     StreamFlow,
     Velocity,
 )
