@@ -15,7 +15,7 @@ from __future__ import annotations
 
 from typing import Annotated, ClassVar, Literal
 
-from pydantic import BaseModel, ConfigDict, Field, model_validator
+from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
 
 from audit.model.composition import check_fractions, named_composition
 from audit.model.quantities import (
@@ -202,6 +202,14 @@ class StreamSpec(StateSpec):
     uncertainty: StreamUncertaintyField = None
 
     over_determined: ClassVar[bool] = True
+
+    @field_validator("state_from", mode="before")
+    @classmethod
+    def _pair_as_text(cls, value: object) -> object:
+        """A stream table writes the pair as text: 'P, h' or 'P h'."""
+        if isinstance(value, str):
+            return [part for part in value.replace(",", " ").split() if part]
+        return value
 
     @model_validator(mode="after")
     def _fluid_or_composition(self) -> StreamSpec:
