@@ -47,10 +47,11 @@ _INPUT_NAMES = {
     "Ph": ("P", "h"),
     "Ps": ("P", "s"),
 }
-PRECEDENCE = ("Ph", "Ps", "PQ", "TQ", "TP")
+PRECEDENCE = ("PQ", "TQ", "Ph", "Ps", "TP")
 """The pair that fixes an over-determined state when ``state_from`` names none: the first of these
-whose two properties are given. (P, h) first: it is well conditioned in every phase and is what
-energy balances are built on; (T, P) last, as it cannot fix a two-phase state."""
+whose two properties are given. A printed quality first: it says the state is saturated, where
+(P, h) is ill-conditioned at the phase boundary; then (P, h), what energy balances are built on;
+(T, P) last, as it cannot fix a two-phase state."""
 CLAIMS = ("T", "P", "quality", "h", "s", "u", "v", "rho", "T_sat")
 """The properties a stream may print; those outside its fixing pair are claims."""
 
@@ -192,7 +193,7 @@ class StreamSpec(StateSpec):
     ) = Field(
         None,
         description="the two properties that fix the state when more are printed, e.g. "
-        "[P, h]; without it the first given of (P, h), (P, s), (P, quality), (T, quality), "
+        "[P, h]; without it the first given of (P, quality), (T, quality), (P, h), (P, s), "
         "(T, P)",
     )
     phase: Literal["liquid", "vapour", "two-phase", "supercritical"] | None = Field(

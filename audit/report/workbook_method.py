@@ -38,8 +38,8 @@ METHOD_TEXT: tuple[tuple[str, str], ...] = (
     ),
     (
         "Printed properties",
-        "A stream fixes its state by one pair (state_from, or the first given of (P, h), (P, s), "
-        "(P, quality), (T, quality), (T, P)); every other printed property (T, P, quality, h, s, u, "
+        "A stream fixes its state by one pair (state_from, or the first given of (P, quality), "
+        "(T, quality), (P, h), (P, s), (T, P)); every other printed property (T, P, quality, h, s, u, "
         "v, ρ, T_sat) is checked against that state. Allowed: half a unit of its last written digit "
         "(GUM JCGM 100:2008 §F.2.2.1), the fixing pair's rounding carried through worst-case, and "
         "1e-8 relative (CoolProp against the published verification tables). Beyond that, within the "
