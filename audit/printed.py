@@ -130,7 +130,7 @@ def check_stream(
             continue
         difference = w.value - value
         allowance = w.rounding + spread.get(name, 0.0) + NUMERICAL * abs(value)
-        digits = difference / (w.scale * w.resolution)
+        digits = difference / (w.scale * w.resolution) if w.resolution > 0 else None
         verdict = "agrees"
         if abs(difference) > allowance:
             band = abs(alternative[name] - value) if name in alternative else 0.0
@@ -143,7 +143,7 @@ def check_stream(
         elif verdict == "differs":
             failing.append(name)
     if failing:
-        odd = _odd_one_out(spec, engine, texts, fluid, other)
+        odd = _odd_one_out(spec, engine, texts, fluid)
         for name in failing:
             if computed.get(name) is not None:
                 findings.append(_mismatch(stream_id, name, texts[name], out[name], spec, odd, texts))
@@ -160,6 +160,8 @@ def _written(name: str, text: Any, value: float, site: float | None) -> _Written
     kind = KINDS[name]
     shown = text if text is not None else repr(value)
     resolution = written_resolution(shown) or 0.0
+    if name == "quality" and value in (0.0, 1.0):
+        resolution = 0.0  # a saturated liquid or vapour: exact by definition, not a rounded number
     if kind is None or not isinstance(shown, str):
         return _Written(str(shown), float(value), 0.5 * resolution, 1.0, 0.0, resolution)
     try:
@@ -256,10 +258,10 @@ def _odd_one_out(
     engine: PropertyEngine,
     texts: dict[str, _Written],
     fluid: str,
-    other: PropertyEngine | None,
 ) -> str | None:
     """The one printed property that disagrees when the state is fixed by another printed pair
-    that makes all the others agree; None when no pair, or more than one culprit, does."""
+    that makes all the others agree (within rounding, on the balance's own formulation); None
+    when no pair, or more than one culprit, does."""
     given = [n for n in _FIXING if n in texts]
     if len(texts) < 3:
         return None
@@ -276,7 +278,6 @@ def _odd_one_out(
             continue
         rest = [n for n in texts if n not in (a_name, b_name)]
         spread = _propagated(engine, fluid, pair, a, b, texts, values, rest)
-        alternative = _other_values(other, fluid, pair, a, b) if other is not None else {}
         wrong = []
         for n in rest:
             x = values.get(n)
@@ -284,7 +285,6 @@ def _odd_one_out(
                 wrong.append(n)
                 continue
             allowance = texts[n].rounding + spread[n] + NUMERICAL * abs(x)
-            allowance += abs(alternative[n] - x) if n in alternative else 0.0
             if abs(texts[n].value - x) > allowance:
                 wrong.append(n)
         if len(wrong) == 1:
@@ -308,6 +308,13 @@ def _difference(difference: float, w: _Written) -> str:
     return f"{number:+.3g}{' ' + unit if unit else ''}"
 
 
+def _in_digits(claim: Printed, before: str, after: str = "") -> str:
+    """The difference in units of the last printed digit, for messages ('' for an exact value)."""
+    if claim.digits is None:
+        return ""
+    return f"{before}{claim.digits:+.3g} units of the last printed digit{after}"
+
+
 def _mismatch(
     stream_id: str,
     name: str,
@@ -321,9 +328,9 @@ def _mismatch(
     assert claim.computed is not None and claim.difference is not None
     message = (
         f"stream {stream_id} prints {name} = {w.text}, but the state fixed by ({fixing}) has "
-        f"{name} = {_shown(claim.computed, w)}: a difference of {_difference(claim.difference, w)}, "
-        f"{claim.digits:+.3g} units of the last printed digit (allowed: rounding and the fixing "
-        f"pair's rounding, {_difference(claim.allowance, w).lstrip('+')})"
+        f"{name} = {_shown(claim.computed, w)}: a difference of {_difference(claim.difference, w)}"
+        f"{_in_digits(claim, ', ')} (allowed: rounding and the fixing pair's rounding, "
+        f"{_difference(claim.allowance, w).lstrip('+')})"
     )
     others = [n for n in texts if n != name]
     if odd == name:
@@ -368,8 +375,8 @@ def _formulation(
         "formulation-difference",
         None,
         f"stream {stream_id} prints {name} = {w.text}; {names[this]} gives "
-        f"{_shown(claim.computed, w)}, a difference of {_difference(claim.difference, w)} "
-        f"({claim.digits:+.3g} units of the last printed digit), beyond rounding but within the "
+        f"{_shown(claim.computed, w)}, a difference of {_difference(claim.difference, w)}"
+        f"{_in_digits(claim, ' (', ')')}, beyond rounding but within the "
         f"known difference between formulations ({names[other]} gives "
         f"{_shown(alternative[name], w)}): the balance was probably computed with "
         f"{names[other]}; declare 'formulation: {other}' under 'balance:' if so",
