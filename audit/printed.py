@@ -37,30 +37,19 @@ from audit.model.streams import PAIRS, StreamSpec
 from audit.properties.engine import PropertyEngine, State
 from audit.properties.formulations import NUMERICAL
 
-KINDS = {
-    "T": "temperature",
-    "P": "pressure",
-    "h": "specific_enthalpy",
-    "s": "specific_entropy",
-    "u": "specific_enthalpy",
-    "v": "specific_volume",
-    "rho": "density",
-    "T_sat": "temperature",
-    "quality": None,
+PROPERTIES = {
+    "T": ("temperature", "temperature"),
+    "P": ("pressure", "pressure"),
+    "h": ("specific_enthalpy", "specific_energy"),
+    "s": ("specific_entropy", "specific_entropy"),
+    "u": ("specific_enthalpy", "specific_energy"),
+    "v": ("specific_volume", "specific_volume"),
+    "rho": ("density", "density"),
+    "T_sat": ("temperature", "temperature"),
+    "quality": (None, "fraction"),
 }
-"""How each printed property is written (a unit kind of :mod:`audit.units`; quality: a number)."""
-QUANTITY = {
-    "T": "temperature",
-    "P": "pressure",
-    "h": "specific_energy",
-    "s": "specific_entropy",
-    "u": "specific_energy",
-    "v": "specific_volume",
-    "rho": "density",
-    "T_sat": "temperature",
-    "quality": "fraction",
-}
-"""The display quantity of each property in findings."""
+"""Each printed property: how it is written (a unit kind of :mod:`audit.units`; quality: a plain
+number) and its display quantity in findings."""
 _FIXING = ("T", "P", "quality", "h", "s")
 _NAMES = {
     "TP": ("T", "P"),
@@ -152,12 +141,12 @@ def check_stream(
 
 # -- values ----------------------------------------------------------------------------------------
 def _given(spec: StreamSpec) -> list[str]:
-    return [n for n in KINDS if getattr(spec, n, None) is not None]
+    return [n for n in PROPERTIES if getattr(spec, n, None) is not None]
 
 
 def _written(name: str, text: Any, value: float, site: float | None) -> _Written:
     """The printed value's text, SI value, rounding bound and unit scale."""
-    kind = KINDS[name]
+    kind = PROPERTIES[name][0]
     shown = text if text is not None else repr(value)
     resolution = written_resolution(shown) or 0.0
     if name == "quality" and value in (0.0, 1.0):
@@ -351,7 +340,7 @@ def _mismatch(
         bound=claim.computed,
         margin=claim.difference,
         margin_relative=relative(claim.difference, claim.computed),
-        quantity=QUANTITY[name],
+        quantity=PROPERTIES[name][1],
         tolerance=claim.allowance,
         stream=stream_id,
     )
@@ -384,7 +373,7 @@ def _formulation(
         bound=claim.computed,
         margin=claim.difference,
         margin_relative=relative(claim.difference, claim.computed),
-        quantity=QUANTITY[name],
+        quantity=PROPERTIES[name][1],
         tolerance=claim.allowance,
         stream=stream_id,
     )

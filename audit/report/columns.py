@@ -128,7 +128,7 @@ def printed_cell(claims: Mapping[str, Any] | None) -> str:
         moved = f", {digits:+.3g} last digits" if digits is not None else ""
         parts.append(
             f"{name}: {get('text')} printed, {get('computed_text')} computed{moved} "
-            f"{marks.get(get('verdict'), '')}"
+            f"{marks.get(str(get('verdict')), '')}"
         )
     return "; ".join(parts)
 
