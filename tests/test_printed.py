@@ -157,7 +157,14 @@ def test_if97_declared_evaluates_states_on_if97(tmp_path):
 def test_if97_is_refused_for_another_fluid(tmp_path):
     stream = {"fluid": "R134a", "T": "20 degC", "P": "10 bar", "flow": "1 kg/s"}
     with pytest.raises(InputError, match="the formulation IF97 exists for Water only, not for R134a"):
-        run(tmp_path, {"R": stream}, formulation="IF97")
+        run(tmp_path, {"R": stream}, formulation={"R134a": "IF97"})
+
+
+def test_one_formulation_word_applies_to_the_fluids_it_exists_for(tmp_path):
+    stream = {"fluid": "R134a", "T": "20 degC", "P": "10 bar", "flow": "1 kg/s"}
+    result = run(tmp_path, {"R": stream, "W": R7_97_TABLE5}, formulation="IF97")
+    assert names(result) == []
+    assert "R134a: Tillner-Roth & Baehr" in result.provenance["equations of state"]
 
 
 # -- three printed properties, no fourth to tell ----------------------------------------------------
@@ -269,6 +276,12 @@ def test_stream_table_carries_printed_columns(tmp_path):
     result = audit.run(path)
     assert names(result) == []
     assert set(result.streams[0].printed) == {"T", "s", "v", "u"}
+    rows[1][5] = "0.392284792"  # one digit changed in s: its text comes from the cell
+    with (tmp_path / "streams.csv").open("w", newline="", encoding="utf-8") as handle:
+        csv.writer(handle).writerows(rows)
+    message = audit.run(path).findings[0].message
+    assert "prints s = 0.392284792 kJ/(kg K)" in message
+    assert "-1e+04 units of the last printed digit" in message
 
 
 def test_the_method_sheet_names_the_equations_of_state(tmp_path):

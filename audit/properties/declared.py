@@ -17,7 +17,7 @@ from typing import TYPE_CHECKING
 
 from audit.constants import STANDARD_ATMOSPHERE, ZERO_CELSIUS
 from audit.errors import StateError
-from audit.model.references import ExplicitReference, for_fluid
+from audit.model.references import FORMULATION_FLUIDS, ExplicitReference, for_fluid
 from audit.properties.fluids import Fluid
 from audit.properties.formulations import citation
 from audit.properties.state import State
@@ -48,7 +48,11 @@ class DeclaredBases:
     def formulation_of(self, name: str) -> str:
         """The formulation a fluid is evaluated on: ``"reference"`` or ``"IF97"``."""
         declared = for_fluid(self.formulation, name)
-        return str(declared) if declared is not None else "reference"
+        if declared is None:
+            return "reference"
+        if isinstance(self.formulation, str) and name not in FORMULATION_FLUIDS.get(str(declared), ()):
+            return "reference"  # one word for the balance: the fluids it exists for
+        return str(declared)
 
     def printed_offset(self, fluid: str) -> tuple[float, float]:
         """(Δh [J/kg], Δs [J/(kg K)]) to add to a printed h and s to reach the tool's table basis
