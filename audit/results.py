@@ -52,6 +52,9 @@ class StreamResult:
     description: str | None = None
     line: int | None = None
     composition: dict[str, float] | None = None
+    # Printed properties beyond the fixing pair, each beside the computed value (audit.printed):
+    # property -> Printed record; None when the stream prints only its two fixing properties.
+    printed: dict[str, Any] | None = None
 
     @property
     def kinetic_potential(self) -> float:

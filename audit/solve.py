@@ -25,9 +25,11 @@ from audit.errors import InputErrors, Problem, StateError
 from audit.findings import ERROR, WARNING, Finding, relative
 from audit.input.document import Document
 from audit.model.balance import Balance
+from audit.model.references import FORMULATION_FLUIDS
 from audit.model.streams import StreamSpec
 from audit.model.tolerances import merged
 from audit.plant import check_topology, plant_totals
+from audit.printed import check_stream
 from audit.properties.engine import BACKEND, COOLPROP_VERSION, GAS_CONSTANT, PropertyEngine, State
 from audit.results import AuditResult, StepResult, StreamResult
 from audit.steps import REGISTRY, StepContext
@@ -65,7 +67,13 @@ def solve(balance: Balance, document: Document) -> Solution:
     that is :mod:`audit.review`'s job)."""
     started = time.perf_counter()
     info = balance.balance
-    engine = PropertyEngine(info.dead_state.T, info.dead_state.P, info.tolerances.saturation_band)
+    engine = PropertyEngine(
+        info.dead_state.T,
+        info.dead_state.P,
+        info.tolerances.saturation_band,
+        reference=info.reference,
+        formulation=info.formulation,
+    )
     findings: list[Finding] = []
     streams, problems = _evaluate_streams(balance, document, engine, findings)
     problems += check_topology(balance, document, findings, streams)
@@ -139,6 +147,9 @@ def to_result(
             "plant-audit": __version__,
             "CoolProp": COOLPROP_VERSION,
             "property back end": f"{BACKEND} (IAPWS-95 for water)",
+            "equations of state": "; ".join(
+                f"{fluid}: {text}" for fluid, text in engine.equations_of_state().items()
+            ),
             "Python": platform.python_version(),
             "run at (UTC)": datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M:%S"),
             "solve time [s]": f"{elapsed:.3f}",
@@ -162,6 +173,8 @@ def _evaluate_streams(
             problems.append(Problem(exc.problem.message, **place, where=f"stream {stream_id}"))
             continue
         result = streams[stream_id]
+        if spec.claims() and spec.fluid is not None:
+            findings.extend(_printed_findings(balance, document, engine, stream_id, spec, result))
         if spec.phase is not None and result.phase not in _PHASE_MATCH[spec.phase]:
             findings.append(
                 Finding(
@@ -178,6 +191,48 @@ def _evaluate_streams(
                 _dew_point_findings(stream_id, engine.state(result.fluid, "TP", result.T, result.P))
             )
     return streams, problems
+
+
+def _printed_findings(
+    balance: Balance,
+    document: Document,
+    engine: PropertyEngine,
+    stream_id: str,
+    spec: StreamSpec,
+    result: StreamResult,
+) -> list[Finding]:
+    """A stream's printed properties checked against its state (:mod:`audit.printed`); the
+    comparison is kept on the stream's result."""
+    pair, a, b = spec.inputs()
+    state = engine.state(result.fluid, pair, a, engine.to_tool_basis(result.fluid, pair, b))
+    written = (
+        document.data.get("streams", {}).get(stream_id, {}) if isinstance(document.data, dict) else {}
+    )
+    claims, found = check_stream(
+        stream_id,
+        spec,
+        state,
+        engine,
+        written if isinstance(written, dict) else {},
+        balance.balance.site_pressure,
+        _other_formulation(engine, result.fluid),
+    )
+    result.printed = claims or None
+    return found
+
+
+def _other_formulation(engine: PropertyEngine, fluid: str) -> PropertyEngine | None:
+    """An engine on the fluid's other formulation (water: IF97 beside IAPWS-95), or None."""
+    if fluid not in FORMULATION_FLUIDS["IF97"]:
+        return None
+    this = engine.formulation_of(fluid)
+    return PropertyEngine(
+        engine.dead_T,
+        engine.dead_P,
+        engine.saturation_band,
+        reference=engine.reference,
+        formulation={fluid: "IF97" if this == "reference" else "reference"},
+    )
 
 
 def _dew_point_findings(stream_id: str, state: State) -> list[Finding]:
@@ -222,7 +277,7 @@ def evaluate_stream(
             mass_flow = _mass_flow(spec.flow, state.fluid, state.rho, state.molar_mass, engine)
     else:
         fluid = cast(str, spec.fluid)  # validated: a stream without a composition names its fluid
-        state = engine.state(fluid, pair, a, b)
+        state = engine.state(fluid, pair, a, engine.to_tool_basis(fluid, pair, b))
         mass_flow = _mass_flow(spec.flow, fluid, state.rho, state.molar_mass, engine)
     return StreamResult(
         id=stream_id,

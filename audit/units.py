@@ -76,6 +76,8 @@ KINDS: dict[str, Kind] = {
             "J/(kg K)",
             "'6.5 kJ/(kg K)'",
         ),
+        Kind("density", "[mass] / [length] ** 3", "kg/m**3", "'890.3 kg/m3'"),
+        Kind("specific_volume", "[length] ** 3 / [mass]", "m**3/kg", "'0.0012 m3/kg'"),
         Kind("velocity", "[length] / [time]", "m/s", "'35 m/s'"),
         Kind("length", "[length]", "m", "'12 m'"),
         Kind("volume", "[length] ** 3", "m**3", "'2.5 m3'"),

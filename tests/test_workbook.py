@@ -266,6 +266,7 @@ def test_numbers_are_stored_as_numbers_with_formats(book):
         "declared phase",
         "flow as written",
         "basis",
+        "printed vs computed",
     }
     for col, header in enumerate(_headers(ws), start=1):
         if header in text_columns:

@@ -34,6 +34,7 @@ from audit.input.document import Document
 from audit.input.tables import TableSource
 from audit.model.acceptance import Acceptance
 from audit.model.quantities import Pressure, Temperature
+from audit.model.references import FormulationField, ReferenceField
 from audit.model.steps import StepBase
 from audit.model.streams import StreamSpec
 from audit.model.tolerances import ToleranceOverrides, Tolerances
@@ -70,6 +71,17 @@ class BalanceInfo(BaseModel):
     uncertainty: BalanceUncertainty | None = Field(
         None,
         description="measurement uncertainties: defaults per kind of quantity (audit.model.uncertainty)",
+    )
+    reference: ReferenceField = Field(
+        None,
+        description="the reference the printed h and s are written on: IIR, ASHRAE, NBP, IAPWS or "
+        "{h, s, T/P/quality} (an explicit state), for every pure fluid or as a mapping fluid -> "
+        "reference; default: the fluid's own (audit.model.references)",
+    )
+    formulation: FormulationField = Field(
+        None,
+        description="the equation of state the balance was computed with: 'reference' (default; "
+        "IAPWS-95 for water) or 'IF97' (water and steam), or a mapping fluid -> formulation",
     )
 
     @field_validator("revision", mode="before")

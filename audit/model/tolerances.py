@@ -33,6 +33,12 @@ class Tolerances(BaseModel):
         validate_default=True,
         description="energy residual and work-bound margin always allowed for a closed vessel",
     )
+    energy_floor_fraction: float = Field(
+        0.05,
+        ge=0,
+        description="the absolute energy floor never exceeds this fraction of the step's own "
+        "work or heat (so that it cannot hide a small machine)",
+    )
     mass_relative: float = Field(
         0.002, ge=0, description="mass residual allowed, as a fraction of the inlet flow"
     )
@@ -93,6 +99,7 @@ class ToleranceOverrides(BaseModel):
     energy_relative: float | None = Field(None, ge=0)
     energy_absolute: Power | None = None
     energy_absolute_batch: Energy | None = None
+    energy_floor_fraction: float | None = Field(None, ge=0)
     mass_relative: float | None = Field(None, ge=0)
     mass_absolute: MassFlow | None = None
     efficiency: float | None = Field(None, ge=0)

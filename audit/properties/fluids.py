@@ -10,6 +10,7 @@ part, read at a low density and moved to 1 bar with the exact ideal-gas term −
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass
 
 import CoolProp.CoolProp as CP
@@ -17,6 +18,7 @@ import CoolProp.CoolProp as CP
 from audit.constants import GAS_CONSTANT, P_STANDARD, T_STANDARD
 from audit.errors import StateError
 from audit.formation import species
+from audit.properties.formulations import open_state
 from audit.properties.state import BASIS_FLUID, BASIS_FORMATION
 from audit.wording import to_bar, to_celsius
 
@@ -59,11 +61,16 @@ class Fluid:
     h_shift: float  # J/kg added to CoolProp's h (and u) to reach the formation basis
     s_shift: float  # J/(kg K) added to CoolProp's s
     basis: str
+    T_triple: float = 0.0  # K, the triple-point temperature (the IAPWS reference's state)
+    formulation: str = "reference"  # the equation of state (audit.properties.formulations)
 
 
-def open_fluid(name: str) -> tuple[Fluid, CP.AbstractState]:
-    """A fluid's constants and a CoolProp state object for it, by CoolProp name or alias;
-    :class:`StateError` for an unknown fluid."""
+def open_fluid(
+    name: str, formulation_of: Callable[[str], str] = lambda _: "reference"
+) -> tuple[Fluid, CP.AbstractState]:
+    """A fluid's constants and a CoolProp state object for it, by CoolProp name or alias, on the
+    formulation ``formulation_of(canonical name)`` gives; :class:`StateError` for an unknown fluid.
+    The formation-basis shift is always taken from the reference equation (HEOS)."""
     try:
         state = CP.AbstractState(BACKEND, name)
     except ValueError:
@@ -83,6 +90,10 @@ def open_fluid(name: str) -> tuple[Fluid, CP.AbstractState]:
         h_shift = (data.enthalpy_of_formation - h_ig) / M
         s_shift = (data.standard_entropy - s_ig) / M
         basis = BASIS_FORMATION
+    T_triple = state.Ttriple()
+    formulation = formulation_of(canonical)
+    if formulation != "reference":
+        state = open_state(canonical, formulation)
     info = Fluid(
         name=canonical,
         T_min=state.Tmin(),
@@ -94,6 +105,8 @@ def open_fluid(name: str) -> tuple[Fluid, CP.AbstractState]:
         h_shift=h_shift,
         s_shift=s_shift,
         basis=basis,
+        T_triple=T_triple,
+        formulation=formulation,
     )
     return info, state
 

@@ -54,6 +54,7 @@ class Column:
     flatten: bool = False  # CSV: one column per key of the mapping, named key.name
     machine: bool = True  # False: a workbook-only column (computed by its sheet)
     wrap: bool = False  # the workbook cell wraps
+    omit_none: bool = False  # the JSON and CSV leave the field out of a row where it is None
 
     def value(self, row: Any) -> Any:
         """The field's value in ``row`` (the result object), as stored."""
@@ -91,14 +92,18 @@ class Table:
     # -- the machine outputs --------------------------------------------------------------------
     def json_row(self, row: Any) -> dict[str, Any]:
         """One object of the JSON: every machine column, structured values as plain data."""
-        return {c.key: plain(c.value(row)) for c in self.machine_columns if c.json}
+        return {
+            c.key: plain(c.value(row))
+            for c in self.machine_columns
+            if c.json and not (c.omit_none and c.value(row) is None)
+        }
 
     def csv_row(self, row: Any) -> dict[str, Any]:
         """One row of the CSV table (SI): structured values as one cell, mappings flattened."""
         out: dict[str, Any] = {}
         flattened: dict[str, Any] = {}
         for c in self.machine_columns:
-            if not c.csv:
+            if not c.csv or (c.omit_none and c.value(row) is None):
                 continue
             value = plain(c.value(row))
             if c.flatten:
@@ -107,6 +112,25 @@ class Table:
                 out[c.key] = c.cell(value) if c.cell else value
         out.update(flattened)  # after the other columns
         return out
+
+
+def printed_cell(claims: Mapping[str, Any] | None) -> str:
+    """A stream's printed properties beside the computed ones, in one cell: ``s: 0.5957 printed,
+    0.59722 computed, -15 last digits ✗``; ✗ marks a property that differs beyond its allowance,
+    ≈ one within the difference between formulations (:mod:`audit.printed`)."""
+    if not claims:
+        return ""
+    marks = {"agrees": "✓", "formulation": "≈", "differs": "✗"}
+    parts = []
+    for name, claim in claims.items():
+        get = claim.get if isinstance(claim, Mapping) else lambda key, c=claim: getattr(c, key)
+        digits = get("digits")
+        moved = f", {digits:+.3g} last digits" if digits is not None else ""
+        parts.append(
+            f"{name}: {get('text')} printed, {get('computed_text')} computed{moved} "
+            f"{marks.get(str(get('verdict')), '')}"
+        )
+    return "; ".join(parts)
 
 
 def plain(value: Any) -> Any:
@@ -145,6 +169,7 @@ STREAMS = Table(
         Column("description", "description", wrap=True),
         Column("line", "line in file", fmt=INTEGER),
         Column("composition"),  # mole fractions by species: JSON and CSV only
+        Column("printed", "printed vs computed", cell=printed_cell, omit_none=True, wrap=True),
         # the workbook's own columns
         Column("findings", "findings", machine=False),
         Column("from_step", "from step", machine=False),
@@ -173,6 +198,7 @@ STREAMS = Table(
         "a",
         "psi",
         "basis",
+        "printed",
         "velocity",
         "elevation",
         "line",

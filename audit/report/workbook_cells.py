@@ -52,6 +52,7 @@ FORMATS = {
     "specific_energy": "#,##0.00",
     "specific_entropy": "0.00000",
     "density": "0.000",
+    "specific_volume": "0.000000",
     "fraction": "0.0000",
     "mass": "#,##0.000",
     "velocity": "0.00",

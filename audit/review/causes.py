@@ -40,6 +40,7 @@ from audit.errors import InputError
 from audit.findings import ERROR, MARGINAL, VIOLATED, Finding
 from audit.results import StepResult, StreamResult
 from audit.review.margins import LAW_FINDINGS, Margin, margin_function
+from audit.review.reference_slips import FluidSlip, reference_slips
 from audit.review.runner import StepRunner
 from audit.review.slips import Slip, step_slips, stream_slips
 
@@ -178,6 +179,20 @@ def name_causes(
             score = _closes(failing[index], result, new, runner.streams)
             if score is not None:
                 named[index].append((score, order, slip.sentence))
+    if any(state.violated for state in failing.values()):
+        # Of the reference slips that close, only those leaving the fewest errors are named (a
+        # reference 18 kJ/kg off may still close a loose step but leave a wet suction behind).
+        judged = []
+        for fluid_slip in reference_slips(runner):
+            order += 1
+            outcome = _judge_fluid_slip(runner, fluid_slip, failing, by_step_findings)
+            if outcome is not None:
+                judged.append((outcome[1], order, fluid_slip.sentence, outcome[0]))
+        fewest = min((j[0] for j in judged), default=0)
+        for left, slip_order, sentence, closed in judged:
+            for index, score in closed if left == fewest else ():
+                # one that clears every error of the steps it touches comes before the others
+                named[index].append((-1.0 if left == 0 else score, slip_order, sentence))
     findings = list(findings)
     for index, causes in named.items():
         sentences = tuple(s for _, _, s in sorted(causes)[:MAX_CAUSES])
@@ -218,3 +233,37 @@ def _judge_stream_slip(
         others = [runner.balance.steps[i].id for i, _ in closed if i != index]
         also = f" (it also closes {', '.join(others)})" if others else ""
         named[index].append((score, order, slip.sentence + also))
+
+
+def _judge_fluid_slip(
+    runner: StepRunner,
+    slip: FluidSlip,
+    failing: dict[int, _Failing],
+    by_step_findings: dict[int, list[Finding]],
+) -> tuple[list[tuple[int, float]], int] | None:
+    """A reference slip closes when it closes every failing step its streams pass through and
+    breaks no other step: the steps it closes with their scores, and the errors left on the steps
+    it touches; None when it does not close."""
+    try:
+        replaced = {sid: runner.stream(sid, changes) for sid, changes in slip.changes.items()}
+    except InputError:
+        return None
+    streams = {**runner.streams, **replaced}
+    users = sorted({i for sid in replaced for i in runner.users[sid]})
+    closed: list[tuple[int, float]] = []
+    left = 0
+    for index in users:
+        try:
+            result, new = runner.run(index, None, replaced)
+        except InputError:
+            return None
+        left += sum(1 for f in new if f.severity == ERROR)
+        if index in failing:
+            score = _closes(failing[index], result, new, streams)
+            if score is None and failing[index].violated:
+                return None
+            if score is not None:
+                closed.append((index, score))
+        elif _breaks(by_step_findings.get(index, []), new):
+            return None
+    return (closed, left) if closed else None

@@ -199,9 +199,34 @@ def closed_balance(
 
 def energy_tolerance(balance: Balance, tol: Tolerances, batch: bool) -> float:
     """Allowed energy residual and work-bound margin [W] or [J]: the larger of the relative
-    tolerance times the step's energy scale and the absolute tolerance."""
+    tolerance times the step's energy scale and the absolute floor (:func:`energy_floor`)."""
+    return max(tol.energy_relative * balance.energy_scale, energy_floor(balance, tol, batch))
+
+
+def energy_floor(balance: Balance, tol: Tolerances, batch: bool) -> float:
+    """The absolute floor of the energy tolerance [W] or [J], never more than
+    ``energy_floor_fraction`` of the step's own size, the larger of its work and its net heat, so
+    that the floor cannot hide a small machine: min(absolute, fraction · max(|W|, |Q|)). A step
+    with neither work nor heat (a valve, a splitter, a mixer) keeps the whole floor: its turnover
+    is its residual itself."""
     absolute = tol.energy_absolute_batch if batch else tol.energy_absolute
-    return max(tol.energy_relative * balance.energy_scale, absolute)
+    size = max(abs(balance.W), abs(balance.Q))
+    return absolute if size == 0.0 else min(absolute, tol.energy_floor_fraction * size)
+
+
+def floor_note(balance: Balance, tol: Tolerances, batch: bool) -> str:
+    """Words for a finding whose tolerance the absolute floor set (empty otherwise)."""
+    floor = energy_floor(balance, tol, batch)
+    if floor <= tol.energy_relative * balance.energy_scale:
+        return ""
+    absolute = tol.energy_absolute_batch if batch else tol.energy_absolute
+    if floor < absolute:
+        return (
+            f"; the tolerance is the absolute floor, capped at "
+            f"{tol.energy_floor_fraction:.0%} of the step's "
+            f"{_kw(max(abs(balance.W), abs(balance.Q)), batch)} of work or heat"
+        )
+    return f"; the tolerance is the absolute floor of {_kw(absolute, batch)}"
 
 
 def law_findings(
@@ -274,7 +299,8 @@ def law_findings(
                 f"the first law does not close: heat in minus work out is "
                 f"{_kw(balance.Q - balance.W, batch)}, but the "
                 f"{'contents' if batch else 'streams'}' energy changes by {_kw(change, batch)}, a "
-                f"residual of {_kw(r, batch)} (tolerance {_kw(tol_E, batch)})",
+                f"residual of {_kw(r, batch)} (tolerance {_kw(tol_E, batch)}"
+                f"{floor_note(balance, tol, batch)})",
                 claimed=balance.Q - balance.W,
                 bound=balance.dH + balance.KE_PE_out - balance.KE_PE_in if not batch else balance.dU,
                 margin=abs(r),

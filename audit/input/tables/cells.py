@@ -14,7 +14,17 @@ from typing import Any
 from audit.input.tables.grid import Cell
 
 QUANTITY_KINDS = frozenset(
-    {"temperature", "pressure", "specific_enthalpy", "specific_entropy", "velocity", "length", "flow"}
+    {
+        "temperature",
+        "pressure",
+        "specific_enthalpy",
+        "specific_entropy",
+        "specific_volume",
+        "density",
+        "velocity",
+        "length",
+        "flow",
+    }
 )
 """The cell kinds that are quantities written with a unit."""
 

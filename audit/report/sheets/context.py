@@ -33,6 +33,7 @@ TOLERANCE_QUANTITY = {
     "energy_relative": "fraction",
     "energy_absolute": "power",
     "energy_absolute_batch": "energy",
+    "energy_floor_fraction": "fraction",
     "mass_relative": "fraction",
     "mass_absolute": "mass_flow",
     "efficiency": "fraction",
