@@ -12,6 +12,7 @@ from typing import TYPE_CHECKING
 
 from audit.errors import InputError
 from audit.exitcodes import EXIT_FINDINGS, EXIT_PASS
+from audit.printable import escaped
 
 if TYPE_CHECKING:
     from audit.outcomes import FileOutcome
@@ -111,7 +112,7 @@ def run(args: argparse.Namespace) -> int:
         write_workbook(result, args.output, fail_on=args.fail_on)
     failed = result.fails(args.fail_on, marginal=args.fail_on_marginal)
     if args.quiet:
-        print(f"{args.file}: {'FAIL' if failed else 'PASS'}")
+        print(f"{escaped(args.file)}: {'FAIL' if failed else 'PASS'}")
     else:
         if not args.brief:
             print(stream_table(result))

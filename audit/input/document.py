@@ -59,6 +59,9 @@ class Document:
     file: str
     positions: dict[Path_, tuple[int, int]] = field(default_factory=dict)
     cells: dict[Path_, tuple[str, str]] = field(default_factory=dict)
+    texts: dict[Path_, str] = field(default_factory=dict)
+    """The text of each number written in the first two levels (``balance: revision: 1.10``), where
+    the value read ("1.1") would lose what was written."""
 
     def position(self, path: Path_) -> tuple[int | None, int | None]:
         """Line and column of the value at ``path``, or of its nearest written ancestor."""
@@ -95,6 +98,7 @@ class _Builder:
         self._seen: set[int] = set()
         self._open: set[int] = set()  # collections being built: an alias back to one is a loop
         self.positions: dict[Path_, tuple[int, int]] = {}
+        self.texts: dict[Path_, str] = {}
         self._scalar = SafeConstructor()
 
     def _fail(self, node: yaml.Node, message: str) -> InputError:
@@ -129,6 +133,14 @@ class _Builder:
                 raise self._fail(node, f"the tag '{node.tag}' is not allowed in a balance file")
             if node.tag == _STANDARD_TAG + "timestamp":
                 return node.value  # keep dates as written (and never fail on 2024-02-30)
+            if node.tag == _STANDARD_TAG + "bool" and node.value.lower() not in ("true", "false"):
+                raise self._fail(
+                    node,
+                    f"'{node.value}' reads as a yes/no value in YAML; write the number meant, "
+                    "true or false, or put text in quotes",
+                )
+            if len(path) <= 2 and node.tag in (_STANDARD_TAG + "float", _STANDARD_TAG + "int"):
+                self.texts[path] = node.value
             try:
                 return self._scalar.construct_object(node, deep=True)
             except (ValueError, IndexError, KeyError) as exc:
@@ -298,6 +310,13 @@ def _parse(text: str, file: str, flow_lines: dict | None) -> Document:
             if exc.context_mark and mark and exc.context_mark.line != mark.line:
                 context += f" (begun on line {exc.context_mark.line + 1})"
             problem = f"{context}: {problem}" if "found character '\\t'" not in problem else (problem)
+        if "could not find expected ':'" in problem and mark is not None:
+            line_text = text.split("\n", mark.line + 1)[mark.line] if text else ""
+            if len(line_text) > 1024:
+                problem = (
+                    f"a line of {len(line_text):,} characters: a key may be at most 1,024 "
+                    "characters long (a key this long is not a name)"
+                )
         if "expected <block end>" in problem:
             problem += " (check the indentation of this line)"
         if "\\t" in problem or "tab" in problem.lower():
@@ -330,7 +349,7 @@ def _parse(text: str, file: str, flow_lines: dict | None) -> Document:
     data = builder.build(node, ())
     if flow_lines and len(builder.flow_lines_built) != len(flow_lines):
         raise _FastPathDeclined  # a recognised line did not come back as a mapping where written
-    return Document(data=data, file=file, positions=builder.positions)
+    return Document(data=data, file=file, positions=builder.positions, texts=builder.texts)
 
 
 def _compose(text: str) -> yaml.Node | None:

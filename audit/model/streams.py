@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from typing import Annotated, Literal
 
-from pydantic import BaseModel, ConfigDict, Field, model_validator
+from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
 
 from audit.model.composition import check_fractions, named_composition
 from audit.model.quantities import (
@@ -44,7 +44,7 @@ _INPUT_NAMES = {
 class PropertyPair(BaseModel):
     """Two independent intensive properties (the fluid is given elsewhere)."""
 
-    model_config = ConfigDict(extra="forbid")
+    model_config = ConfigDict(extra="forbid", allow_inf_nan=False)
 
     T: TemperatureClaim = Field(None, description="temperature")
     P: PressureClaim = Field(None, description="pressure (absolute, or gauge as 'barg')")
@@ -57,6 +57,16 @@ class PropertyPair(BaseModel):
     s: Annotated[SpecificEntropy | None, ClaimField("specific_entropy")] = Field(
         None, description="specific entropy on the fluid's usual table reference"
     )
+
+    @field_validator("quality", mode="before")
+    @classmethod
+    def _quality_number(cls, value: object) -> object:
+        if isinstance(value, bool):
+            raise ValueError(
+                f"expected a plain number here, not the value {value} (quality is the vapour mass "
+                "fraction, a number from 0 to 1, e.g. 0.95)"
+            )
+        return value
 
     @model_validator(mode="after")
     def _two_properties(self) -> PropertyPair:
