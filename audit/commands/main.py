@@ -9,8 +9,8 @@ import traceback
 
 from audit.commands import batch, check, convert, diff, history, reconcile, schema, template
 from audit.errors import InputError, ReportError
-from audit.printable import escaped
 from audit.exitcodes import EXIT_INPUT, EXIT_INTERNAL, EXIT_REPORT
+from audit.printable import escaped
 from audit.version import __version__
 
 COMMANDS = [check, batch, diff, history, schema, template, convert, reconcile]

@@ -13,6 +13,7 @@ plain Python data from that graph itself, so that
 
 from __future__ import annotations
 
+import stat
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -134,10 +135,13 @@ class _Builder:
             if node.tag == _STANDARD_TAG + "timestamp":
                 return node.value  # keep dates as written (and never fail on 2024-02-30)
             if node.tag == _STANDARD_TAG + "bool" and node.value.lower() not in ("true", "false"):
-                raise self._fail(
-                    node,
+raise InputError(
                     f"'{node.value}' reads as a yes/no value in YAML; write the number meant, "
                     "true or false, or put text in quotes",
+                    file=self.file,
+                    line=node.start_mark.line + 1,
+                    column=node.start_mark.column + 1,
+                    field_path=".".join(map(str, path)) or None,
                 )
             if len(path) <= 2 and node.tag in (_STANDARD_TAG + "float", _STANDARD_TAG + "int"):
                 self.texts[path] = node.value
@@ -256,24 +260,58 @@ class _FastPathDeclined(Exception):
     """The fast path of :mod:`audit.input.flowlines` does not apply: read the original text."""
 
 
-def read_text(path: Path) -> str:
-    """Read a balance file as UTF-8 text, refusing folders, huge files and undecodable bytes."""
+def read_bytes(path: Path, limit: int = MAX_FILE_BYTES, what: str = "a balance file") -> bytes:
+    """The bytes of a regular file of at most ``limit`` bytes. Anything else (a folder, a FIFO, a
+    device such as /dev/zero, a socket) is refused before it is opened, so nothing can hang or read
+    without end; the read itself stops one byte past the limit (a file that grows while it is read
+    is refused too)."""
     name = str(path)
-    if not path.exists():
-        raise InputError("no such file", file=name)
-    if path.is_dir():
-        raise InputError("is a folder, not a balance file", file=name)
     try:
-        size = path.stat().st_size
-        if size > MAX_FILE_BYTES:
-            raise InputError(
-                f"the file is {size / 2**20:.1f} MiB, larger than the {MAX_FILE_BYTES / 2**20:.0f} "
-                "MiB a balance file may be",
-                file=name,
-            )
-        raw = path.read_bytes()
-    except OSError as exc:  # permission denied, a device, an I/O error
+        info = path.stat()
+    except FileNotFoundError:
+        raise InputError("no such file", file=name) from None
+    except OSError as exc:  # permission denied on a folder, a name too long, a loop of links
         raise InputError(f"cannot be read: {exc.strerror or exc}", file=name) from None
+    if stat.S_ISDIR(info.st_mode):
+        raise InputError(f"is a folder, not {what}", file=name)
+    if not stat.S_ISREG(info.st_mode):
+        raise InputError(
+            f"is not a regular file (a {_file_kind(info.st_mode)}); give the path of {what}", file=name
+        )
+    too_big = InputError(
+        f"the file is {max(info.st_size, limit + 1) / 2**20:.1f} MiB, larger than the "
+        f"{limit / 2**20:.0f} MiB {what} may be",
+        file=name,
+    )
+    if info.st_size > limit:
+        raise too_big
+    try:
+        with path.open("rb") as handle:
+            raw = handle.read(limit + 1)
+    except OSError as exc:  # permission denied, an I/O error
+        raise InputError(f"cannot be read: {exc.strerror or exc}", file=name) from None
+    if len(raw) > limit:
+        raise too_big
+    return raw
+
+
+def _file_kind(mode: int) -> str:
+    for test, kind in (
+        (stat.S_ISFIFO, "named pipe"),
+        (stat.S_ISCHR, "character device"),
+        (stat.S_ISBLK, "block device"),
+        (stat.S_ISSOCK, "socket"),
+    ):
+        if test(mode):
+            return kind
+    return "special file"
+
+
+def read_text(path: Path) -> str:
+    """Read a balance file as UTF-8 text, refusing anything but a regular file, huge files and
+    undecodable bytes (:func:`read_bytes`)."""
+    name = str(path)
+    raw = read_bytes(path)
     try:
         return raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:

@@ -13,7 +13,6 @@ from pydantic import BaseModel, ConfigDict, Field, field_validator
 
 from audit.model.quantities import Energy, MassFlow, Power, TemperatureDifference
 
-
 MAX_RELATIVE = 0.5
 """Largest relative tolerance accepted (common practice: a check that lets half of the turnover go
 unaccounted for checks nothing; a typical design tolerance is 1 %)."""

@@ -154,6 +154,12 @@ def locate(document: Document, key: str, source: TableSource, allow_outside: boo
         raise fail(document, here, f"the table '{display}' does not exist")
     if resolved.is_dir():
         raise fail(document, here, f"the table '{display}' is a folder, not a file")
+    if not resolved.is_file():
+        raise fail(
+            document,
+            here,
+            f"the table '{display}' is not a regular file (a named pipe, a device or a socket)",
+        )
     size = resolved.stat().st_size
     if size > MAX_FILE_BYTES:
         raise fail(
