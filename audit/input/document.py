@@ -135,7 +135,7 @@ class _Builder:
             if node.tag == _STANDARD_TAG + "timestamp":
                 return node.value  # keep dates as written (and never fail on 2024-02-30)
             if node.tag == _STANDARD_TAG + "bool" and node.value.lower() not in ("true", "false"):
-raise InputError(
+                raise InputError(
                     f"'{node.value}' reads as a yes/no value in YAML; write the number meant, "
                     "true or false, or put text in quotes",
                     file=self.file,
