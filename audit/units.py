@@ -50,7 +50,11 @@ MAX_QUANTITY_CHARS = 200
 
 PLAUSIBLE: dict[str, tuple[float, float, str]] = {
     "temperature": (1.0, 6000.0, "1 K to 6000 K (from liquid-helium service to flames and arcs)"),
-    "pressure": (1.0, 1e10, "1 Pa to 10 GPa (from deep vacuum to far beyond high-pressure polymer reactors, which run at 0.3 GPa)"),
+    "pressure": (
+        1.0,
+        1e10,
+        "1 Pa to 10 GPa (deep vacuum to far beyond high-pressure polymer reactors, at 0.3 GPa)",
+    ),
     "velocity": (
         -3000.0,
         3000.0,

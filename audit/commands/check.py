@@ -66,15 +66,26 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     )
 
 
+MAX_DRAWS = 1_000_000
+"""Most Monte Carlo draws per step: GUM Supplement 1 (JCGM 101:2008, §7.2) takes 10^6 trials as
+usually enough for a 95 % coverage interval correct to one or two significant digits (from
+memory); more only costs memory and time."""
+
+
 def _draws(text: str) -> int:
-    """A number of Monte Carlo draws: a whole number of at least 2."""
+    """A number of Monte Carlo draws: a whole number from 2 to :data:`MAX_DRAWS`."""
     try:
-        value = int(text)
+        value = int(text) if len(text) < 20 else 0
     except ValueError:
         value = 0
     if value < 2:
         raise argparse.ArgumentTypeError(
-            f"'{text}' is not a number of draws (a whole number of at least 2)"
+            f"'{escaped(text)}' is not a number of draws (a whole number of at least 2)"
+        )
+    if value > MAX_DRAWS:
+        raise argparse.ArgumentTypeError(
+            f"{value:,} draws is more than the {MAX_DRAWS:,} plant-audit makes (10^6 draws settle "
+            "a 95 % interval to one or two digits; GUM Supplement 1)"
         )
     return value
 
