@@ -13,7 +13,6 @@ plain Python data from that graph itself, so that
 
 from __future__ import annotations
 
-import stat
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -23,12 +22,16 @@ from yaml.constructor import SafeConstructor
 
 from audit.errors import InputError
 from audit.input import flowlines
-
-MAX_FILE_BYTES = 20 * 1024 * 1024
-"""Largest balance file read [bytes]; a real balance is a few hundred kB."""
+from audit.input.files import MAX_FILE_BYTES, read_bytes, read_text  # noqa: F401 - re-exported
 
 MAX_NODES = 5_000_000
 """Most values built from one file; past it the file is refused."""
+
+MAX_COMPOSED_NODES = 2_000_000
+"""Most YAML nodes composed from one file (after the fast path of :mod:`audit.input.flowlines` has
+taken the one-line mappings): composing keeps every node with its marks in memory, about half a
+kilobyte each, so a file of millions of tiny values is refused before it is composed
+(:func:`_bound_nodes`)."""
 
 MAX_ALIAS_NODES = 100_000
 """Most values built a second time through aliases; past it the file is refused as an alias bomb
@@ -102,8 +105,8 @@ class _Builder:
         self.texts: dict[Path_, str] = {}
         self._scalar = SafeConstructor()
 
-    def _fail(self, node: yaml.Node, message: str) -> InputError:
-        return InputError(
+    def _fail(self, node: yaml.Node, message: str, kind: type[InputError] = InputError) -> InputError:
+        return kind(
             message,
             file=self.file,
             line=node.start_mark.line + 1,
@@ -119,11 +122,12 @@ class _Builder:
                     node,
                     f"aliases in the file expand to more than {MAX_ALIAS_NODES:,} repeated "
                     "values; refusing it as an alias bomb",
+                    _LimitError,
                 )
         else:
             self._seen.add(id(node))
         if self.count > MAX_NODES:
-            raise self._fail(node, f"the file holds more than {MAX_NODES:,} values")
+            raise self._fail(node, f"the file holds more than {MAX_NODES:,} values", _LimitError)
         if depth > 100:
             raise self._fail(node, "the file nests deeper than 100 levels")
         self.positions.setdefault(path, (node.start_mark.line + 1, node.start_mark.column + 1))
@@ -260,69 +264,6 @@ class _FastPathDeclined(Exception):
     """The fast path of :mod:`audit.input.flowlines` does not apply: read the original text."""
 
 
-def read_bytes(path: Path, limit: int = MAX_FILE_BYTES, what: str = "a balance file") -> bytes:
-    """The bytes of a regular file of at most ``limit`` bytes. Anything else (a folder, a FIFO, a
-    device such as /dev/zero, a socket) is refused before it is opened, so nothing can hang or read
-    without end; the read itself stops one byte past the limit (a file that grows while it is read
-    is refused too)."""
-    name = str(path)
-    try:
-        info = path.stat()
-    except FileNotFoundError:
-        raise InputError("no such file", file=name) from None
-    except OSError as exc:  # permission denied on a folder, a name too long, a loop of links
-        raise InputError(f"cannot be read: {exc.strerror or exc}", file=name) from None
-    if stat.S_ISDIR(info.st_mode):
-        raise InputError(f"is a folder, not {what}", file=name)
-    if not stat.S_ISREG(info.st_mode):
-        raise InputError(
-            f"is not a regular file (a {_file_kind(info.st_mode)}); give the path of {what}", file=name
-        )
-    too_big = InputError(
-        f"the file is {max(info.st_size, limit + 1) / 2**20:.1f} MiB, larger than the "
-        f"{limit / 2**20:.0f} MiB {what} may be",
-        file=name,
-    )
-    if info.st_size > limit:
-        raise too_big
-    try:
-        with path.open("rb") as handle:
-            raw = handle.read(limit + 1)
-    except OSError as exc:  # permission denied, an I/O error
-        raise InputError(f"cannot be read: {exc.strerror or exc}", file=name) from None
-    if len(raw) > limit:
-        raise too_big
-    return raw
-
-
-def _file_kind(mode: int) -> str:
-    for test, kind in (
-        (stat.S_ISFIFO, "named pipe"),
-        (stat.S_ISCHR, "character device"),
-        (stat.S_ISBLK, "block device"),
-        (stat.S_ISSOCK, "socket"),
-    ):
-        if test(mode):
-            return kind
-    return "special file"
-
-
-def read_text(path: Path) -> str:
-    """Read a balance file as UTF-8 text, refusing anything but a regular file, huge files and
-    undecodable bytes (:func:`read_bytes`)."""
-    name = str(path)
-    raw = read_bytes(path)
-    try:
-        return raw.decode("utf-8-sig")
-    except UnicodeDecodeError as exc:
-        line = raw[: exc.start].count(b"\n") + 1
-        raise InputError(
-            f"the file is not valid UTF-8 text (byte 0x{raw[exc.start]:02x} at offset {exc.start})",
-            file=name,
-            line=line,
-        ) from None
-
-
 def parse_document(text: str, file: str) -> Document:
     """Compose YAML text into plain data with positions; see the module docstring for the rules.
 
@@ -332,12 +273,15 @@ def parse_document(text: str, file: str) -> Document:
     if scanned is not None:
         try:
             return _parse(scanned.text, file, scanned.mappings)
+        except _LimitError:
+            raise
         except (InputError, _FastPathDeclined):
             pass
     return _parse(text, file, None)
 
 
 def _parse(text: str, file: str, flow_lines: dict | None) -> Document:
+    _bound_nodes(text, file)
     try:
         node = _compose(text)
     except yaml.MarkedYAMLError as exc:
@@ -388,6 +332,38 @@ def _parse(text: str, file: str, flow_lines: dict | None) -> Document:
     if flow_lines and len(builder.flow_lines_built) != len(flow_lines):
         raise _FastPathDeclined  # a recognised line did not come back as a mapping where written
     return Document(data=data, file=file, positions=builder.positions, texts=builder.texts)
+
+
+class _LimitError(InputError):
+    """A file refused for its size or its number of values: reading it again the usual way (after
+    the fast path) would only cost the same time a second time."""
+
+
+def _bound_nodes(text: str, file: str) -> None:
+    """Refuse text that would compose into more than :data:`MAX_COMPOSED_NODES` nodes, before it
+    is composed, with bounded memory. Every node but the first follows one of the characters
+    counted here (a line break, ``,``, ``:``, ``-``, ``[``, ``{``), so their count bounds the nodes
+    from above in one cheap pass; only when that bound is over the limit are the parse events
+    counted (streamed, never kept)."""
+    estimate = sum(text.count(c) for c in "\n,:-[{")
+    if estimate <= MAX_COMPOSED_NODES:
+        return
+    count = 0
+    loader = _FAST_LOADER or yaml.SafeLoader
+    try:
+        for event in yaml.parse(text, Loader=loader):
+            if isinstance(event, (yaml.ScalarEvent, yaml.CollectionStartEvent, yaml.AliasEvent)):
+                count += 1
+                if count > MAX_COMPOSED_NODES:
+                    raise _LimitError(
+                        f"the file holds more than {MAX_COMPOSED_NODES:,} values (written out, not "
+                        "counting one-line stream and step mappings); a balance is far smaller",
+                        file=file,
+                        line=event.start_mark.line + 1,
+                        column=event.start_mark.column + 1,
+                    )
+    except yaml.YAMLError:
+        return  # composing words the error
 
 
 def _compose(text: str) -> yaml.Node | None:

@@ -121,7 +121,7 @@ def _moved(places: dict, renamed: dict[str, str]) -> dict:
     moved = dict(places)
     for path, place in places.items():
         if len(path) >= 2 and path[0] == "streams" and path[1] in renamed:
-            moved[("streams", renamed[path[1]], *path[2:])] = place
+            moved[("streams", renamed[path[1]]) + tuple(path[2:])] = place
     return moved
 
 

@@ -91,20 +91,20 @@ def _sheets(archive: zipfile.ZipFile, display: str, fail: Fail) -> list[SheetInf
         if _DECLARATION.search(part):
             raise _declaration(display, fail)
     try:
-        targets = {}
+        targets: dict[str | None, str] = {}
         if rels:
             for rel in ET.fromstring(rels):
                 target = rel.get("Target", "")
-                path = target.lstrip("/") if target.startswith("/") else posixpath.join("xl", target)
-                targets[rel.get("Id")] = posixpath.normpath(path)
+                where = target.lstrip("/") if target.startswith("/") else posixpath.join("xl", target)
+                targets[rel.get("Id")] = posixpath.normpath(where)
         found = []
         for sheet in ET.fromstring(workbook).iter(f"{_NS}sheet"):
-            part = targets.get(sheet.get(_REL))
+            sheet_part = targets.get(sheet.get(_REL))
             found.append(
                 SheetInfo(
                     sheet.get("name", ""),
                     sheet.get("state", "visible"),
-                    part if part in names else None,
+                    sheet_part if sheet_part in names else None,
                 )
             )
     except ET.ParseError as exc:

@@ -10,7 +10,8 @@ from collections.abc import Mapping
 from pathlib import Path
 
 from audit.errors import InputError, InputErrors, Problem
-from audit.input.document import MAX_FILE_BYTES, Document, read_bytes
+from audit.input.document import Document
+from audit.input.files import MAX_FILE_BYTES, read_bytes
 from audit.input.tables.claims import merge_claims
 from audit.input.tables.grid import Grid, read_csv, read_workbook
 from audit.input.tables.sources import (

@@ -12,7 +12,8 @@ from pathlib import Path
 from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
 from audit.errors import InputError, InputErrors, Problem
-from audit.input.document import MAX_FILE_BYTES, Document
+from audit.input.document import Document
+from audit.input.files import MAX_FILE_BYTES
 
 SOURCE_KEYS = ("streams_from", "claims_from")
 """The balance-file keys that name tables."""
