@@ -186,3 +186,24 @@ def test_fuzzed_inputs_sample():
         assert problem is None, f"{problem}\n--- input ---\n{text}"
 
     never_a_crash()
+
+
+def test_fuzzed_tables_sample():
+    """A fixed-seed sample of the fuzzer's table mode (``tests/fuzz_loader.py --tables``): stream
+    tables as CSV and as damaged workbooks, each refused with an InputError or audited."""
+    from fuzz_tables import TABLES, check_table
+    from hypothesis import HealthCheck, given, settings
+
+    @settings(
+        max_examples=30,
+        derandomize=True,
+        database=None,
+        deadline=None,
+        suppress_health_check=list(HealthCheck),
+    )
+    @given(TABLES)
+    def never_a_crash(table: tuple[str, bytes, str]) -> None:
+        problem = check_table(table)
+        assert problem is None, f"{problem}\n--- table options ---\n{table[2]}"
+
+    never_a_crash()

@@ -175,7 +175,7 @@ def test_declared_dimension_over_the_cell_limit(tmp_path, capsys):
 def test_sheet_with_too_many_cells_is_refused_before_loading(tmp_path, capsys):
     from audit.input.tables import grid
 
-    table = workbook(tmp_path / "streams.xlsx", {"streams": STREAMS + [["x"] * 5] * 50})
+    workbook(tmp_path / "streams.xlsx", {"streams": STREAMS + [["x"] * 5] * 50})
     with pytest.MonkeyPatch.context() as patch:
         patch.setattr(grid, "MAX_CELLS", 100)
         err = refused(["check", str(table_balance(tmp_path, "streams.xlsx"))], tmp_path, capsys)

@@ -162,6 +162,9 @@ def read_workbook(
         ValueError,
         TypeError,
         EOFError,
+        SyntaxError,  # a part that is not well-formed XML (ElementTree's and lxml's errors)
+        AttributeError,  # a part missing what openpyxl expects of it
+        IndexError,
     ) as exc:
         raise fail(f"the table '{display}' cannot be read as an .xlsx workbook ({exc})") from None
     names = [name for name in values.sheetnames if name not in hidden]
