@@ -40,6 +40,7 @@ MAX_ALIAS_NODES = 100_000
 _STANDARD_TAG = "tag:yaml.org,2002:"
 _ALLOWED_SCALAR_TAGS = {_STANDARD_TAG + t for t in ("str", "int", "float", "bool", "null", "timestamp")}
 _STR_TAG = _STANDARD_TAG + "str"
+_YES_NO = {"yes", "no", "on", "off"}  # YAML 1.1 booleans that read as words, not true/false
 
 _FAST_LOADER = getattr(yaml, "CSafeLoader", None)
 """libyaml's parser, when PyYAML was built with it: it composes the same nodes, with the same
@@ -138,7 +139,7 @@ class _Builder:
                 raise self._fail(node, f"the tag '{node.tag}' is not allowed in a balance file")
             if node.tag == _STANDARD_TAG + "timestamp":
                 return node.value  # keep dates as written (and never fail on 2024-02-30)
-            if node.tag == _STANDARD_TAG + "bool" and node.value.lower() not in ("true", "false"):
+            if node.tag == _STANDARD_TAG + "bool" and node.value.lower() in _YES_NO:
                 raise InputError(
                     f"'{node.value}' reads as a yes/no value in YAML; write the number meant, "
                     "true or false, or put text in quotes",
@@ -335,8 +336,7 @@ def _parse(text: str, file: str, flow_lines: dict | None) -> Document:
 
 
 class _LimitError(InputError):
-    """A file refused for its size or its number of values: reading it again the usual way (after
-    the fast path) would only cost the same time a second time."""
+    """A file refused for its number of values: never read a second time the usual way."""
 
 
 def _bound_nodes(text: str, file: str) -> None:
