@@ -27,7 +27,7 @@ from audit.input.files import MAX_FILE_BYTES, read_bytes, read_text  # noqa: F40
 MAX_NODES = 5_000_000
 """Most values built from one file; past it the file is refused."""
 
-MAX_COMPOSED_NODES = 2_000_000
+MAX_COMPOSED_NODES = 1_000_000
 """Most YAML nodes composed from one file (after the fast path of :mod:`audit.input.flowlines` has
 taken the one-line mappings): composing keeps every node with its marks in memory, about half a
 kilobyte each, so a file of millions of tiny values is refused before it is composed
