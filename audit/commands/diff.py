@@ -11,7 +11,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING
 
 from audit.exitcodes import EXIT_FINDINGS, EXIT_PASS
-from audit.printable import escaped
+from audit.printable import escaped, escaped_lines
 from audit.report.display import shown, unit
 
 if TYPE_CHECKING:
@@ -66,7 +66,7 @@ def run(args: argparse.Namespace) -> int:
         from audit.report.diff_workbook import write_diff_workbook
 
         write_diff_workbook(diff, args.output, fail_on=args.fail_on)
-    print(summary(diff, args.fail_on))
+    print(escaped_lines(summary(diff, args.fail_on)))
     return EXIT_FINDINGS if diff.new_failing(args.fail_on) else EXIT_PASS
 
 
