@@ -21,7 +21,12 @@ from audit.input.document import Document, parse_document, read_text
 from audit.model.balance import Balance
 from audit.reading import resolve_tables, validate_document
 from audit.results import AuditResult
-from audit.review.acceptance import Acceptance, apply_acceptances, load_beside
+from audit.review.acceptance import (
+    Acceptance,
+    apply_acceptances,
+    load_beside,
+    refuse_contradictions,
+)
 from audit.review.passes import review
 from audit.solve import solve, to_result
 
@@ -87,4 +92,4 @@ def _acceptances(balance: Balance, document: Document, path: Path) -> list[Accep
     for index, acceptance in enumerate(balance.accepted):
         line, _ = document.position(("accepted", index))
         inside.append(acceptance.placed(f"{document.file}:{line}"))
-    return inside + load_beside(path)
+    return refuse_contradictions(inside + load_beside(path))

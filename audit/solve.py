@@ -15,6 +15,7 @@ Order of work:
 
 from __future__ import annotations
 
+import math
 import platform
 import time
 from dataclasses import dataclass, field
@@ -90,11 +91,59 @@ def solve(balance: Balance, document: Document) -> Solution:
                 Problem(exc.problem.message, file=document.file, line=line, where=f"step {step.id}")
             )
             continue
+        unbounded = not_finite(result)
+        if unbounded is not None:
+            line, _ = document.position(("steps", index))
+            problems.append(
+                Problem(
+                    f"the step's {unbounded} is not a finite number: the values it is computed "
+                    "from are too large to compute with; check the flows, velocities, elevations "
+                    "and claims of this step",
+                    file=document.file,
+                    line=line,
+                    where=f"step {step.id}",
+                )
+            )
+            continue
         results.append(result)
         findings.extend(step_findings)
     if problems:
         raise InputErrors(problems)
     return Solution(balance, document, engine, streams, results, findings, started)
+
+
+_CHECKED = (
+    ("H_in", "inlet energy"),
+    ("H_out", "outlet energy"),
+    ("KE_PE_in", "inlet kinetic and potential energy"),
+    ("KE_PE_out", "outlet kinetic and potential energy"),
+    ("Q", "heat"),
+    ("W", "work"),
+    ("energy_residual", "first-law residual"),
+    ("dS", "entropy change"),
+    ("S_gen", "entropy generation"),
+    ("W_rev", "reversible work"),
+    ("exergy_destroyed", "exergy destroyed"),
+    ("energy_scale", "energy turnover"),
+)
+
+
+def not_finite(result: StepResult) -> str | None:
+    """The name (in words) of the first computed quantity of ``result`` that is not finite, or
+    None: a residual or bound of infinity or NaN must never pass a check."""
+    balance = result.balance
+    for name, words in _CHECKED:
+        if not math.isfinite(getattr(balance, name)):
+            return words
+    if not all(math.isfinite(v) for v in balance.mass_residual.values()):
+        return "mass residual"
+    for value, words in (
+        (result.classical_bound, "work bound"),
+        (result.energy_tolerance, "energy tolerance"),
+    ):
+        if value is not None and not math.isfinite(value):
+            return words
+    return None
 
 
 def evaluate_step(

@@ -39,13 +39,44 @@ STANDARD_ATMOSPHERE = constants.STANDARD_ATMOSPHERE
 NORMAL_CONDITIONS = constants.NORMAL_CONDITIONS
 STANDARD_CONDITIONS = constants.STANDARD_CONDITIONS
 
-_NUMBER = re.compile(r"^\s*([-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
+_NUMBER = re.compile(r"^\s*([-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$", re.ASCII)
+"""A number (ASCII digits only: ``1٠0`` with an Arabic-Indic zero is not 100) and its unit."""
 _GAUGE = re.compile(r"^(mbar|bar|Pa|kPa|MPa|psi)(?:g|\(g\))$")
 _ABSOLUTE = re.compile(r"^(mbar|bar|Pa|kPa|MPa|psi)(?:a|\(a\))$")
 _NORMAL_FLOW = re.compile(r"^([NS])m(?:3|\^3|\*\*3|³)/(s|h|d)$")
 _PER = {"s": 1.0, "h": 3600.0, "d": 86400.0}
 MAX_QUANTITY_CHARS = 200
 """Longest quantity text read; longer text is refused before pint parses it."""
+
+PLAUSIBLE: dict[str, tuple[float, float, str]] = {
+    "temperature": (1.0, 6000.0, "1 K to 6000 K (from liquid-helium service to flames and arcs)"),
+    "pressure": (
+        1.0,
+        1e10,
+        "1 Pa to 10 GPa (deep vacuum to far beyond high-pressure polymer reactors, at 0.3 GPa)",
+    ),
+    "velocity": (
+        -3000.0,
+        3000.0,
+        "at most 3000 m/s (above the speed of sound of any process gas "
+        "but hydrogen and helium at high temperature)",
+    ),
+    "length": (-20_000.0, 20_000.0, "within 20 km of the datum (deep mines to high mountains)"),
+    "mass": (0.0, 1e12, "at most 1e12 kg"),
+}
+"""Plausible range [SI] of the quantities a balance states, with the rule in words. These are
+common practice (generous engineering limits, an order of magnitude or more beyond any plant),
+not published values: a value outside is a typing slip or a hostile file, and is refused as an
+input error before any arithmetic can overflow."""
+
+FLOW_LIMITS: dict[str, tuple[float, str]] = {
+    "mass": (1e7, "10 000 t/s"),
+    "molar": (1e9, "1e9 mol/s"),
+    "normal_volume": (1e7, "1e7 m³/s"),
+    "actual_volume": (1e7, "1e7 m³/s"),
+}
+"""Largest plausible stream flow by basis, with its spelling for messages (common practice: the
+largest flows in industry, through hydroelectric turbines, are about 1e6 kg/s)."""
 
 
 @dataclass(frozen=True)
@@ -140,7 +171,7 @@ def split_number(text: object, kind: str) -> tuple[float, str]:
         match = _NUMBER.match(text)
         if match is not None:  # the usual case, checked as below in fewer steps
             number, unit = float(match.group(1)), match.group(2)
-            if unit and math.isfinite(number):
+            if unit and math.isfinite(number) and (text.isascii() or not unit[0].isdigit()):
                 return number, unit
     expected = KINDS[kind].example if kind in KINDS else kind
     if isinstance(text, bool) or text is None:
@@ -155,6 +186,12 @@ def split_number(text: object, kind: str) -> tuple[float, str]:
         raise UnitError(
             f"'{text[:40]}...' is {len(text):,} characters long, too long for a quantity such as "
             f"{expected}"
+        )
+    foreign = next((c for c in text if c.isdigit() and not c.isascii()), None)
+    if foreign is not None:
+        raise UnitError(
+            f"'{text}' holds the digit {foreign!r} (U+{ord(foreign):04X}), which is not one of "
+            "0-9; write numbers with the digits 0-9"
         )
     match = _NUMBER.match(text)
     if not match:
@@ -208,13 +245,29 @@ def to_si(text: object, kind: str, site_pressure: float | None = None) -> float:
                 "add 'site_pressure' (the atmospheric pressure at the site, e.g. "
                 "'1.013 bar') under 'balance', or write the pressure as absolute"
             )
-        return number * scale + site_pressure
-    value = number * scale + offset
+        value = number * scale + site_pressure
+    else:
+        value = number * scale + offset
     if kind == "temperature" and value <= 0.0:
         raise UnitError(f"'{text}' is at or below absolute zero ({value:.6g} K)")
     if kind == "pressure" and value <= 0.0:
         raise UnitError(f"'{text}' is not a positive absolute pressure ({value:.6g} Pa)")
+    check_plausible(text, kind, value)
     return value
+
+
+def check_plausible(text: object, kind: str, value: float) -> None:
+    """Refuse a value [SI] that is not finite, or outside the plausible range of its kind
+    (:data:`PLAUSIBLE`), naming the text as written."""
+    if not math.isfinite(value):
+        raise UnitError(f"'{text}' is too large to compute with")
+    limits = PLAUSIBLE.get(kind)
+    if limits is not None and not limits[0] <= value <= limits[1]:
+        unit = KINDS[kind].si_unit
+        raise UnitError(
+            f"'{text}' ({value:.6g} {unit}) is outside the plausible range of a "
+            f"{kind.replace('_', ' ')}: {limits[2]}"
+        )
 
 
 _MAX_RULES = 4096
@@ -288,10 +341,10 @@ def to_flow(text: object) -> Flow:
     basis, scale, offset, reference, unit, dimensionality = rule
     if basis == "normal_volume":
         value = number / scale  # scale: seconds per time unit of the flow
-        _check_flow_sign(text, value)
+        _check_flow_sign(text, value, basis)
         return Flow("normal_volume", value, reference)
     value = number * scale + offset
-    _check_flow_sign(text, value)
+    _check_flow_sign(text, value, basis)
     if basis is None:
         raise UnitError(
             f"'{text}' is not a flow: '{unit}' has dimension {dimensionality}; write it like "
@@ -330,6 +383,13 @@ def _flow_rule(text: object, unit: str) -> tuple:
     return basis, scale, offset, None, unit, dimensionality
 
 
-def _check_flow_sign(text: object, value: float) -> None:
+def _check_flow_sign(text: object, value: float, basis: str | None) -> None:
     if value < 0.0:
         raise UnitError(f"'{text}' is a negative flow; a stream's flow is at least zero")
+    if not math.isfinite(value):
+        raise UnitError(f"'{text}' is too large to compute with")
+    if basis in FLOW_LIMITS and value > FLOW_LIMITS[basis][0]:
+        raise UnitError(
+            f"'{text}' is larger than any plausible stream flow (at most "
+            f"{FLOW_LIMITS[basis][1]}, common practice)"
+        )

@@ -11,6 +11,8 @@ import sys
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
+from audit.printable import escaped
+
 if TYPE_CHECKING:
     from audit.outcomes import FileOutcome
 
@@ -115,7 +117,7 @@ def run(args: argparse.Namespace) -> int:
     code = batch_exit_code(outcomes, args.fail_on)
     if not args.quiet:
         for outcome in outcomes:
-            print(_line(outcome, args.fail_on))
+            print(escaped(_line(outcome, args.fail_on)))
     print(_verdict(outcomes, args.fail_on, code))
     return code
 

@@ -12,6 +12,7 @@ from typing import TYPE_CHECKING
 
 from audit.errors import InputError
 from audit.exitcodes import EXIT_FINDINGS, EXIT_PASS
+from audit.printable import escaped
 
 if TYPE_CHECKING:
     from audit.outcomes import FileOutcome
@@ -68,15 +69,26 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     )
 
 
+MAX_DRAWS = 1_000_000
+"""Most Monte Carlo draws per step: GUM Supplement 1 (JCGM 101:2008, §7.2) takes 10^6 trials as
+usually enough for a 95 % coverage interval correct to one or two significant digits (from
+memory); more only costs memory and time."""
+
+
 def _draws(text: str) -> int:
-    """A number of Monte Carlo draws: a whole number of at least 2."""
+    """A number of Monte Carlo draws: a whole number from 2 to :data:`MAX_DRAWS`."""
     try:
-        value = int(text)
+        value = int(text) if len(text) < 20 else 0
     except ValueError:
         value = 0
     if value < 2:
         raise argparse.ArgumentTypeError(
-            f"'{text}' is not a number of draws (a whole number of at least 2)"
+            f"'{escaped(text)}' is not a number of draws (a whole number of at least 2)"
+        )
+    if value > MAX_DRAWS:
+        raise argparse.ArgumentTypeError(
+            f"{value:,} draws is more than the {MAX_DRAWS:,} plant-audit makes (10^6 draws settle "
+            "a 95 % interval to one or two digits; GUM Supplement 1)"
         )
     return value
 
@@ -118,7 +130,7 @@ def run(args: argparse.Namespace) -> int:
         write_html(result, args.html, fail_on=args.fail_on, marginal=args.fail_on_marginal)
     failed = result.fails(args.fail_on, marginal=args.fail_on_marginal)
     if args.quiet:
-        print(f"{args.file}: {'FAIL' if failed else 'PASS'}")
+        print(f"{escaped(args.file)}: {'FAIL' if failed else 'PASS'}")
     else:
         if not args.brief:
             print(stream_table(result))

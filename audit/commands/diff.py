@@ -6,10 +6,12 @@ accepted (0 otherwise; 2 when either file is invalid)."""
 from __future__ import annotations
 
 import argparse
+import math
 from pathlib import Path
 from typing import TYPE_CHECKING
 
 from audit.exitcodes import EXIT_FINDINGS, EXIT_PASS
+from audit.printable import escaped, escaped_lines
 from audit.report.display import shown, unit
 
 if TYPE_CHECKING:
@@ -27,7 +29,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     )
     parser.add_argument(
         "--rtol",
-        type=float,
+        type=_relative_tolerance,
         default=None,
         metavar="R",
         help="relative change below which a number counts as unchanged "
@@ -41,6 +43,19 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     )
 
 
+def _relative_tolerance(text: str) -> float:
+    """A relative tolerance: a finite number from 0 to 1 (not 'nan', 'inf' or negative)."""
+    try:
+        value = float(text) if len(text) < 40 else math.nan
+    except ValueError:
+        value = math.nan
+    if not (math.isfinite(value) and 0.0 <= value < 1.0):
+        raise argparse.ArgumentTypeError(
+            f"'{escaped(text)}' is not a relative tolerance (a number from 0 up to 1, e.g. 1e-6)"
+        )
+    return value
+
+
 def run(args: argparse.Namespace) -> int:
     from audit.api import run as audit_file
     from audit.diff import DEFAULT_RTOL, compare
@@ -51,7 +66,7 @@ def run(args: argparse.Namespace) -> int:
         from audit.report.diff_workbook import write_diff_workbook
 
         write_diff_workbook(diff, args.output, fail_on=args.fail_on)
-    print(summary(diff, args.fail_on))
+    print(escaped_lines(summary(diff, args.fail_on)))
     return EXIT_FINDINGS if diff.new_failing(args.fail_on) else EXIT_PASS
 
 

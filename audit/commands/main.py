@@ -10,6 +10,7 @@ import traceback
 from audit.commands import batch, check, convert, diff, history, reconcile, schema, template
 from audit.errors import InputError, ReportError
 from audit.exitcodes import EXIT_INPUT, EXIT_INTERNAL, EXIT_REPORT
+from audit.printable import escaped
 from audit.version import __version__
 
 COMMANDS = [check, batch, diff, history, schema, template, convert, reconcile]
@@ -30,16 +31,29 @@ def _parser() -> argparse.ArgumentParser:
     return parser
 
 
+def _tolerant_streams() -> None:
+    """A console that cannot encode a character (an id in another script on a Latin-1 terminal)
+    shows it as an escape instead of ending the run with a traceback."""
+    for stream in (sys.stdout, sys.stderr):
+        reconfigure = getattr(stream, "reconfigure", None)
+        if reconfigure is not None:
+            try:
+                reconfigure(errors="backslashreplace")
+            except (ValueError, OSError):  # pragma: no cover - a stream that cannot be changed
+                pass
+
+
 def main(argv: list[str] | None = None) -> int:
+    _tolerant_streams()
     args = _parser().parse_args(argv)
     try:
         return args.handler(args)
     except ReportError as exc:
-        print(f"error: {exc} (a report could not be written)", file=sys.stderr)
+        print(f"error: {escaped(exc)} (a report could not be written)", file=sys.stderr)
         return EXIT_REPORT
     except InputError as exc:
         for problem in exc.problems:
-            print(f"error: {problem}", file=sys.stderr)
+            print(f"error: {escaped(problem)}", file=sys.stderr)
         return EXIT_INPUT
     except KeyboardInterrupt:
         print("interrupted", file=sys.stderr)

@@ -9,6 +9,7 @@ import argparse
 from pathlib import Path
 
 from audit.exitcodes import EXIT_FINDINGS, EXIT_PASS
+from audit.printable import escaped, escaped_lines
 
 NAME = "reconcile"
 HELP = "reconcile a measured balance and name the reading that is wrong"
@@ -70,7 +71,7 @@ def run(args: argparse.Namespace) -> int:
         from audit.report.reconciliation_sheet import write_reconciliation_workbook
 
         write_reconciliation_workbook(result, args.output)
-    print(console_section(result, all_readings=args.all))
+    print(escaped_lines(console_section(result, all_readings=args.all)))
     failed = result.fails(args.fail_on)
-    print(f"{args.file}: {'FAIL' if failed else 'PASS'}")
+    print(f"{escaped(args.file)}: {'FAIL' if failed else 'PASS'}")
     return EXIT_FINDINGS if failed else EXIT_PASS

@@ -22,12 +22,16 @@ from yaml.constructor import SafeConstructor
 
 from audit.errors import InputError
 from audit.input import flowlines
-
-MAX_FILE_BYTES = 20 * 1024 * 1024
-"""Largest balance file read [bytes]; a real balance is a few hundred kB."""
+from audit.input.files import MAX_FILE_BYTES, read_bytes, read_text  # noqa: F401 - re-exported
 
 MAX_NODES = 5_000_000
 """Most values built from one file; past it the file is refused."""
+
+MAX_COMPOSED_NODES = 1_000_000
+"""Most YAML nodes composed from one file (after the fast path of :mod:`audit.input.flowlines` has
+taken the one-line mappings): composing keeps every node with its marks in memory, about half a
+kilobyte each, so a file of millions of tiny values is refused before it is composed
+(:func:`_bound_nodes`)."""
 
 MAX_ALIAS_NODES = 100_000
 """Most values built a second time through aliases; past it the file is refused as an alias bomb
@@ -36,6 +40,7 @@ MAX_ALIAS_NODES = 100_000
 _STANDARD_TAG = "tag:yaml.org,2002:"
 _ALLOWED_SCALAR_TAGS = {_STANDARD_TAG + t for t in ("str", "int", "float", "bool", "null", "timestamp")}
 _STR_TAG = _STANDARD_TAG + "str"
+_YES_NO = {"yes", "no", "on", "off"}  # YAML 1.1 booleans that read as words, not true/false
 
 _FAST_LOADER = getattr(yaml, "CSafeLoader", None)
 """libyaml's parser, when PyYAML was built with it: it composes the same nodes, with the same
@@ -59,6 +64,9 @@ class Document:
     file: str
     positions: dict[Path_, tuple[int, int]] = field(default_factory=dict)
     cells: dict[Path_, tuple[str, str]] = field(default_factory=dict)
+    texts: dict[Path_, str] = field(default_factory=dict)
+    """The text of each number written in the first two levels (``balance: revision: 1.10``), where
+    the value read ("1.1") would lose what was written."""
 
     def position(self, path: Path_) -> tuple[int | None, int | None]:
         """Line and column of the value at ``path``, or of its nearest written ancestor."""
@@ -95,10 +103,11 @@ class _Builder:
         self._seen: set[int] = set()
         self._open: set[int] = set()  # collections being built: an alias back to one is a loop
         self.positions: dict[Path_, tuple[int, int]] = {}
+        self.texts: dict[Path_, str] = {}
         self._scalar = SafeConstructor()
 
-    def _fail(self, node: yaml.Node, message: str) -> InputError:
-        return InputError(
+    def _fail(self, node: yaml.Node, message: str, kind: type[InputError] = InputError) -> InputError:
+        return kind(
             message,
             file=self.file,
             line=node.start_mark.line + 1,
@@ -114,11 +123,12 @@ class _Builder:
                     node,
                     f"aliases in the file expand to more than {MAX_ALIAS_NODES:,} repeated "
                     "values; refusing it as an alias bomb",
+                    _LimitError,
                 )
         else:
             self._seen.add(id(node))
         if self.count > MAX_NODES:
-            raise self._fail(node, f"the file holds more than {MAX_NODES:,} values")
+            raise self._fail(node, f"the file holds more than {MAX_NODES:,} values", _LimitError)
         if depth > 100:
             raise self._fail(node, "the file nests deeper than 100 levels")
         self.positions.setdefault(path, (node.start_mark.line + 1, node.start_mark.column + 1))
@@ -129,6 +139,17 @@ class _Builder:
                 raise self._fail(node, f"the tag '{node.tag}' is not allowed in a balance file")
             if node.tag == _STANDARD_TAG + "timestamp":
                 return node.value  # keep dates as written (and never fail on 2024-02-30)
+            if node.tag == _STANDARD_TAG + "bool" and node.value.lower() in _YES_NO:
+                raise InputError(
+                    f"'{node.value}' reads as a yes/no value in YAML; write the number meant, "
+                    "true or false, or put text in quotes",
+                    file=self.file,
+                    line=node.start_mark.line + 1,
+                    column=node.start_mark.column + 1,
+                    field_path=".".join(map(str, path)) or None,
+                )
+            if len(path) <= 2 and node.tag in (_STANDARD_TAG + "float", _STANDARD_TAG + "int"):
+                self.texts[path] = node.value
             try:
                 return self._scalar.construct_object(node, deep=True)
             except (ValueError, IndexError, KeyError) as exc:
@@ -244,35 +265,6 @@ class _FastPathDeclined(Exception):
     """The fast path of :mod:`audit.input.flowlines` does not apply: read the original text."""
 
 
-def read_text(path: Path) -> str:
-    """Read a balance file as UTF-8 text, refusing folders, huge files and undecodable bytes."""
-    name = str(path)
-    if not path.exists():
-        raise InputError("no such file", file=name)
-    if path.is_dir():
-        raise InputError("is a folder, not a balance file", file=name)
-    try:
-        size = path.stat().st_size
-        if size > MAX_FILE_BYTES:
-            raise InputError(
-                f"the file is {size / 2**20:.1f} MiB, larger than the {MAX_FILE_BYTES / 2**20:.0f} "
-                "MiB a balance file may be",
-                file=name,
-            )
-        raw = path.read_bytes()
-    except OSError as exc:  # permission denied, a device, an I/O error
-        raise InputError(f"cannot be read: {exc.strerror or exc}", file=name) from None
-    try:
-        return raw.decode("utf-8-sig")
-    except UnicodeDecodeError as exc:
-        line = raw[: exc.start].count(b"\n") + 1
-        raise InputError(
-            f"the file is not valid UTF-8 text (byte 0x{raw[exc.start]:02x} at offset {exc.start})",
-            file=name,
-            line=line,
-        ) from None
-
-
 def parse_document(text: str, file: str) -> Document:
     """Compose YAML text into plain data with positions; see the module docstring for the rules.
 
@@ -282,12 +274,15 @@ def parse_document(text: str, file: str) -> Document:
     if scanned is not None:
         try:
             return _parse(scanned.text, file, scanned.mappings)
+        except _LimitError:
+            raise
         except (InputError, _FastPathDeclined):
             pass
     return _parse(text, file, None)
 
 
 def _parse(text: str, file: str, flow_lines: dict | None) -> Document:
+    _bound_nodes(text, file)
     try:
         node = _compose(text)
     except yaml.MarkedYAMLError as exc:
@@ -298,6 +293,13 @@ def _parse(text: str, file: str, flow_lines: dict | None) -> Document:
             if exc.context_mark and mark and exc.context_mark.line != mark.line:
                 context += f" (begun on line {exc.context_mark.line + 1})"
             problem = f"{context}: {problem}" if "found character '\\t'" not in problem else (problem)
+        if "could not find expected ':'" in problem and mark is not None:
+            line_text = text.split("\n", mark.line + 1)[mark.line] if text else ""
+            if len(line_text) > 1024:
+                problem = (
+                    f"a line of {len(line_text):,} characters: a key may be at most 1,024 "
+                    "characters long (a key this long is not a name)"
+                )
         if "expected <block end>" in problem:
             problem += " (check the indentation of this line)"
         if "\\t" in problem or "tab" in problem.lower():
@@ -330,7 +332,38 @@ def _parse(text: str, file: str, flow_lines: dict | None) -> Document:
     data = builder.build(node, ())
     if flow_lines and len(builder.flow_lines_built) != len(flow_lines):
         raise _FastPathDeclined  # a recognised line did not come back as a mapping where written
-    return Document(data=data, file=file, positions=builder.positions)
+    return Document(data=data, file=file, positions=builder.positions, texts=builder.texts)
+
+
+class _LimitError(InputError):
+    """A file refused for its number of values: never read a second time the usual way."""
+
+
+def _bound_nodes(text: str, file: str) -> None:
+    """Refuse text that would compose into more than :data:`MAX_COMPOSED_NODES` nodes, before it
+    is composed, with bounded memory. Every node but the first follows one of the characters
+    counted here (a line break, ``,``, ``:``, ``-``, ``[``, ``{``), so their count bounds the nodes
+    from above in one cheap pass; only when that bound is over the limit are the parse events
+    counted (streamed, never kept)."""
+    estimate = sum(text.count(c) for c in "\n,:-[{")
+    if estimate <= MAX_COMPOSED_NODES:
+        return
+    count = 0
+    loader = _FAST_LOADER or yaml.SafeLoader
+    try:
+        for event in yaml.parse(text, Loader=loader):
+            if isinstance(event, (yaml.ScalarEvent, yaml.CollectionStartEvent, yaml.AliasEvent)):
+                count += 1
+                if count > MAX_COMPOSED_NODES:
+                    raise _LimitError(
+                        f"the file holds more than {MAX_COMPOSED_NODES:,} values (written out, not "
+                        "counting one-line stream and step mappings); a balance is far smaller",
+                        file=file,
+                        line=event.start_mark.line + 1,
+                        column=event.start_mark.column + 1,
+                    )
+    except yaml.YAMLError:
+        return  # composing words the error
 
 
 def _compose(text: str) -> yaml.Node | None:

@@ -28,7 +28,7 @@ from pydantic import (
     model_validator,
 )
 
-from audit import units
+from audit import units, wording
 from audit.errors import InputError, InputErrors, Problem, UnitError
 from audit.input.document import Document
 from audit.input.tables import TableSource
@@ -44,6 +44,16 @@ SCHEMA_VERSION = "1"
 SCHEMA_FILE = "plant-audit-balance.schema.json"
 
 
+DEAD_STATE_T = (183.0, 333.0)
+"""Plausible dead-state temperatures [K]: the lowest and highest air temperatures recorded on Earth,
+−89.2 °C and 56.7 °C (World Meteorological Organization archive of weather extremes; from memory),
+rounded outwards."""
+DEAD_STATE_P = (30e3, 110e3)
+"""Plausible dead-state pressures [Pa]: the standard atmosphere at 9 km (about 31 kPa, above any
+plant) to the air pressure at the shore of the Dead Sea (about 107 kPa) (ISO 2533 standard
+atmosphere; from memory), rounded outwards."""
+
+
 class DeadState(BaseModel):
     """The environment exergy is measured against: T0 and P0."""
 
@@ -51,6 +61,28 @@ class DeadState(BaseModel):
 
     T: Temperature = Field("25 degC", validate_default=True, description="dead-state temperature")
     P: Pressure = Field("101.325 kPa", validate_default=True, description="dead-state pressure")
+
+    @field_validator("T")
+    @classmethod
+    def _plausible_temperature(cls, value: float) -> float:
+        if not DEAD_STATE_T[0] <= value <= DEAD_STATE_T[1]:
+            raise ValueError(
+                f"a dead-state temperature of {wording.celsius(value)} is not an ambient "
+                f"temperature on Earth (from {wording.celsius(DEAD_STATE_T[0], 0)} to "
+                f"{wording.celsius(DEAD_STATE_T[1], 0)})"
+            )
+        return value
+
+    @field_validator("P")
+    @classmethod
+    def _plausible_pressure(cls, value: float) -> float:
+        if not DEAD_STATE_P[0] <= value <= DEAD_STATE_P[1]:
+            raise ValueError(
+                f"a dead-state pressure of {wording.bar(value)} is not an ambient pressure "
+                f"on Earth (from {wording.bar(DEAD_STATE_P[0], 2)} to "
+                f"{wording.bar(DEAD_STATE_P[1], 2)})"
+            )
+        return value
 
 
 class BalanceInfo(BaseModel):
@@ -87,7 +119,8 @@ class BalanceInfo(BaseModel):
     @field_validator("revision", mode="before")
     @classmethod
     def _revision_text(cls, value: Any) -> Any:
-        return str(value) if isinstance(value, (int, float)) else value
+        # a number is kept as written where the loader recorded its text ('1.10', not '1.1')
+        return str(value) if isinstance(value, (int, float)) and not isinstance(value, bool) else value
 
 
 class Balance(BaseModel):
@@ -170,6 +203,9 @@ def validate_document(document: Document, model: type[Balance]) -> Balance:
                 column=column,
                 field_path="balance.site_pressure",
             ) from None
+    written = document.texts.get(("balance", "revision"))
+    if written is not None and isinstance(info, dict) and not isinstance(info.get("revision"), str):
+        data = {**data, "balance": {**info, "revision": written}}
     try:
         return model.model_validate(data, context={"site_pressure": site})
     except ValidationError as exc:

@@ -59,7 +59,7 @@ CLAIMS = ("T", "P", "quality", "h", "s", "u", "v", "rho", "T_sat")
 class PropertyPair(BaseModel):
     """Two independent intensive properties (the fluid is given elsewhere)."""
 
-    model_config = ConfigDict(extra="forbid")
+    model_config = ConfigDict(extra="forbid", allow_inf_nan=False)
 
     T: TemperatureClaim = Field(None, description="temperature")
     P: PressureClaim = Field(None, description="pressure (absolute, or gauge as 'barg')")
@@ -75,6 +75,16 @@ class PropertyPair(BaseModel):
 
     over_determined: ClassVar[bool] = False
     """Whether more than two properties may be given (streams: yes; a vessel's contents: no)."""
+
+    @field_validator("quality", mode="before")
+    @classmethod
+    def _quality_number(cls, value: object) -> object:
+        if isinstance(value, bool):
+            raise ValueError(
+                f"expected a plain number here, not the value {value} (quality is the vapour mass "
+                "fraction, a number from 0 to 1, e.g. 0.95)"
+            )
+        return value
 
     @model_validator(mode="after")
     def _two_properties(self) -> PropertyPair:

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from audit.findings import SEVERITY_RANK, Finding
+from audit.printable import escaped
 from audit.report.display import shown, unit
 from audit.results import AuditResult
 from audit.wording import to_bar, to_celsius
@@ -19,9 +20,9 @@ def stream_table(result: AuditResult) -> str:
     for s in result.streams:
         quality = f"{s.quality:.4f}" if s.quality is not None else ""
         lines.append(
-            f"{s.id:<8} {to_celsius(s.T):>9.2f} {to_bar(s.P):>9.4f} {s.phase:<13} "
+            f"{escaped(s.id):<8} {to_celsius(s.T):>9.2f} {to_bar(s.P):>9.4f} {escaped(s.phase):<13} "
             f"{quality:>7} {s.mass_flow:>11.4f} {s.h / 1e3:>11.2f} {s.s / 1e3:>13.5f} "
-            f"{s.psi / 1e3:>10.2f}  {s.basis:<15}  {s.fluid}"
+            f"{s.psi / 1e3:>10.2f}  {escaped(s.basis):<15}  {escaped(s.fluid)}"
         )
     return "\n".join(lines)
 
@@ -43,22 +44,22 @@ def _uncertainty_lines(f: Finding) -> list[str]:
             text += f"; Monte Carlo ± {size:.3g} {unit(f.quantity, difference=True)}"
         lines.append(text)
         first = [
-            f"{c.input} ({c.share:.0%})"
+            f"{escaped(c.input)} ({c.share:.0%})"
             for c in f.contributors[:3]
             if c.share != c.share or c.share >= 0.005
         ]  # not evaluated (NaN), or ≥ 0.5 %
         if first:
             lines.append(f"{indent}check first: " + ", ".join(first))
-    lines.extend(f"{indent}probable cause: {cause}" for cause in f.probable_causes)
+    lines.extend(f"{indent}probable cause: {escaped(cause)}" for cause in f.probable_causes)
     return lines
 
 
 def findings_summary(result: AuditResult, fail_on: str = "error", marginal: bool = False) -> str:
     """Counts by severity, then one line per finding with its margin, then the verdict."""
     counts = result.counts()
-    title = f"{result.name}" + (f", revision {result.revision}" if result.revision else "")
+    title = escaped(f"{result.name}" + (f", revision {result.revision}" if result.revision else ""))
     lines = [
-        f"Audit of {title} ({result.file})",
+        f"Audit of {title} ({escaped(result.file)})",
         f"{len(result.streams)} streams, {len(result.steps)} steps; findings: "
         + ", ".join(
             f"{counts[s]} {s}" for s in sorted(counts, key=SEVERITY_RANK.__getitem__, reverse=True)
@@ -71,7 +72,7 @@ def findings_summary(result: AuditResult, fail_on: str = "error", marginal: bool
     ]
     ordered = sorted(result.findings, key=lambda f: -SEVERITY_RANK[f.severity])
     for f in ordered:
-        where = f.step or (f"stream {f.stream}" if f.stream else "plant")
+        where = escaped(f.step or (f"stream {f.stream}" if f.stream else "plant"))
         margin = ""
         if f.margin is not None:
             diff = f.quantity in ("temperature",)
@@ -81,8 +82,8 @@ def findings_summary(result: AuditResult, fail_on: str = "error", marginal: bool
                 margin += f", {f.margin_relative:.1%}"
             margin += "]"
         if f.accepted:
-            margin += f" ACCEPTED: {f.accepted}"
-        lines.append(f"  {f.severity.upper():<7} {f.name:<28} {where:<10} {f.message}{margin}")
+            margin += f" ACCEPTED: {escaped(f.accepted)}"
+        lines.append(f"  {f.severity.upper():<7} {f.name:<28} {where:<10} {escaped(f.message)}{margin}")
         lines.extend(_uncertainty_lines(f))
     verdict = "FAIL" if result.fails(fail_on, marginal=marginal) else "PASS"
     lines.append(

@@ -27,6 +27,12 @@ the file says how each is written, 8 when it does not), each re-evaluating the s
 most two, by the plant topology), plus 3 per claimed power or energy, 1 per claimed temperature or
 pressure and 1 per inlet/outlet pair: at most 16 re-evaluations per stream, 3 per claim and 1 per
 pair, and a slip shared by two failing steps is evaluated once.
+
+Each re-evaluation costs time in proportion to the step's streams, so the stream slips of a step
+with more than :data:`MAX_SEARCHED_STREAMS` streams (a mixer with thousands of inlets) are not
+tried: the search would grow with the square of the step's size. Its claims and its inlet/outlet
+pairs are still tried (a fixed number of re-evaluations), and its law findings say, as their last
+probable cause, that the streams were not searched and why.
 """
 
 from __future__ import annotations
@@ -43,6 +49,9 @@ from audit.review.margins import LAW_FINDINGS, Margin, margin_function
 from audit.review.reference_slips import FluidSlip, reference_slips
 from audit.review.runner import StepRunner
 from audit.review.slips import Slip, step_slips, stream_slips
+
+MAX_SEARCHED_STREAMS = 64
+"""Most streams of a step whose slips the search tries (see the module docstring)."""
 
 MAX_CAUSES = 3
 SHRINK = 0.5
@@ -160,10 +169,15 @@ def name_causes(
     named: dict[int, list[tuple[float, int, str]]] = defaultdict(list)
     order = 0
     seen_streams: set[str] = set()
+    skipped: dict[int, int] = {}
     for index in sorted(i for i, state in failing.items() if state.violated):
         step = runner.balance.steps[index]
         inlets, outlets = step.stream_ids()
-        for stream_id in dict.fromkeys([*inlets, *outlets]):
+        own = list(dict.fromkeys([*inlets, *outlets]))
+        if len(own) > MAX_SEARCHED_STREAMS:
+            skipped[index] = len(own)
+            own = []
+        for stream_id in own:
             if stream_id in seen_streams:
                 continue
             seen_streams.add(stream_id)
@@ -194,8 +208,16 @@ def name_causes(
                 # one that clears every error of the steps it touches comes before the others
                 named[index].append((-1.0 if left == 0 else score, slip_order, sentence))
     findings = list(findings)
+    for index in skipped:
+        named.setdefault(index, [])
     for index, causes in named.items():
         sentences = tuple(s for _, _, s in sorted(causes)[:MAX_CAUSES])
+        if index in skipped:
+            sentences += (
+                f"(the slips of its {skipped[index]:,} streams were not tried: the search stops at "
+                f"{MAX_SEARCHED_STREAMS} streams per step, so that its time grows no faster than "
+                "the step's size)",
+            )
         step_id = runner.balance.steps[index].id
         for position, finding in enumerate(findings):
             if finding.step == step_id and finding.name in LAW_FINDINGS:

@@ -50,8 +50,12 @@ from audit.wording import to_bar, to_celsius
 
 _ARROWS = ("->", "→", "=>")
 _TERM = re.compile(
-    r"^\s*(?:(\d+(?:\.\d+)?(?:/\d+)?|\.\d+|½)\s*)?([A-Za-z][A-Za-z0-9]*)\s*(?:\((g|l)\))?\s*$"
+    r"^\s*(?:(\d+(?:\.\d+)?(?:/\d+)?|\.\d+|½)\s*)?([A-Za-z][A-Za-z0-9]*)\s*(?:\((g|l)\))?\s*$",
+    re.ASCII,
 )
+MAX_COEFFICIENT = 1000.0
+"""Largest stoichiometric coefficient read (common practice: the combustion of the heaviest fuels
+in a balance needs a few tens of O2 per molecule)."""
 _INERT_IN_FUEL = {"CO2", "H2O", "N2", "O2", "Ar"}
 
 
@@ -127,9 +131,7 @@ def _side(part: str, text: str) -> tuple[Term, ...]:
                 "coefficient and a formula, like '2 H2O' or '1/2 O2(g)'"
             )
         number, name, phase = match.groups()
-        coefficient = 1.0 if number is None else (0.5 if number == "½" else float(Fraction(number)))
-        if coefficient <= 0.0:
-            raise ValueError(f"the coefficient of {name} in '{text}' must be positive")
+        coefficient = _coefficient(number, name, text)
         data = lookup(name)
         if data is None:
             known = ", ".join(sorted(s.formula for s in SPECIES.values()))
@@ -139,6 +141,28 @@ def _side(part: str, text: str) -> tuple[Term, ...]:
             )
         terms.append(Term(coefficient, data.formula, phase or "g"))
     return tuple(terms)
+
+
+def _coefficient(number: str | None, name: str, text: str) -> float:
+    """The coefficient written before ``name``: positive, finite and at most
+    :data:`MAX_COEFFICIENT`."""
+    if number is None:
+        return 1.0
+    if number == "½":
+        return 0.5
+    try:
+        coefficient = float(Fraction(number)) if len(number) <= 20 else math.inf
+    except (ZeroDivisionError, OverflowError):
+        coefficient = math.inf
+    if coefficient <= 0.0:
+        raise ValueError(f"the coefficient of {name} in '{text}' must be positive")
+    if not coefficient <= MAX_COEFFICIENT:
+        shown = number if len(number) <= 20 else f"{number[:20]}... ({len(number)} characters)"
+        raise ValueError(
+            f"the coefficient '{shown}' of {name} in '{text[:200]}' is not a number from 0 to "
+            f"{MAX_COEFFICIENT:g}"
+        )
+    return coefficient
 
 
 def _elements(amounts: Iterable[tuple[float, str]]) -> dict[str, float]:

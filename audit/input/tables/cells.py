@@ -7,6 +7,7 @@ such as ``N2: 0.79, O2: 0.21``, or a name) or ``text``."""
 
 from __future__ import annotations
 
+import math
 import re
 from datetime import date, datetime, time, timedelta
 from typing import Any
@@ -55,6 +56,8 @@ def number_text(value: Any) -> str:
     if isinstance(value, int):
         return str(value)
     if isinstance(value, float):
+        if not math.isfinite(value):
+            raise Bad(f"the cell holds {value!r}, not a finite number (too large for the workbook)")
         return repr(value)
     if isinstance(value, (datetime, date, time, timedelta)):
         raise Bad(
