@@ -18,9 +18,9 @@ from __future__ import annotations
 import platform
 import time
 from dataclasses import dataclass, field
-from datetime import datetime, timezone
 from typing import Any, cast
 
+from audit.clock import reproducible, run_time
 from audit.errors import InputErrors, Problem, StateError
 from audit.findings import ERROR, WARNING, Finding, relative
 from audit.input.document import Document
@@ -140,8 +140,8 @@ def to_result(
             "CoolProp": COOLPROP_VERSION,
             "property back end": f"{BACKEND} (IAPWS-95 for water)",
             "Python": platform.python_version(),
-            "run at (UTC)": datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M:%S"),
-            "solve time [s]": f"{elapsed:.3f}",
+            "run at (UTC)": run_time().strftime("%Y-%m-%d %H:%M:%S"),
+            **({} if reproducible() else {"solve time [s]": f"{elapsed:.3f}"}),
             "property evaluations": str(engine.flash_count),
             **notes,
         },

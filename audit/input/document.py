@@ -13,6 +13,8 @@ plain Python data from that graph itself, so that
 
 from __future__ import annotations
 
+import os
+import stat
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -244,24 +246,60 @@ class _FastPathDeclined(Exception):
     """The fast path of :mod:`audit.input.flowlines` does not apply: read the original text."""
 
 
+def display_path(path: str | Path) -> str:
+    """``path`` as text that any message or report can hold: bytes of a name that are not UTF-8
+    (kept by the file system's encoding as lone surrogates) are written as ``\\xNN``."""
+    text = os.fspath(path)
+    try:
+        text.encode("utf-8")
+        return text
+    except UnicodeEncodeError:
+        return os.fsencode(text).decode("utf-8", "backslashreplace")
+
+
 def read_text(path: Path) -> str:
     """Read a balance file as UTF-8 text, refusing folders, huge files and undecodable bytes."""
-    name = str(path)
-    if not path.exists():
-        raise InputError("no such file", file=name)
-    if path.is_dir():
-        raise InputError("is a folder, not a balance file", file=name)
+    return decode_text(read_bytes(path), str(path))
+
+
+def read_bytes(path: Path) -> bytes:
+    """The bytes of a balance file, read once, at most :data:`MAX_FILE_BYTES` of them.
+
+    A regular file, or a pipe (``/dev/stdin`` fed by another program); a folder, a device or a
+    socket is refused before it is read."""
+    name = display_path(path)
     try:
-        size = path.stat().st_size
-        if size > MAX_FILE_BYTES:
-            raise InputError(
-                f"the file is {size / 2**20:.1f} MiB, larger than the {MAX_FILE_BYTES / 2**20:.0f} "
-                "MiB a balance file may be",
-                file=name,
-            )
-        raw = path.read_bytes()
-    except OSError as exc:  # permission denied, a device, an I/O error
+        info = os.stat(path)
+    except FileNotFoundError:
+        raise InputError("no such file", file=name) from None
+    except OSError as exc:
         raise InputError(f"cannot be read: {exc.strerror or exc}", file=name) from None
+    if stat.S_ISDIR(info.st_mode):
+        raise InputError("is a folder, not a balance file", file=name)
+    if not (stat.S_ISREG(info.st_mode) or stat.S_ISFIFO(info.st_mode)):
+        raise InputError("is a device or a socket, not a balance file", file=name)
+    if info.st_size > MAX_FILE_BYTES:
+        raise _too_large(info.st_size, name)
+    try:
+        with open(path, "rb") as stream:
+            raw = stream.read(MAX_FILE_BYTES + 1)
+    except OSError as exc:  # permission denied, an I/O error
+        raise InputError(f"cannot be read: {exc.strerror or exc}", file=name) from None
+    if len(raw) > MAX_FILE_BYTES:
+        raise _too_large(len(raw), name)
+    return raw
+
+
+def _too_large(size: int, name: str) -> InputError:
+    return InputError(
+        f"the file is {size / 2**20:.1f} MiB, larger than the {MAX_FILE_BYTES / 2**20:.0f} "
+        "MiB a balance file may be",
+        file=name,
+    )
+
+
+def decode_text(raw: bytes, name: str) -> str:
+    """A balance file's bytes as text (UTF-8, with or without a byte-order mark)."""
     try:
         return raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
