@@ -51,7 +51,7 @@ def discover(arguments: Iterable[str | Path]) -> list[str | Missing]:
 
     def add(entry: str | Missing) -> None:
         if isinstance(entry, Missing):
-            found.append(entry)
+            found.append(Missing(os.path.normpath(entry.path), entry.message))
             return
         key = os.path.normpath(entry)
         if key not in seen:

@@ -75,8 +75,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument(
         "--fail-on-history",
         action="store_true",
-        help=f"exit {EXIT_HISTORY} when the run could not be recorded in the history "
-        "(default: a warning; the reports and the exit code stay those of the audit)",
+        help=f"exit {EXIT_HISTORY} when the audit passes but could not be recorded in the "
+        "history (default: a warning; the reports and the exit code stay those of the audit)",
     )
     parser.add_argument(
         "--allow-outside",
@@ -144,9 +144,9 @@ def run(args: argparse.Namespace) -> int:
         )
     if args.history and not args.quiet and history_problem is None:
         print(f"History ({args.history}): {outcome.history_note()}", file=_console(json_text))
-    if history_problem is not None and args.fail_on_history:
-        return EXIT_HISTORY
-    return EXIT_FINDINGS if failed else EXIT_PASS
+    if failed:
+        return EXIT_FINDINGS
+    return EXIT_HISTORY if history_problem is not None and args.fail_on_history else EXIT_PASS
 
 
 def _console(json_text: str | None) -> TextIO:

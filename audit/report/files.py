@@ -114,8 +114,9 @@ def remove_leftovers(folder: str | Path, token: str, keep: set[Path] | frozenset
         leftovers = list(Path(folder).glob(f".*.{token}.*{TEMPORARY_SUFFIX}"))
     except OSError:
         return
+    kept = {os.path.abspath(path) for path in keep}
     for leftover in leftovers:
-        if leftover not in keep:
+        if os.path.abspath(leftover) not in kept:
             leftover.unlink(missing_ok=True)
 
 
