@@ -114,7 +114,7 @@ def _stage_workbook(job: Job, outcome: FileOutcome, inputs: list[tuple[Path, str
 
     assert outcome.result is not None and job.workbook is not None
     try:
-        check_outputs([Output(Path(job.workbook), "the file's workbook")], inputs)
+        check_outputs([Output(Path(job.workbook), "the file's workbook")], inputs, shapes=False)
         with staged(job.token) as staging:
             write_workbook(outcome.result, job.workbook, fail_on=job.fail_on)
             outcome.staged = os.fspath(staging.files[0][0])
@@ -287,7 +287,7 @@ def _refuse_over_tables(outcomes: list[FileOutcome], jobs: list[Job], staging: S
         if outcome is None:
             continue
         try:
-            check_outputs([Output(target, "the file's workbook")], read)
+            check_outputs([Output(target, "the file's workbook")], read, shapes=False)
         except InputError as exc:
             staging.files.remove(entry)
             temporary.unlink(missing_ok=True)

@@ -132,10 +132,10 @@ def test_unreadable_file(tmp_path, capsys, monkeypatch):
     path = tmp_path / "locked.yaml"
     path.write_text(GOOD, encoding="utf-8")
 
-    def refuse(self: Path) -> bytes:
+    def refuse(self: Path, *args: object, **kwargs: object) -> bytes:
         raise PermissionError(13, "Permission denied", str(self))
 
-    monkeypatch.setattr(Path, "read_bytes", refuse)  # a permission test cannot rely on chmod as root
+    monkeypatch.setattr(Path, "open", refuse)  # a permission test cannot rely on chmod as root
     code, err = run_check(path, tmp_path, capsys)
     assert code == 2
     assert "locked.yaml: cannot be read: Permission denied" in err

@@ -281,7 +281,7 @@ def read_bytes(path: Path) -> bytes:
     if info.st_size > MAX_FILE_BYTES:
         raise _too_large(info.st_size, name)
     try:
-        with open(path, "rb") as stream:
+        with Path(path).open("rb") as stream:
             raw = stream.read(MAX_FILE_BYTES + 1)
     except OSError as exc:  # permission denied, an I/O error
         raise InputError(f"cannot be read: {exc.strerror or exc}", file=name) from None

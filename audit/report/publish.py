@@ -78,9 +78,12 @@ def is_standard_output(path: object) -> bool:
     return str(path) == STANDARD_OUTPUT
 
 
-def check_outputs(outputs: Iterable[Output], inputs: Iterable[tuple[Path, str]]) -> None:
+def check_outputs(
+    outputs: Iterable[Output], inputs: Iterable[tuple[Path, str]], shapes: bool = True
+) -> None:
     """Refuse outputs that must not be written (see the module docstring); ``inputs`` are the
-    run's input files with what each is ("the balance file", "the run history").
+    run's input files with what each is ("the balance file", "the run history"). ``shapes``
+    false: check only that no output is an input or another output.
 
     Raises :class:`audit.errors.InputErrors` naming each refused output."""
     problems: list[str] = []
@@ -91,7 +94,7 @@ def check_outputs(outputs: Iterable[Output], inputs: Iterable[tuple[Path, str]])
     files = {os.path.realpath(o.path): o.what for o in outputs if not o.folder}
     for output in outputs:
         path = Path(output.path)
-        problem = _shape_problem(path, output)
+        problem = _shape_problem(path, output) if shapes else None
         parents = [files.get(os.path.realpath(p)) for p in path.parents]
         if problem is None and any(parents):
             what = next(p for p in parents if p)
@@ -143,9 +146,11 @@ def _shape_problem(path: Path, output: Output) -> str | None:
         blocker = _blocker(path)
         return f"{blocker} is a file, not a folder" if blocker else None
     if output.folder:
-        return None if stat.S_ISDIR(info.st_mode) else f"is a file; {output.what} is a folder of files"
+        return (
+            None if stat.S_ISDIR(info.st_mode) else f"is a file, but {output.what} needs a folder here"
+        )
     if stat.S_ISDIR(info.st_mode):
-        return f"is a folder; {output.what} is a file: give a file name"
+        return f"is a folder, but {output.what} needs a file name here"
     if not stat.S_ISREG(info.st_mode):
         return (
             f"is a {_kind(info.st_mode)}, not a regular file; reports are written only to regular "
