@@ -74,7 +74,7 @@ def run(
         sha256 = inputs.sha256 = hashlib.sha256(raw).hexdigest()
         name = display_path(path)
         document = parse_document(decode_text(raw, name), name)
-        inputs.files += _table_files(document, path)
+        inputs.files += table_files(document, path)
         document, tables = resolve_tables(document, allow_outside=allow_outside)
         balance = validate_document(document)
         result = audit_balance(balance, document, sha256=sha256, monte_carlo=monte_carlo)
@@ -111,8 +111,9 @@ def _cycle_collection_paused() -> Iterator[None]:
             gc.enable()
 
 
-def _table_files(document: Document, path: Path) -> list[tuple[Path, str]]:
-    """The stream and claim tables the balance names (as far as they are named correctly)."""
+def table_files(document: Document, path: Path) -> list[tuple[Path, str]]:
+    """The stream and claim tables the balance at ``path`` names (as far as they are named
+    correctly), with what each is."""
     files = []
     if isinstance(document.data, dict):
         for key in SOURCE_KEYS:
@@ -121,7 +122,8 @@ def _table_files(document: Document, path: Path) -> list[tuple[Path, str]]:
                     name = table_source(document, key).file
                 except InputError:
                     continue
-                files.append((path.parent / name, f"the table of '{key}'"))
+                what = "the stream table" if key == "streams_from" else "the claim table"
+                files.append((path.parent / name, what))
     return files
 
 

@@ -20,7 +20,7 @@ import secrets
 import time
 import traceback
 from collections.abc import Callable, Iterable
-from contextlib import nullcontext
+from contextlib import AbstractContextManager, nullcontext
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -212,7 +212,10 @@ def run_batch(
                 on_done(results[position], done, total)
     positions = [i for i, entry in enumerate(found) if isinstance(entry, str)]
     own = staging is None
-    with staged(token) if own else nullcontext(staging) as into:
+    context: AbstractContextManager[StagedSet] = (
+        staged(token) if staging is None else nullcontext(staging)
+    )
+    with context as into:
         try:
             if output is not None and jobs:
                 Path(output).mkdir(parents=True, exist_ok=True)

@@ -106,7 +106,7 @@ def run(args: argparse.Namespace) -> int:
     outputs = planned_outputs(args)
     inputs = Inputs()
     data = read_standard_input() if is_standard_input(args.file) else None
-    check_run_outputs(outputs, inputs, args.history, [args.file])  # before the audit: fail fast
+    check_run_outputs(outputs, inputs.files, args.history, [args.file])  # before the audit: fail fast
     try:
         result = audit_file(
             args.file,
@@ -120,9 +120,8 @@ def run(args: argparse.Namespace) -> int:
         if not (args.junit or args.history):
             raise
         result, error = None, exc
-    check_run_outputs(
-        outputs, inputs, args.history, [args.file]
-    )  # again, with the tables the balance named
+    # again, with the tables the balance named
+    check_run_outputs(outputs, inputs.files, args.history, [args.file])
     outcome = _outcome(args, result, error, inputs.sha256)
     history_problem = record_history(args.history, [outcome], args.fail_on) if args.history else None
     json_text = _write_reports(args, outcome)

@@ -93,7 +93,7 @@ def main(argv: list[str] | None = None) -> int:
     previous = signal.getsignal(signal.SIGTERM)
     stdout = sys.stdout
     if stdout is not None and not isinstance(stdout, _ClosedPipeSafe):
-        sys.stdout = _ClosedPipeSafe(stdout)  # type: ignore[assignment]
+        sys.stdout = _ClosedPipeSafe(stdout)
     try:
         signal.signal(signal.SIGTERM, _terminate)
     except ValueError:  # not the main thread: leave SIGTERM as it is

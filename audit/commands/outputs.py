@@ -15,7 +15,6 @@ from audit.errors import HistoryError, InputError
 from audit.report.publish import Output, check_outputs
 
 if TYPE_CHECKING:
-    from audit.api import Inputs
     from audit.outcomes import FileOutcome
 
 STANDARD_INPUT = "-"
@@ -44,7 +43,7 @@ def read_standard_input() -> bytes:
 
 def check_run_outputs(
     outputs: Iterable[Output],
-    inputs: Inputs | None,
+    inputs: Iterable[tuple[Path, str]],
     history: Path | None,
     balances: Iterable[Path] = (),
 ) -> None:
@@ -59,10 +58,23 @@ def check_run_outputs(
             beside = beside_file(balance)
             if beside is not None:
                 known.append((beside, "the acceptance file"))
-    if inputs is not None:
-        known += inputs.files
+    known += inputs
     first = [Output(history, "the run history")] if history is not None else []
     check_outputs([*first, *outputs], known)
+
+
+def table_files(balance: Path) -> list[tuple[Path, str]]:
+    """The tables a balance file names (none when it cannot be read): for the commands that do
+    not keep what the audit read (``reconcile``, ``diff``, ``convert``)."""
+    from audit.api import table_files as named
+    from audit.input.document import load_document
+
+    if is_standard_input(balance):
+        return []
+    try:
+        return named(load_document(balance), balance)
+    except InputError:
+        return []
 
 
 def record_history(database: Path, outcomes: list[FileOutcome], fail_on: str) -> str | None:
