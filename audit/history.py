@@ -160,8 +160,25 @@ def _diagnosis(connection: sqlite3.Connection, database: Path, exc: sqlite3.Erro
     if "malformed" in text or "corrupt" in text:
         page = _damaged_page(connection)
         where = f" at page {page}" if page else ""
-        return f"the history file is damaged{where} ({exc}); restore it from a backup or start a new one"
+        return (
+            f"the history file is damaged{where} ({exc}); this run was not recorded: restore the "
+            "file from a backup or start a new one"
+        )
     return f"the run history cannot be used: {exc}"
+
+
+def _check_integrity(connection: sqlite3.Connection, database: Path | str) -> None:
+    """Refuse to write into a damaged history (SQLite's quick check reads every page once; a
+    write into a damaged file could lose what is still readable)."""
+    rows = connection.execute("PRAGMA quick_check(20)").fetchall()
+    if [row[0] for row in rows] != ["ok"]:
+        page = _damaged_page(connection)
+        where = f" at page {page}" if page else ""
+        raise HistoryError(
+            f"the history file is damaged{where} ({rows[0][0]}); this run was not recorded: "
+            "restore the file from a backup or start a new one",
+            file=str(database),
+        )
 
 
 def _damaged_page(connection: sqlite3.Connection) -> int | None:
@@ -187,6 +204,7 @@ def record(
     (the findings absent from the file's last audited run). Returns ``outcomes``."""
     run_at = (now or run_time()).astimezone(timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ")
     with _connect(database, create=True) as connection:
+        _check_integrity(connection, database)
         for outcome in outcomes:
             key = file_key(outcome.path)
             previous = _last_run(connection, key)
