@@ -61,7 +61,7 @@ def refused(argv: list[str], capsys: pytest.CaptureFixture[str]) -> str:
     return err
 
 
-# -- an output never replaces an input (identity, not path text) ------------------------------------
+# -- an output never replaces an input (identity, not path text) ------------------------------
 @pytest.mark.parametrize(
     ("option", "target", "what"),
     [
@@ -161,7 +161,7 @@ def test_other_commands_refuse_to_write_over_their_input(
     assert snapshot(site) == before
 
 
-# -- special files and the wrong kind of path ------------------------------------------------------------
+# -- special files and the wrong kind of path -------------------------------------------------
 def test_a_device_is_never_replaced(capsys: pytest.CaptureFixture[str]) -> None:
     """Run as root, writing by rename would replace /dev/null with a regular file."""
     err = refused(["check", str(CLEAN), "--json", os.devnull, "-q"], capsys)
@@ -220,7 +220,7 @@ def test_standard_output_is_offered_explicitly(capsys: pytest.CaptureFixture[str
     assert "'-' (the standard output) is offered for --json only, not for the JUnit XML" in err
 
 
-# -- all or nothing ---------------------------------------------------------------------------------------
+# -- all or nothing ---------------------------------------------------------------------------
 def test_a_disk_filling_up_halfway_leaves_the_old_set(
     tmp_path: Path, monkeypatch: pytest.MonkeyPatch, capsys: pytest.CaptureFixture[str]
 ) -> None:
@@ -270,7 +270,7 @@ def test_an_interrupt_while_writing_exits_130_or_143_and_removes_temporary_files
     assert json_file.read_text(encoding="utf-8") == "old json"
 
 
-# -- promises: the same bytes, the umask ---------------------------------------------------------------
+# -- promises: the same bytes, the umask ------------------------------------------------------
 def test_source_date_epoch_gives_the_same_bytes(
     tmp_path: Path, monkeypatch: pytest.MonkeyPatch, capsys: pytest.CaptureFixture[str]
 ) -> None:
@@ -300,7 +300,7 @@ def test_every_report_follows_the_umask(tmp_path: Path, capsys: pytest.CaptureFi
     capsys.readouterr()
 
 
-# -- the machine around the run: pipes ------------------------------------------------------------------
+# -- the machine around the run: pipes --------------------------------------------------------
 def command(*args: str) -> list[str]:
     return [sys.executable, "-m", "audit", *args]
 
