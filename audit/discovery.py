@@ -51,7 +51,10 @@ def discover(arguments: Iterable[str | Path]) -> list[str | Missing]:
 
     def add(entry: str | Missing) -> None:
         if isinstance(entry, Missing):
-            found.append(Missing(os.path.normpath(entry.path), entry.message))
+            path = os.path.normpath(entry.path)
+            if path not in seen:
+                seen.add(path)
+                found.append(Missing(path, entry.message))
             return
         key = os.path.normpath(entry)
         if key not in seen:
