@@ -426,3 +426,21 @@ def test_a_history_of_another_version_is_named_so(
 def test_invalid_outcome_of_a_missing_path_is_invalid() -> None:
     (outcome,) = run_batch(["/nonexistent/plant.yaml"])
     assert outcome.status == INVALID
+
+
+def test_a_balance_named_as_a_folder_or_unreadable_is_reported(
+    night: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    (night / "odd.yaml").mkdir()
+    shutil.copy(CLEAN, night / "closed.yaml")
+    real = os.access
+
+    def access(path: object, mode: int, **kwargs: object) -> bool:  # root reads every file
+        return False if os.fspath(path).endswith("closed.yaml") else real(path, mode)  # type: ignore
+
+    monkeypatch.setattr(os, "access", access)
+    found = discover([night / "odd.yaml", night / "closed.yaml"])
+    assert found == [
+        Missing(str(night / "odd.yaml"), "the folder holds no balance file (*.yaml, *.yml)"),
+        Missing(str(night / "closed.yaml"), "cannot be read: permission denied"),
+    ]

@@ -344,3 +344,45 @@ def test_piped_input_is_read_once_hashed_and_recorded(tmp_path: Path, name: str)
         rows = connection.execute("SELECT file, sha256, status FROM runs").fetchall()
     key = "-" if name == "-" else "/dev/stdin"
     assert rows == [(key, sha256, "audited")]
+
+
+# -- the remaining messages -------------------------------------------------------------------
+def test_messages_about_inputs_and_outputs_of_odd_kinds(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch, capsys: pytest.CaptureFixture[str]
+) -> None:
+    err = refused(["check", "/dev/zero", "-q"], capsys)
+    assert "/dev/zero: is a device or a socket, not a balance file" in err
+    err = refused(["check", str(CLEAN), "--csv", "-"], capsys)
+    assert "--csv writes a folder of files; '-' (the standard output) is not one" in err
+    loop = tmp_path / "loop"
+    loop.symlink_to(loop)
+    err = refused(["check", str(CLEAN), "--json", str(loop / "r.json")], capsys)
+    assert "the path holds a loop of symbolic links" in err
+
+    class Terminal:
+        def isatty(self) -> bool:
+            return True
+
+    monkeypatch.setattr(sys, "stdin", Terminal())
+    err = refused(["check", "-"], capsys)
+    assert "'-' reads the balance from the standard input, but nothing is piped to it" in err
+
+
+def test_messages_about_odd_history_files(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    empty = tmp_path / "empty.sqlite"
+    empty.write_bytes(b"")
+    assert main(["history", str(CLEAN), "--history", str(empty)]) == EXIT_INPUT
+    assert "the file holds no run history (an empty database)" in capsys.readouterr().err
+    (tmp_path / "folder.sqlite").mkdir()
+    code = main(["check", str(CLEAN), "-q", "--history", str(tmp_path / "folder.sqlite")])
+    assert code == EXIT_INPUT  # an output of the run that is a folder is refused before the audit
+    assert "is a folder, but the run history needs a file name here" in capsys.readouterr().err
+    from audit.errors import HistoryError
+    from audit.history import record
+
+    with pytest.raises(HistoryError, match="the history file is not a regular file"):
+        record(tmp_path / "folder.sqlite", [])
+    blocker = tmp_path / "blocker"
+    blocker.write_text("", encoding="utf-8")
+    with pytest.raises(HistoryError, match="the run history cannot be opened: "):
+        record(blocker / "h.sqlite", [])
