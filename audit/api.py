@@ -14,16 +14,21 @@ import gc
 import hashlib
 from collections.abc import Iterator
 from contextlib import contextmanager
+from dataclasses import dataclass, field
 from datetime import date
 from pathlib import Path
 
-from audit.input.document import Document, parse_document, read_text
+from audit.errors import InputError
+from audit.input.document import Document, decode_text, display_path, parse_document, read_bytes
+from audit.input.tables import SOURCE_KEYS
+from audit.input.tables.sources import table_source
 from audit.model.balance import Balance
 from audit.reading import resolve_tables, validate_document
 from audit.results import AuditResult
 from audit.review.acceptance import (
     Acceptance,
     apply_acceptances,
+    beside_file,
     load_beside,
     refuse_contradictions,
 )
@@ -31,8 +36,23 @@ from audit.review.passes import review
 from audit.solve import solve, to_result
 
 
+@dataclass
+class Inputs:
+    """What a run read, filled in as it reads (also when it then fails): each input file with
+    what it is (the balance, its tables, its acceptance file), and the balance's SHA-256. The
+    command line checks its outputs against these files (:mod:`audit.report.publish`)."""
+
+    files: list[tuple[Path, str]] = field(default_factory=list)
+    sha256: str | None = None
+
+
 def run(
-    path: str | Path, today: date | None = None, allow_outside: bool = False, monte_carlo: int = 0
+    path: str | Path,
+    today: date | None = None,
+    allow_outside: bool = False,
+    monte_carlo: int = 0,
+    data: bytes | None = None,
+    inputs: Inputs | None = None,
 ) -> AuditResult:
     """Audit the balance file at ``path``, then apply the reviewers' acceptances written in it or
     beside it (:mod:`audit.review.acceptance`; ``today`` decides which have expired, default: today).
@@ -42,14 +62,25 @@ def run(
     ``monte_carlo`` > 0 cross-checks the measurement uncertainties with that many Monte Carlo
     draws per step (:mod:`audit.review.uncertainty`).
 
+    The file's bytes are read once (``data``: the bytes already read, e.g. from the standard
+    input; ``path`` then names them in messages); the hash, the parse and the history use those
+    bytes. ``inputs``, when given, is filled with the files read (see :class:`Inputs`).
+
     Raises :class:`audit.errors.InputError` when the file cannot be read, parsed, validated or
     evaluated; every message names the file and line.
     """
     path = Path(path)
+    inputs = inputs if inputs is not None else Inputs()
+    inputs.files.append((path, "the balance file"))
+    beside = beside_file(path)
+    if beside is not None:
+        inputs.files.append((beside, "the acceptance file"))
     with _cycle_collection_paused():
-        text = read_text(path)
-        sha256 = hashlib.sha256(path.read_bytes()).hexdigest()
-        document = parse_document(text, str(path))
+        raw = read_bytes(path) if data is None else data
+        sha256 = inputs.sha256 = hashlib.sha256(raw).hexdigest()
+        name = display_path(path)
+        document = parse_document(decode_text(raw, name), name)
+        inputs.files += table_files(document, path)
         document, tables = resolve_tables(document, allow_outside=allow_outside)
         balance = validate_document(document)
         result = audit_balance(balance, document, sha256=sha256, monte_carlo=monte_carlo)
@@ -84,6 +115,22 @@ def _cycle_collection_paused() -> Iterator[None]:
     finally:
         if enabled:
             gc.enable()
+
+
+def table_files(document: Document, path: Path) -> list[tuple[Path, str]]:
+    """The stream and claim tables the balance at ``path`` names (as far as they are named
+    correctly), with what each is."""
+    files = []
+    if isinstance(document.data, dict):
+        for key in SOURCE_KEYS:
+            if key in document.data:
+                try:
+                    name = table_source(document, key).file
+                except InputError:
+                    continue
+                what = "the stream table" if key == "streams_from" else "the claim table"
+                files.append((path.parent / name, what))
+    return files
 
 
 def _acceptances(balance: Balance, document: Document, path: Path) -> list[Acceptance]:

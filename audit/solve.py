@@ -19,9 +19,9 @@ import math
 import platform
 import time
 from dataclasses import dataclass, field
-from datetime import datetime, timezone
 from typing import Any, cast
 
+from audit.clock import reproducible, run_time
 from audit.errors import InputErrors, Problem, StateError
 from audit.findings import ERROR, WARNING, Finding, relative
 from audit.input.document import Document
@@ -200,8 +200,8 @@ def to_result(
                 f"{fluid}: {text}" for fluid, text in engine.equations_of_state().items()
             ),
             "Python": platform.python_version(),
-            "run at (UTC)": datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M:%S"),
-            "solve time [s]": f"{elapsed:.3f}",
+            "run at (UTC)": run_time().strftime("%Y-%m-%d %H:%M:%S"),
+            **({} if reproducible() else {"solve time [s]": f"{elapsed:.3f}"}),
             "property evaluations": str(engine.flash_count),
             **notes,
         },

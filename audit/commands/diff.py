@@ -10,9 +10,11 @@ import math
 from pathlib import Path
 from typing import TYPE_CHECKING
 
+from audit.commands.outputs import check_run_outputs, table_files
 from audit.exitcodes import EXIT_FINDINGS, EXIT_PASS
 from audit.printable import escaped, escaped_lines
 from audit.report.display import shown, unit
+from audit.report.publish import Output, publish_set
 
 if TYPE_CHECKING:
     from audit.diff import FindingChange, RevisionDiff
@@ -60,14 +62,21 @@ def run(args: argparse.Namespace) -> int:
     from audit.api import run as audit_file
     from audit.diff import DEFAULT_RTOL, compare
 
+    outputs = [Output(args.output, "the comparison workbook")] if args.output else []
+    tables = [*table_files(args.old), *table_files(args.new)]
+    check_run_outputs(outputs, tables, None, [args.old, args.new])
     old, new = audit_file(args.old), audit_file(args.new)
     diff = compare(old, new, rtol=DEFAULT_RTOL if args.rtol is None else args.rtol)
     if args.output:
         from audit.report.diff_workbook import write_diff_workbook
 
-        write_diff_workbook(diff, args.output, fail_on=args.fail_on)
+        publish_set(lambda: _ignore(write_diff_workbook(diff, args.output, fail_on=args.fail_on)))
     print(escaped_lines(summary(diff, args.fail_on)))
     return EXIT_FINDINGS if diff.new_failing(args.fail_on) else EXIT_PASS
+
+
+def _ignore(value: object) -> None:
+    """Drop a writer's return value (publish_set takes a writer that returns nothing)."""
 
 
 def summary(diff: RevisionDiff, fail_on: str = "error") -> str:

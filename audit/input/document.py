@@ -22,7 +22,11 @@ from yaml.constructor import SafeConstructor
 
 from audit.errors import InputError
 from audit.input import flowlines
-from audit.input.files import MAX_FILE_BYTES, read_bytes, read_text  # noqa: F401 - re-exported
+from audit.input.files import MAX_FILE_BYTES as MAX_FILE_BYTES
+from audit.input.files import decode_text as decode_text
+from audit.input.files import display_path as display_path
+from audit.input.files import read_bytes as read_bytes
+from audit.input.files import read_text as read_text
 
 MAX_NODES = 5_000_000
 """Most values built from one file; past it the file is refused."""

@@ -92,11 +92,15 @@ def to_dict(result: AuditResult) -> dict:
     )
 
 
+def json_text(result: AuditResult) -> str:
+    """The JSON results as text (what :func:`write_json` writes)."""
+    return json.dumps(to_dict(result), indent=2, sort_keys=True, ensure_ascii=False) + "\n"
+
+
 def write_json(result: AuditResult, path: str | Path) -> None:
     """Write the JSON results atomically (a temporary file moved into place); raises
     :class:`audit.errors.ReportError` when the file cannot be written."""
-    text = json.dumps(to_dict(result), indent=2, sort_keys=True, ensure_ascii=False) + "\n"
-    write_text(path, text, "the JSON results")
+    write_text(path, json_text(result), "the JSON results")
 
 
 def table_frame(table: Table, rows: list[Any]) -> pd.DataFrame:
