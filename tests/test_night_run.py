@@ -120,8 +120,11 @@ def test_a_name_that_is_not_utf8_is_audited_and_reported_escaped(
         files = [row[0] for row in connection.execute("SELECT file FROM runs")]
     assert any(f.endswith("caf\\xe9.yaml") for f in files)
     assert sorted(p.name for p in (tmp_path / "out").iterdir()) == [
+        "caf.html",
         "caf.xlsx",
+        "clean.html",
         "clean.xlsx",
+        "index.html",
         "summary.xlsx",
     ]
 

@@ -351,7 +351,9 @@ def test_messages_about_inputs_and_outputs_of_odd_kinds(
     tmp_path: Path, monkeypatch: pytest.MonkeyPatch, capsys: pytest.CaptureFixture[str]
 ) -> None:
     err = refused(["check", "/dev/zero", "-q"], capsys)
-    assert "/dev/zero: is a device or a socket, not a balance file" in err
+    assert (
+        "/dev/zero: is not a regular file (a character device); give the path of a balance file" in err
+    )
     err = refused(["check", str(CLEAN), "--csv", "-"], capsys)
     assert "--csv writes a folder of files; '-' (the standard output) is not one" in err
     loop = tmp_path / "loop"
