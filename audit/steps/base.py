@@ -21,6 +21,7 @@ from audit.physics.bounds import isothermal_flow_work_bound
 from audit.physics.efficiency import second_law_efficiency
 from audit.properties.engine import PropertyEngine
 from audit.results import Balance, BoundaryChoice, HeatFlow, StepResult, StreamResult
+from audit.steps.allowances import allowances, declared_rule, reference_shift
 from audit.steps.laws import energy_tolerance, flow_balance, law_findings
 
 CONSERVATIVE_WORDS = "conservative boundary temperature"
@@ -141,6 +142,18 @@ def finish_flow_step(
     balance.energy_scale = max(balance.energy_scale, energy_scale_floor)
     conservative = any(q.conservative for q in heat_flows)
     inlet_mass = sum(s.mass_flow for s in inlets)
+    allowance = (
+        None
+        if declared_rule(tol, batch=False)
+        else allowances(
+            [(s, s.mass_flow) for s in (*inlets, *outlets)],
+            heat_flows,
+            W,
+            balance.W_rev,
+            ctx.T0,
+            ctx.engine,
+        )
+    )
     for finding in law_findings(
         step.id,
         balance,
@@ -152,6 +165,8 @@ def finish_flow_step(
         check_energy=check_energy,
         energy_finding=energy_finding,
         check_mass=check_mass,
+        allowance=allowance,
+        shift=reference_shift(inlets, outlets),
     ):
         ctx.add(finding)
     basis, classical = bound_basis_flow([*inlets, *outlets], heat_flows, tol, balance.dG)

@@ -34,6 +34,7 @@ from audit.physics.bounds import energy_residual, entropy_generation, reversible
 from audit.physics.exergy import carnot_factor, exergy_destroyed, heat_exergy
 from audit.physics.exergy import entropy_of_heat as heat_entropy
 from audit.results import Balance, HeatFlow, StreamResult
+from audit.steps.allowances import DECLARED, ROUNDING, Allowances
 
 
 def heat_exergy_factor(T_boundary: float, T0: float) -> float:
@@ -213,12 +214,33 @@ def law_findings(
     check_energy: bool = True,
     energy_finding: str = "energy-imbalance",
     check_mass: bool = True,
+    allowance: Allowances | None = None,
+    shift: tuple[float, float] = (0.0, 0.0),
 ) -> list[Finding]:
-    """The law checks shared by every step: mass, first law, work bound, entropy generation."""
+    """The law checks shared by every step: mass, first law, work bound, entropy generation.
+
+    With ``allowance`` (the default rule, :mod:`audit.steps.allowances`) a law finding is raised
+    when its margin exceeds the property-method allowance, marked ``tolerance_rule="rounding"``:
+    the review adds the rounding bound of the written values (:mod:`audit.review.rounding`) and
+    keeps it only beyond both. Without, the balance's written tolerances apply (:func:`energy_tolerance`).
+    ``shift`` is :func:`audit.steps.allowances.reference_shift` of the step's streams: the energy,
+    work and entropy margins are read with each conserved fluid's enthalpy and entropy from its
+    mean outlet state (zero when the mass balances exactly)."""
     findings: list[Finding] = []
     energy_q = "energy" if batch else "power"
     entropy_q = "entropy" if batch else "entropy_rate"
-    tol_E = energy_tolerance(balance, tol, batch)
+    if allowance is None:
+        tol_E = tol_W = energy_tolerance(balance, tol, batch)
+        rule = DECLARED
+        absolute = tol.energy_absolute_batch if batch else tol.energy_absolute
+        basis_E = basis_W = (
+            f"{tol.energy_relative:.3g} of the step's energy scale {_kw(balance.energy_scale, batch)}, "
+            f"at least {_kw(absolute, batch)} (the balance's tolerances)"
+        )
+    else:
+        tol_E, tol_W, rule = allowance.energy, allowance.exergy, ROUNDING
+        basis_E, basis_W = allowance.energy_basis, allowance.exergy_basis
+    dH_shift, dS_shift = shift
     note = f" {conservative_note}" if conservative_note else ""
 
     mass_tol = max(tol.mass_relative * inlet_mass, tol.mass_absolute)
@@ -261,9 +283,10 @@ def law_findings(
         # (and, on the formation basis, absolute enthalpies), so their residuals say nothing more.
         return findings
 
-    if check_energy and abs(balance.energy_residual) > tol_E:
-        r = balance.energy_residual
+    r = balance.energy_residual - dH_shift
+    if check_energy and abs(r) > tol_E:
         change = balance.dU if batch else balance.dH + balance.KE_PE_out - balance.KE_PE_in
+        change += dH_shift
         findings.append(
             Finding(
                 ERROR,
@@ -272,18 +295,20 @@ def law_findings(
                 f"the first law does not close: heat in minus work out is "
                 f"{_kw(balance.Q - balance.W, batch)}, but the "
                 f"{'contents' if batch else 'streams'}' energy changes by {_kw(change, batch)}, a "
-                f"residual of {_kw(r, batch)} (tolerance {_kw(tol_E, batch)})",
+                f"residual of {_kw(r, batch)} ({tolerance_words(tol_E, batch)})",
                 claimed=balance.Q - balance.W,
-                bound=balance.dH + balance.KE_PE_out - balance.KE_PE_in if not batch else balance.dU,
+                bound=change,
                 margin=abs(r),
                 margin_relative=relative(abs(r), balance.energy_scale),
                 quantity=energy_q,
                 tolerance=tol_E,
+                tolerance_rule=rule,
+                tolerance_basis=basis_E,
             )
         )
 
-    excess = balance.W - balance.W_rev
-    if excess > tol_E:
+    excess = balance.W - balance.W_rev + dH_shift - T0 * dS_shift
+    if excess > tol_W:
         if balance.W > 0:
             name = "work-above-bound"
             message = (
@@ -303,35 +328,52 @@ def law_findings(
                 ERROR,
                 name,
                 step_id,
-                message + f"; tolerance {_kw(tol_E, batch)}.{note}",
+                message + f"; {tolerance_words(tol_W, batch)}.{note}",
                 claimed=balance.W,
-                bound=balance.W_rev,
+                bound=balance.W - excess,
                 margin=excess,
                 margin_relative=relative(excess, balance.W_rev or balance.W),
                 quantity=energy_q,
-                tolerance=tol_E,
+                tolerance=tol_W,
+                tolerance_rule=rule,
+                tolerance_basis=basis_W,
             )
         )
 
-    tol_S = tol_E / T0
-    if balance.S_gen < -tol_S:
+    tol_S = tol_W / T0
+    S_gen = balance.S_gen + dS_shift
+    if S_gen < -tol_S:
+        unit = "kJ/K" if batch else "kW/K"
         findings.append(
             Finding(
                 ERROR,
                 "negative-entropy-generation",
                 step_id,
-                f"entropy generation is {balance.S_gen / 1e3:.4g} {'kJ/K' if batch else 'kW/K'}, "
-                f"below zero: the step as written would destroy entropy (tolerance "
-                f"{tol_S / 1e3:.3g} {'kJ/K' if batch else 'kW/K'}).{note}",
-                claimed=balance.S_gen,
+                f"entropy generation is {S_gen / 1e3:.4g} {unit} (T0·S_gen = "
+                f"{_kw(T0 * S_gen, batch)} of exergy created), below zero: the step as written "
+                f"would destroy entropy ({entropy_tolerance_words(tol_S, batch, T0)}).{note}",
+                claimed=S_gen,
                 bound=0.0,
-                margin=-balance.S_gen,
-                margin_relative=relative(-balance.S_gen, balance.dS),
+                margin=-S_gen,
+                margin_relative=relative(-S_gen, balance.dS),
                 quantity=entropy_q,
                 tolerance=tol_S,
+                tolerance_rule=rule,
+                tolerance_basis=basis_W,
             )
         )
     return findings
+
+
+def tolerance_words(tolerance: float, batch: bool) -> str:
+    """How a law message states its energy tolerance [W or J] (the review rewrites it)."""
+    return f"tolerance {_kw(tolerance, batch)}"
+
+
+def entropy_tolerance_words(tolerance: float, batch: bool, T0: float) -> str:
+    """How a law message states its entropy tolerance [W/K or J/K] and its power T0·tolerance."""
+    unit = "kJ/K" if batch else "kW/K"
+    return f"tolerance {tolerance / 1e3:.3g} {unit}, {_kw(T0 * tolerance, batch)} at T0"
 
 
 def _kw(value: float, batch: bool) -> str:

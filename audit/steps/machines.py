@@ -10,6 +10,7 @@ from audit.physics.efficiency import (
     isentropic_efficiency_cooled_compression,
 )
 from audit.results import HeatFlow, StreamResult
+from audit.steps.allowances import DECLARED, PROPERTY_SPREAD, ROUNDING
 from audit.steps.base import StepContext, heat_flow
 from audit.wording import to_bar
 
@@ -106,6 +107,22 @@ def evaluate_work_absorber(step, kind: str, ctx: StepContext, noun: str):
     return result
 
 
+def efficiency_allowance(result, ctx: StepContext, h_s: float) -> tuple[float, str, str]:
+    """(allowance above 1 [-], tolerance rule, its make-up) of an isentropic efficiency: the
+    balance's written ``efficiency`` tolerance when it writes one, else the property-method
+    allowance PROPERTY_SPREAD (|h1 − h0| + |h2 − h0| + |h2s − h0|) / |h2 − h1|
+    (:mod:`audit.steps.allowances`; the review adds the rounding bound of the written values)."""
+    tol = ctx.tolerances
+    if "efficiency" in tol.model_fields_set:
+        return tol.efficiency, DECLARED, f"{tol.efficiency:g} (the balance's tolerances)"
+    inlet, outlet = ctx.streams[result.inlets[0]], ctx.streams[result.outlets[0]]
+    h0, _ = ctx.engine.dead_state(inlet.fluid)
+    rise = abs(outlet.h - inlet.h)
+    spread = abs(inlet.h - h0) + abs(outlet.h - h0) + abs(h_s - h0)
+    allowed = PROPERTY_SPREAD * spread / rise if rise > 0 else 0.0
+    return allowed, ROUNDING, f"property-method allowance {allowed:.2g} ({PROPERTY_SPREAD:g} of the enthalpies from the dead state over the enthalpy change)"
+
+
 def efficiency_findings(
     step, result, ctx: StepContext, eta: float, h_s: float, noun: str, basis: str = "from the streams"
 ) -> None:
@@ -115,7 +132,8 @@ def efficiency_findings(
     tol = ctx.tolerances
     result.isentropic_efficiency = eta
     result.extra["h_out_isentropic"] = h_s
-    if eta > 1.0 + tol.efficiency:
+    allowed, rule, basis = efficiency_allowance(result, ctx, h_s)
+    if eta > 1.0 + allowed:
         ctx.add(
             Finding(
                 ERROR,
@@ -128,7 +146,9 @@ def efficiency_findings(
                 margin=eta - 1.0,
                 margin_relative=eta - 1.0,
                 quantity="fraction",
-                tolerance=tol.efficiency,
+                tolerance=allowed,
+                tolerance_rule=rule,
+                tolerance_basis=basis,
             )
         )
     claimed_eta = getattr(step, "isentropic_efficiency", None)

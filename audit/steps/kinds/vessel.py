@@ -28,6 +28,7 @@ from audit.physics.bounds import isothermal_closed_work_bound, isothermal_flow_w
 from audit.physics.efficiency import second_law_efficiency
 from audit.results import HeatFlow, StepResult, StreamResult
 from audit.steps.base import CONSERVATIVE_NOTE, StepBase, StepContext, heat_flow, register
+from audit.steps.allowances import allowances, declared_rule
 from audit.steps.laws import closed_balance, energy_tolerance, law_findings
 
 
@@ -146,6 +147,11 @@ def evaluate(step: Vessel, ctx: StepContext) -> StepResult:
         batch=True,
         inlet_mass=m,
         conservative_note=CONSERVATIVE_NOTE if conservative else "",
+        allowance=None
+        if declared_rule(tol, batch=True)
+        else allowances(
+            [(initial, m), (final, m)], heat, W, balance.W_rev, ctx.T0, ctx.engine, batch=True
+        ),
     ):
         ctx.add(finding)
     temps = [initial.T, final.T] + [
