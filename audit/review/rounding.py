@@ -35,7 +35,7 @@ from dataclasses import replace
 from audit.findings import Finding
 from audit.model.steps import step_claims
 from audit.results import StepResult
-from audit.review.inputs import Input, step_inputs
+from audit.review.inputs import Input
 from audit.review.margins import Margin, margin_function
 from audit.review.propagation import propagate
 from audit.review.resolution import resolution, shown_half_unit, written_text
@@ -68,14 +68,14 @@ _SHOWN_UNIT = {"temperature": "temperature_difference", "flow": None, "quality":
 
 def rounding_inputs(runner: StepRunner, index: int) -> list[tuple[Input, str]]:
     """Every written number of step ``index`` with its rounding as the spread: (input with
-    u = half a unit in its last written digit [SI], the text as written)."""
+    u = half a unit in its last written digit [SI], the text as written). Numbers with a declared
+    uncertainty are included too: the rounding of the file's digits is part of the tolerance, the
+    declared measurement uncertainty is judged on top of it (:mod:`audit.review.verdicts`)."""
     balance = runner.balance
     document = runner.document
     site = balance.balance.site_pressure
     step = balance.steps[index]
     inlets, outlets = step.stream_ids()
-    # an input with a declared uncertainty is judged by it (audit.review.uncertainty), not here
-    declared = {item.label for item in step_inputs(runner, index)}
     found: list[tuple[Input, str]] = []
     for stream_id in dict.fromkeys([*inlets, *outlets]):
         spec = balance.streams[stream_id]
@@ -84,7 +84,7 @@ def rounding_inputs(runner: StepRunner, index: int) -> list[tuple[Input, str]]:
         for name, value in ((names[0], a), (names[1], b), ("flow", spec.flow.value)):
             text = written_text(document, ("streams", stream_id, name))
             delta = resolution(text, _STREAM_KIND[name], site)
-            if delta > 0 and f"stream {stream_id} {name}" not in declared:
+            if delta > 0:
                 found.append(
                     (
                         Input(
@@ -103,7 +103,7 @@ def rounding_inputs(runner: StepRunner, index: int) -> list[tuple[Input, str]]:
         text = written_text(document, ("steps", index, *claim.path))
         delta = resolution(text, claim.kind, site)
         label = ".".join(str(p) if not isinstance(p, int) else f"[{p}]" for p in claim.path)
-        if delta > 0 and f"step {step.id} {label.replace('.[', '[')}" not in declared:
+        if delta > 0:
             found.append(
                 (
                     Input(
