@@ -98,7 +98,7 @@ class Point:
         if self.written == "TP":
             return {"T": f"{num(self.T)} K", "P": f"{num(self.P)} Pa"}
         if self.written == "PQ":
-            return {"P": f"{num(self.P)} Pa", "quality": num(self.quality)}
+            return {"P": f"{num(self.P)} Pa", "quality": quoted(num(self.quality))}
         return {"P": f"{num(self.P)} Pa", "h": f"{num(self.h)} J/kg"}
 
 
@@ -240,6 +240,12 @@ def num(x: float | None) -> str:
     if digits is None or x is None:
         return repr(x)
     return f"{x:#.{digits}g}"
+
+
+def quoted(text: str) -> str:
+    """A bare number kept as text, so that its written digits reach the audit (a YAML number
+    is read as a float and keeps only its shortest repr: '0.5000' would read as 0.5, ±0.05)."""
+    return text if WRITE["digits"] is None else f"'{text}'"
 
 
 def power(x: float) -> str:
@@ -1140,6 +1146,8 @@ def applicable(kind: str, step: Step, violation) -> bool:
 # -- writing the balance --------------------------------------------------------------------------------
 def _scalar(value) -> str:
     text = str(value)
+    if text.startswith("'") and text.endswith("'"):
+        return text
     return text if text and all(c not in text for c in ":{}[],#&*!|>'\"%@`") else f"'{text}'"
 
 
@@ -1167,7 +1175,7 @@ def render(step: Step, prefix: str) -> tuple[list[str], list[str]]:
             fields = (
                 point.fields()
                 if point.written != "TQ"
-                else {"T": f"{num(point.T)} K", "quality": num(point.quality)}
+                else {"T": f"{num(point.T)} K", "quality": quoted(num(point.quality))}
             )
             lines.append(f"    {which}: " + _flow_map(fields))
     elif step.kind == "heat_exchanger":
