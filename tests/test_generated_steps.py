@@ -319,9 +319,7 @@ flows from the dead state (first law), of the enthalpies over the enthalpy chang
 
 def half_digit(x: float) -> float:
     """Half a unit in the last digit of ``x`` as :func:`num` writes it (GUM §F.2.2.1)."""
-    text = num(x)
-    if WRITE["digits"] is None:
-        return 0.0
+    text = num(x)  # every digit (repr) still has a last one: "250.0" is ±0.05
     mantissa, _, exponent = text.lower().partition("e")
     decimals = len(mantissa.partition(".")[2])
     return 0.5 * 10.0 ** (int(exponent or 0) - decimals)
