@@ -763,10 +763,14 @@ def draw_heat_exchanger(draw) -> Step:
     loss = draw(st.sampled_from([0.0, 0.0, draw(st.floats(0.0, 0.05))])) * Q
     hot_out = ph(hot_in.fluid, Ph2, hot_in.h - (Q + loss) / m_hot)
     cold_out = ph(cold_in.fluid, Pc2, cold_in.h + Q / m_cold)
-    if WRITE["digits"] is not None and min(
-        (Q + loss) / m_hot / max(half_digit(hot_out.h), half_digit(hot_in.h), 1e-9),
-        Q / m_cold / max(half_digit(cold_out.h), half_digit(cold_in.h), 1e-9),
-    ) < 400.0:
+    if (
+        WRITE["digits"] is not None
+        and min(
+            (Q + loss) / m_hot / max(half_digit(hot_out.h), half_digit(hot_in.h), 1e-9),
+            Q / m_cold / max(half_digit(cold_out.h), half_digit(cold_in.h), 1e-9),
+        )
+        < 400.0
+    ):
         # the duty comparison keeps the written 1 % rule: each side's duty must be resolved by
         # the written enthalpies to well within it (400 half-digits: 0.25 % at each end)
         raise Reject("a side's enthalpy change is below the resolution of the written digits")

@@ -89,9 +89,9 @@ def test_boiling_with_other_work_is_an_error_however_large_the_duty():
     assert finding.tolerance_rule == "rounding"
     # the old rule (1 % of the 2.26 MW duty = 22.6 kW) let it pass: it is still available
     old = _audit(
-        _boiler(5.0).replace("steps:", "steps:", 1).replace(
-            "    work_delivered", "    tolerances: {energy_relative: 0.01}\n    work_delivered"
-        )
+        _boiler(5.0)
+        .replace("steps:", "steps:", 1)
+        .replace("    work_delivered", "    tolerances: {energy_relative: 0.01}\n    work_delivered")
     )
     assert not [f for f in old.findings if f.step == "BOIL"]
 

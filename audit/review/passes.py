@@ -11,16 +11,16 @@ from __future__ import annotations
 from collections import defaultdict
 
 from audit.findings import Finding
+from audit.results import StepResult
 from audit.review.causes import name_causes
 from audit.review.inputs import check_declarations, declares_uncertainty
 from audit.review.margins import LAW_FINDINGS
 from audit.review.propagation import MONTE_CARLO_SEED
 from audit.review.rounding import assess_rounding
 from audit.review.runner import StepRunner
-from audit.results import StepResult
-from audit.steps.allowances import ROUNDING
 from audit.review.uncertainty import DEFAULT_COVERAGE_FACTOR, assess_step
 from audit.solve import Solution
+from audit.steps.allowances import ROUNDING
 
 
 def review(solution: Solution, monte_carlo_trials: int = 0) -> tuple[list[Finding], dict[str, str]]:

@@ -125,8 +125,7 @@ def _makeup(
     finding: Finding, ranked: Sequence[tuple[float, Input, str]], bound: float, allowance: str
 ) -> str:
     named = [
-        f"{item.label} '{text}' ±{shown_half_unit(text)}: "
-        f"{format_value(abs(c), finding.quantity)}"
+        f"{item.label} '{text}' ±{shown_half_unit(text)}: {format_value(abs(c), finding.quantity)}"
         for c, item, text in ranked[:NAMED]
         if c != 0.0
     ]

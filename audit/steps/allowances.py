@@ -130,9 +130,7 @@ def flow_groups(
         i.fluid == o.fluid for i, o in zip(inlets, outlets, strict=True)
     ):
         return [([i], [o]) for i, o in zip(inlets, outlets, strict=True)]
-    by_fluid: dict[str, tuple[list[StreamResult], list[StreamResult]]] = defaultdict(
-        lambda: ([], [])
-    )
+    by_fluid: dict[str, tuple[list[StreamResult], list[StreamResult]]] = defaultdict(lambda: ([], []))
     for s in inlets:
         by_fluid[s.fluid][0].append(s)
     for s in outlets:

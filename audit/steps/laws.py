@@ -222,7 +222,8 @@ def law_findings(
     With ``allowance`` (the default rule, :mod:`audit.steps.allowances`) a law finding is raised
     when its margin exceeds the property-method allowance, marked ``tolerance_rule="rounding"``:
     the review adds the rounding bound of the written values (:mod:`audit.review.rounding`) and
-    keeps it only beyond both. Without, the balance's written tolerances apply (:func:`energy_tolerance`).
+    keeps it only beyond both. Without, the balance's written tolerances apply
+    (:func:`energy_tolerance`).
     ``shift`` is :func:`audit.steps.allowances.reference_shift` of the step's streams: the energy,
     work and entropy margins are read with each conserved fluid's enthalpy and entropy from its
     mean outlet state (zero when the mass balances exactly)."""

@@ -120,7 +120,12 @@ def efficiency_allowance(result, ctx: StepContext, h_s: float) -> tuple[float, s
     rise = abs(outlet.h - inlet.h)
     spread = abs(inlet.h - h0) + abs(outlet.h - h0) + abs(h_s - h0)
     allowed = PROPERTY_SPREAD * spread / rise if rise > 0 else 0.0
-    return allowed, ROUNDING, f"property-method allowance {allowed:.2g} ({PROPERTY_SPREAD:g} of the enthalpies from the dead state over the enthalpy change)"
+    return (
+        allowed,
+        ROUNDING,
+        f"property-method allowance {allowed:.2g} ({PROPERTY_SPREAD:g} of the enthalpies "
+        "from the dead state over the enthalpy change)",
+    )
 
 
 def efficiency_findings(
@@ -129,7 +134,6 @@ def efficiency_findings(
     """Record the isentropic efficiency ``eta`` [-] of a machine (with its isentropic outlet
     enthalpy ``h_s`` [J/kg]) and flag it above 1 (``efficiency-above-one``) or unlike a claimed
     value by more than 0.01 (``efficiency-mismatch``)."""
-    tol = ctx.tolerances
     result.isentropic_efficiency = eta
     result.extra["h_out_isentropic"] = h_s
     allowed, rule, basis = efficiency_allowance(result, ctx, h_s)

@@ -27,8 +27,8 @@ from audit.model.streams import PropertyPair
 from audit.physics.bounds import isothermal_closed_work_bound, isothermal_flow_work_bound
 from audit.physics.efficiency import second_law_efficiency
 from audit.results import HeatFlow, StepResult, StreamResult
-from audit.steps.base import CONSERVATIVE_NOTE, StepBase, StepContext, heat_flow, register
 from audit.steps.allowances import allowances, declared_rule
+from audit.steps.base import CONSERVATIVE_NOTE, StepBase, StepContext, heat_flow, register
 from audit.steps.laws import closed_balance, energy_tolerance, law_findings
 
 
