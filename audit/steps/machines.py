@@ -3,6 +3,8 @@ outlet. Not a step kind itself."""
 
 from __future__ import annotations
 
+import math
+
 from audit.errors import StateError
 from audit.findings import ERROR, WARNING, Finding
 from audit.physics.efficiency import (
@@ -107,6 +109,13 @@ def evaluate_work_absorber(step, kind: str, ctx: StepContext, noun: str):
     return result
 
 
+def _beyond_one(eta: float) -> str:
+    """η with the digits that show how far it lies above 1 (1.0004, not 1.000)."""
+    excess = abs(eta - 1.0)
+    decimals = 3 if excess >= 1e-3 or excess == 0 else min(12, 2 - math.floor(math.log10(excess)))
+    return f"{eta:.{decimals}f}"
+
+
 def efficiency_allowance(result, ctx: StepContext, h_s: float) -> tuple[float, str, str]:
     """(allowance above 1 [-], tolerance rule, its make-up) of an isentropic efficiency: the
     balance's written ``efficiency`` tolerance when it writes one, else the property-method
@@ -143,7 +152,7 @@ def efficiency_findings(
                 ERROR,
                 "efficiency-above-one",
                 step.id,
-                f"the isentropic efficiency {basis} is {eta:.3f} (isentropic outlet "
+                f"the isentropic efficiency {basis} is {_beyond_one(eta)} (isentropic outlet "
                 f"{h_s / 1e3:.1f} kJ/kg), above 1, which no real {noun} reaches",
                 claimed=eta,
                 bound=1.0,
