@@ -10,12 +10,15 @@ from __future__ import annotations
 import CoolProp.CoolProp as CP
 import iapws
 import pytest
+from conftest import SAMPLE
 
+import audit
 from audit.api import audit_balance
 from audit.findings import ERROR
 from audit.reading import parse_balance
 from audit.review.margins import LAW_FINDINGS
 from audit.review.resolution import half_unit, resolution
+from audit.wording import percent
 
 HEADER = """
 balance:
@@ -157,3 +160,19 @@ steps:
     assert not [f for f in result.findings if f.severity == ERROR or f.name in LAW_FINDINGS], [
         f.message for f in result.findings
     ]
+
+
+# -- margins with the digits that carry information ----------------------------------------------
+def test_percentages_keep_the_digits_that_carry_information():
+    assert percent(2e-7) == "2e-05 %"  # not "0.0 %"
+    assert percent(0.9999998) == "99.99998 %"  # not "100.0 %"
+    assert percent(0.109) == "10.9 %"
+    assert percent(0.0) == "0 %"
+
+
+def test_a_slip_closes_every_failing_check_or_is_not_named():
+    # The seeded electrolyser EL1 fails its power check (V × I × cells) beside its first law and
+    # work bound: no single slip closes all three, so none is named (probable causes, design 2.9).
+    result = audit.run(SAMPLE / "quillon-bay-seeded.yaml")
+    assert {f.name for f in result.findings_for("EL1")} >= {"power-mismatch", "energy-imbalance"}
+    assert not any(f.probable_causes for f in result.findings_for("EL1"))
