@@ -118,6 +118,12 @@ class Finding:
     monte_carlo_uncertainty: float | None = None
     # Single slips that would make the step close (audit.review.causes), one sentence each.
     probable_causes: tuple[str, ...] = ()
+    # How the tolerance was found: "rounding" (the default verdict: the rounding bound of the
+    # written values plus a property-method allowance, audit.review.rounding) or "declared" (the
+    # balance's own written tolerances); its make-up in words; the rounding part [its unit].
+    tolerance_rule: str | None = None
+    tolerance_basis: str | None = None
+    rounding_bound: float | None = None
 
     def __post_init__(self) -> None:
         if self.name not in NAMES:

@@ -26,6 +26,26 @@ def kilowatts(value: float, significant: int = 4) -> str:
     return f"{value / 1e3:.{significant}g} kW"
 
 
+def percent(fraction: float, significant: int = 3) -> str:
+    """A fraction as a percentage with the digits that carry information: 2e-7 → "2e-05 %",
+    0.9999998 → "99.99998 %" (never "0.0 %" or "100.0 %" for a figure that is not)."""
+    value = 100.0 * fraction
+    if value == 0.0:
+        return "0 %"
+    text = f"{value:.{significant}g}"
+    # a figure near a round one keeps the digits that tell it apart (99.99998, not 100)
+    digits = significant
+    while (
+        float(text) != value
+        and abs(float(text) - value) / abs(value) > 1e-12
+        and (text in ("100", "-100") or float(text) == round(float(text)))
+        and digits < 12
+    ):
+        digits += 1
+        text = f"{value:.{digits}g}"
+    return f"{text} %"
+
+
 def kelvin_difference(dT: float, digits: int = 2) -> str:
     """A temperature difference [K] as ``'3.20 K'``."""
     return f"{dT:.{digits}f} K"

@@ -318,6 +318,9 @@ FINDINGS = Table(
         Column("contributors", "largest uncertainty contributors", wrap=True),
         Column("monte_carlo_uncertainty"),
         Column("probable_causes", "probable causes", joined="; ", wrap=True),
+        Column("tolerance_rule", "tolerance rule"),
+        Column("tolerance_basis", "tolerance make-up", wrap=True),
+        Column("rounding_bound", "of which rounding of the written values", OWN, difference=True),
         # the workbook's own columns
         Column("unit", "unit", machine=False),
         Column("margin_unit", "margin unit", machine=False),
@@ -335,6 +338,7 @@ FINDINGS = Table(
         "margin_unit",
         "margin_relative",
         "tolerance",
+        "tolerance_basis",
         "message",
         "probable_causes",
         "accepted",

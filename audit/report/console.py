@@ -6,7 +6,7 @@ from audit.findings import SEVERITY_RANK, Finding
 from audit.printable import escaped
 from audit.report.display import shown, unit
 from audit.results import AuditResult
-from audit.wording import to_bar, to_celsius
+from audit.wording import percent, to_bar, to_celsius
 
 
 def stream_table(result: AuditResult) -> str:
@@ -79,7 +79,7 @@ def findings_summary(result: AuditResult, fail_on: str = "error", marginal: bool
             value = shown(f.margin, f.quantity, difference=diff)
             margin = f" [margin {value:.4g} {unit(f.quantity, difference=diff)}"
             if f.margin_relative is not None:
-                margin += f", {f.margin_relative:.1%}"
+                margin += f", {percent(f.margin_relative)}"
             margin += "]"
         if f.accepted:
             margin += f" ACCEPTED: {escaped(f.accepted)}"

@@ -13,8 +13,12 @@ A slip closes the step when, re-evaluated,
    :mod:`audit.review.uncertainty` found for that finding (zero on a design balance);
 2. the largest original margin (relative to that allowance) at least halves: a slip must be
    decisive, not a nudge that slides a near-miss under the line;
-3. the step gains no error of another kind (a turbine with its inlet and outlet swapped must not
-   leave its pressure the wrong way).
+3. the step keeps no error at all: every failing check of the step closes, its own kind's checks
+   too (a fuel cell above its reversible voltage is not explained by a heat temperature in °F),
+   and it gains none (a turbine with its inlet and outlet swapped must not leave its pressure the
+   wrong way). The law margins close within the reviewed tolerance (the rounding of the written
+   values and the property allowance, :mod:`audit.review.rounding`), and a finding the rounding
+   explains never asks for a cause.
 
 A stream slip is evaluated once for the whole balance, on every step that uses the stream; it is
 named only if it breaks none of them (no step gains a law finding or an error), and it is named on
@@ -40,7 +44,7 @@ from __future__ import annotations
 import math
 from collections import defaultdict
 from collections.abc import Sequence
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 
 from audit.errors import InputError
 from audit.findings import ERROR, MARGINAL, VIOLATED, Finding
@@ -67,6 +71,7 @@ class _Failing:
     errors: set[str]
     expanded_by_name: dict[str, float]
     violated: bool  # False: its law findings are only marginal (it takes causes, makes none)
+    tolerance_by_name: dict[str, float] = field(default_factory=dict)
 
 
 # -- judging a slip ---------------------------------------------------------------------------------
@@ -105,7 +110,8 @@ def _failing(
                 laws.append((position, finding, margin, (finding.tolerance or 0.0) + U))
         errors = {f.name for _, f in items if f.severity == ERROR and f.name not in LAW_FINDINGS}
         violated = any(f.verdict != MARGINAL for _, f in standing)
-        failing[index] = _Failing(index, laws, errors, dict(by_name), violated)
+        tolerances = {f.name: f.tolerance or 0.0 for _, f in items if f.name in LAW_FINDINGS}
+        failing[index] = _Failing(index, laws, errors, dict(by_name), violated, tolerances)
     return failing
 
 
@@ -118,7 +124,10 @@ def _closes(
     for finding in new:
         if finding.name not in LAW_FINDINGS:
             continue
-        allowance = (finding.tolerance or 0.0) + state.expanded_by_name.get(finding.name, 0.0)
+        # the re-run step's finding carries only the allowance: the reviewed tolerance (rounding
+        # of the written values included) of the same check is the line to close within
+        tolerance = max(finding.tolerance or 0.0, state.tolerance_by_name.get(finding.name, 0.0))
+        allowance = tolerance + state.expanded_by_name.get(finding.name, 0.0)
         if (finding.margin or 0.0) > allowance:
             return None
         worst_remaining = max(
@@ -133,7 +142,10 @@ def _closes(
     after = margin(result, streams)
     if not math.isfinite(after) or after > SHRINK * before:
         return None
-    if {f.name for f in new if f.severity == ERROR and f.name not in LAW_FINDINGS} - state.errors:
+    remaining = {f.name for f in new if f.severity == ERROR and f.name not in LAW_FINDINGS}
+    if remaining:
+        # a slip must close every failing check of the step (a fuel cell above its reversible
+        # voltage is not explained by a heat temperature in °F), and break no other
         return None
     return worst_remaining
 

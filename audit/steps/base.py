@@ -20,7 +20,9 @@ from audit.model.tolerances import Tolerances
 from audit.physics.efficiency import second_law_efficiency
 from audit.properties.engine import PropertyEngine
 from audit.results import Balance, BoundaryChoice, HeatFlow, StepResult, StreamResult
-from audit.steps.laws import energy_tolerance, flow_balance, law_findings
+from audit.steps.allowances import allowances, declared_rule, reference_shift
+from audit.steps.balances import flow_balance
+from audit.steps.laws import energy_tolerance, law_findings
 from audit.steps.potentials import exchange_at, govern_flow, isothermal_temperature
 
 CONSERVATIVE_WORDS = "conservative boundary temperature"
@@ -128,6 +130,18 @@ def finish_flow_step(
     basis, classical = govern_flow(balance, T_iso)
     conservative = any(q.conservative for q in heat_flows)
     inlet_mass = sum(s.mass_flow for s in inlets)
+    allowance = (
+        None
+        if declared_rule(tol, batch=False)
+        else allowances(
+            [(s, s.mass_flow) for s in (*inlets, *outlets)],
+            heat_flows,
+            W,
+            balance.W_rev,
+            ctx.T0,
+            ctx.engine,
+        )
+    )
     for finding in law_findings(
         step.id,
         balance,
@@ -139,6 +153,8 @@ def finish_flow_step(
         check_energy=check_energy,
         energy_finding=energy_finding,
         check_mass=check_mass,
+        allowance=allowance,
+        shift=reference_shift(inlets, outlets),
     ):
         ctx.add(finding)
     result = StepResult(

@@ -12,7 +12,14 @@ from audit.report.display import unit
 from audit.report.sheets.context import FINDINGS, STEPS, STREAMS, Book, cell_value
 from audit.report.workbook_cells import BOLD, FILLS, FORMATS, GENERAL, PLAIN, location
 
-WIDTHS = {"message": 70, "probable_causes": 50, "accepted": 30, "contributors": 30, "meaning": 40}
+WIDTHS = {
+    "message": 70,
+    "probable_causes": 50,
+    "tolerance_basis": 50,
+    "accepted": 30,
+    "contributors": 30,
+    "meaning": 40,
+}
 
 
 def _own(book: Book, f: Finding, key: str) -> Any:

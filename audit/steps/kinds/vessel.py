@@ -27,8 +27,10 @@ from audit.model.steps import ClaimField, TemperatureClaim
 from audit.model.streams import PropertyPair
 from audit.physics.efficiency import second_law_efficiency
 from audit.results import HeatFlow, StepResult, StreamResult
+from audit.steps.allowances import allowances, declared_rule
+from audit.steps.balances import closed_balance
 from audit.steps.base import CONSERVATIVE_NOTE, StepBase, StepContext, heat_flow, register
-from audit.steps.laws import closed_balance, energy_tolerance, law_findings
+from audit.steps.laws import energy_tolerance, law_findings
 from audit.steps.potentials import exchange_at, govern_closed, isothermal_temperature
 
 
@@ -154,6 +156,11 @@ def evaluate(step: Vessel, ctx: StepContext) -> StepResult:
         batch=True,
         inlet_mass=m,
         conservative_note=CONSERVATIVE_NOTE if conservative else "",
+        allowance=None
+        if declared_rule(tol, batch=True)
+        else allowances(
+            [(initial, m), (final, m)], heat, W, balance.W_rev, ctx.T0, ctx.engine, batch=True
+        ),
     ):
         ctx.add(finding)
     second = second_law_efficiency(W, balance.W_rev)
