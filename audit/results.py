@@ -10,11 +10,12 @@ import copy
 import math
 from dataclasses import asdict, dataclass, field, fields, is_dataclass
 from enum import Enum
-from typing import Any
-
-import pandas as pd  # type: ignore[import-untyped]  # no stubs installed
+from typing import TYPE_CHECKING, Any
 
 from audit.findings import SEVERITY_RANK, Finding, at_or_above
+
+if TYPE_CHECKING:  # pandas loads only when a frame is asked for
+    import pandas as pd  # type: ignore[import-untyped]  # no stubs installed
 
 STANDARD_GRAVITY = 9.806_65  # m/s**2, exact by definition (3rd CGPM, 1901)
 
@@ -282,10 +283,14 @@ class AuditResult:
     # -- tables --------------------------------------------------------------------------------
     def streams_frame(self) -> pd.DataFrame:
         """One row per stream, SI units."""
+        import pandas as pd
+
         return pd.DataFrame([as_record(s) for s in self.streams]).set_index("id")
 
     def steps_frame(self) -> pd.DataFrame:
         """One row per step, SI units (Q in, W out)."""
+        import pandas as pd
+
         rows = []
         for step in self.steps:
             row = as_record(step)
@@ -297,6 +302,8 @@ class AuditResult:
 
     def findings_frame(self) -> pd.DataFrame:
         """One row per finding, SI units."""
+        import pandas as pd
+
         columns = list(Finding.__dataclass_fields__)
         return pd.DataFrame([asdict(f) for f in self.findings], columns=columns)
 

@@ -24,14 +24,24 @@ import math
 import re
 from dataclasses import dataclass
 from functools import lru_cache
-
-import pint
+from typing import TYPE_CHECKING
 
 from audit import constants
 from audit.errors import UnitError
+from audit.unit_table import KNOWN_UNITS, SI_DIMENSIONS
 
-UREG: pint.UnitRegistry = pint.UnitRegistry()
-"""The one pint registry of plant-audit."""
+if TYPE_CHECKING:
+    import pint
+
+
+@lru_cache(maxsize=1)
+def registry() -> pint.UnitRegistry:
+    """The one pint registry of plant-audit, built on first use (pint loads in about half a
+    second; the usual units are converted without it, see :mod:`audit.unit_table`)."""
+    import pint
+
+    return pint.UnitRegistry()
+
 
 # One standard atmosphere [Pa] and the reference conditions of volumetric gas flows [K, Pa]
 # ("normal" cubic metre: 0 °C, 1 atm, DIN 1343; "standard": 15 °C, 1 atm, ISO 13443).
@@ -116,9 +126,18 @@ def _normalise(unit: str) -> str:
 @lru_cache(maxsize=4096)
 def _converter(unit: str) -> tuple[float, float, str]:
     """(scale, offset, dimensionality) such that SI = value * scale + offset. Cached per unit."""
+    known = KNOWN_UNITS.get(unit)
+    if known is not None:
+        return known
+    return _converter_of_pint(unit)
+
+
+def _converter_of_pint(unit: str) -> tuple[float, float, str]:
+    """:func:`_converter` as pint computes it."""
+    ureg = registry()
     try:
-        zero = UREG.Quantity(0.0, unit)
-        one = UREG.Quantity(1.0, unit)
+        zero = ureg.Quantity(0.0, unit)
+        one = ureg.Quantity(1.0, unit)
         base_zero = zero.to_base_units()
         base_one = one.to_base_units()
     except Exception as exc:
@@ -267,7 +286,10 @@ def _unit_rule(text: object, kind: str, unit: str) -> tuple[float, float, bool]:
 
 @lru_cache(maxsize=64)
 def _dimension_of(si_unit: str) -> str:
-    return str(UREG.Quantity(1.0, si_unit).dimensionality)
+    known = SI_DIMENSIONS.get(si_unit)
+    if known is not None:
+        return known
+    return str(registry().Quantity(1.0, si_unit).dimensionality)
 
 
 def to_flow(text: object) -> Flow:
