@@ -138,6 +138,8 @@ class StepResult:
     extra: dict[str, Any] = field(default_factory=dict)
     description: str | None = None
     line: int | None = None
+    # exchangers' T–Q profile: (duty from the cold inlet [W], T hot [K], T cold [K]); not published
+    profile: list[tuple[float, float, float]] | None = None
 
     # -- the balance's values, read as the step's own (reports read them by name) --
     @property

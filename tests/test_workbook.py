@@ -538,7 +538,7 @@ def test_findings_carry_their_numbers_in_display_units(book, seeded):
         r for r in range(2, ws.max_row + 1) if ws.cell(row=r, column=2).value == "internal-pinch"
     )
     assert ws.cell(row=pinch, column=9).value == "K"  # a temperature difference
-    assert ws.cell(row=pinch, column=8).value == pytest.approx(6.5, abs=0.05)  # README: ≈ 6.5 K
+    assert ws.cell(row=pinch, column=8).value == pytest.approx(6.6, abs=0.05)  # README: ≈ 6.6 K
 
 
 def test_severity_shown_by_fill_and_word(book, injected):

@@ -217,6 +217,8 @@ STEPS = Table(
         Column("extra", flatten=True),  # kind-specific values: JSON object, CSV extra.* columns
         Column("description", "description", wrap=True),
         Column("line", "line in file", fmt=INTEGER),
+        # kept for charts, in neither the machine outputs nor the Steps sheet
+        Column("profile", machine=False),
         # the workbook's own columns
         Column("findings", "findings", machine=False),
         Column("basis", "basis", machine=False),
