@@ -46,6 +46,12 @@ for. (One known leniency: libyaml reads a tag followed directly by a comma in a 
 
 Path_ = tuple[object, ...]
 
+POSITION_DEPTH = 2
+"""Positions are kept for paths this deep while reading (the file's sections, each stream and
+step: what a good file's messages need, ``("steps", 4)``); a message about a deeper value reads
+the positions of the whole file again, once (:meth:`Document.position`). A 100 000-stream file
+has 1.3 million values: their positions would take more memory than the audit."""
+
 
 @dataclass
 class Document:
@@ -59,10 +65,19 @@ class Document:
     file: str
     positions: dict[Path_, tuple[int, int]] = field(default_factory=dict)
     cells: dict[Path_, tuple[str, str]] = field(default_factory=dict)
+    source: str | None = None  # the text, while only the shallow positions are read
+
+    def _complete(self, path: Path_) -> None:
+        """Read every position of the file when ``path`` lies deeper than those kept."""
+        if self.source is not None and len(path) > POSITION_DEPTH:
+            full = _parse(self.source, self.file, None, keep=None)
+            self.positions.update(full.positions)
+            self.source = None
 
     def position(self, path: Path_) -> tuple[int | None, int | None]:
         """Line and column of the value at ``path``, or of its nearest written ancestor."""
         path = tuple(path)
+        self._complete(path)
         while path:
             if path in self.positions:
                 return self.positions[path]
@@ -74,6 +89,7 @@ class Document:
         :class:`audit.errors.Problem`: the file with its line and column, or the table file with
         its cell, whichever the nearest written ancestor of ``path`` is."""
         path = tuple(path)
+        self._complete(path)
         while path:
             if path in self.cells:
                 file, cell = self.cells[path]
@@ -86,8 +102,9 @@ class Document:
 
 
 class _Builder:
-    def __init__(self, file: str, flow_lines: dict | None = None) -> None:
+    def __init__(self, file: str, flow_lines: dict | None = None, keep: int | None = None) -> None:
         self.file = file
+        self.keep = 10**6 if keep is None else keep  # the deepest path whose position is kept
         self.flow_lines = flow_lines or {}  # mappings audit.input.flowlines read, by (line, column)
         self.flow_lines_built: set[tuple[int, int]] = set()
         self.count = 0
@@ -121,7 +138,8 @@ class _Builder:
             raise self._fail(node, f"the file holds more than {MAX_NODES:,} values")
         if depth > 100:
             raise self._fail(node, "the file nests deeper than 100 levels")
-        self.positions.setdefault(path, (node.start_mark.line + 1, node.start_mark.column + 1))
+        if len(path) <= self.keep:
+            self.positions.setdefault(path, (node.start_mark.line + 1, node.start_mark.column + 1))
         if isinstance(node, yaml.ScalarNode):
             if node.tag == _STR_TAG:
                 return node.value  # what SafeConstructor makes of a string, without its calls
@@ -197,7 +215,8 @@ class _Builder:
                 )
             seen[key] = line
             result[key] = self.build(value_node, path + (key,), depth + 1)
-            self.positions[path + (key,)] = (line, key_node.start_mark.column + 1)
+            if len(path) < self.keep:
+                self.positions[path + (key,)] = (line, key_node.start_mark.column + 1)
         for k, v in merged.items():
             result.setdefault(k, v)
         return result
@@ -210,7 +229,7 @@ class _Builder:
         if depth > 100:
             raise _FastPathDeclined  # the usual path words the error
         result: dict = {}
-        positions = self.positions
+        positions = self.positions if len(path) < self.keep else {}
         row = line + 1
         nodes = 0
         for key, key_column, key_tag, first, second, tag in items:
@@ -279,15 +298,19 @@ def parse_document(text: str, file: str) -> Document:
     One-line flow mappings are read by the fast path of :mod:`audit.input.flowlines` when it applies;
     whenever it does not (or the text has an error), the original text is read the usual way."""
     scanned = flowlines.scan(text)
+    document = None
     if scanned is not None:
         try:
-            return _parse(scanned.text, file, scanned.mappings)
+            document = _parse(scanned.text, file, scanned.mappings, keep=POSITION_DEPTH)
         except (InputError, _FastPathDeclined):
             pass
-    return _parse(text, file, None)
+    if document is None:
+        document = _parse(text, file, None, keep=POSITION_DEPTH)
+    document.source = text
+    return document
 
 
-def _parse(text: str, file: str, flow_lines: dict | None) -> Document:
+def _parse(text: str, file: str, flow_lines: dict | None, keep: int | None = None) -> Document:
     try:
         node = _compose(text)
     except yaml.MarkedYAMLError as exc:
@@ -326,7 +349,7 @@ def _parse(text: str, file: str, flow_lines: dict | None) -> Document:
         raise InputError(
             "the file is empty; a balance needs 'balance', 'streams' and 'steps'", file=file, line=1
         )
-    builder = _Builder(file, flow_lines)
+    builder = _Builder(file, flow_lines, keep)
     data = builder.build(node, ())
     if flow_lines and len(builder.flow_lines_built) != len(flow_lines):
         raise _FastPathDeclined  # a recognised line did not come back as a mapping where written

@@ -90,6 +90,8 @@ _ILLEGAL = re.compile(r"[\000-\010]|[\013-\014]|[\016-\037]")
 def safe_text(value: str) -> str:
     """``value`` with the control characters a workbook cannot hold replaced by U+FFFD, and
     carriage returns as line feeds (XML readers turn them into line feeds anyway)."""
+    if value.isprintable():  # the usual text: no control character at all
+        return value
     return _ILLEGAL.sub("\ufffd", value.replace("\r\n", "\n").replace("\r", "\n"))
 
 
@@ -169,6 +171,12 @@ class Sheet:
                 self.ws.set_row(row - 1, height)
         cell_format = None if style == self.layout.column_style.get(col) else self.formats.get(style)
         r, c = row - 1, col - 1
+        if type(value) is float and link is None and merge_to is None:  # the usual cell
+            if math.isfinite(value):
+                self.ws.write_number(r, c, value, cell_format)
+            else:
+                self.ws.write_blank(r, c, None, cell_format or self.formats.get(style))
+            return
         if merge_to is not None:
             self.ws.merge_range(
                 r, c, r, merge_to - 1, safe_text(value) if is_text else value, cell_format

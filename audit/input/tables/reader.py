@@ -61,7 +61,9 @@ def resolve(
             read.append(table)
     if problems:
         raise InputErrors(problems)
-    merged = Document(data=new, file=document.file, positions=document.positions, cells=cells)
+    merged = Document(
+        data=new, file=document.file, positions=document.positions, cells=cells, source=document.source
+    )
     return merged, read
 
 
