@@ -10,6 +10,7 @@ Example (in a notebook)::
 
 from __future__ import annotations
 
+import atexit
 import gc
 import hashlib
 from collections.abc import Iterator
@@ -107,13 +108,19 @@ def _cycle_collection_paused() -> Iterator[None]:
 
     The audit builds millions of small objects that live until it ends; the collector would walk
     them again and again (about 14 % of a 10 000-stream audit, benchmarks/run.py) and free none.
-    Reference counting still frees what the audit drops; the collector resumes afterwards."""
+    Reference counting still frees what the audit drops; the collector resumes afterwards, after
+    the objects that outlive the audit (the result and the model) are moved out of its sight
+    (:func:`gc.freeze`): its next passes would walk them all again. The next audit (and the
+    program's exit) gives the previous one's objects back to the collector (:func:`gc.unfreeze`),
+    so that a process that audits many files frees their cycles too."""
     enabled = gc.isenabled()
     gc.disable()
+    gc.unfreeze()
     try:
         yield
     finally:
         if enabled:
+            gc.freeze()
             gc.enable()
 
 
@@ -131,6 +138,9 @@ def table_files(document: Document, path: Path) -> list[tuple[Path, str]]:
                 what = "the stream table" if key == "streams_from" else "the claim table"
                 files.append((path.parent / name, what))
     return files
+
+
+atexit.register(gc.unfreeze)  # the last audit's objects are collected at exit
 
 
 def _acceptances(balance: Balance, document: Document, path: Path) -> list[Acceptance]:

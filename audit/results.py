@@ -7,15 +7,15 @@ DataFrames of streams, steps and findings for use from a notebook.
 from __future__ import annotations
 
 import copy
-import math
 from dataclasses import asdict, dataclass, field, fields, is_dataclass
 from enum import Enum
-from typing import Any, Generic, TypeVar
-
-import pandas as pd  # type: ignore[import-untyped]  # no stubs installed
+from typing import TYPE_CHECKING, Any, Generic, TypeVar
 
 from audit.exchangers import ExchangerProfile, ExchangerValues
 from audit.findings import SEVERITY_RANK, Finding, at_or_above
+
+if TYPE_CHECKING:  # pandas loads only when a frame is asked for
+    import pandas as pd  # type: ignore[import-untyped]  # no stubs installed
 
 V = TypeVar("V")
 
@@ -284,10 +284,14 @@ class AuditResult:
     # -- tables --------------------------------------------------------------------------------
     def streams_frame(self) -> pd.DataFrame:
         """One row per stream, SI units."""
+        import pandas as pd
+
         return pd.DataFrame([as_record(s) for s in self.streams]).set_index("id")
 
     def steps_frame(self) -> pd.DataFrame:
         """One row per step, SI units (Q in, W out)."""
+        import pandas as pd
+
         rows = []
         for step in self.steps:
             row = as_record(step)
@@ -299,6 +303,8 @@ class AuditResult:
 
     def findings_frame(self) -> pd.DataFrame:
         """One row per finding, SI units."""
+        import pandas as pd
+
         columns = list(Finding.__dataclass_fields__)
         return pd.DataFrame([asdict(f) for f in self.findings], columns=columns)
 
@@ -316,13 +322,6 @@ class AuditResult:
 
     def findings_for(self, step_id: str) -> list[Finding]:
         return [f for f in self.findings if f.step == step_id]
-
-
-def finite_or_none(value: float | None) -> float | None:
-    """``value`` if it is a finite float, else None (for JSON and workbook cells)."""
-    if value is None or not math.isfinite(value):
-        return None
-    return value
 
 
 HEAT_FLOW_FIELDS = ("Q", "temperature", "claimed", "note")

@@ -31,7 +31,7 @@ from audit.model.streams import StreamSpec
 from audit.model.tolerances import merged
 from audit.plant import check_topology, plant_totals
 from audit.printed import check_stream
-from audit.properties.engine import BACKEND, COOLPROP_VERSION, GAS_CONSTANT, PropertyEngine, State
+from audit.properties.engine import BACKEND, GAS_CONSTANT, PropertyEngine, State, coolprop_version
 from audit.results import AuditResult, StepResult, StreamResult
 from audit.steps import REGISTRY, StepContext
 from audit.units import Flow
@@ -194,7 +194,7 @@ def to_result(
         plant=plant_totals(balance, streams, solution.results),
         provenance={
             "plant-audit": __version__,
-            "CoolProp": COOLPROP_VERSION,
+            "CoolProp": coolprop_version(),
             "property back end": f"{BACKEND} (IAPWS-95 for water)",
             "equations of state": "; ".join(
                 f"{fluid}: {text}" for fluid, text in engine.equations_of_state().items()

@@ -24,14 +24,25 @@ import math
 import re
 from dataclasses import dataclass
 from functools import lru_cache
-
-import pint
+from typing import TYPE_CHECKING
 
 from audit import constants
 from audit.errors import UnitError
+from audit.plausible import FLOW_LIMITS, PLAUSIBLE
+from audit.unit_table import KNOWN_UNITS, SI_DIMENSIONS
 
-UREG: pint.UnitRegistry = pint.UnitRegistry()
-"""The one pint registry of plant-audit."""
+if TYPE_CHECKING:
+    import pint
+
+
+@lru_cache(maxsize=1)
+def registry() -> pint.UnitRegistry:
+    """The one pint registry of plant-audit, built on first use (pint loads in about half a
+    second; the usual units are converted without it, see :mod:`audit.unit_table`)."""
+    import pint
+
+    return pint.UnitRegistry()
+
 
 # One standard atmosphere [Pa] and the reference conditions of volumetric gas flows [K, Pa]
 # ("normal" cubic metre: 0 °C, 1 atm, DIN 1343; "standard": 15 °C, 1 atm, ISO 13443).
@@ -47,36 +58,6 @@ _NORMAL_FLOW = re.compile(r"^([NS])m(?:3|\^3|\*\*3|³)/(s|h|d)$")
 _PER = {"s": 1.0, "h": 3600.0, "d": 86400.0}
 MAX_QUANTITY_CHARS = 200
 """Longest quantity text read; longer text is refused before pint parses it."""
-
-PLAUSIBLE: dict[str, tuple[float, float, str]] = {
-    "temperature": (1.0, 6000.0, "1 K to 6000 K (from liquid-helium service to flames and arcs)"),
-    "pressure": (
-        1.0,
-        1e10,
-        "1 Pa to 10 GPa (deep vacuum to far beyond high-pressure polymer reactors, at 0.3 GPa)",
-    ),
-    "velocity": (
-        -3000.0,
-        3000.0,
-        "at most 3000 m/s (above the speed of sound of any process gas "
-        "but hydrogen and helium at high temperature)",
-    ),
-    "length": (-20_000.0, 20_000.0, "within 20 km of the datum (deep mines to high mountains)"),
-    "mass": (0.0, 1e12, "at most 1e12 kg"),
-}
-"""Plausible range [SI] of the quantities a balance states, with the rule in words. These are
-common practice (generous engineering limits, an order of magnitude or more beyond any plant),
-not published values: a value outside is a typing slip or a hostile file, and is refused as an
-input error before any arithmetic can overflow."""
-
-FLOW_LIMITS: dict[str, tuple[float, str]] = {
-    "mass": (1e7, "10 000 t/s"),
-    "molar": (1e9, "1e9 mol/s"),
-    "normal_volume": (1e7, "1e7 m³/s"),
-    "actual_volume": (1e7, "1e7 m³/s"),
-}
-"""Largest plausible stream flow by basis, with its spelling for messages (common practice: the
-largest flows in industry, through hydroelectric turbines, are about 1e6 kg/s)."""
 
 
 @dataclass(frozen=True)
@@ -149,9 +130,18 @@ def _normalise(unit: str) -> str:
 @lru_cache(maxsize=4096)
 def _converter(unit: str) -> tuple[float, float, str]:
     """(scale, offset, dimensionality) such that SI = value * scale + offset. Cached per unit."""
+    known = KNOWN_UNITS.get(unit)
+    if known is not None:
+        return known
+    return _converter_of_pint(unit)
+
+
+def _converter_of_pint(unit: str) -> tuple[float, float, str]:
+    """:func:`_converter` as pint computes it."""
+    ureg = registry()
     try:
-        zero = UREG.Quantity(0.0, unit)
-        one = UREG.Quantity(1.0, unit)
+        zero = ureg.Quantity(0.0, unit)
+        one = ureg.Quantity(1.0, unit)
         base_zero = zero.to_base_units()
         base_one = one.to_base_units()
     except Exception as exc:
@@ -322,7 +312,10 @@ def _unit_rule(text: object, kind: str, unit: str) -> tuple[float, float, bool]:
 
 @lru_cache(maxsize=64)
 def _dimension_of(si_unit: str) -> str:
-    return str(UREG.Quantity(1.0, si_unit).dimensionality)
+    known = SI_DIMENSIONS.get(si_unit)
+    if known is not None:
+        return known
+    return str(registry().Quantity(1.0, si_unit).dimensionality)
 
 
 def to_flow(text: object) -> Flow:

@@ -398,10 +398,16 @@ def _paths_differ(text: str) -> str | None:
     usual = getattr(loader, "_parse", None)
     if usual is None:
         return None
+    depth = getattr(loader, "POSITION_DEPTH", None)  # compare every position, not the kept ones
     try:
+        if depth is not None:
+            loader.POSITION_DEPTH = 10**6
         first = ("ok", loader.parse_document(text, "fuzzed.yaml"))
     except InputError as exc:
         first = ("error", str(exc))
+    finally:
+        if depth is not None:
+            loader.POSITION_DEPTH = depth
     try:
         second = ("ok", usual(text, "fuzzed.yaml", None))
     except InputError as exc:

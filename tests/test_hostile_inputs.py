@@ -390,9 +390,9 @@ def test_revision_keeps_its_text():
 def test_many_values_are_refused_before_composing(tmp_path, capsys, monkeypatch):
     """A file of many tiny values is refused before PyYAML composes it (a 19 MiB one composed to
     gigabytes before): the limit is checked on a streamed count, and the file is not read twice."""
-    from audit.input import document
+    from audit.input import yaml_limits
 
-    monkeypatch.setattr(document, "MAX_COMPOSED_NODES", 1_000)
+    monkeypatch.setattr(yaml_limits, "MAX_COMPOSED_NODES", 1_000)
     path = tmp_path / "many.yaml"
     path.write_text(GOOD + "values: [" + "1, " * 5_000 + "1]\n", encoding="utf-8")
     err = refused(["check", str(path)], tmp_path, capsys)

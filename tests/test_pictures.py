@@ -64,7 +64,9 @@ def test_exchanger_keeps_its_profile_and_rating(seeded):
     hx = seeded.step("HX1")
     profile, rating = hx.profile, hx.exchanger
     assert profile is not None and rating is not None
-    assert len(profile.duty) == len(profile.hot_T) == len(profile.cold_T) > 20
+    assert (
+        len(profile.duty) == len(profile.hot_T) == len(profile.cold_T) > 5
+    )  # the ends, the phase changes and the refinement
     assert profile.duty == sorted(profile.duty)
     assert profile.duty[0] == 0.0 and profile.duty[-1] == pytest.approx(rating.duty)
     assert rating.arrangement == "counter-current"
@@ -125,7 +127,7 @@ def test_tq_series_hold_the_profile_points(seeded):
         order = sorted(range(len(xy)), key=lambda i: temperatures[i])
         assert [xy[i][1] for i in order] == sorted((y for _, y in xy), reverse=True)
     assert f'class="pinch" data-index="{hx.profile.pinch_index}"' in svg
-    assert "smallest approach -6.5 K" in svg
+    assert "smallest approach -6.6 K" in svg
     assert tq_svg(seeded.step("P1")) is None
 
 

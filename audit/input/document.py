@@ -27,15 +27,16 @@ from audit.input.files import decode_text as decode_text
 from audit.input.files import display_path as display_path
 from audit.input.files import read_bytes as read_bytes
 from audit.input.files import read_text as read_text
+from audit.input.yaml_limits import (
+    LimitError,
+    bound_nodes,
+    compose,
+    too_deep,
+)
 
 MAX_NODES = 5_000_000
 """Most values built from one file; past it the file is refused."""
 
-MAX_COMPOSED_NODES = 1_000_000
-"""Most YAML nodes composed from one file (after the fast path of :mod:`audit.input.flowlines` has
-taken the one-line mappings): composing keeps every node with its marks in memory, about half a
-kilobyte each, so a file of millions of tiny values is refused before it is composed
-(:func:`_bound_nodes`)."""
 
 MAX_ALIAS_NODES = 100_000
 """Most values built a second time through aliases; past it the file is refused as an alias bomb
@@ -46,7 +47,6 @@ _ALLOWED_SCALAR_TAGS = {_STANDARD_TAG + t for t in ("str", "int", "float", "bool
 _STR_TAG = _STANDARD_TAG + "str"
 _YES_NO = {"yes", "no", "on", "off"}  # YAML 1.1 booleans that read as words, not true/false
 
-_FAST_LOADER = getattr(yaml, "CSafeLoader", None)
 """libyaml's parser, when PyYAML was built with it: it composes the same nodes, with the same
 marks, about eight times faster than the pure-Python parser (benchmarks/run.py). Text it refuses,
 and text with a tab, goes to the pure-Python parser, whose errors the messages below are written
@@ -54,6 +54,12 @@ for. (One known leniency: libyaml reads a tag followed directly by a comma in a 
 ``{a: !!str, b: c}``, as a tag on an empty value, where PyYAML refuses the text.)"""
 
 Path_ = tuple[object, ...]
+
+POSITION_DEPTH = 2
+"""Positions are kept for paths this deep while reading (the file's sections, each stream and
+step: what a good file's messages need, ``("steps", 4)``); a message about a deeper value reads
+the positions of the whole file again, once (:meth:`Document.position`). A 100 000-stream file
+has 1.3 million values: their positions would take more memory than the audit."""
 
 
 @dataclass
@@ -71,10 +77,19 @@ class Document:
     texts: dict[Path_, str] = field(default_factory=dict)
     """The text of each number written in the first two levels (``balance: revision: 1.10``), where
     the value read ("1.1") would lose what was written."""
+    source: str | None = None  # the text, while only the shallow positions are read
+
+    def _complete(self, path: Path_) -> None:
+        """Read every position of the file when ``path`` lies deeper than those kept."""
+        if self.source is not None and len(path) > POSITION_DEPTH:
+            full = _parse(self.source, self.file, None, keep=None)
+            self.positions.update(full.positions)
+            self.source = None
 
     def position(self, path: Path_) -> tuple[int | None, int | None]:
         """Line and column of the value at ``path``, or of its nearest written ancestor."""
         path = tuple(path)
+        self._complete(path)
         while path:
             if path in self.positions:
                 return self.positions[path]
@@ -86,6 +101,7 @@ class Document:
         :class:`audit.errors.Problem`: the file with its line and column, or the table file with
         its cell, whichever the nearest written ancestor of ``path`` is."""
         path = tuple(path)
+        self._complete(path)
         while path:
             if path in self.cells:
                 file, cell = self.cells[path]
@@ -98,8 +114,9 @@ class Document:
 
 
 class _Builder:
-    def __init__(self, file: str, flow_lines: dict | None = None) -> None:
+    def __init__(self, file: str, flow_lines: dict | None = None, keep: int | None = None) -> None:
         self.file = file
+        self.keep = 10**6 if keep is None else keep  # the deepest path whose position is kept
         self.flow_lines = flow_lines or {}  # mappings audit.input.flowlines read, by (line, column)
         self.flow_lines_built: set[tuple[int, int]] = set()
         self.count = 0
@@ -127,15 +144,16 @@ class _Builder:
                     node,
                     f"aliases in the file expand to more than {MAX_ALIAS_NODES:,} repeated "
                     "values; refusing it as an alias bomb",
-                    _LimitError,
+                    LimitError,
                 )
         else:
             self._seen.add(id(node))
         if self.count > MAX_NODES:
-            raise self._fail(node, f"the file holds more than {MAX_NODES:,} values", _LimitError)
+            raise self._fail(node, f"the file holds more than {MAX_NODES:,} values", LimitError)
         if depth > 100:
             raise self._fail(node, "the file nests deeper than 100 levels")
-        self.positions.setdefault(path, (node.start_mark.line + 1, node.start_mark.column + 1))
+        if len(path) <= self.keep:
+            self.positions.setdefault(path, (node.start_mark.line + 1, node.start_mark.column + 1))
         if isinstance(node, yaml.ScalarNode):
             if node.tag == _STR_TAG:
                 return node.value  # what SafeConstructor makes of a string, without its calls
@@ -222,7 +240,8 @@ class _Builder:
                 )
             seen[key] = line
             result[key] = self.build(value_node, path + (key,), depth + 1)
-            self.positions[path + (key,)] = (line, key_node.start_mark.column + 1)
+            if len(path) < self.keep:
+                self.positions[path + (key,)] = (line, key_node.start_mark.column + 1)
         for k, v in merged.items():
             result.setdefault(k, v)
         return result
@@ -235,7 +254,7 @@ class _Builder:
         if depth > 100:
             raise _FastPathDeclined  # the usual path words the error
         result: dict = {}
-        positions = self.positions
+        positions = self.positions if len(path) < self.keep else {}
         row = line + 1
         nodes = 0
         for key, key_column, key_tag, first, second, tag in items:
@@ -275,20 +294,24 @@ def parse_document(text: str, file: str) -> Document:
     One-line flow mappings are read by the fast path of :mod:`audit.input.flowlines` when it applies;
     whenever it does not (or the text has an error), the original text is read the usual way."""
     scanned = flowlines.scan(text)
+    document = None
     if scanned is not None:
         try:
-            return _parse(scanned.text, file, scanned.mappings)
-        except _LimitError:
+            document = _parse(scanned.text, file, scanned.mappings, keep=POSITION_DEPTH)
+        except LimitError:
             raise
         except (InputError, _FastPathDeclined):
             pass
-    return _parse(text, file, None)
+    if document is None:
+        document = _parse(text, file, None, keep=POSITION_DEPTH)
+    document.source = text
+    return document
 
 
-def _parse(text: str, file: str, flow_lines: dict | None) -> Document:
-    _bound_nodes(text, file)
+def _parse(text: str, file: str, flow_lines: dict | None, keep: int | None = None) -> Document:
+    bound_nodes(text, file)
     try:
-        node = _compose(text)
+        node = compose(text)
     except yaml.MarkedYAMLError as exc:
         mark = exc.problem_mark or exc.context_mark
         problem = exc.problem or "malformed YAML"
@@ -327,75 +350,16 @@ def _parse(text: str, file: str, flow_lines: dict | None) -> Document:
     except yaml.YAMLError as exc:
         raise InputError(f"not valid YAML: {exc}", file=file) from None
     except RecursionError:  # PyYAML composes nested collections recursively
-        raise InputError("the file nests deeper than 100 levels", file=file, **_too_deep(text)) from None
+        raise InputError("the file nests deeper than 100 levels", file=file, **too_deep(text)) from None
     if node is None:
         raise InputError(
             "the file is empty; a balance needs 'balance', 'streams' and 'steps'", file=file, line=1
         )
-    builder = _Builder(file, flow_lines)
+    builder = _Builder(file, flow_lines, keep)
     data = builder.build(node, ())
     if flow_lines and len(builder.flow_lines_built) != len(flow_lines):
         raise _FastPathDeclined  # a recognised line did not come back as a mapping where written
     return Document(data=data, file=file, positions=builder.positions, texts=builder.texts)
-
-
-class _LimitError(InputError):
-    """A file refused for its number of values: never read a second time the usual way."""
-
-
-def _bound_nodes(text: str, file: str) -> None:
-    """Refuse text that would compose into more than :data:`MAX_COMPOSED_NODES` nodes, before it
-    is composed, with bounded memory. Every node but the first follows one of the characters
-    counted here (a line break, ``,``, ``:``, ``-``, ``[``, ``{``), so their count bounds the nodes
-    from above in one cheap pass; only when that bound is over the limit are the parse events
-    counted (streamed, never kept)."""
-    estimate = sum(text.count(c) for c in "\n,:-[{")
-    if estimate <= MAX_COMPOSED_NODES:
-        return
-    count = 0
-    loader = _FAST_LOADER or yaml.SafeLoader
-    try:
-        for event in yaml.parse(text, Loader=loader):
-            if isinstance(event, (yaml.ScalarEvent, yaml.CollectionStartEvent, yaml.AliasEvent)):
-                count += 1
-                if count > MAX_COMPOSED_NODES:
-                    raise _LimitError(
-                        f"the file holds more than {MAX_COMPOSED_NODES:,} values (written out, not "
-                        "counting one-line stream and step mappings); a balance is far smaller",
-                        file=file,
-                        line=event.start_mark.line + 1,
-                        column=event.start_mark.column + 1,
-                    )
-    except yaml.YAMLError:
-        return  # composing words the error
-
-
-def _compose(text: str) -> yaml.Node | None:
-    """The YAML node graph of ``text``: libyaml's when it reads the text, else the pure-Python
-    parser's (which raises the errors :func:`parse_document` words)."""
-    if _FAST_LOADER is not None and "\t" not in text:
-        try:
-            return yaml.compose(text, Loader=_FAST_LOADER)
-        except yaml.YAMLError:
-            pass
-    return yaml.compose(text, Loader=yaml.SafeLoader)
-
-
-def _too_deep(text: str) -> dict[str, int]:
-    """Line and column where collections first nest deeper than 100 levels (parse events are read
-    without recursion, so this works where composing the file failed)."""
-    depth = 0
-    try:
-        for event in yaml.parse(text, Loader=yaml.SafeLoader):
-            if isinstance(event, yaml.CollectionStartEvent):
-                depth += 1
-                if depth > 100:
-                    return {"line": event.start_mark.line + 1, "column": event.start_mark.column + 1}
-            elif isinstance(event, yaml.CollectionEndEvent):
-                depth -= 1
-    except yaml.YAMLError:
-        pass
-    return {}
 
 
 def load_document(path: str | Path) -> Document:

@@ -43,9 +43,6 @@ from __future__ import annotations
 
 import math
 
-import CoolProp
-import CoolProp.CoolProp as CP
-
 from audit.constants import GAS_CONSTANT
 from audit.errors import StateError
 from audit.properties import mixtures
@@ -62,6 +59,7 @@ from audit.properties.fluids import (
     short_reason,
 )
 from audit.properties.formulations import refine
+from audit.properties.library import CP, coolprop_version
 from audit.properties.mixture_states import MixtureStates
 from audit.properties.state import BASIS_FLUID, BASIS_FORMATION, BASIS_MIXTURE, State
 from audit.wording import to_bar, to_celsius
@@ -71,13 +69,11 @@ __all__ = [
     "BASIS_FLUID",
     "BASIS_FORMATION",
     "BASIS_MIXTURE",
-    "COOLPROP_VERSION",
+    "coolprop_version",
     "GAS_CONSTANT",
     "PropertyEngine",
     "State",
 ]
-
-COOLPROP_VERSION = CoolProp.__version__
 
 
 class PropertyEngine(MixtureStates, DeclaredBases):

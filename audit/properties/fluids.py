@@ -13,37 +13,45 @@ import math
 from collections.abc import Callable
 from dataclasses import dataclass
 
-import CoolProp.CoolProp as CP
-
 from audit.constants import GAS_CONSTANT, P_STANDARD, T_STANDARD
 from audit.errors import StateError
 from audit.formation import species
 from audit.properties.formulations import open_state
+from audit.properties.library import CP
 from audit.properties.state import BASIS_FLUID, BASIS_FORMATION
 from audit.wording import to_bar, to_celsius
 
 BACKEND = "HEOS"
 """CoolProp back end: Helmholtz-energy equations of state (IAPWS-95 for water)."""
 
-PAIRS = {
-    "TP": CP.PT_INPUTS,
-    "PQ": CP.PQ_INPUTS,
-    "TQ": CP.QT_INPUTS,
-    "Ph": CP.HmassP_INPUTS,
-    "Ps": CP.PSmass_INPUTS,
-}
-"""The input pairs a state may be given by, and CoolProp's code for each."""
+PAIRS: dict[str, CP.input_pairs] = {}
+"""The input pairs a state may be given by, and CoolProp's code for each (filled when the first
+fluid is opened: reading CoolProp's codes loads the library)."""
 
-PHASE_NAMES = {
-    CP.iphase_liquid: "liquid",
-    CP.iphase_gas: "vapour",
-    CP.iphase_twophase: "two-phase",
-    CP.iphase_supercritical: "supercritical",
-    CP.iphase_supercritical_gas: "gas",  # above T_crit, below P_crit: a superheated gas
-    CP.iphase_supercritical_liquid: "supercritical liquid",
-    CP.iphase_critical_point: "critical point",
-}
-"""CoolProp's phase codes by the names states carry."""
+PHASE_NAMES: dict[int, str] = {}
+"""CoolProp's phase codes by the names states carry (filled with :data:`PAIRS`)."""
+
+
+def _fill_codes() -> None:
+    """Fill :data:`PAIRS` and :data:`PHASE_NAMES` in place from CoolProp's constants."""
+    PAIRS.update(
+        TP=CP.PT_INPUTS,
+        PQ=CP.PQ_INPUTS,
+        TQ=CP.QT_INPUTS,
+        Ph=CP.HmassP_INPUTS,
+        Ps=CP.PSmass_INPUTS,
+    )
+    PHASE_NAMES.update(
+        {
+            CP.iphase_liquid: "liquid",
+            CP.iphase_gas: "vapour",
+            CP.iphase_twophase: "two-phase",
+            CP.iphase_supercritical: "supercritical",
+            CP.iphase_supercritical_gas: "gas",  # above T_crit, below P_crit: a superheated gas
+            CP.iphase_supercritical_liquid: "supercritical liquid",
+            CP.iphase_critical_point: "critical point",
+        }
+    )
 
 
 @dataclass(frozen=True)
@@ -71,6 +79,8 @@ def open_fluid(
     """A fluid's constants and a CoolProp state object for it, by CoolProp name or alias, on the
     formulation ``formulation_of(canonical name)`` gives; :class:`StateError` for an unknown fluid.
     The formation-basis shift is always taken from the reference equation (HEOS)."""
+    if not PAIRS:
+        _fill_codes()
     try:
         state = CP.AbstractState(BACKEND, name)
     except ValueError:

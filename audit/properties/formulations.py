@@ -20,10 +20,9 @@ References
 
 from __future__ import annotations
 
-import CoolProp.CoolProp as CP
-
 from audit.errors import StateError
 from audit.model.references import FORMULATION_FLUIDS
+from audit.properties.library import CP
 
 BACKENDS = {"reference": "HEOS", "IF97": "IF97"}
 """CoolProp back end of each formulation."""

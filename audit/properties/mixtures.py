@@ -51,12 +51,11 @@ import math
 from collections.abc import Mapping
 from dataclasses import dataclass
 
-import CoolProp.CoolProp as CP
-
 from audit.constants import GAS_CONSTANT, P_STANDARD, T_STANDARD
 from audit.errors import StateError
 from audit.formation import SPECIES, lookup
 from audit.model.composition import check_fractions
+from audit.properties.library import CP
 from audit.wording import to_bar, to_celsius
 
 BACKEND = "HEOS"

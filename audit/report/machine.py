@@ -28,13 +28,14 @@ import json
 import math
 from dataclasses import asdict
 from pathlib import Path
-from typing import Any
-
-import pandas as pd  # type: ignore[import-untyped]
+from typing import TYPE_CHECKING, Any
 
 from audit.report.columns import FINDINGS, STEPS, STREAMS, Table
 from audit.report.files import write_text
 from audit.results import AuditResult
+
+if TYPE_CHECKING:  # pandas loads only when the CSV tables are written
+    import pandas as pd  # type: ignore[import-untyped]
 
 JSON_VERSION = "1"
 
@@ -106,6 +107,8 @@ def write_json(result: AuditResult, path: str | Path) -> None:
 def table_frame(table: Table, rows: list[Any]) -> pd.DataFrame:
     """One table of the CSV output (SI units), its columns from the registry; indexed by the
     table's index column when it has one."""
+    import pandas as pd
+
     columns = [c.key for c in table.machine_columns if c.csv and not c.flatten]
     if not rows:
         return pd.DataFrame() if table.index else pd.DataFrame([], columns=columns)

@@ -35,8 +35,6 @@ from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
 from fractions import Fraction
 
-import numpy as np
-
 from audit.constants import (
     FARADAY,  # noqa: F401  (read here by older code and tests)
     P_STANDARD,
@@ -226,6 +224,8 @@ def fit_extents(
     the others are the least-squares solution of Σ_k ν_ik ξ_k = Δn_i over all species. Returns the
     extents and the residual Δn_i − Σ_k ν_ik ξ_k per species [mol/s].
     """
+    import numpy as np  # loaded only when needed: it costs a start-up
+
     formulas = sorted(set(change) | {f for r in reactions for f in r.nu()})
     nu = np.array([[r.nu().get(f, 0.0) for r in reactions] for f in formulas])
     target = np.array([change.get(f, 0.0) for f in formulas])

@@ -63,7 +63,12 @@ def resolve(
     if problems:
         raise InputErrors(problems)
     merged = Document(
-        data=new, file=document.file, positions=document.positions, cells=cells, texts=document.texts
+        data=new,
+        file=document.file,
+        positions=document.positions,
+        cells=cells,
+        texts=document.texts,
+        source=document.source,
     )
     return merged, read
 

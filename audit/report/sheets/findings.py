@@ -39,6 +39,8 @@ def write(book: Book) -> None:
     sh = book.sheets[FINDINGS]
     columns = COLUMNS.sheet_columns()
     sh.header(COLUMNS.headers())
+    for key, width in WIDTHS.items():
+        sh.fix(COLUMNS.sheet_order.index(key) + 1, width)
     for row, f in enumerate(book.findings, start=2):
         value_fmt = FORMATS.get(f.quantity or "", GENERAL)
         for col, column in enumerate(columns, start=1):
@@ -66,6 +68,4 @@ def write(book: Book) -> None:
                 sh.put(row, col, cell_value(column, f, quantity), fmt=fmt, wrap=column.wrap)
     if not book.findings:
         sh.put(2, 1, "no findings")
-    for key, width in WIDTHS.items():
-        sh.fix(COLUMNS.sheet_order.index(key) + 1, width)
     sh.table(len(book.findings) + 1, freeze="C2")
