@@ -11,13 +11,16 @@ imports only the stages above it in this list (import contracts in pyproject.tom
     model/                       pydantic models of the balance in SI (no I/O, no results)
     properties/                  the only code that imports CoolProp: states, mixtures, basis
     physics/                     plain functions on SI floats: exergy, efficiencies, voltages, bounds
+    exchangers                   a heat exchanger's T–Q profile and rating values (records)
     results                      step, stream and plant result records
     steps/                       shared step machinery; steps/kinds/: one module per kind
     reading, solve               file → validated balance; balance → states → step results
     review/                      verdicts with uncertainty, probable causes, acceptances
     reconcile/                   data reconciliation of measured balances
     outcomes, diff, history      per-file outcomes, revision diffs, the run history
-    report/                      console, JSON, CSV, JUnit, workbook (one module per sheet)
+    accounts                     the plant's exergy account, read from the results
+    report/                      console, JSON, CSV, JUnit, workbook (one module per sheet),
+                                 HTML (report/html/) and SVG pictures (report/pictures/)
     api, executors, batch        ``audit.run(path)``; many files in parallel
     commands/                    the command line: the only code that prints
 

@@ -134,7 +134,7 @@ def _copy(value: Any) -> Any:
 
 def _read(path: Path) -> dict[str, Any]:
     try:
-        with path.open("rb") as handle:
+        with open(path, "rb") as handle:
             return tomllib.load(handle)
     except (OSError, tomllib.TOMLDecodeError) as exc:
         raise InputError(f"cannot read the configuration: {exc}", file=str(path)) from None

@@ -87,6 +87,12 @@ class InputErrors(InputError):
         return self._problems[0]
 
 
+class HistoryError(InputError):
+    """The run history cannot be read or written (damaged, read-only, locked, from another
+    version, on a full disk). Reading it (``plant-audit history``) exits 2; recording a run
+    (``check``/``batch --history``) only warns, unless the user asked to fail on it."""
+
+
 class InternalError(AuditError, RuntimeError):
     """A bug in plant-audit itself: exit code 3."""
 

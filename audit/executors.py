@@ -17,8 +17,11 @@ items go on. The batch turns a :class:`TaskFailed` into that file's internal err
 
 from __future__ import annotations
 
+import ctypes
 import multiprocessing
 import os
+import signal
+import time
 import traceback
 from collections import deque
 from collections.abc import Callable, Iterator, Sequence
@@ -50,8 +53,9 @@ def default_workers() -> int:
         return max(1, os.cpu_count() or 1)
 
 
-def _worker_main(connection: Connection, task: Callable[[Any], Any]) -> None:
+def _worker_main(connection: Connection, task: Callable[[Any], Any], parent: int) -> None:
     """A worker: receive (index, item), send back (index, ("ok", value) or ("error", text))."""
+    _follow_parent(parent)
     while True:
         try:
             message = connection.recv()
@@ -70,6 +74,24 @@ def _worker_main(connection: Connection, task: Callable[[Any], Any]) -> None:
             connection.send((index, ("error", f"the result could not be sent back: {exc!r}")))
 
 
+def _follow_parent(parent: int) -> None:
+    """Make this worker end with its parent: the parent alone decides on an interrupt (SIGINT
+    ignored here), SIGTERM ends the worker at once, and on Linux the kernel kills the worker when
+    the parent dies, even by SIGKILL (PR_SET_PDEATHSIG), so no worker goes on writing."""
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    signal.signal(signal.SIGTERM, signal.SIG_DFL)
+    try:
+        libc = ctypes.CDLL(None, use_errno=True)
+        libc.prctl(_PR_SET_PDEATHSIG, signal.SIGKILL, 0, 0, 0)
+    except (OSError, AttributeError):  # pragma: no cover - not Linux
+        pass
+    if os.getppid() != parent:  # the parent died before the line above
+        os._exit(1)
+
+
+_PR_SET_PDEATHSIG = 1
+
+
 def _describe(exc: BaseException) -> str:
     lines = traceback.format_exception(type(exc), exc, exc.__traceback__, limit=-3)
     return "".join(lines).strip()
@@ -77,6 +99,10 @@ def _describe(exc: BaseException) -> str:
 
 class LocalProcesses:
     """Worker processes on this machine (``workers`` of them, at most one per item).
+
+    ``timeout``: seconds one item may take (None: no limit); a worker still on an item after that
+    is killed, the item is reported as failed (:class:`TaskFailed`) and a new worker goes on with
+    the rest.
 
     Each worker holds up to :attr:`ahead` items: the one it is auditing and the next, so it never
     waits for this process to hand it work. A worker works through its items in order, so when it
@@ -86,8 +112,9 @@ class LocalProcesses:
 
     ahead = 2
 
-    def __init__(self, workers: int | None = None) -> None:
+    def __init__(self, workers: int | None = None, timeout: float | None = None) -> None:
         self.workers = max(1, workers if workers is not None else default_workers())
+        self.timeout = timeout
 
     def map_unordered(
         self, task: Callable[[Any], Any], items: Sequence[Any]
@@ -97,13 +124,17 @@ class LocalProcesses:
         # connection -> (process, indices handed to it and not yet answered, in order)
         busy: dict[Connection, tuple[Any, deque[int]]] = {}
         held: dict[int, Any] = {}
+        began: dict[Connection, float] = {}  # when the worker began its first pending item
 
         def start() -> None:
             parent_end, child_end = context.Pipe(duplex=True)
-            process = context.Process(target=_worker_main, args=(child_end, task), daemon=True)
+            process = context.Process(
+                target=_worker_main, args=(child_end, task, os.getpid()), daemon=True
+            )
             process.start()
             child_end.close()
             busy[parent_end] = (process, deque())
+            began[parent_end] = time.monotonic()
             hand_out(parent_end)
 
         def hand_out(connection: Connection) -> None:
@@ -122,10 +153,12 @@ class LocalProcesses:
                 connection.close()
                 process.join()
                 del busy[connection]
+                began.pop(connection, None)
 
         def retire(connection: Connection) -> int | None:
             """Forget a dead worker; requeue what it held after its first item (returned)."""
             process, pending = busy.pop(connection)
+            began.pop(connection, None)
             connection.close()
             process.join()
             failed = pending.popleft() if pending else None
@@ -139,8 +172,24 @@ class LocalProcesses:
             for _ in range(min(self.workers, len(todo))):
                 start()
             while busy:
+                late = self._overdue(busy, began)
+                if late is not None:
+                    busy[late][0].kill()
+                    busy[late][0].join()
+                    failed = retire(late)
+                    if failed is not None:
+                        yield (
+                            failed,
+                            TaskFailed(
+                                f"the file took longer than the time limit of {self.timeout:g} s "
+                                "(--timeout); its worker was stopped"
+                            ),
+                        )
+                    if todo:
+                        start()
+                    continue
                 sentinels = {process.sentinel: connection for connection, (process, _) in busy.items()}
-                for obj in wait([*busy, *sentinels]):
+                for obj in wait([*busy, *sentinels], timeout=self._wait(began)):
                     connection = obj if isinstance(obj, Connection) else sentinels[obj]
                     if connection not in busy:
                         continue  # already handled through its other handle
@@ -161,14 +210,37 @@ class LocalProcesses:
                             start()
                         continue
                     busy[connection][1].remove(got)
+                    began[connection] = time.monotonic()
                     held.pop(got, None)
                     yield got, (value if kind == "ok" else TaskFailed(value))
                     hand_out(connection)
         finally:
-            for connection, (process, _) in list(busy.items()):
+            for process, _ in list(busy.values()):
                 process.terminate()
-                process.join()
+            for connection, (process, _) in list(busy.items()):
+                process.join(5)
+                if process.is_alive():  # pragma: no cover - a worker that ignores SIGTERM
+                    process.kill()
+                    process.join()
                 connection.close()
+
+    def _overdue(
+        self, busy: dict[Connection, tuple[Any, deque[int]]], began: dict[Connection, float]
+    ) -> Connection | None:
+        """A worker whose current item has run past the time limit, if any."""
+        if self.timeout is None:
+            return None
+        now = time.monotonic()
+        for connection, (_, pending) in busy.items():
+            if pending and now - began.get(connection, now) > self.timeout:
+                return connection
+        return None
+
+    def _wait(self, began: dict[Connection, float]) -> float | None:
+        """How long to wait for a worker before looking at the time limits again."""
+        if self.timeout is None or not began:
+            return None
+        return max(0.05, min(began.values()) + self.timeout - time.monotonic() + 0.01)
 
 
 class DaskCluster:

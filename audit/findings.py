@@ -40,6 +40,10 @@ NAMES: dict[str, str] = {
     "approach-below-minimum": "the smallest approach temperature is below the stated minimum",
     "splitter-state-differs": "a splitter outlet whose state differs from the inlet's",
     "phase-mismatch": "a stream's declared phase differs from the computed phase",
+    "printed-property-mismatch": "a printed stream property that its state does not have, beyond the "
+    "rounding of its digits",
+    "formulation-difference": "a printed stream property that differs beyond rounding, by no more than "
+    "the difference between two formulations of the fluid",
     "mixer-outlet-pressure": "a mixer outlet above its lowest inlet pressure",
     "stream-unused": "a stream that no step produces or consumes",
     "step-not-evaluated": "a check of the step could not be evaluated",
@@ -114,6 +118,12 @@ class Finding:
     monte_carlo_uncertainty: float | None = None
     # Single slips that would make the step close (audit.review.causes), one sentence each.
     probable_causes: tuple[str, ...] = ()
+    # How the tolerance was found: "rounding" (the default verdict: the rounding bound of the
+    # written values plus a property-method allowance, audit.review.rounding) or "declared" (the
+    # balance's own written tolerances); its make-up in words; the rounding part [its unit].
+    tolerance_rule: str | None = None
+    tolerance_basis: str | None = None
+    rounding_bound: float | None = None
 
     def __post_init__(self) -> None:
         if self.name not in NAMES:

@@ -12,13 +12,18 @@ Tables (``PRAGMA user_version`` = :data:`SCHEMA_VERSION`)::
          errors, warnings, infos, accepted, exergy_destroyed [W], problems, tool_version)
     findings(run_id, severity, name, step, stream, message, margin [SI], quantity, accepted)
 
-Several processes may record at once (SQLite locks the file; writers wait up to 30 s).
+Several processes may record at once: SQLite locks the file, and a writer waits up to
+:data:`LOCK_TIMEOUT` seconds for another. A history that cannot be used raises
+:class:`audit.errors.HistoryError` saying what is wrong: damaged (at which page, when SQLite says),
+not a run history at all, read-only, locked by another process, on a full disk, or written by
+another version of plant-audit.
 """
 
 from __future__ import annotations
 
 import json
 import os
+import re
 import sqlite3
 from collections.abc import Iterator
 from contextlib import contextmanager
@@ -26,13 +31,16 @@ from dataclasses import dataclass
 from datetime import datetime, timezone
 from pathlib import Path
 
-from audit.errors import InputError
+from audit.clock import run_time
+from audit.errors import HistoryError
 from audit.findings import ERROR, INFO, WARNING
 from audit.identity import ID_PREFIX
 from audit.outcomes import SKIPPED, FileOutcome, FindingKey, finding_key
 from audit.version import __version__
 
 SCHEMA_VERSION = 1
+LOCK_TIMEOUT = 5.0
+"""Seconds a run waits for a history that another process holds locked."""
 
 _SCHEMA = """
 CREATE TABLE IF NOT EXISTS runs (
@@ -93,7 +101,10 @@ class Run:
 
 def file_key(path: str | Path) -> str:
     """How a file without a stable identity is named in the history: its absolute, normalised
-    path (:mod:`audit.identity` gives the stable one, stored as ``FileOutcome.identity``)."""
+    path ('-' for the standard input; :mod:`audit.identity` gives the stable one, stored as
+    ``FileOutcome.identity``)."""
+    if str(path) == "-":
+        return "-"
     return os.path.normpath(os.path.abspath(str(path)))
 
 
@@ -105,31 +116,91 @@ def outcome_key(outcome: FileOutcome) -> str:
 @contextmanager
 def _connect(database: str | Path, create: bool) -> Iterator[sqlite3.Connection]:
     database = Path(database)
+    name = str(database)
     if not create and not database.is_file():
-        raise InputError("no run history here (record runs with --history)", file=str(database))
-    if create:
-        database.parent.mkdir(parents=True, exist_ok=True)
+        raise HistoryError("no run history here (record runs with --history)", file=name)
+    if database.exists() and not database.is_file():
+        raise HistoryError("the history file is not a regular file (a folder or a device)", file=name)
     try:
-        connection = sqlite3.connect(database, timeout=30.0)
-    except sqlite3.Error as exc:
-        raise InputError(f"cannot open the run history: {exc}", file=str(database)) from None
+        if create:
+            database.parent.mkdir(parents=True, exist_ok=True)
+        connection = sqlite3.connect(database, timeout=LOCK_TIMEOUT)
+    except (OSError, sqlite3.Error) as exc:
+        raise HistoryError(f"the run history cannot be opened: {_reason(exc)}", file=name) from None
     try:
         version = connection.execute("PRAGMA user_version").fetchone()[0]
         if version == 0:
+            if not create:
+                raise HistoryError("the file holds no run history (an empty database)", file=name)
             connection.executescript(_SCHEMA)
             connection.execute(f"PRAGMA user_version = {SCHEMA_VERSION}")
         elif version != SCHEMA_VERSION:
-            raise InputError(
+            raise HistoryError(
                 f"the run history has schema version {version}; this plant-audit "
-                f"reads version {SCHEMA_VERSION}",
-                file=str(database),
+                f"reads version {SCHEMA_VERSION} (it was written by another version)",
+                file=name,
             )
         yield connection
         connection.commit()
-    except sqlite3.DatabaseError as exc:
-        raise InputError(f"not a plant-audit run history: {exc}", file=str(database)) from None
+    except sqlite3.Error as exc:
+        raise HistoryError(_diagnosis(connection, database, exc), file=name) from None
     finally:
         connection.close()
+
+
+def _reason(exc: BaseException) -> str:
+    return getattr(exc, "strerror", None) or str(exc)
+
+
+def _diagnosis(connection: sqlite3.Connection, database: Path, exc: sqlite3.Error) -> str:
+    """What is wrong with the history, in words, from SQLite's error."""
+    text = str(exc).lower()
+    if "locked" in text or "busy" in text:
+        return (
+            f"the history file is locked by another process (waited {LOCK_TIMEOUT:.0f} s); "
+            "this run was not recorded"
+        )
+    if "readonly" in text or "read-only" in text or not os.access(database, os.W_OK):
+        return "the history file is read-only; this run was not recorded"
+    if "full" in text:
+        return "the disk holding the history file is full; this run was not recorded"
+    if "not a database" in text:
+        return "not a plant-audit run history (the file is not an SQLite database)"
+    if "malformed" in text or "corrupt" in text:
+        page = _damaged_page(connection)
+        where = f" at page {page}" if page else ""
+        return (
+            f"the history file is damaged{where} ({exc}); this run was not recorded: restore the "
+            "file from a backup or start a new one"
+        )
+    return f"the run history cannot be used: {exc}"
+
+
+def _check_integrity(connection: sqlite3.Connection, database: Path | str) -> None:
+    """Refuse to write into a damaged history (SQLite's quick check reads every page once; a
+    write into a damaged file could lose what is still readable)."""
+    rows = connection.execute("PRAGMA quick_check(20)").fetchall()
+    if [row[0] for row in rows] != ["ok"]:
+        page = _damaged_page(connection)
+        where = f" at page {page}" if page else ""
+        raise HistoryError(
+            f"the history file is damaged{where} ({rows[0][0]}); this run was not recorded: "
+            "restore the file from a backup or start a new one",
+            file=str(database),
+        )
+
+
+def _damaged_page(connection: sqlite3.Connection) -> int | None:
+    """The first damaged page SQLite's integrity check names, if it names one."""
+    try:
+        rows = connection.execute("PRAGMA quick_check(20)").fetchall()
+    except sqlite3.Error:
+        return None
+    for (row,) in rows:
+        match = re.search(r"\bpage (\d+)", str(row), re.IGNORECASE)
+        if match:
+            return int(match.group(1))
+    return None
 
 
 def record(
@@ -140,8 +211,9 @@ def record(
 ) -> list[FileOutcome]:
     """Record one run per outcome and fill each outcome's ``previous_run`` and ``new_since_last``
     (the findings absent from the file's last audited run). Returns ``outcomes``."""
-    run_at = (now or datetime.now(timezone.utc)).astimezone(timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ")
+    run_at = (now or run_time()).astimezone(timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ")
     with _connect(database, create=True) as connection:
+        _check_integrity(connection, database)
         for outcome in outcomes:
             if outcome.status == SKIPPED:
                 continue

@@ -69,6 +69,12 @@ class FileOutcome:
     previous_run: str | None = None
     new_since_last: list[FindingKey] | None = None
     identity: str | None = None  # the run history's key (audit.identity); None: the file's path
+    inputs: list[tuple[str, str]] = field(default_factory=list)
+    staged: str | None = None
+
+    # ``inputs``: the files the audit read (balance, tables, acceptance file) with what each is,
+    # so that no report of the batch is written over one; ``staged``: the file's workbook as a
+    # temporary file beside its target, until the batch publishes its reports together.
 
     def exit_code(self, fail_on: str = "error") -> int:
         if self.status == INTERNAL:

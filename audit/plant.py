@@ -37,6 +37,16 @@ def check_topology(
             )
         seen_ids.setdefault(step.id, line or 0)
         inlets, outlets = step.stream_ids()
+        for stream_id in dict.fromkeys(i for i in inlets if i in outlets):
+            problems.append(
+                Problem(
+                    f"stream '{stream_id}' is both an inlet and an outlet of the step; a stream "
+                    "cannot leave a step and enter it again (name the stream the step produces)",
+                    file=document.file,
+                    line=line,
+                    where=f"step {step.id}",
+                )
+            )
         for role, ids, table in (("inlet", inlets, consumers), ("outlet", outlets, producers)):
             for stream_id in ids:
                 if stream_id not in balance.streams:

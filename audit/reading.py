@@ -12,6 +12,7 @@ from audit.input.document import Document, load_document, parse_document
 from audit.input.tables import TableFile, resolve
 from audit.model import balance as _balance
 from audit.model.balance import Balance
+from audit.model.ids import normalise_ids
 from audit.model.table_columns import stream_kinds
 from audit.steps import BALANCE_MODEL
 
@@ -21,8 +22,10 @@ def resolve_tables(document: Document, allow_outside: bool = False) -> tuple[Doc
     reading stream tables by the stream model's columns (:mod:`audit.model.table_columns`).
 
     A table outside the balance file's folder tree is refused unless ``allow_outside`` is true.
-    Returns the merged document and the table files read."""
-    return resolve(document, stream_kinds(), allow_outside=allow_outside)
+    Returns the merged document (its ids checked and normalised, :mod:`audit.model.ids`) and the
+    table files read."""
+    merged, tables = resolve(document, stream_kinds(), allow_outside=allow_outside)
+    return normalise_ids(merged), tables
 
 
 def validate_document(document: Document) -> Balance:
@@ -44,7 +47,7 @@ def load_balance(path: str | Path) -> tuple[Balance, Document]:
 
 def parse_balance(text: str, file: str = "<text>") -> tuple[Balance, Document]:
     """As :func:`load_balance`, from text (no tables are read)."""
-    document = parse_document(text, file)
+    document = normalise_ids(parse_document(text, file))
     return validate_document(document), document
 
 

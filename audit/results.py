@@ -7,14 +7,17 @@ DataFrames of streams, steps and findings for use from a notebook.
 from __future__ import annotations
 
 import copy
-import math
 from dataclasses import asdict, dataclass, field, fields, is_dataclass
 from enum import Enum
-from typing import Any
+from typing import TYPE_CHECKING, Any, Generic, TypeVar
 
-import pandas as pd  # type: ignore[import-untyped]  # no stubs installed
-
+from audit.exchangers import ExchangerProfile, ExchangerValues
 from audit.findings import SEVERITY_RANK, Finding, at_or_above
+
+if TYPE_CHECKING:  # pandas loads only when a frame is asked for
+    import pandas as pd  # type: ignore[import-untyped]  # no stubs installed
+
+V = TypeVar("V")
 
 STANDARD_GRAVITY = 9.806_65  # m/s**2, exact by definition (3rd CGPM, 1901)
 
@@ -49,6 +52,9 @@ class StreamResult:
     description: str | None = None
     line: int | None = None
     composition: dict[str, float] | None = None
+    # Printed properties beyond the fixing pair, each beside the computed value (audit.printed):
+    # property -> Printed record; None when the stream prints only its two fixing properties.
+    printed: dict[str, Any] | None = None
 
     @property
     def kinetic_potential(self) -> float:
@@ -64,6 +70,9 @@ class BoundaryChoice(Enum):
     CONSERVATIVE = "conservative"
     """Not written: heat in from an infinitely hot source, heat out at the dead state (or the
     coldest stream), the choice least likely to flag a violation."""
+    STEP = "step temperature"
+    """Not written, and the step is isothermal: exchanged at the step's own temperature (the
+    premise of its −ΔG or −ΔA bound, :mod:`audit.steps.potentials`)."""
 
 
 @dataclass(slots=True)  # one per stream or step: no per-instance dict
@@ -88,7 +97,11 @@ class HeatFlow:
 @dataclass(slots=True)
 class Balance:
     """The computed balances of one step (rates [W], [W/K] or totals [J], [J/K]); the equations
-    are in :mod:`audit.steps.laws` and :mod:`audit.physics.bounds`."""
+    are in :mod:`audit.steps.laws` and :mod:`audit.physics.bounds`. ``W_rev`` is the governing
+    bound (:mod:`audit.steps.potentials`); beside it, each bound under its own name: the exergy
+    drop ``W_rev_exergy``; for an isothermal step at ``T_isothermal`` [K], −ΔG of a flow step (of a
+    closed isobaric step's other work) ``minus_dG_isothermal`` and −ΔA of a closed step
+    ``minus_dA_isothermal``; a closed step's ``useful_work_bound`` (W_rev − P0 ΔV)."""
 
     H_in: float
     H_out: float
@@ -107,6 +120,23 @@ class Balance:
     W_rev: float
     exergy_destroyed: float
     energy_scale: float
+    W_rev_exergy: float
+    T_isothermal: float | None = None
+    minus_dG_isothermal: float | None = None
+    minus_dA_isothermal: float | None = None
+    useful_work_bound: float | None = None
+
+
+class _FromBalance(Generic[V]):
+    """A read-only value of a step's :class:`Balance`, read as the step's own attribute."""
+
+    def __init__(self, name: str, doc: str) -> None:
+        self.name, self.__doc__ = name, doc
+
+    def __get__(self, step: Any, owner: Any = None) -> V:
+        if step is None:
+            return self  # type: ignore[return-value]  # the descriptor itself, on the class
+        return getattr(step.balance, self.name)
 
 
 @dataclass(slots=True)  # one per stream or step: no per-instance dict
@@ -137,6 +167,8 @@ class StepResult:
     extra: dict[str, Any] = field(default_factory=dict)
     description: str | None = None
     line: int | None = None
+    profile: ExchangerProfile | None = None  # heat exchangers: the T–Q profile of both sides
+    exchanger: ExchangerValues | None = None  # heat exchangers: duty, approaches, LMTD
 
     # -- the balance's values, read as the step's own (reports read them by name) --
     @property
@@ -149,50 +181,17 @@ class StepResult:
         """Work delivered by the step [W] or [J]."""
         return self.balance.W
 
-    @property
-    def H_in(self) -> float:
-        """Σ ṁ h of the inlets [W] (vessel: m u1 [J])."""
-        return self.balance.H_in
+    H_in = _FromBalance[float]("H_in", "Σ ṁ h of the inlets [W] (vessel: m u1 [J]).")
+    H_out = _FromBalance[float]("H_out", "Σ ṁ h of the outlets [W] (vessel: m u2 [J]).")
+    KE_PE_in = _FromBalance[float]("KE_PE_in", "Kinetic and potential energy in [W].")
+    KE_PE_out = _FromBalance[float]("KE_PE_out", "Kinetic and potential energy out [W].")
 
-    @property
-    def H_out(self) -> float:
-        """Σ ṁ h of the outlets [W] (vessel: m u2 [J])."""
-        return self.balance.H_out
+    dH = _FromBalance[float]("dH", "Enthalpy change, out minus in [W] or [J].")
+    dU = _FromBalance[float]("dU", "Internal-energy change [W] or [J].")
 
-    @property
-    def KE_PE_in(self) -> float:
-        """Kinetic and potential energy in [W]."""
-        return self.balance.KE_PE_in
-
-    @property
-    def KE_PE_out(self) -> float:
-        """Kinetic and potential energy out [W]."""
-        return self.balance.KE_PE_out
-
-    @property
-    def dH(self) -> float:
-        """Enthalpy change, out minus in [W] or [J]."""
-        return self.balance.dH
-
-    @property
-    def dU(self) -> float:
-        """Internal-energy change [W] or [J]."""
-        return self.balance.dU
-
-    @property
-    def dS(self) -> float:
-        """Entropy change [W/K] or [J/K]."""
-        return self.balance.dS
-
-    @property
-    def dG(self) -> float:
-        """Gibbs-function change [W] or [J]."""
-        return self.balance.dG
-
-    @property
-    def dA(self) -> float:
-        """Helmholtz-function change [W] or [J]."""
-        return self.balance.dA
+    dS = _FromBalance[float]("dS", "Entropy change [W/K] or [J/K].")
+    dG = _FromBalance[float]("dG", "Gibbs-function change [W] or [J].")
+    dA = _FromBalance[float]("dA", "Helmholtz-function change [W] or [J].")
 
     @property
     def energy_residual(self) -> float:
@@ -211,18 +210,21 @@ class StepResult:
 
     @property
     def W_rev(self) -> float:
-        """Reversible work delivered [W] or [J]."""
+        """Reversible work delivered [W] or [J]: the bound the work check uses, the one
+        ``bound_basis`` names (:attr:`W_rev_exergy`, :attr:`minus_dG_isothermal` or
+        :attr:`minus_dA_isothermal`)."""
         return self.balance.W_rev
 
-    @property
-    def exergy_destroyed(self) -> float:
-        """T0 S_gen [W] or [J]."""
-        return self.balance.exergy_destroyed
+    W_rev_exergy = _FromBalance[float]("W_rev_exergy", "The exergy drop [W] or [J].")
+    T_isothermal = _FromBalance[float | None]("T_isothermal", "The isothermal step's temperature [K].")
+    minus_dG_isothermal = _FromBalance[float | None](
+        "minus_dG_isothermal", "−ΔG at T_isothermal [W] or [J]."
+    )
+    minus_dA_isothermal = _FromBalance[float | None]("minus_dA_isothermal", "−ΔA at T_isothermal [J].")
+    useful_work_bound = _FromBalance[float | None]("useful_work_bound", "W_rev − P0 ΔV of a vessel [J].")
 
-    @property
-    def energy_scale(self) -> float:
-        """Scale of the relative energy tolerance."""
-        return self.balance.energy_scale
+    exergy_destroyed = _FromBalance[float]("exergy_destroyed", "T0 S_gen [W] or [J].")
+    energy_scale = _FromBalance[float]("energy_scale", "Scale of the relative energy tolerance.")
 
 
 @dataclass
@@ -284,10 +286,14 @@ class AuditResult:
     # -- tables --------------------------------------------------------------------------------
     def streams_frame(self) -> pd.DataFrame:
         """One row per stream, SI units."""
+        import pandas as pd
+
         return pd.DataFrame([as_record(s) for s in self.streams]).set_index("id")
 
     def steps_frame(self) -> pd.DataFrame:
         """One row per step, SI units (Q in, W out)."""
+        import pandas as pd
+
         rows = []
         for step in self.steps:
             row = as_record(step)
@@ -299,6 +305,8 @@ class AuditResult:
 
     def findings_frame(self) -> pd.DataFrame:
         """One row per finding, SI units."""
+        import pandas as pd
+
         columns = list(Finding.__dataclass_fields__)
         return pd.DataFrame([asdict(f) for f in self.findings], columns=columns)
 
@@ -316,13 +324,6 @@ class AuditResult:
 
     def findings_for(self, step_id: str) -> list[Finding]:
         return [f for f in self.findings if f.step == step_id]
-
-
-def finite_or_none(value: float | None) -> float | None:
-    """``value`` if it is a finite float, else None (for JSON and workbook cells)."""
-    if value is None or not math.isfinite(value):
-        return None
-    return value
 
 
 HEAT_FLOW_FIELDS = ("Q", "temperature", "claimed", "note")
@@ -355,6 +356,11 @@ STEP_FIELDS = (
     "energy_tolerance",
     "bound_basis",
     "classical_bound",
+    "W_rev_exergy",
+    "T_isothermal",
+    "minus_dG_isothermal",
+    "minus_dA_isothermal",
+    "useful_work_bound",
     "second_law_efficiency",
     "isentropic_efficiency",
     "claimed",
@@ -363,6 +369,8 @@ STEP_FIELDS = (
     "extra",
     "description",
     "line",
+    "profile",
+    "exchanger",
 )
 """The published fields of a :class:`StepResult`, in order: the keys of its JSON object and the
 columns of the steps table (the balance's values appear flat, as attributes of the step)."""

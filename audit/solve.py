@@ -15,20 +15,23 @@ Order of work:
 
 from __future__ import annotations
 
+import math
 import platform
 import time
 from dataclasses import dataclass, field
-from datetime import datetime, timezone
 from typing import Any, cast
 
+from audit.clock import reproducible, run_time
 from audit.errors import InputErrors, Problem, StateError
 from audit.findings import ERROR, WARNING, Finding, relative
 from audit.input.document import Document
 from audit.model.balance import Balance
+from audit.model.references import FORMULATION_FLUIDS
 from audit.model.streams import StreamSpec
 from audit.model.tolerances import merged
 from audit.plant import check_topology, plant_totals
-from audit.properties.engine import BACKEND, COOLPROP_VERSION, GAS_CONSTANT, PropertyEngine, State
+from audit.printed import check_stream
+from audit.properties.engine import BACKEND, GAS_CONSTANT, PropertyEngine, State, coolprop_version
 from audit.results import AuditResult, StepResult, StreamResult
 from audit.steps import REGISTRY, StepContext
 from audit.units import Flow
@@ -66,7 +69,13 @@ def solve(balance: Balance, document: Document) -> Solution:
     that is :mod:`audit.review`'s job)."""
     started = time.perf_counter()
     info = balance.balance
-    engine = PropertyEngine(info.dead_state.T, info.dead_state.P, info.tolerances.saturation_band)
+    engine = PropertyEngine(
+        info.dead_state.T,
+        info.dead_state.P,
+        info.tolerances.saturation_band,
+        reference=info.reference,
+        formulation=info.formulation,
+    )
     findings: list[Finding] = []
     streams, problems = _evaluate_streams(balance, document, engine, findings)
     problems += check_topology(balance, document, findings, streams)
@@ -86,11 +95,59 @@ def solve(balance: Balance, document: Document) -> Solution:
                 Problem(exc.problem.message, file=document.file, line=line, where=f"step {step.id}")
             )
             continue
+        unbounded = not_finite(result)
+        if unbounded is not None:
+            line, _ = document.position(("steps", index))
+            problems.append(
+                Problem(
+                    f"the step's {unbounded} is not a finite number: the values it is computed "
+                    "from are too large to compute with; check the flows, velocities, elevations "
+                    "and claims of this step",
+                    file=document.file,
+                    line=line,
+                    where=f"step {step.id}",
+                )
+            )
+            continue
         results.append(result)
         findings.extend(step_findings)
     if problems:
         raise InputErrors(problems)
     return Solution(balance, document, engine, streams, results, findings, started, seconds)
+
+
+_CHECKED = (
+    ("H_in", "inlet energy"),
+    ("H_out", "outlet energy"),
+    ("KE_PE_in", "inlet kinetic and potential energy"),
+    ("KE_PE_out", "outlet kinetic and potential energy"),
+    ("Q", "heat"),
+    ("W", "work"),
+    ("energy_residual", "first-law residual"),
+    ("dS", "entropy change"),
+    ("S_gen", "entropy generation"),
+    ("W_rev", "reversible work"),
+    ("exergy_destroyed", "exergy destroyed"),
+    ("energy_scale", "energy turnover"),
+)
+
+
+def not_finite(result: StepResult) -> str | None:
+    """The name (in words) of the first computed quantity of ``result`` that is not finite, or
+    None: a residual or bound of infinity or NaN must never pass a check."""
+    balance = result.balance
+    for name, words in _CHECKED:
+        if not math.isfinite(getattr(balance, name)):
+            return words
+    if not all(math.isfinite(v) for v in balance.mass_residual.values()):
+        return "mass residual"
+    for value, words in (
+        (result.classical_bound, "work bound"),
+        (result.energy_tolerance, "energy tolerance"),
+    ):
+        if value is not None and not math.isfinite(value):
+            return words
+    return None
 
 
 def evaluate_step(
@@ -143,11 +200,14 @@ def to_result(
         step_seconds=solution.step_seconds,
         provenance={
             "plant-audit": __version__,
-            "CoolProp": COOLPROP_VERSION,
+            "CoolProp": coolprop_version(),
             "property back end": f"{BACKEND} (IAPWS-95 for water)",
+            "equations of state": "; ".join(
+                f"{fluid}: {text}" for fluid, text in engine.equations_of_state().items()
+            ),
             "Python": platform.python_version(),
-            "run at (UTC)": datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M:%S"),
-            "solve time [s]": f"{elapsed:.3f}",
+            "run at (UTC)": run_time().strftime("%Y-%m-%d %H:%M:%S"),
+            **({} if reproducible() else {"solve time [s]": f"{elapsed:.3f}"}),
             "property evaluations": str(engine.flash_count),
             **notes,
         },
@@ -168,6 +228,8 @@ def _evaluate_streams(
             problems.append(Problem(exc.problem.message, **place, where=f"stream {stream_id}"))
             continue
         result = streams[stream_id]
+        if spec.claims() and spec.fluid is not None:
+            findings.extend(_printed_findings(balance, document, engine, stream_id, spec, result))
         if spec.phase is not None and result.phase not in _PHASE_MATCH[spec.phase]:
             findings.append(
                 Finding(
@@ -184,6 +246,48 @@ def _evaluate_streams(
                 _dew_point_findings(stream_id, engine.state(result.fluid, "TP", result.T, result.P))
             )
     return streams, problems
+
+
+def _printed_findings(
+    balance: Balance,
+    document: Document,
+    engine: PropertyEngine,
+    stream_id: str,
+    spec: StreamSpec,
+    result: StreamResult,
+) -> list[Finding]:
+    """A stream's printed properties checked against its state (:mod:`audit.printed`); the
+    comparison is kept on the stream's result."""
+    pair, a, b = spec.inputs()
+    state = engine.state(result.fluid, pair, a, engine.to_tool_basis(result.fluid, pair, b))
+    written = (
+        document.data.get("streams", {}).get(stream_id, {}) if isinstance(document.data, dict) else {}
+    )
+    claims, found = check_stream(
+        stream_id,
+        spec,
+        state,
+        engine,
+        written if isinstance(written, dict) else {},
+        balance.balance.site_pressure,
+        _other_formulation(engine, result.fluid),
+    )
+    result.printed = claims or None
+    return found
+
+
+def _other_formulation(engine: PropertyEngine, fluid: str) -> PropertyEngine | None:
+    """An engine on the fluid's other formulation (water: IF97 beside IAPWS-95), or None."""
+    if fluid not in FORMULATION_FLUIDS["IF97"]:
+        return None
+    this = engine.formulation_of(fluid)
+    return PropertyEngine(
+        engine.dead_T,
+        engine.dead_P,
+        engine.saturation_band,
+        reference=engine.reference,
+        formulation={fluid: "IF97" if this == "reference" else "reference"},
+    )
 
 
 def _dew_point_findings(stream_id: str, state: State) -> list[Finding]:
@@ -228,7 +332,7 @@ def evaluate_stream(
             mass_flow = _mass_flow(spec.flow, state.fluid, state.rho, state.molar_mass, engine)
     else:
         fluid = cast(str, spec.fluid)  # validated: a stream without a composition names its fluid
-        state = engine.state(fluid, pair, a, b)
+        state = engine.state(fluid, pair, a, engine.to_tool_basis(fluid, pair, b))
         mass_flow = _mass_flow(spec.flow, fluid, state.rho, state.molar_mass, engine)
     return StreamResult(
         id=stream_id,

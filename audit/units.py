@@ -24,14 +24,25 @@ import math
 import re
 from dataclasses import dataclass
 from functools import lru_cache
-
-import pint
+from typing import TYPE_CHECKING
 
 from audit import constants
 from audit.errors import UnitError
+from audit.plausible import FLOW_LIMITS, PLAUSIBLE
+from audit.unit_table import KNOWN_UNITS, SI_DIMENSIONS
 
-UREG: pint.UnitRegistry = pint.UnitRegistry()
-"""The one pint registry of plant-audit."""
+if TYPE_CHECKING:
+    import pint
+
+
+@lru_cache(maxsize=1)
+def registry() -> pint.UnitRegistry:
+    """The one pint registry of plant-audit, built on first use (pint loads in about half a
+    second; the usual units are converted without it, see :mod:`audit.unit_table`)."""
+    import pint
+
+    return pint.UnitRegistry()
+
 
 # One standard atmosphere [Pa] and the reference conditions of volumetric gas flows [K, Pa]
 # ("normal" cubic metre: 0 °C, 1 atm, DIN 1343; "standard": 15 °C, 1 atm, ISO 13443).
@@ -39,7 +50,8 @@ STANDARD_ATMOSPHERE = constants.STANDARD_ATMOSPHERE
 NORMAL_CONDITIONS = constants.NORMAL_CONDITIONS
 STANDARD_CONDITIONS = constants.STANDARD_CONDITIONS
 
-_NUMBER = re.compile(r"^\s*([-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
+_NUMBER = re.compile(r"^\s*([-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$", re.ASCII)
+"""A number (ASCII digits only: ``1٠0`` with an Arabic-Indic zero is not 100) and its unit."""
 _GAUGE = re.compile(r"^(mbar|bar|Pa|kPa|MPa|psi)(?:g|\(g\))$")
 _ABSOLUTE = re.compile(r"^(mbar|bar|Pa|kPa|MPa|psi)(?:a|\(a\))$")
 _NORMAL_FLOW = re.compile(r"^([NS])m(?:3|\^3|\*\*3|³)/(s|h|d)$")
@@ -76,6 +88,8 @@ KINDS: dict[str, Kind] = {
             "J/(kg K)",
             "'6.5 kJ/(kg K)'",
         ),
+        Kind("density", "[mass] / [length] ** 3", "kg/m**3", "'890.3 kg/m3'"),
+        Kind("specific_volume", "[length] ** 3 / [mass]", "m**3/kg", "'0.0012 m3/kg'"),
         Kind("velocity", "[length] / [time]", "m/s", "'35 m/s'"),
         Kind("length", "[length]", "m", "'12 m'"),
         Kind("volume", "[length] ** 3", "m**3", "'2.5 m3'"),
@@ -116,9 +130,18 @@ def _normalise(unit: str) -> str:
 @lru_cache(maxsize=4096)
 def _converter(unit: str) -> tuple[float, float, str]:
     """(scale, offset, dimensionality) such that SI = value * scale + offset. Cached per unit."""
+    known = KNOWN_UNITS.get(unit)
+    if known is not None:
+        return known
+    return _converter_of_pint(unit)
+
+
+def _converter_of_pint(unit: str) -> tuple[float, float, str]:
+    """:func:`_converter` as pint computes it."""
+    ureg = registry()
     try:
-        zero = UREG.Quantity(0.0, unit)
-        one = UREG.Quantity(1.0, unit)
+        zero = ureg.Quantity(0.0, unit)
+        one = ureg.Quantity(1.0, unit)
         base_zero = zero.to_base_units()
         base_one = one.to_base_units()
     except Exception as exc:
@@ -138,7 +161,7 @@ def split_number(text: object, kind: str) -> tuple[float, str]:
         match = _NUMBER.match(text)
         if match is not None:  # the usual case, checked as below in fewer steps
             number, unit = float(match.group(1)), match.group(2)
-            if unit and math.isfinite(number):
+            if unit and math.isfinite(number) and (text.isascii() or not unit[0].isdigit()):
                 return number, unit
     expected = KINDS[kind].example if kind in KINDS else kind
     if isinstance(text, bool) or text is None:
@@ -153,6 +176,12 @@ def split_number(text: object, kind: str) -> tuple[float, str]:
         raise UnitError(
             f"'{text[:40]}...' is {len(text):,} characters long, too long for a quantity such as "
             f"{expected}"
+        )
+    foreign = next((c for c in text if c.isdigit() and not c.isascii()), None)
+    if foreign is not None:
+        raise UnitError(
+            f"'{text}' holds the digit {foreign!r} (U+{ord(foreign):04X}), which is not one of "
+            "0-9; write numbers with the digits 0-9"
         )
     match = _NUMBER.match(text)
     if not match:
@@ -206,13 +235,29 @@ def to_si(text: object, kind: str, site_pressure: float | None = None) -> float:
                 "add 'site_pressure' (the atmospheric pressure at the site, e.g. "
                 "'1.013 bar') under 'balance', or write the pressure as absolute"
             )
-        return number * scale + site_pressure
-    value = number * scale + offset
+        value = number * scale + site_pressure
+    else:
+        value = number * scale + offset
     if kind == "temperature" and value <= 0.0:
         raise UnitError(f"'{text}' is at or below absolute zero ({value:.6g} K)")
     if kind == "pressure" and value <= 0.0:
         raise UnitError(f"'{text}' is not a positive absolute pressure ({value:.6g} Pa)")
+    check_plausible(text, kind, value)
     return value
+
+
+def check_plausible(text: object, kind: str, value: float) -> None:
+    """Refuse a value [SI] that is not finite, or outside the plausible range of its kind
+    (:data:`PLAUSIBLE`), naming the text as written."""
+    if not math.isfinite(value):
+        raise UnitError(f"'{text}' is too large to compute with")
+    limits = PLAUSIBLE.get(kind)
+    if limits is not None and not limits[0] <= value <= limits[1]:
+        unit = KINDS[kind].si_unit
+        raise UnitError(
+            f"'{text}' ({value:.6g} {unit}) is outside the plausible range of a "
+            f"{kind.replace('_', ' ')}: {limits[2]}"
+        )
 
 
 _MAX_RULES = 4096
@@ -267,7 +312,10 @@ def _unit_rule(text: object, kind: str, unit: str) -> tuple[float, float, bool]:
 
 @lru_cache(maxsize=64)
 def _dimension_of(si_unit: str) -> str:
-    return str(UREG.Quantity(1.0, si_unit).dimensionality)
+    known = SI_DIMENSIONS.get(si_unit)
+    if known is not None:
+        return known
+    return str(registry().Quantity(1.0, si_unit).dimensionality)
 
 
 def to_flow(text: object) -> Flow:
@@ -286,10 +334,10 @@ def to_flow(text: object) -> Flow:
     basis, scale, offset, reference, unit, dimensionality = rule
     if basis == "normal_volume":
         value = number / scale  # scale: seconds per time unit of the flow
-        _check_flow_sign(text, value)
+        _check_flow_sign(text, value, basis)
         return Flow("normal_volume", value, reference)
     value = number * scale + offset
-    _check_flow_sign(text, value)
+    _check_flow_sign(text, value, basis)
     if basis is None:
         raise UnitError(
             f"'{text}' is not a flow: '{unit}' has dimension {dimensionality}; write it like "
@@ -328,6 +376,13 @@ def _flow_rule(text: object, unit: str) -> tuple:
     return basis, scale, offset, None, unit, dimensionality
 
 
-def _check_flow_sign(text: object, value: float) -> None:
+def _check_flow_sign(text: object, value: float, basis: str | None) -> None:
     if value < 0.0:
         raise UnitError(f"'{text}' is a negative flow; a stream's flow is at least zero")
+    if not math.isfinite(value):
+        raise UnitError(f"'{text}' is too large to compute with")
+    if basis in FLOW_LIMITS and value > FLOW_LIMITS[basis][0]:
+        raise UnitError(
+            f"'{text}' is larger than any plausible stream flow (at most "
+            f"{FLOW_LIMITS[basis][1]}, common practice)"
+        )

@@ -7,9 +7,9 @@ pressure reads the same (``12.5 bar a``) in every message, sheet and console lin
 from __future__ import annotations
 
 import math
-import re
 
 from audit.constants import ZERO_CELSIUS
+from audit.printable import escaped
 
 
 def celsius(T: float, digits: int = 2) -> str:
@@ -25,6 +25,26 @@ def bar(P: float, significant: int = 4) -> str:
 def kilowatts(value: float, significant: int = 4) -> str:
     """A power [W] as ``'1148 kW'``."""
     return f"{value / 1e3:.{significant}g} kW"
+
+
+def percent(fraction: float, significant: int = 3) -> str:
+    """A fraction as a percentage with the digits that carry information: 2e-7 → "2e-05 %",
+    0.9999998 → "99.99998 %" (never "0.0 %" or "100.0 %" for a figure that is not)."""
+    value = 100.0 * fraction
+    if value == 0.0:
+        return "0 %"
+    text = f"{value:.{significant}g}"
+    # a figure near a round one keeps the digits that tell it apart (99.99998, not 100)
+    digits = significant
+    while (
+        float(text) != value
+        and abs(float(text) - value) / abs(value) > 1e-12
+        and (text in ("100", "-100") or float(text) == round(float(text)))
+        and digits < 12
+    ):
+        digits += 1
+        text = f"{value:.{digits}g}"
+    return f"{text} %"
 
 
 def kelvin_difference(dT: float, digits: int = 2) -> str:
@@ -47,15 +67,9 @@ def finite_or_none(value: float | None) -> float | None:
     return value if value is not None and math.isfinite(value) else None
 
 
-_UNSAFE_CHARACTERS = re.compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f\u200e\u200f\u202a-\u202e\u2066-\u2069]")
-
-
 def safe_text(text: object) -> str:
     """Text written in a balance (a name, an id, a description), safe to show on a terminal:
-    control characters (the escape that starts a terminal sequence, bidirectional overrides) are
-    shown as ``\\x1b``-style escapes, line breaks and tabs as spaces."""
-    value = str(text).replace("\r\n", " ").replace("\n", " ").replace("\t", " ")
-    return _UNSAFE_CHARACTERS.sub(
-        lambda m: f"\\x{ord(m.group()):02x}" if ord(m.group()) < 256 else f"\\u{ord(m.group()):04x}",
-        value,
-    )
+    line breaks and tabs as spaces (so a console table can wrap it), every other control or
+    format character (the escape that starts a terminal sequence, bidirectional overrides) shown
+    as a ``\\x1b``-style escape by :func:`audit.printable.escaped`."""
+    return escaped(str(text).replace("\r\n", " ").replace("\n", " ").replace("\t", " "))

@@ -54,9 +54,68 @@ HERE = Path(__file__).resolve().parent
 GOALS = {
     "audit / floor": ("<=", 1.3),
     "naive / audit": (">=", 5.0),
-    "workbook / audit (10 000 streams)": ("<=", 0.5),
+    "workbook / audit (10 000 streams)": ("<=", 1.0),
+    "workbook / audit, stretch (10 000 streams)": ("<=", 0.5),
     "peak memory at 100 000 streams [MB]": ("<=", 1000.0),
+    "cold start: check of the sample [s]": ("<=", 1.0),
+    "cold start: an invalid file [s]": ("<=", 0.5),
 }
+
+SAMPLE = HERE.parent / "sample_plant" / "quillon-bay-seeded.yaml"
+INVALID = HERE.parent / "tests" / "bad_inputs" / "balance_name_missing.yaml"
+
+
+def cold_start(runs: int) -> dict[str, tuple[float, float]]:
+    """Median wall and CPU seconds of ``plant-audit check`` in a fresh interpreter: of the
+    23-stream sample (JSON written) and of an invalid file (refused before any property call)."""
+    import statistics
+
+    out = {}
+    with tempfile.TemporaryDirectory() as folder:
+        for name, path, extra in (
+            ("cold start: check of the sample [s]", SAMPLE, ["--json", str(Path(folder) / "x.json")]),
+            ("cold start: an invalid file [s]", INVALID, []),
+        ):
+            walls, cpus = [], []
+            for _ in range(runs):
+                before = resource.getrusage(resource.RUSAGE_CHILDREN)
+                started = time.perf_counter()
+                subprocess.run(
+                    [sys.executable, "-m", "audit", "check", str(path), "-q", *extra],
+                    capture_output=True,
+                    check=False,
+                    cwd=HERE.parent,
+                )
+                walls.append(time.perf_counter() - started)
+                after = resource.getrusage(resource.RUSAGE_CHILDREN)
+                cpus.append(after.ru_utime - before.ru_utime + after.ru_stime - before.ru_stime)
+            out[name] = (statistics.median(walls), statistics.median(cpus))
+    return out
+
+
+def count_exchanger_flashes(path: Path) -> tuple[int, int]:
+    """(heat exchangers profiled, CoolProp flashes their profiles took) in one audit of ``path``:
+    the bends' saturation states and the (P, h) points of :func:`approach_profile`."""
+    import audit
+    from audit.steps.kinds import heat_exchanger
+
+    real = heat_exchanger.approach_profile
+    counts = [0, 0]
+
+    def counting(ctx, *args, **kwargs):
+        before = ctx.engine.flash_count
+        try:
+            return real(ctx, *args, **kwargs)
+        finally:
+            counts[0] += 1
+            counts[1] += ctx.engine.flash_count - before
+
+    heat_exchanger.approach_profile = counting
+    try:
+        audit.run(path)
+    finally:
+        heat_exchanger.approach_profile = real
+    return counts[0], counts[1]
 
 
 # -- the child: measurements on one balance file ------------------------------------------------
@@ -153,14 +212,18 @@ def record_calls(path: Path) -> list[tuple]:
     import CoolProp.CoolProp as CP
 
     import audit
+    from audit.properties.library import CP as lazy
 
+    lazy.PT_INPUTS  # noqa: B018 - loads the library into the stand-in before it is patched
     real = CP.AbstractState
     recorder = Recorder(real)
     CP.AbstractState = recorder.factory
+    lazy.AbstractState = recorder.factory  # the property layer's copy of the library's names
     try:
         audit.run(path)
     finally:
         CP.AbstractState = real
+        lazy.AbstractState = real
     return recorder.unique()
 
 
@@ -317,6 +380,8 @@ def child(path: Path, repeat: int, naive_sample: int, seed: int, workbook: bool)
     result = None  # let the result go before the next passes
     gc.collect()
 
+    exchangers, flashes = count_exchanger_flashes(path)
+    out.update(exchangers=exchangers, exchanger_flashes=flashes)
     calls = record_calls(path)
     kinds: dict[str, int] = {}
     for _, _, _, pair, _, _, read in calls:
@@ -394,7 +459,8 @@ def report(results: dict[int, dict]) -> list[str]:
         f"{'naive':>17} {'workbook':>15} {'peak RSS':>9}"
     )
     lines.append(header)
-    for _, r in sorted(results.items()):
+    sizes = {k: v for k, v in results.items() if isinstance(k, int)}
+    for _, r in sorted(sizes.items()):
         book = (
             f"{r['workbook_cpu']:7.2f} ({r['workbook_wall']:5.1f})"
             if "workbook_cpu" in r
@@ -408,7 +474,7 @@ def report(results: dict[int, dict]) -> list[str]:
             f"{r['peak_rss_MB']:6.0f} MB"
         )
     lines.append("")
-    for size, r in sorted(results.items()):
+    for size, r in sorted(sizes.items()):
         sampled = (
             ""
             if r["naive_sampled"] == r["naive_states"]
@@ -419,6 +485,11 @@ def report(results: dict[int, dict]) -> list[str]:
         parts = ", ".join(f"{k} {v:.2f} s" for k, v in r["phases"].items())
         lines.append(f"{size} streams: {r['findings']} findings")
         lines.append(f"  floor: {r['floor_calls']} unique CoolProp calls: {kinds}{sampled}")
+        if r.get("exchangers"):
+            lines.append(
+                f"  heat exchanger profiles: {r['exchanger_flashes'] / r['exchangers']:.1f} flashes "
+                f"per exchanger ({r['exchangers']} exchangers, {r['exchanger_flashes']} flashes)"
+            )
         lines.append(f"  audit, one instrumented run: {parts}")
         lines.append(
             f"  resident memory: {r['rss_after_imports_MB']:.0f} MB after imports, "
@@ -426,13 +497,16 @@ def report(results: dict[int, dict]) -> list[str]:
             f"{r['peak_rss_MB']:.0f} MB (ru_maxrss)"
         )
     lines += ["", "ratios (CPU time):"]
-    for size, r in sorted(results.items()):
+    for size, r in sorted(sizes.items()):
         lines.append(f" {size} streams")
         lines.append(_ratio_line("audit / floor", r["audit_cpu"] / r["floor_cpu"]))
         lines.append(_ratio_line("naive / audit", r["naive_cpu"] / r["audit_cpu"]))
         if "workbook_cpu" in r:
             name = "workbook / audit (10 000 streams)" if size == 10_000 else "workbook / audit"
             lines.append(_ratio_line(name, r["workbook_cpu"] / r["audit_cpu"]))
+            if size == 10_000:
+                stretch = "workbook / audit, stretch (10 000 streams)"
+                lines.append(_ratio_line(stretch, r["workbook_cpu"] / r["audit_cpu"]))
             lines.append(
                 _ratio_line("workbook / solve step alone", r["workbook_cpu"] / r["phases"]["solve"])
             )
@@ -458,6 +532,10 @@ def report(results: dict[int, dict]) -> list[str]:
             f"  {'(audit / floor) at 100 000 over at 10 000':42s} {overhead:10.3g}   "
             f"within 10 % of 1: {'met' if within else 'NOT MET'}"
         )
+    if "cold" in results:
+        lines.append(" start-up (median wall seconds of a fresh process; CPU seconds beside)")
+        for name, (wall, cpu) in results["cold"].items():
+            lines.append(_ratio_line(name, wall) + f"   (CPU {cpu:.2f} s)")
     if 100_000 in results:
         lines.append(" memory")
         lines.append(_ratio_line("peak memory at 100 000 streams [MB]", results[100_000]["peak_rss_MB"]))
@@ -492,6 +570,9 @@ def main(argv: list[str] | None = None) -> int:
         action="store_true",
         help="time the workbook at every size, not only at 10 000 streams",
     )
+    parser.add_argument(
+        "--cold-runs", type=int, default=7, help="fresh-process runs per cold-start timing (median)"
+    )
     parser.add_argument("--child", help=argparse.SUPPRESS)
     parser.add_argument("--workbook", action="store_true", help=argparse.SUPPRESS)
     args = parser.parse_args(argv)
@@ -506,10 +587,13 @@ def main(argv: list[str] | None = None) -> int:
     import generate
 
     sizes = [int(s) for s in args.sizes.split(",") if s.strip()]
+    results: dict = {}
+    if args.cold_runs > 0:
+        results["cold"] = cold_start(args.cold_runs)
+        print("measured the cold start", flush=True)
     with tempfile.TemporaryDirectory() as scratch:
         folder = Path(args.data) if args.data else Path(scratch)
         folder.mkdir(parents=True, exist_ok=True)
-        results = {}
         for size in sizes:
             path = folder / f"balance-{size}-seed{args.seed}.yaml"
             if not path.exists():

@@ -6,6 +6,7 @@ Run it as a command (it is not collected by pytest)::
 
     /tmp/dev/bin/python tests/fuzz_loader.py --seconds 60
     /tmp/dev/bin/python tests/fuzz_loader.py --seconds 600 --crashes /tmp/fuzz-crashes
+    /tmp/dev/bin/python tests/fuzz_loader.py --tables --seconds 60   # stream tables instead
 
 Inputs are drawn by hypothesis, in rounds of fresh seeds until the time is up, from three sources:
 
@@ -397,10 +398,16 @@ def _paths_differ(text: str) -> str | None:
     usual = getattr(loader, "_parse", None)
     if usual is None:
         return None
+    depth = getattr(loader, "POSITION_DEPTH", None)  # compare every position, not the kept ones
     try:
+        if depth is not None:
+            loader.POSITION_DEPTH = 10**6
         first = ("ok", loader.parse_document(text, "fuzzed.yaml"))
     except InputError as exc:
         first = ("error", str(exc))
+    finally:
+        if depth is not None:
+            loader.POSITION_DEPTH = depth
     try:
         second = ("ok", usual(text, "fuzzed.yaml", None))
     except InputError as exc:
@@ -423,8 +430,15 @@ def _paths_differ(text: str) -> str | None:
     return None
 
 
-def fuzz(seconds: float, crashes: Path, round_size: int = 200) -> tuple[int, int]:
-    """Run rounds of fresh seeds until ``seconds`` have passed; return (inputs, crashes)."""
+def fuzz(seconds: float, crashes: Path, round_size: int = 200, tables: bool = False) -> tuple[int, int]:
+    """Run rounds of fresh seeds until ``seconds`` have passed; return (inputs, crashes). With
+    ``tables``, the inputs are stream tables (CSV and .xlsx, :mod:`fuzz_tables`) instead."""
+    if tables:
+        from fuzz_tables import TABLES, check_table
+
+        strategy, check, suffix = TABLES, check_table, None
+    else:
+        strategy, check, suffix = INPUTS, check_text, ".yaml"
     deadline = time.monotonic() + seconds
     tried = found = 0
     round_number = 0
@@ -439,19 +453,23 @@ def fuzz(seconds: float, crashes: Path, round_size: int = 200) -> tuple[int, int
             phases=[Phase.generate],
             suppress_health_check=list(HealthCheck),
         )
-        @given(INPUTS)
-        def one_round(text: str) -> None:
+        @given(strategy)
+        def one_round(drawn) -> None:  # noqa: ANN001 - text, or (suffix, bytes, options) of a table
             nonlocal tried, found
             if time.monotonic() >= deadline:
                 return
             tried += 1
-            problem = check_text(text)
+            problem = check(drawn)
             if problem is not None:
                 found += 1
                 crashes.mkdir(parents=True, exist_ok=True)
-                (crashes / f"crash-{found:03d}.yaml").write_text(
-                    text, encoding="utf-8", errors="surrogatepass"
-                )
+                if suffix is None:
+                    (crashes / f"crash-{found:03d}{drawn[0]}").write_bytes(drawn[1])
+                    problem = f"table options: {drawn[2]!r}\n{problem}"
+                else:
+                    (crashes / f"crash-{found:03d}.yaml").write_text(
+                        drawn, encoding="utf-8", errors="surrogatepass"
+                    )
                 (crashes / f"crash-{found:03d}.txt").write_text(problem, encoding="utf-8")
 
         one_round()
@@ -467,14 +485,25 @@ def main(argv: list[str] | None = None) -> int:
         default=Path("fuzz-crashes"),
         help="folder for inputs that raised anything but InputError",
     )
+    parser.add_argument(
+        "--tables",
+        action="store_true",
+        help="fuzz stream tables (CSV and .xlsx, tests/fuzz_tables.py) instead of balance text",
+    )
     args = parser.parse_args(argv)
     started = time.monotonic()
-    tried, found = fuzz(args.seconds, args.crashes)
+    tried, found = fuzz(args.seconds, args.crashes, tables=args.tables)
     elapsed = time.monotonic() - started
     print(
         f"fuzzed {tried} inputs in {elapsed:.0f} s ({tried / max(elapsed, 1e-9):.0f}/s): "
-        f"{OUTCOMES['audited']} audited, {OUTCOMES['refused with an InputError']} refused with "
-        f"an InputError, {found} raised something else or read differently on the fast path"
+        + (
+            f"{OUTCOMES['audited']} audited, {OUTCOMES['refused with an InputError']} refused with "
+            "an InputError, "
+            if not args.tables
+            else ""
+        )
+        + f"{found} raised something else"
+        + ("" if args.tables else " or read differently on the fast path")
         + (f"; see {args.crashes}/" if found else "")
     )
     return 1 if found else 0

@@ -207,7 +207,7 @@ def test_acceptance_inside_the_balance(seeded: Path, plain) -> None:
             r"must not be blank(.|\n)*unknown field 'by'",
         ),
         ("- step: T1\n", r"an acceptance file holds one key, 'accepted:'"),
-        ("accepted: yes\n", r"'accepted' is a list of acceptances"),
+        ("accepted: true\n", r"'accepted' is a list of acceptances"),
     ],
 )
 def test_bad_acceptance_file_is_an_input_error(seeded: Path, body: str, message: str) -> None:

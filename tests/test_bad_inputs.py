@@ -132,10 +132,10 @@ def test_unreadable_file(tmp_path, capsys, monkeypatch):
     path = tmp_path / "locked.yaml"
     path.write_text(GOOD, encoding="utf-8")
 
-    def refuse(self: Path) -> bytes:
+    def refuse(self: Path, *args: object, **kwargs: object) -> bytes:
         raise PermissionError(13, "Permission denied", str(self))
 
-    monkeypatch.setattr(Path, "read_bytes", refuse)  # a permission test cannot rely on chmod as root
+    monkeypatch.setattr(Path, "open", refuse)  # a permission test cannot rely on chmod as root
     code, err = run_check(path, tmp_path, capsys)
     assert code == 2
     assert "locked.yaml: cannot be read: Permission denied" in err
@@ -184,5 +184,26 @@ def test_fuzzed_inputs_sample():
     def never_a_crash(text: str) -> None:
         problem = check_text(text)
         assert problem is None, f"{problem}\n--- input ---\n{text}"
+
+    never_a_crash()
+
+
+def test_fuzzed_tables_sample():
+    """A fixed-seed sample of the fuzzer's table mode (``tests/fuzz_loader.py --tables``): stream
+    tables as CSV and as damaged workbooks, each refused with an InputError or audited."""
+    from fuzz_tables import TABLES, check_table
+    from hypothesis import HealthCheck, given, settings
+
+    @settings(
+        max_examples=30,
+        derandomize=True,
+        database=None,
+        deadline=None,
+        suppress_health_check=list(HealthCheck),
+    )
+    @given(TABLES)
+    def never_a_crash(table: tuple[str, bytes, str]) -> None:
+        problem = check_table(table)
+        assert problem is None, f"{problem}\n--- table options ---\n{table[2]}"
 
     never_a_crash()

@@ -292,9 +292,12 @@ def test_batch_command_writes_summary_workbooks_and_junit(
         assert (worst is None) == (not result.findings)
         if worst:
             assert worst.startswith("error ")
+    audited = [names[f] for f in files if expected_exit(f) != EXIT_INPUT]
     assert {p.name for p in out.iterdir()} == {
         SUMMARY_NAME,
-        *(names[f] for f in files if expected_exit(f) != EXIT_INPUT),
+        "index.html",  # the HTML reports and their index (audit.report.html.index)
+        *audited,
+        *(str(Path(name).with_suffix(".html")) for name in audited),
     }
 
     tree = ET.parse(junit)

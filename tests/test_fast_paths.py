@@ -10,14 +10,15 @@
 
 from __future__ import annotations
 
+import re
+
 import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from audit.errors import InputError, UnitError
 from audit.input import document as loader
-from audit.input import flowlines
-from audit.report.workbook_file import cache_formula_values
+from audit.input import flowlines, yaml_limits
 from audit.units import to_flow, to_si
 
 
@@ -25,7 +26,8 @@ def _read(text: str, fast: bool, libyaml: bool, monkeypatch: pytest.MonkeyPatch)
     """('ok', (repr of the data, positions)) or ('error', message) for one way of reading."""
     with monkeypatch.context() as patch:
         if not libyaml:
-            patch.setattr(loader, "_FAST_LOADER", None)
+            patch.setattr(yaml_limits, "FAST_LOADER", None)
+        patch.setattr(loader, "POSITION_DEPTH", 10**6)  # every position, to compare them all
         try:
             if fast:
                 document = loader.parse_document(text, "t.yaml")
@@ -244,13 +246,19 @@ def test_flow_checks_keep_their_order_once_a_unit_is_known():
 
 
 # -- workbook -------------------------------------------------------------------------------------
-def test_cached_formula_values_are_filled_in_one_pass():
-    xml = (
-        '<sheetData><row r="2"><c r="A2"><v>1</v></c><c r="B2"><f>A2*2</f><v/></c>'
-        '<c r="C2" s="3"><f>B2+1</f><v></v></c><c r="D2"><f>C2</f><v/></c></row></sheetData>'
-    )
-    filled = cache_formula_values(xml.encode(), [("B2", 2.0), ("C2", 3.5)]).decode()
-    assert '<c r="B2"><f>A2*2</f><v>2.0</v></c>' in filled
-    assert '<c r="C2" s="3"><f>B2+1</f><v>3.5</v></c>' in filled
-    assert '<c r="D2"><f>C2</f><v/></c>' in filled  # not listed: left for the reader to compute
-    assert '<c r="A2"><v>1</v></c>' in filled
+def test_formula_cells_carry_their_cached_value_as_written(tmp_path):
+    """Every formula cell of the Steps sheet is written with its value (no later pass over the
+    file fills it in)."""
+    import zipfile
+
+    from conftest import SAMPLE
+
+    import audit
+    from audit.report.workbook import write_workbook
+
+    path = tmp_path / "book.xlsx"
+    write_workbook(audit.run(SAMPLE / "quillon-bay-seeded.yaml"), path)
+    with zipfile.ZipFile(path) as archive:
+        xml = archive.read("xl/worksheets/sheet3.xml").decode()
+    formulas = re.findall(r"<f>[^<]*</f>(<v>[^<]*</v>)?", xml)
+    assert formulas and all(value.startswith("<v>") and value != "<v></v>" for value in formulas)

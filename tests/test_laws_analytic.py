@@ -12,7 +12,7 @@ import pytest
 from conftest import assert_close, audit_text
 
 from audit.properties.engine import GAS_CONSTANT
-from audit.steps.laws import heat_exergy_factor
+from audit.steps.balances import heat_exergy_factor
 
 R = 8.314_462_618_153_24  # J/(mol K), N_A·k exact (CODATA 2018)
 T0 = 298.15
@@ -128,18 +128,20 @@ def test_carnot_limit(tmp_path, work, expected):
     # A heat engine between 800 K and 300 K (= T0) can deliver at most 62.5 % of the heat it
     # receives: 625 kW of 1 MW. The stream passes through unchanged; the rejected heat closes the
     # first law, so a claim above the limit shows as both work above the bound and negative S_gen.
+    # Values are written with the digits they hold ("1000 kW", "2.000 bar"): "1 MW" would be
+    # ±0.5 MW and "2 bar" ±0.5 bar by the half-digit rule of the default verdict.
     rejected = {"625 kW": "375 kW", "650 kW": "350 kW"}[work]
     body = f"""
 streams:
-  A: {{fluid: Nitrogen, T: 350 K, P: 2 bar, flow: 1 kg/s}}
-  B: {{fluid: Nitrogen, T: 350 K, P: 2 bar, flow: 1 kg/s}}
+  A: {{fluid: Nitrogen, T: 350.0 K, P: 2.000 bar, flow: 1.000 kg/s}}
+  B: {{fluid: Nitrogen, T: 350.0 K, P: 2.000 bar, flow: 1.000 kg/s}}
 steps:
   - id: ENGINE
     kind: general
     inlets: [A]
     outlets: [B]
     heat:
-      - {{added: 1 MW, temperature: 800 K}}
+      - {{added: 1000 kW, temperature: 800 K}}
       - {{removed: {rejected}, temperature: 300 K}}
     work_delivered: {work}
 """

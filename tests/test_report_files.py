@@ -18,7 +18,7 @@ import audit
 from audit.batch import Job, audit_job
 from audit.commands.main import main
 from audit.errors import ReportError
-from audit.exitcodes import EXIT_INTERNAL, EXIT_PASS, EXIT_REPORT
+from audit.exitcodes import EXIT_INPUT, EXIT_INTERNAL, EXIT_PASS, EXIT_REPORT
 from audit.findings import Finding
 from audit.outcomes import AUDITED, INTERNAL, UNWRITTEN, FileOutcome, batch_exit_code
 from audit.report import columns
@@ -37,31 +37,32 @@ def seeded():
     return audit.run(SEEDED)
 
 
-# -- exit code 4 ---------------------------------------------------------------------------------
+# -- a path that cannot hold the report: refused before writing (exit 2) ---------------------------
 @pytest.mark.parametrize("option", ["--json", "--csv", "-o", "--junit"])
-def test_report_below_a_file_is_exit_code_4_naming_path_and_reason(tmp_path, capsys, option):
+def test_report_below_a_file_is_refused_before_writing(tmp_path, capsys, option):
     blocker = tmp_path / "not-a-folder"
     blocker.write_text("a file, not a folder", encoding="utf-8")
     target = blocker / "report.out"
     code = main(["check", str(CLEAN), option, str(target), "-q"])
     err = capsys.readouterr().err
-    assert code == EXIT_REPORT
+    assert code == EXIT_INPUT
     assert err.startswith(f"error: {target}")
-    assert "is a file, not a folder (a report could not be written)" in err
+    assert f"{blocker} is a file, not a folder" in err
     assert "internal error" not in err
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["not-a-folder"]
 
 
-def test_report_onto_a_folder_is_exit_code_4(tmp_path, capsys):
+def test_report_onto_a_folder_is_refused_before_writing(tmp_path, capsys):
     target = tmp_path / "results.json"
     target.mkdir()
     code = main(["check", str(CLEAN), "--json", str(target), "-q"])
     err = capsys.readouterr().err
-    assert code == EXIT_REPORT
-    assert err == (
-        f"error: {target}: cannot write the JSON results: Is a directory "
-        "(a report could not be written)\n"
-    )
+    assert code == EXIT_INPUT
+    assert err == (f"error: {target}: is a folder, but the JSON results needs a file name here\n")
     assert sorted(p.name for p in tmp_path.iterdir()) == ["results.json"]  # no temporary file
+
+
+# -- exit code 4 ---------------------------------------------------------------------------------
 
 
 def test_read_only_folder_is_exit_code_4(tmp_path, capsys, monkeypatch):
@@ -167,7 +168,8 @@ def test_json_fields_come_from_the_registry(seeded):
         ("findings", columns.FINDINGS),
     ):
         keys = [c.key for c in table.machine_columns if c.json]
-        assert all(sorted(row) == sorted(keys) for row in data[name]), name
+        always = [c.key for c in table.machine_columns if c.json and not c.omit_none]
+        assert all(set(always) <= set(row) <= set(keys) for row in data[name]), name
     json.dumps(data)  # plain data only
 
 
@@ -176,9 +178,11 @@ def test_csv_headers_come_from_the_registry(seeded, tmp_path):
     for table in columns.TABLES:
         with open(tmp_path / f"{table.name}.csv", newline="", encoding="utf-8") as handle:
             header = next(csv.reader(handle))
-        plain = plain_headers(table)  # the registry's columns, each with its SI unit
+        # the registry's columns, each with its SI unit; a column left out where it is None
+        # (omit_none) is absent from a table without it
+        plain = plain_headers(table)
         assert list(dict.fromkeys(h.split(" [")[0] for h in plain if h != "unit")) == [
-            c.key for c in table.machine_columns if c.csv and not c.flatten
+            c.key for c in table.machine_columns if c.csv and not c.flatten and not c.omit_none
         ]
         assert header[: len(plain)] == plain, table.name
         assert all(h.startswith("extra.") for h in header[len(plain) :]), table.name

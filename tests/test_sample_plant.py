@@ -57,7 +57,7 @@ def test_seeded_margins_match_the_readme():
     by_name = {(f.step, f.name): f for f in result.findings}
     assert round(by_name[("T1", "work-above-bound")].bound / 1e6, 2) == 1.41
     assert round(by_name[("C1", "input-below-minimum")].bound / -1e3, 1) == 123.5
-    assert round(by_name[("HX1", "internal-pinch")].margin, 1) == 6.5
+    assert round(by_name[("HX1", "internal-pinch")].margin, 1) == 6.6
     assert round(by_name[("SP1", "mass-imbalance")].margin, 3) == 0.306
 
 

@@ -359,8 +359,9 @@ def test_table_rows_lay_out_streams_and_leave_out_what_a_table_cannot_hold():
 
 def test_schema_accepts_streams_from_instead_of_streams():
     schema = json_schema()
+    # neither is required: a balance of vessels only has no streams (tests/test_vessel_only.py)
     assert "streams" not in schema.get("required", [])
-    assert {"required": ["streams_from"]} in schema["anyOf"]
+    assert "anyOf" not in schema
     assert "streams_from" in schema["properties"]
 
 
@@ -542,7 +543,7 @@ def test_validation_errors_point_at_the_cell_or_the_row(tmp_path):
     assert any(
         re.search(
             r"sheet 'streams', row 4: stream W3, field 'streams\.W3': a state "
-            r"needs exactly one of the pairs",
+            r"needs one of the pairs",
             x,
         )
         for x in lines

@@ -135,3 +135,25 @@ def test_flow_refusals():
         to_flow("5 kW")
     with pytest.raises(UnitError, match=r"negative flow"):
         to_flow("-2 kg/s")
+
+
+def test_known_unit_table_matches_pint_bit_for_bit():
+    """The converters written out in audit.unit_table are pint's own, exactly (a drift in pint's
+    definitions would show here first)."""
+    from audit import units
+    from audit.unit_table import KNOWN_UNITS, SI_DIMENSIONS
+
+    for unit, known in KNOWN_UNITS.items():
+        assert units._converter_of_pint(unit) == known, unit
+    for si_unit, dimensionality in SI_DIMENSIONS.items():
+        assert str(units.registry().Quantity(1.0, si_unit).dimensionality) == dimensionality
+
+
+def test_unlisted_unit_still_read_through_pint():
+    """A unit outside the table is converted by pint: 1 atm = 101 325 Pa exactly (standard
+    atmosphere, 10th CGPM 1954, Resolution 4)."""
+    from audit.unit_table import KNOWN_UNITS
+    from audit.units import to_si
+
+    assert "atm" not in KNOWN_UNITS
+    assert to_si("2 atm", "pressure") == 202650.0

@@ -1,17 +1,24 @@
 """``plant-audit batch PATHS...``: audit every balance in folders (recursively), globs and files,
 in parallel worker processes, and exit with the worst file's code: 3 (an internal error on some
-file) > 4 (a report that could not be written) > 2 (an invalid file) > 1 (findings at or above
-``--fail-on`` that no reviewer accepted) > 0 (every file passes). A broken file is reported and
-never stops the others."""
+file, or a file that ran past ``--timeout``) > 4 (a report that could not be written) > 2 (an
+invalid file, or a path that cannot be read) > 1 (findings at or above ``--fail-on`` that no
+reviewer accepted) > 0 (every file passes). A broken file is reported and never stops the others.
+
+Every output is checked before the first file is audited (a refused output: exit 2, nothing
+written); the workbooks, the summary and the JUnit file are published together at the end."""
 
 from __future__ import annotations
 
 import argparse
+import math
 import sys
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
+from audit.commands.outputs import record_history
 from audit.commands.settings import add_history_options, configured
+from audit.exitcodes import EXIT_HISTORY, EXIT_PASS
+from audit.printable import escaped
 
 if TYPE_CHECKING:
     from audit.outcomes import FileOutcome
@@ -33,10 +40,18 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
         "--output",
         type=Path,
         metavar="DIR",
-        help="write summary.xlsx and each file's own workbook into DIR",
+        help="write summary.xlsx, index.html and each file's own workbook and HTML report into DIR",
     )
     parser.add_argument(
         "--workers", type=_positive, metavar="N", help="worker processes (default: one per core)"
+    )
+    parser.add_argument(
+        "--timeout",
+        type=_seconds,
+        default=DEFAULT_TIMEOUT,
+        metavar="SECONDS",
+        help=f"time limit per file (default {DEFAULT_TIMEOUT:g} s; 0: none); a file that runs "
+        "past it is stopped and reported as that file's internal error",
     )
     parser.add_argument(
         "--scheduler",
@@ -61,6 +76,12 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
         "added to the configuration's)",
     )
     parser.add_argument(
+        "--fail-on-history",
+        action="store_true",
+        help="exit 5 when every file passes but the runs could not be recorded in the history "
+        "(default: a warning)",
+    )
+    parser.add_argument(
         "--allow-outside",
         action="store_true",
         help="let balances read stream or claim tables outside their own folder",
@@ -73,6 +94,9 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     )
 
 
+DEFAULT_TIMEOUT = 300.0
+
+
 def _positive(text: str) -> int:
     value = int(text)
     if value < 1:
@@ -80,10 +104,25 @@ def _positive(text: str) -> int:
     return value
 
 
+def _seconds(text: str) -> float:
+    """A time limit in seconds: a finite number, at least 0 (0: no limit)."""
+    try:
+        value = float(text)
+    except ValueError:
+        value = -1.0
+    if not (math.isfinite(value) and value >= 0):
+        raise argparse.ArgumentTypeError(
+            f"'{text}' is not a time limit in seconds (a number, 0 for none)"
+        )
+    return value
+
+
 def run(args: argparse.Namespace) -> int:
     from audit.batch import SUMMARY_NAME, run_batch
     from audit.executors import DaskCluster, LocalProcesses
     from audit.outcomes import batch_exit_code
+    from audit.report.files import staged
+    from audit.report.publish import Output, commit
 
     configured(args)
     if args.scheduler and args.workers:
@@ -91,40 +130,62 @@ def run(args: argparse.Namespace) -> int:
             "note: --workers is ignored with --scheduler (the cluster has its own workers)",
             file=sys.stderr,
         )
-    executor = DaskCluster(address=args.scheduler) if args.scheduler else LocalProcesses(args.workers)
-    progress = _Progress(enabled=not args.quiet and sys.stdout.isatty())
-    with progress:
-        outcomes = run_batch(
-            args.paths,
-            output=args.output,
-            fail_on=args.fail_on,
-            executor=executor,
-            on_start=progress.start,
-            on_done=progress.advance,
-            allow_outside=args.allow_outside,
-            exclude=args.exclude,
-            include=args.include,
-            tolerances=args.tolerances,
-        )
+    timeout = args.timeout or None
+    executor = (
+        DaskCluster(address=args.scheduler)
+        if args.scheduler
+        else LocalProcesses(args.workers, timeout=timeout)
+    )
+    outputs = []
     if args.history:
-        from audit.commands.settings import identify
-        from audit.history import record
-
-        identify(outcomes, args.settings, args.paths)
-        record(args.history, outcomes, fail_on=args.fail_on)
+        outputs.append(Output(args.history, "the run history"))
     if args.output:
-        from audit.report.batch_workbook import write_batch_workbook
-
-        write_batch_workbook(outcomes, args.output / SUMMARY_NAME, fail_on=args.fail_on)
+        outputs.append(Output(args.output / SUMMARY_NAME, "the batch summary workbook"))
+        outputs.append(Output(args.output / "index.html", "the batch HTML index"))
     if args.junit:
-        from audit.report.junit import write_junit
+        outputs.append(Output(args.junit, "the JUnit XML"))
+    progress = _Progress(enabled=not args.quiet and sys.stdout.isatty())
+    history_problem = None
+    with staged() as staging:
+        with progress:
+            outcomes = run_batch(
+                args.paths,
+                output=args.output,
+                fail_on=args.fail_on,
+                executor=executor,
+                on_start=progress.start,
+                on_done=progress.advance,
+                allow_outside=args.allow_outside,
+                exclude=args.exclude,
+                include=args.include,
+                tolerances=args.tolerances,
+                staging=staging,
+                outputs=outputs,
+            )
+        if args.history:
+            from audit.commands.settings import identify
 
-        write_junit(outcomes, args.junit, fail_on=args.fail_on)
+            identify(outcomes, args.settings, args.paths)
+            history_problem = record_history(args.history, outcomes, args.fail_on)
+        if args.output:
+            from audit.report.batch_workbook import write_batch_workbook
+
+            write_batch_workbook(outcomes, args.output / SUMMARY_NAME, fail_on=args.fail_on)
+            from audit.report.html.index import write_batch_html
+
+            write_batch_html(outcomes, args.output, fail_on=args.fail_on, history=args.history)
+        if args.junit:
+            from audit.report.junit import write_junit
+
+            write_junit(outcomes, args.junit, fail_on=args.fail_on)
+        commit(staging)
     code = batch_exit_code(outcomes, args.fail_on)
     if not args.quiet:
         for outcome in outcomes:
-            print(_line(outcome, args.fail_on))
+            print(escaped(_line(outcome, args.fail_on)))
     print(_verdict(outcomes, args.fail_on, code))
+    if history_problem is not None and args.fail_on_history and code == EXIT_PASS:
+        return EXIT_HISTORY
     return code
 
 

@@ -17,7 +17,9 @@ from typing import Any
 
 import yaml
 
+from audit.commands.outputs import check_run_outputs, table_files
 from audit.exitcodes import EXIT_PASS
+from audit.report.publish import Output, is_standard_output, publish_set
 
 NAME = "convert"
 HELP = "write a balance with its stream and claim tables inlined, as YAML"
@@ -35,7 +37,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
         "--output",
         type=Path,
         metavar="PATH",
-        help="write to this file instead of the standard output",
+        help="write to this file instead of the standard output ('-': the standard output)",
     )
     parser.add_argument(
         "--allow-outside",
@@ -45,12 +47,16 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    text = resolved_yaml(args.file, allow_outside=args.allow_outside, output=args.output)
-    if args.output:
+    output = None if args.output is None or is_standard_output(args.output) else args.output
+    if output is not None:
+        outputs = [Output(output, "the converted balance")]
+        check_run_outputs(outputs, table_files(args.file), None, [args.file])
+    text = resolved_yaml(args.file, allow_outside=args.allow_outside, output=output)
+    if output is not None:
         from audit.report.files import write_text
 
-        write_text(args.output, text, "the converted balance")
-        print(f"wrote {args.output}")
+        publish_set(lambda: write_text(output, text, "the converted balance"))
+        print(f"wrote {output}")
     else:
         sys.stdout.write(text)
     return EXIT_PASS

@@ -6,11 +6,15 @@ accepted (0 otherwise; 2 when either file is invalid)."""
 from __future__ import annotations
 
 import argparse
+import math
 from pathlib import Path
 from typing import TYPE_CHECKING
 
+from audit.commands.outputs import check_run_outputs, table_files
 from audit.exitcodes import EXIT_FINDINGS, EXIT_PASS
+from audit.printable import escaped, escaped_lines
 from audit.report.display import shown, unit
+from audit.report.publish import Output, publish_set
 
 if TYPE_CHECKING:
     from audit.diff import FindingChange, RevisionDiff
@@ -27,7 +31,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     )
     parser.add_argument(
         "--rtol",
-        type=float,
+        type=_relative_tolerance,
         default=None,
         metavar="R",
         help="relative change below which a number counts as unchanged "
@@ -41,18 +45,38 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     )
 
 
+def _relative_tolerance(text: str) -> float:
+    """A relative tolerance: a finite number from 0 to 1 (not 'nan', 'inf' or negative)."""
+    try:
+        value = float(text) if len(text) < 40 else math.nan
+    except ValueError:
+        value = math.nan
+    if not (math.isfinite(value) and 0.0 <= value < 1.0):
+        raise argparse.ArgumentTypeError(
+            f"'{escaped(text)}' is not a relative tolerance (a number from 0 up to 1, e.g. 1e-6)"
+        )
+    return value
+
+
 def run(args: argparse.Namespace) -> int:
     from audit.api import run as audit_file
     from audit.diff import DEFAULT_RTOL, compare
 
+    outputs = [Output(args.output, "the comparison workbook")] if args.output else []
+    tables = [*table_files(args.old), *table_files(args.new)]
+    check_run_outputs(outputs, tables, None, [args.old, args.new])
     old, new = audit_file(args.old), audit_file(args.new)
     diff = compare(old, new, rtol=DEFAULT_RTOL if args.rtol is None else args.rtol)
     if args.output:
         from audit.report.diff_workbook import write_diff_workbook
 
-        write_diff_workbook(diff, args.output, fail_on=args.fail_on)
-    print(summary(diff, args.fail_on))
+        publish_set(lambda: _ignore(write_diff_workbook(diff, args.output, fail_on=args.fail_on)))
+    print(escaped_lines(summary(diff, args.fail_on)))
     return EXIT_FINDINGS if diff.new_failing(args.fail_on) else EXIT_PASS
+
+
+def _ignore(value: object) -> None:
+    """Drop a writer's return value (publish_set takes a writer that returns nothing)."""
 
 
 def summary(diff: RevisionDiff, fail_on: str = "error") -> str:

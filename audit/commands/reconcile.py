@@ -8,7 +8,10 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
+from audit.commands.outputs import check_run_outputs, table_files
 from audit.exitcodes import EXIT_FINDINGS, EXIT_PASS
+from audit.printable import escaped, escaped_lines
+from audit.report.publish import Output, publish_set
 
 NAME = "reconcile"
 HELP = "reconcile a measured balance and name the reading that is wrong"
@@ -61,16 +64,26 @@ def run(args: argparse.Namespace) -> int:
     from audit.reconcile import reconcile_file
     from audit.report.reconciliation_text import console_section
 
-    result = reconcile_file(args.file, args.confidence, tuple(args.unmeasured))
+    outputs = []
     if args.json:
-        from audit.report.reconciliation_json import write_reconciliation_json
-
-        write_reconciliation_json(result, args.json)
+        outputs.append(Output(args.json, "the JSON result"))
     if args.output:
-        from audit.report.reconciliation_sheet import write_reconciliation_workbook
+        outputs.append(Output(args.output, "the reconciliation workbook"))
+    check_run_outputs(outputs, table_files(args.file), None, [args.file])
+    result = reconcile_file(args.file, args.confidence, tuple(args.unmeasured))
 
-        write_reconciliation_workbook(result, args.output)
-    print(console_section(result, all_readings=args.all))
+    def write() -> None:
+        if args.json:
+            from audit.report.reconciliation_json import write_reconciliation_json
+
+            write_reconciliation_json(result, args.json)
+        if args.output:
+            from audit.report.reconciliation_sheet import write_reconciliation_workbook
+
+            write_reconciliation_workbook(result, args.output)
+
+    publish_set(write)
+    print(escaped_lines(console_section(result, all_readings=args.all)))
     failed = result.fails(args.fail_on)
-    print(f"{args.file}: {'FAIL' if failed else 'PASS'}")
+    print(f"{escaped(args.file)}: {'FAIL' if failed else 'PASS'}")
     return EXIT_FINDINGS if failed else EXIT_PASS

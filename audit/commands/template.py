@@ -7,8 +7,10 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
+from audit.commands.outputs import check_run_outputs
 from audit.errors import InputError
 from audit.exitcodes import EXIT_PASS
+from audit.report.publish import Output
 
 NAME = "template"
 HELP = "write an empty stream-table workbook with the expected headers and units"
@@ -33,6 +35,7 @@ def run(args: argparse.Namespace) -> int:
         raise InputError(
             "a stream-table template is an .xlsx workbook; give a name ending in .xlsx", file=str(path)
         )
+    check_run_outputs([Output(path, "the stream-table template")], [], None)
     if path.exists() and not args.force:
         raise InputError(
             "the file exists; writing a template would replace its contents (add --force to replace it)",

@@ -22,12 +22,21 @@ from yaml.constructor import SafeConstructor
 
 from audit.errors import InputError
 from audit.input import flowlines
-
-MAX_FILE_BYTES = 20 * 1024 * 1024
-"""Largest balance file read [bytes]; a real balance is a few hundred kB."""
+from audit.input.files import MAX_FILE_BYTES as MAX_FILE_BYTES
+from audit.input.files import decode_text as decode_text
+from audit.input.files import display_path as display_path
+from audit.input.files import read_bytes as read_bytes
+from audit.input.files import read_text as read_text
+from audit.input.yaml_limits import (
+    LimitError,
+    bound_nodes,
+    compose,
+    too_deep,
+)
 
 MAX_NODES = 5_000_000
 """Most values built from one file; past it the file is refused."""
+
 
 MAX_ALIAS_NODES = 100_000
 """Most values built a second time through aliases; past it the file is refused as an alias bomb
@@ -36,8 +45,8 @@ MAX_ALIAS_NODES = 100_000
 _STANDARD_TAG = "tag:yaml.org,2002:"
 _ALLOWED_SCALAR_TAGS = {_STANDARD_TAG + t for t in ("str", "int", "float", "bool", "null", "timestamp")}
 _STR_TAG = _STANDARD_TAG + "str"
+_YES_NO = {"yes", "no", "on", "off"}  # YAML 1.1 booleans that read as words, not true/false
 
-_FAST_LOADER = getattr(yaml, "CSafeLoader", None)
 """libyaml's parser, when PyYAML was built with it: it composes the same nodes, with the same
 marks, about eight times faster than the pure-Python parser (benchmarks/run.py). Text it refuses,
 and text with a tab, goes to the pure-Python parser, whose errors the messages below are written
@@ -45,6 +54,12 @@ for. (One known leniency: libyaml reads a tag followed directly by a comma in a 
 ``{a: !!str, b: c}``, as a tag on an empty value, where PyYAML refuses the text.)"""
 
 Path_ = tuple[object, ...]
+
+POSITION_DEPTH = 2
+"""Positions are kept for paths this deep while reading (the file's sections, each stream and
+step: what a good file's messages need, ``("steps", 4)``); a message about a deeper value reads
+the positions of the whole file again, once (:meth:`Document.position`). A 100 000-stream file
+has 1.3 million values: their positions would take more memory than the audit."""
 
 
 @dataclass
@@ -59,10 +74,22 @@ class Document:
     file: str
     positions: dict[Path_, tuple[int, int]] = field(default_factory=dict)
     cells: dict[Path_, tuple[str, str]] = field(default_factory=dict)
+    texts: dict[Path_, str] = field(default_factory=dict)
+    """The text of each number written in the first two levels (``balance: revision: 1.10``), where
+    the value read ("1.1") would lose what was written."""
+    source: str | None = None  # the text, while only the shallow positions are read
+
+    def _complete(self, path: Path_) -> None:
+        """Read every position of the file when ``path`` lies deeper than those kept."""
+        if self.source is not None and len(path) > POSITION_DEPTH:
+            full = _parse(self.source, self.file, None, keep=None)
+            self.positions.update(full.positions)
+            self.source = None
 
     def position(self, path: Path_) -> tuple[int | None, int | None]:
         """Line and column of the value at ``path``, or of its nearest written ancestor."""
         path = tuple(path)
+        self._complete(path)
         while path:
             if path in self.positions:
                 return self.positions[path]
@@ -74,6 +101,7 @@ class Document:
         :class:`audit.errors.Problem`: the file with its line and column, or the table file with
         its cell, whichever the nearest written ancestor of ``path`` is."""
         path = tuple(path)
+        self._complete(path)
         while path:
             if path in self.cells:
                 file, cell = self.cells[path]
@@ -86,8 +114,9 @@ class Document:
 
 
 class _Builder:
-    def __init__(self, file: str, flow_lines: dict | None = None) -> None:
+    def __init__(self, file: str, flow_lines: dict | None = None, keep: int | None = None) -> None:
         self.file = file
+        self.keep = 10**6 if keep is None else keep  # the deepest path whose position is kept
         self.flow_lines = flow_lines or {}  # mappings audit.input.flowlines read, by (line, column)
         self.flow_lines_built: set[tuple[int, int]] = set()
         self.count = 0
@@ -95,10 +124,11 @@ class _Builder:
         self._seen: set[int] = set()
         self._open: set[int] = set()  # collections being built: an alias back to one is a loop
         self.positions: dict[Path_, tuple[int, int]] = {}
+        self.texts: dict[Path_, str] = {}
         self._scalar = SafeConstructor()
 
-    def _fail(self, node: yaml.Node, message: str) -> InputError:
-        return InputError(
+    def _fail(self, node: yaml.Node, message: str, kind: type[InputError] = InputError) -> InputError:
+        return kind(
             message,
             file=self.file,
             line=node.start_mark.line + 1,
@@ -114,14 +144,16 @@ class _Builder:
                     node,
                     f"aliases in the file expand to more than {MAX_ALIAS_NODES:,} repeated "
                     "values; refusing it as an alias bomb",
+                    LimitError,
                 )
         else:
             self._seen.add(id(node))
         if self.count > MAX_NODES:
-            raise self._fail(node, f"the file holds more than {MAX_NODES:,} values")
+            raise self._fail(node, f"the file holds more than {MAX_NODES:,} values", LimitError)
         if depth > 100:
             raise self._fail(node, "the file nests deeper than 100 levels")
-        self.positions.setdefault(path, (node.start_mark.line + 1, node.start_mark.column + 1))
+        if len(path) <= self.keep:
+            self.positions.setdefault(path, (node.start_mark.line + 1, node.start_mark.column + 1))
         if isinstance(node, yaml.ScalarNode):
             if node.tag == _STR_TAG:
                 return node.value  # what SafeConstructor makes of a string, without its calls
@@ -129,6 +161,17 @@ class _Builder:
                 raise self._fail(node, f"the tag '{node.tag}' is not allowed in a balance file")
             if node.tag == _STANDARD_TAG + "timestamp":
                 return node.value  # keep dates as written (and never fail on 2024-02-30)
+            if node.tag == _STANDARD_TAG + "bool" and node.value.lower() in _YES_NO:
+                raise InputError(
+                    f"'{node.value}' reads as a yes/no value in YAML; write the number meant, "
+                    "true or false, or put text in quotes",
+                    file=self.file,
+                    line=node.start_mark.line + 1,
+                    column=node.start_mark.column + 1,
+                    field_path=".".join(map(str, path)) or None,
+                )
+            if len(path) <= 2 and node.tag in (_STANDARD_TAG + "float", _STANDARD_TAG + "int"):
+                self.texts[path] = node.value
             try:
                 return self._scalar.construct_object(node, deep=True)
             except (ValueError, IndexError, KeyError) as exc:
@@ -197,7 +240,8 @@ class _Builder:
                 )
             seen[key] = line
             result[key] = self.build(value_node, path + (key,), depth + 1)
-            self.positions[path + (key,)] = (line, key_node.start_mark.column + 1)
+            if len(path) < self.keep:
+                self.positions[path + (key,)] = (line, key_node.start_mark.column + 1)
         for k, v in merged.items():
             result.setdefault(k, v)
         return result
@@ -210,7 +254,7 @@ class _Builder:
         if depth > 100:
             raise _FastPathDeclined  # the usual path words the error
         result: dict = {}
-        positions = self.positions
+        positions = self.positions if len(path) < self.keep else {}
         row = line + 1
         nodes = 0
         for key, key_column, key_tag, first, second, tag in items:
@@ -244,52 +288,30 @@ class _FastPathDeclined(Exception):
     """The fast path of :mod:`audit.input.flowlines` does not apply: read the original text."""
 
 
-def read_text(path: Path) -> str:
-    """Read a balance file as UTF-8 text, refusing folders, huge files and undecodable bytes."""
-    name = str(path)
-    if not path.exists():
-        raise InputError("no such file", file=name)
-    if path.is_dir():
-        raise InputError("is a folder, not a balance file", file=name)
-    try:
-        size = path.stat().st_size
-        if size > MAX_FILE_BYTES:
-            raise InputError(
-                f"the file is {size / 2**20:.1f} MiB, larger than the {MAX_FILE_BYTES / 2**20:.0f} "
-                "MiB a balance file may be",
-                file=name,
-            )
-        raw = path.read_bytes()
-    except OSError as exc:  # permission denied, a device, an I/O error
-        raise InputError(f"cannot be read: {exc.strerror or exc}", file=name) from None
-    try:
-        return raw.decode("utf-8-sig")
-    except UnicodeDecodeError as exc:
-        line = raw[: exc.start].count(b"\n") + 1
-        raise InputError(
-            f"the file is not valid UTF-8 text (byte 0x{raw[exc.start]:02x} at offset {exc.start})",
-            file=name,
-            line=line,
-        ) from None
-
-
 def parse_document(text: str, file: str) -> Document:
     """Compose YAML text into plain data with positions; see the module docstring for the rules.
 
     One-line flow mappings are read by the fast path of :mod:`audit.input.flowlines` when it applies;
     whenever it does not (or the text has an error), the original text is read the usual way."""
     scanned = flowlines.scan(text)
+    document = None
     if scanned is not None:
         try:
-            return _parse(scanned.text, file, scanned.mappings)
+            document = _parse(scanned.text, file, scanned.mappings, keep=POSITION_DEPTH)
+        except LimitError:
+            raise
         except (InputError, _FastPathDeclined):
             pass
-    return _parse(text, file, None)
+    if document is None:
+        document = _parse(text, file, None, keep=POSITION_DEPTH)
+    document.source = text
+    return document
 
 
-def _parse(text: str, file: str, flow_lines: dict | None) -> Document:
+def _parse(text: str, file: str, flow_lines: dict | None, keep: int | None = None) -> Document:
+    bound_nodes(text, file)
     try:
-        node = _compose(text)
+        node = compose(text)
     except yaml.MarkedYAMLError as exc:
         mark = exc.problem_mark or exc.context_mark
         problem = exc.problem or "malformed YAML"
@@ -298,6 +320,13 @@ def _parse(text: str, file: str, flow_lines: dict | None) -> Document:
             if exc.context_mark and mark and exc.context_mark.line != mark.line:
                 context += f" (begun on line {exc.context_mark.line + 1})"
             problem = f"{context}: {problem}" if "found character '\\t'" not in problem else (problem)
+        if "could not find expected ':'" in problem and mark is not None:
+            line_text = text.split("\n", mark.line + 1)[mark.line] if text else ""
+            if len(line_text) > 1024:
+                problem = (
+                    f"a line of {len(line_text):,} characters: a key may be at most 1,024 "
+                    "characters long (a key this long is not a name)"
+                )
         if "expected <block end>" in problem:
             problem += " (check the indentation of this line)"
         if "\\t" in problem or "tab" in problem.lower():
@@ -321,44 +350,16 @@ def _parse(text: str, file: str, flow_lines: dict | None) -> Document:
     except yaml.YAMLError as exc:
         raise InputError(f"not valid YAML: {exc}", file=file) from None
     except RecursionError:  # PyYAML composes nested collections recursively
-        raise InputError("the file nests deeper than 100 levels", file=file, **_too_deep(text)) from None
+        raise InputError("the file nests deeper than 100 levels", file=file, **too_deep(text)) from None
     if node is None:
         raise InputError(
             "the file is empty; a balance needs 'balance', 'streams' and 'steps'", file=file, line=1
         )
-    builder = _Builder(file, flow_lines)
+    builder = _Builder(file, flow_lines, keep)
     data = builder.build(node, ())
     if flow_lines and len(builder.flow_lines_built) != len(flow_lines):
         raise _FastPathDeclined  # a recognised line did not come back as a mapping where written
-    return Document(data=data, file=file, positions=builder.positions)
-
-
-def _compose(text: str) -> yaml.Node | None:
-    """The YAML node graph of ``text``: libyaml's when it reads the text, else the pure-Python
-    parser's (which raises the errors :func:`parse_document` words)."""
-    if _FAST_LOADER is not None and "\t" not in text:
-        try:
-            return yaml.compose(text, Loader=_FAST_LOADER)
-        except yaml.YAMLError:
-            pass
-    return yaml.compose(text, Loader=yaml.SafeLoader)
-
-
-def _too_deep(text: str) -> dict[str, int]:
-    """Line and column where collections first nest deeper than 100 levels (parse events are read
-    without recursion, so this works where composing the file failed)."""
-    depth = 0
-    try:
-        for event in yaml.parse(text, Loader=yaml.SafeLoader):
-            if isinstance(event, yaml.CollectionStartEvent):
-                depth += 1
-                if depth > 100:
-                    return {"line": event.start_mark.line + 1, "column": event.start_mark.column + 1}
-            elif isinstance(event, yaml.CollectionEndEvent):
-                depth -= 1
-    except yaml.YAMLError:
-        pass
-    return {}
+    return Document(data=data, file=file, positions=builder.positions, texts=builder.texts)
 
 
 def load_document(path: str | Path) -> Document:

@@ -11,6 +11,7 @@ from datetime import date
 from pydantic import BaseModel, ConfigDict, Field, PrivateAttr, field_validator, model_validator
 
 from audit.findings import NAMES, Finding
+from audit.printable import unsafe
 
 
 class Acceptance(BaseModel):
@@ -53,8 +54,17 @@ class Acceptance(BaseModel):
     @field_validator("reason", "accepted_by")
     @classmethod
     def _not_blank(cls, value: str) -> str:
-        if not value.strip():
-            raise ValueError("must not be blank")
+        if not "".join(c for c in value if not c.isspace() and not unsafe(c)):
+            raise ValueError("must not be blank (invisible characters do not count)")
+        return value
+
+    @field_validator("expires", mode="before")
+    @classmethod
+    def _date_as_written(cls, value: object) -> object:
+        if isinstance(value, (int, float)) and not isinstance(value, bool):
+            raise ValueError(
+                f"{value!r} is a number, not a date; write the date as YYYY-MM-DD (e.g. 2026-12-31)"
+            )
         return value
 
     @model_validator(mode="after")

@@ -18,22 +18,38 @@ import json
 from collections.abc import Sequence
 from typing import Annotated, Any, ClassVar, Union, get_args
 
-from pydantic import BaseModel, ConfigDict, Field, ValidationError, create_model, field_validator
+from pydantic import (
+    BaseModel,
+    ConfigDict,
+    Field,
+    ValidationError,
+    create_model,
+    field_validator,
+    model_validator,
+)
 
-from audit import units
+from audit import units, wording
 from audit.errors import InputError, InputErrors, Problem, UnitError
 from audit.input.document import Document
 from audit.input.tables import TableSource
 from audit.model.acceptance import Acceptance
-from audit.model.editor_schema import SCHEMA_KEY, editor_schema
+from audit.model.editor_schema import SCHEMA_FILE as SCHEMA_FILE  # re-exported
+from audit.model.editor_schema import SCHEMA_KEY, balance_schema
 from audit.model.quantities import Pressure, Temperature
+from audit.model.references import FormulationField, ReferenceField
 from audit.model.steps import StepBase
 from audit.model.streams import StreamSpec
 from audit.model.tolerances import ToleranceOverrides, Tolerances
 from audit.model.uncertainty import BalanceUncertainty
 
-SCHEMA_VERSION = "1"
-SCHEMA_FILE = "plant-audit-balance.schema.json"
+DEAD_STATE_T = (183.0, 333.0)
+"""Plausible dead-state temperatures [K]: the lowest and highest air temperatures recorded on Earth,
+−89.2 °C and 56.7 °C (World Meteorological Organization archive of weather extremes; from memory),
+rounded outwards."""
+DEAD_STATE_P = (30e3, 110e3)
+"""Plausible dead-state pressures [Pa]: the standard atmosphere at 9 km (about 31 kPa, above any
+plant) to the air pressure at the shore of the Dead Sea (about 107 kPa) (ISO 2533 standard
+atmosphere; from memory), rounded outwards."""
 
 
 class DeadState(BaseModel):
@@ -43,6 +59,28 @@ class DeadState(BaseModel):
 
     T: Temperature = Field("25 degC", validate_default=True, description="dead-state temperature")
     P: Pressure = Field("101.325 kPa", validate_default=True, description="dead-state pressure")
+
+    @field_validator("T")
+    @classmethod
+    def _plausible_temperature(cls, value: float) -> float:
+        if not DEAD_STATE_T[0] <= value <= DEAD_STATE_T[1]:
+            raise ValueError(
+                f"a dead-state temperature of {wording.celsius(value)} is not an ambient "
+                f"temperature on Earth (from {wording.celsius(DEAD_STATE_T[0], 0)} to "
+                f"{wording.celsius(DEAD_STATE_T[1], 0)})"
+            )
+        return value
+
+    @field_validator("P")
+    @classmethod
+    def _plausible_pressure(cls, value: float) -> float:
+        if not DEAD_STATE_P[0] <= value <= DEAD_STATE_P[1]:
+            raise ValueError(
+                f"a dead-state pressure of {wording.bar(value)} is not an ambient pressure "
+                f"on Earth (from {wording.bar(DEAD_STATE_P[0], 2)} to "
+                f"{wording.bar(DEAD_STATE_P[1], 2)})"
+            )
+        return value
 
 
 class BalanceInfo(BaseModel):
@@ -69,11 +107,23 @@ class BalanceInfo(BaseModel):
         None,
         description="measurement uncertainties: defaults per kind of quantity (audit.model.uncertainty)",
     )
+    reference: ReferenceField = Field(
+        None,
+        description="the reference the printed h and s are written on: IIR, ASHRAE, NBP, IAPWS or "
+        "{h, s, T/P/quality} (an explicit state), for every pure fluid or as a mapping fluid -> "
+        "reference; default: the fluid's own (audit.model.references)",
+    )
+    formulation: FormulationField = Field(
+        None,
+        description="the equation of state the balance was computed with: 'reference' (default; "
+        "IAPWS-95 for water) or 'IF97' (water and steam), or a mapping fluid -> formulation",
+    )
 
     @field_validator("revision", mode="before")
     @classmethod
     def _revision_text(cls, value: Any) -> Any:
-        return str(value) if isinstance(value, (int, float)) else value
+        # a number is kept as written where the loader recorded its text ('1.10', not '1.1')
+        return str(value) if isinstance(value, (int, float)) and not isinstance(value, bool) else value
 
 
 class Balance(BaseModel):
@@ -83,7 +133,10 @@ class Balance(BaseModel):
     step_kinds: ClassVar[dict[str, type[StepBase]]] = {}
 
     balance: BalanceInfo
-    streams: dict[str, StreamSpec] = Field(min_length=1)
+    streams: dict[str, StreamSpec] = Field(
+        default_factory=dict,
+        description="id -> stream; may be empty (or left out) for a balance of vessels only",
+    )
     steps: list[StepBase] = Field(default_factory=list)
     accepted: list[Acceptance] = Field(
         default_factory=list, description="findings a reviewer has accepted (audit.review.acceptance)"
@@ -98,6 +151,15 @@ class Balance(BaseModel):
         description="a claim table (step | field | value | unit) whose rows set fields of "
         "the steps (audit.input.tables)",
     )
+
+    @model_validator(mode="after")
+    def _something_to_audit(self) -> Balance:
+        if not self.streams and self.streams_from is None and not self.steps:
+            raise ValueError(
+                "a balance needs 'streams' (or 'streams_from'), or closed steps (kind 'vessel') "
+                "that hold no streams"
+            )
+        return self
 
 
 def balance_model(step_models: Sequence[type[StepBase]]) -> type[Balance]:
@@ -145,6 +207,9 @@ def validate_document(document: Document, model: type[Balance]) -> Balance:
                 column=column,
                 field_path="balance.site_pressure",
             ) from None
+    written = document.texts.get(("balance", "revision"))
+    if written is not None and isinstance(info, dict) and not isinstance(info.get("revision"), str):
+        data = {**data, "balance": {**info, "revision": written}}
     try:
         return model.model_validate(data, context={"site_pressure": site})
     except ValidationError as exc:
@@ -322,20 +387,8 @@ def _allowed_fields(path: tuple, data: Any, balance: type[Balance]) -> list[str]
 
 # -- schema --------------------------------------------------------------------------------------
 def json_schema(model: type[Balance]) -> dict:
-    """The JSON Schema of a balance file (for editors), as committed in ``schemas/``: pydantic's,
-    with standard keywords only and each step kind selected by its ``kind``
-    (:mod:`audit.model.editor_schema`)."""
-    schema = editor_schema(model.model_json_schema(mode="validation"))
-    schema["$schema"] = "https://json-schema.org/draft/2020-12/schema"
-    schema["$id"] = f"https://plant-audit.invalid/schemas/{SCHEMA_FILE}"
-    schema["description"] = (
-        f"A plant energy balance for plant-audit (schema version {SCHEMA_VERSION}). Quantities "
-        "are strings with units, e.g. '420 degC', '40 barg', '12 t/h', '2.5 MW'."
-    )
-    # The streams may come from a table instead (audit.input.tables): one of the two is needed.
-    schema["required"] = [name for name in schema.get("required", []) if name != "streams"]
-    schema["anyOf"] = [{"required": ["streams"]}, {"required": ["streams_from"]}]
-    return schema
+    """The JSON Schema of a balance file (:func:`audit.model.editor_schema.balance_schema`)."""
+    return balance_schema(model)
 
 
 def schema_text(model: type[Balance]) -> str:

@@ -25,6 +25,8 @@ from audit.model.acceptance import Acceptance
 
 SCHEMA_URI = "https://json-schema.org/draft/2020-12/schema"
 ACCEPTANCE_SCHEMA_FILE = "plant-audit-accepted.schema.json"
+SCHEMA_VERSION = "1"
+SCHEMA_FILE = "plant-audit-balance.schema.json"
 SCHEMA_KEY = "$schema"
 """A top-level key a balance or acceptance file may hold for editors; the model ignores it."""
 
@@ -109,3 +111,17 @@ def _model_schema(model: type[BaseModel]) -> dict[str, Any]:
 
 def acceptance_schema_text() -> str:
     return json.dumps(acceptance_schema(), indent=2, ensure_ascii=False, sort_keys=True) + "\n"
+
+
+def balance_schema(model: type[BaseModel]) -> dict:
+    """The JSON Schema of a balance file (for editors), as committed in ``schemas/``: pydantic's,
+    with standard keywords only and each step kind selected by its ``kind`` (:func:`editor_schema`).
+    No streams at all is valid: a balance of vessels (closed steps) has none."""
+    schema = editor_schema(model.model_json_schema(mode="validation"))
+    schema["$schema"] = SCHEMA_URI
+    schema["$id"] = f"https://plant-audit.invalid/schemas/{SCHEMA_FILE}"
+    schema["description"] = (
+        f"A plant energy balance for plant-audit (schema version {SCHEMA_VERSION}). Quantities "
+        "are strings with units, e.g. '420 degC', '40 barg', '12 t/h', '2.5 MW'."
+    )
+    return schema

@@ -69,6 +69,10 @@ SpecificEntropy = Annotated[
     float, BeforeValidator(_parser("specific_entropy")), _schema("specific_entropy")
 ]
 Velocity = Annotated[float, BeforeValidator(_parser("velocity")), _schema("velocity")]
+Density = Annotated[float, BeforeValidator(_parser("density")), _schema("density")]
+SpecificVolume = Annotated[
+    float, BeforeValidator(_parser("specific_volume")), _schema("specific_volume")
+]
 Length = Annotated[float, BeforeValidator(_parser("length")), _schema("length")]
 Volume = Annotated[float, BeforeValidator(_parser("volume")), _schema("volume")]
 Voltage = Annotated[float, BeforeValidator(_parser("voltage")), _schema("voltage")]

@@ -159,7 +159,7 @@ def step_spreads(step: BaseModel) -> tuple[str | None, dict[str, Spread], float 
 class StepBase(BaseModel):
     """Fields every step has."""
 
-    model_config = ConfigDict(extra="forbid")
+    model_config = ConfigDict(extra="forbid", defer_build=True)
 
     id: str = Field(description="the step's identifier, unique in the balance")
     description: str | None = None

@@ -3,19 +3,27 @@
 A state is a fluid and exactly two of T, P, quality, h, s, in one of the pairs (T, P),
 (P, quality), (T, quality), (P, h), (P, s). A stream adds its flow and, optionally, its velocity and
 elevation (for kinetic and potential energy) and the phase the balance says it has (checked).
+
+A stream may print more than two properties (an over-determined state): besides the pair that
+fixes its state it may give any of T, P, quality, h, s, u, specific volume ``v``, density ``rho``
+and the saturation temperature ``T_sat``. The pair is the one ``state_from`` names, or else the
+first of :data:`PRECEDENCE` whose two properties are given; every other property is a printed
+claim, checked against that state (:mod:`audit.printed`).
 """
 
 from __future__ import annotations
 
-from typing import Annotated, Literal
+from typing import Annotated, ClassVar, Literal
 
-from pydantic import BaseModel, ConfigDict, Field, model_validator
+from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
 
 from audit.model.composition import check_fractions, named_composition
 from audit.model.quantities import (
+    Density,
     Length,
     SpecificEnthalpy,
     SpecificEntropy,
+    SpecificVolume,
     StreamFlow,
     Velocity,
 )
@@ -39,12 +47,19 @@ _INPUT_NAMES = {
     "Ph": ("P", "h"),
     "Ps": ("P", "s"),
 }
+PRECEDENCE = ("PQ", "TQ", "Ph", "Ps", "TP")
+"""The pair that fixes an over-determined state when ``state_from`` names none: the first of these
+whose two properties are given. A printed quality first: it says the state is saturated, where
+(P, h) is ill-conditioned at the phase boundary; then (P, h), what energy balances are built on;
+(T, P) last, as it cannot fix a two-phase state."""
+CLAIMS = ("T", "P", "quality", "h", "s", "u", "v", "rho", "T_sat")
+"""The properties a stream may print; those outside its fixing pair are claims."""
 
 
 class PropertyPair(BaseModel):
     """Two independent intensive properties (the fluid is given elsewhere)."""
 
-    model_config = ConfigDict(extra="forbid")
+    model_config = ConfigDict(extra="forbid", allow_inf_nan=False)
 
     T: TemperatureClaim = Field(None, description="temperature")
     P: PressureClaim = Field(None, description="pressure (absolute, or gauge as 'barg')")
@@ -58,9 +73,25 @@ class PropertyPair(BaseModel):
         None, description="specific entropy on the fluid's usual table reference"
     )
 
+    over_determined: ClassVar[bool] = False
+    """Whether more than two properties may be given (streams: yes; a vessel's contents: no)."""
+
+    @field_validator("quality", mode="before")
+    @classmethod
+    def _quality_number(cls, value: object) -> object:
+        if isinstance(value, bool):
+            raise ValueError(
+                f"expected a plain number here, not the value {value} (quality is the vapour mass "
+                "fraction, a number from 0 to 1, e.g. 0.95)"
+            )
+        return value
+
     @model_validator(mode="after")
     def _two_properties(self) -> PropertyPair:
-        if self._given() in _PAIR_OF_GIVEN:
+        if self._given() in _PAIR_OF_GIVEN and getattr(self, "state_from", None) is None:
+            return self
+        if self.over_determined:
+            self._fixing_pair()
             return self
         given = frozenset(name for name in _PROPERTIES if getattr(self, name) is not None)
         if given not in PAIRS:
@@ -82,7 +113,41 @@ class PropertyPair(BaseModel):
 
     @property
     def pair(self) -> str:
-        return _PAIR_OF_GIVEN[self._given()]
+        """The input pair that fixes the state (``"TP"``, ``"PQ"``, ``"TQ"``, ``"Ph"``, ``"Ps"``)."""
+        simple = _PAIR_OF_GIVEN.get(self._given())
+        if simple is not None and getattr(self, "state_from", None) is None:
+            return simple
+        return self._fixing_pair()
+
+    def _fixing_pair(self) -> str:
+        named = getattr(self, "state_from", None)
+        given = {name for name in CLAIMS if getattr(self, name, None) is not None}
+        if named is not None:
+            pair = PAIRS.get(frozenset(named))
+            if pair is None:
+                raise ValueError(
+                    f"state_from names {', '.join(named)}, which is not one of the pairs (T, P), "
+                    "(P, quality), (T, quality), (P, h) or (P, s)"
+                )
+            missing = [name for name in named if name not in given]
+            if missing:
+                raise ValueError(
+                    f"state_from names {', '.join(missing)}, which the stream does not give"
+                )
+            return pair
+        for pair in PRECEDENCE:
+            if all(name in given for name in _INPUT_NAMES[pair]):
+                return pair
+        written = ", ".join(name for name in CLAIMS if name in given) or "none"
+        raise ValueError(
+            f"a state needs one of the pairs (T, P), (P, quality), (T, quality), (P, h) or (P, s); "
+            f"this one gives: {written}"
+        )
+
+    def claims(self) -> list[str]:
+        """The printed properties outside the fixing pair (checked against the state)."""
+        fixing = _INPUT_NAMES[self.pair]
+        return [n for n in CLAIMS if n not in fixing and getattr(self, n, None) is not None]
 
     def inputs(self) -> tuple[str, float, float]:
         """(pair, first value, second value) in SI, in the order the pair names them."""
@@ -98,7 +163,8 @@ class StateSpec(PropertyPair):
 
 
 class StreamSpec(StateSpec):
-    """A stream: a state, a flow, and optionally velocity, elevation and a declared phase.
+    """A stream: a state, a flow, and optionally velocity, elevation, a declared phase and printed
+    properties beyond the two that fix its state (see the module docstring).
 
     A gas mixture gives ``composition`` (mole fractions by formula or CoolProp name, or mass
     fractions with ``composition_basis: mass``, or a named composition such as ``air``) instead of
@@ -122,11 +188,39 @@ class StreamSpec(StateSpec):
     flow: StreamFlow = Field(description="mass, molar or volumetric flow")
     velocity: Velocity | None = Field(None, description="mean velocity, for kinetic energy")
     elevation: Length | None = Field(None, description="elevation, for potential energy")
+    u: SpecificEnthalpy | None = Field(
+        None, description="printed specific internal energy (a claim checked against the state)"
+    )
+    v: SpecificVolume | None = Field(
+        None, description="printed specific volume (a claim checked against the state)"
+    )
+    rho: Density | None = Field(None, description="printed density (a claim checked against the state)")
+    T_sat: TemperatureClaim = Field(
+        None, description="printed saturation temperature at the stream's pressure (a claim)"
+    )
+    state_from: (
+        tuple[Literal["T", "P", "quality", "h", "s"], Literal["T", "P", "quality", "h", "s"]] | None
+    ) = Field(
+        None,
+        description="the two properties that fix the state when more are printed, e.g. "
+        "[P, h]; without it the first given of (P, quality), (T, quality), (P, h), (P, s), "
+        "(T, P)",
+    )
     phase: Literal["liquid", "vapour", "two-phase", "supercritical"] | None = Field(
         None, description="the phase the balance states; checked against the computed one"
     )
     description: str | None = None
     uncertainty: StreamUncertaintyField = None
+
+    over_determined: ClassVar[bool] = True
+
+    @field_validator("state_from", mode="before")
+    @classmethod
+    def _pair_as_text(cls, value: object) -> object:
+        """A stream table writes the pair as text: 'P, h' or 'P h'."""
+        if isinstance(value, str):
+            return [part for part in value.replace(",", " ").split() if part]
+        return value
 
     @model_validator(mode="after")
     def _fluid_or_composition(self) -> StreamSpec:
@@ -136,6 +230,8 @@ class StreamSpec(StateSpec):
             )
         if self.composition is None:
             return self
+        if self.claims() or self.state_from is not None:
+            raise ValueError("a gas mixture is written with T and P only")
         if isinstance(self.composition, str):
             if self.composition_basis == "mass":
                 raise ValueError(

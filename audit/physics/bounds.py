@@ -134,3 +134,85 @@ def isothermal_closed_work_bound(dA: float) -> float:
     .. [2] Bejan, *Advanced Engineering Thermodynamics*, 4th ed., 2016, ch. 3.
     """
     return -dA
+
+
+def gibbs_change_at(dH: float, dS: float, T: float) -> float:
+    """Change of the Gibbs function of what a step carries, at one temperature.
+
+    Method: G = H − T S at the step's one temperature T, so that for the same T at both ends [1,
+    ch. 14], [2, ch. 3]::
+
+        ΔG = ΔH − T ΔS
+
+    The enthalpy and entropy changes are the streams' own (reference-independent for a conserved
+    fluid); each stream's own g = h − T_stream s is never used, since within an isothermal band
+    its T_stream·s term mixes a small temperature difference with an absolute entropy.
+
+    Parameters
+    ----------
+    dH : enthalpy change carried (plus kinetic and potential energy for a flow) [W] or [J]
+    dS : entropy change carried [W/K] or [J/K]
+    T : the step's temperature [K]
+
+    Returns
+    -------
+    dG : Gibbs-function change at T [W] or [J]
+
+    References
+    ----------
+    .. [1] Moran, Shapiro et al., *Fundamentals of Engineering Thermodynamics*, 8th ed., ch. 14.
+    .. [2] Bejan, *Advanced Engineering Thermodynamics*, 4th ed., 2016, ch. 3.
+    """
+    return dH - T * dS
+
+
+def helmholtz_change_at(dU: float, dS: float, T: float) -> float:
+    """Change of the Helmholtz function of a closed system's contents, at one temperature.
+
+    Method: A = U − T S at the system's one temperature T [1, ch. 11], [2, ch. 3]::
+
+        ΔA = ΔU − T ΔS
+
+    Parameters
+    ----------
+    dU : internal-energy change of the contents [J]
+    dS : entropy change of the contents [J/K]
+    T : the system's temperature [K]
+
+    Returns
+    -------
+    dA : Helmholtz-function change at T [J]
+
+    References
+    ----------
+    .. [1] Moran, Shapiro et al., *Fundamentals of Engineering Thermodynamics*, 8th ed., ch. 11.
+    .. [2] Bejan, *Advanced Engineering Thermodynamics*, 4th ed., 2016, ch. 3.
+    """
+    return dU - T * dS
+
+
+def useful_work_bound(W_total: float, P0: float, dV: float) -> float:
+    """The most useful work a closed system can deliver: its total-work bound less the work done
+    pushing back the surroundings.
+
+    Method: boundary work against the surroundings at P0 is not useful [1, ch. 7]::
+
+        W_useful,max = W_total,max − P0 ΔV
+
+    (for an isothermal system W_total,max = −ΔA, so this is −ΔA − P0 ΔV).
+
+    Parameters
+    ----------
+    W_total : bound on the total work delivered (−ΔA or the exergy drop) [J]
+    P0 : pressure of the surroundings (dead state) [Pa]
+    dV : volume change of the contents, final minus initial [m**3]
+
+    Returns
+    -------
+    W_useful : bound on the useful work delivered [J]
+
+    References
+    ----------
+    .. [1] Moran, Shapiro et al., *Fundamentals of Engineering Thermodynamics*, 8th ed., ch. 7.
+    """
+    return W_total - P0 * dV

@@ -43,12 +43,10 @@ from __future__ import annotations
 
 import math
 
-import CoolProp
-import CoolProp.CoolProp as CP
-
 from audit.constants import GAS_CONSTANT
 from audit.errors import StateError
 from audit.properties import mixtures
+from audit.properties.declared import DeclaredBases
 from audit.properties.fluids import (
     BACKEND,
     PAIRS,
@@ -60,6 +58,8 @@ from audit.properties.fluids import (
     open_fluid,
     short_reason,
 )
+from audit.properties.formulations import refine
+from audit.properties.library import CP, coolprop_version
 from audit.properties.mixture_states import MixtureStates
 from audit.properties.state import BASIS_FLUID, BASIS_FORMATION, BASIS_MIXTURE, State
 from audit.wording import to_bar, to_celsius
@@ -69,16 +69,14 @@ __all__ = [
     "BASIS_FLUID",
     "BASIS_FORMATION",
     "BASIS_MIXTURE",
-    "COOLPROP_VERSION",
+    "coolprop_version",
     "GAS_CONSTANT",
     "PropertyEngine",
     "State",
 ]
 
-COOLPROP_VERSION = CoolProp.__version__
 
-
-class PropertyEngine(MixtureStates):
+class PropertyEngine(MixtureStates, DeclaredBases):
     """Evaluates and caches stream states for one balance (one dead state, one saturation band).
 
     Parameters
@@ -87,9 +85,21 @@ class PropertyEngine(MixtureStates):
     dead_P : dead-state pressure P0 [Pa]
     saturation_band : half-width of the band around T_sat(P) in which a (T, P) state is
         ambiguous [K]
+    reference : the reference printed h and s are on (``balance: reference:``; None: the fluid's own)
+    formulation : the declared formulation (``balance: formulation:``; None: reference equations)
     """
 
-    def __init__(self, dead_T: float, dead_P: float, saturation_band: float = 0.1) -> None:
+    def __init__(
+        self,
+        dead_T: float,
+        dead_P: float,
+        saturation_band: float = 0.1,
+        reference: object = None,
+        formulation: object = None,
+    ) -> None:
+        self.reference = reference
+        self.formulation = formulation
+        self._offsets: dict[str, tuple[float, float]] = {}
         self.dead_T = dead_T
         self.dead_P = dead_P
         self.saturation_band = saturation_band
@@ -117,7 +127,7 @@ class PropertyEngine(MixtureStates):
         known = self._fluids.get(name)
         if known is not None:
             return known
-        info, state = open_fluid(name)
+        info, state = open_fluid(name, self.formulation_of)
         self._states[info.name] = state
         self._fluids[name] = info
         self._fluids[info.name] = info
@@ -218,6 +228,8 @@ class PropertyEngine(MixtureStates):
                 state.update(CP.HmassP_INPUTS, b, a)
             else:
                 state.update(PAIRS[pair], a, b)
+            if info.formulation == "IF97" and pair in ("Ph", "Ps"):
+                refine(state, pair, a, b)
             self._flashes += 1
             T, P = state.T(), state.p()
             rho, h, s, u = state.rhomass(), state.hmass(), state.smass(), state.umass()

@@ -10,38 +10,48 @@ part, read at a low density and moved to 1 bar with the exact ideal-gas term −
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass
-
-import CoolProp.CoolProp as CP
 
 from audit.constants import GAS_CONSTANT, P_STANDARD, T_STANDARD
 from audit.errors import StateError
 from audit.formation import species
+from audit.properties.formulations import open_state
+from audit.properties.library import CP
 from audit.properties.state import BASIS_FLUID, BASIS_FORMATION
 from audit.wording import to_bar, to_celsius
 
 BACKEND = "HEOS"
 """CoolProp back end: Helmholtz-energy equations of state (IAPWS-95 for water)."""
 
-PAIRS = {
-    "TP": CP.PT_INPUTS,
-    "PQ": CP.PQ_INPUTS,
-    "TQ": CP.QT_INPUTS,
-    "Ph": CP.HmassP_INPUTS,
-    "Ps": CP.PSmass_INPUTS,
-}
-"""The input pairs a state may be given by, and CoolProp's code for each."""
+PAIRS: dict[str, CP.input_pairs] = {}
+"""The input pairs a state may be given by, and CoolProp's code for each (filled when the first
+fluid is opened: reading CoolProp's codes loads the library)."""
 
-PHASE_NAMES = {
-    CP.iphase_liquid: "liquid",
-    CP.iphase_gas: "vapour",
-    CP.iphase_twophase: "two-phase",
-    CP.iphase_supercritical: "supercritical",
-    CP.iphase_supercritical_gas: "gas",  # above T_crit, below P_crit: a superheated gas
-    CP.iphase_supercritical_liquid: "supercritical liquid",
-    CP.iphase_critical_point: "critical point",
-}
-"""CoolProp's phase codes by the names states carry."""
+PHASE_NAMES: dict[int, str] = {}
+"""CoolProp's phase codes by the names states carry (filled with :data:`PAIRS`)."""
+
+
+def _fill_codes() -> None:
+    """Fill :data:`PAIRS` and :data:`PHASE_NAMES` in place from CoolProp's constants."""
+    PAIRS.update(
+        TP=CP.PT_INPUTS,
+        PQ=CP.PQ_INPUTS,
+        TQ=CP.QT_INPUTS,
+        Ph=CP.HmassP_INPUTS,
+        Ps=CP.PSmass_INPUTS,
+    )
+    PHASE_NAMES.update(
+        {
+            CP.iphase_liquid: "liquid",
+            CP.iphase_gas: "vapour",
+            CP.iphase_twophase: "two-phase",
+            CP.iphase_supercritical: "supercritical",
+            CP.iphase_supercritical_gas: "gas",  # above T_crit, below P_crit: a superheated gas
+            CP.iphase_supercritical_liquid: "supercritical liquid",
+            CP.iphase_critical_point: "critical point",
+        }
+    )
 
 
 @dataclass(frozen=True)
@@ -59,15 +69,22 @@ class Fluid:
     h_shift: float  # J/kg added to CoolProp's h (and u) to reach the formation basis
     s_shift: float  # J/(kg K) added to CoolProp's s
     basis: str
+    T_triple: float = 0.0  # K, the triple-point temperature (the IAPWS reference's state)
+    formulation: str = "reference"  # the equation of state (audit.properties.formulations)
 
 
 WATER_NAMES = {"steam", "vapour", "vapor", "ice", "h2o(g)", "h2o(l)", "liquid water", "condensate"}
 """Names a balance may give water in one of its phases; the fluid is 'Water' in every phase."""
 
 
-def open_fluid(name: str) -> tuple[Fluid, CP.AbstractState]:
-    """A fluid's constants and a CoolProp state object for it, by CoolProp name or alias;
-    :class:`StateError` for an unknown fluid."""
+def open_fluid(
+    name: str, formulation_of: Callable[[str], str] = lambda _: "reference"
+) -> tuple[Fluid, CP.AbstractState]:
+    """A fluid's constants and a CoolProp state object for it, by CoolProp name or alias, on the
+    formulation ``formulation_of(canonical name)`` gives; :class:`StateError` for an unknown fluid.
+    The formation-basis shift is always taken from the reference equation (HEOS)."""
+    if not PAIRS:
+        _fill_codes()
     try:
         state = CP.AbstractState(BACKEND, name)
     except ValueError:
@@ -92,6 +109,10 @@ def open_fluid(name: str) -> tuple[Fluid, CP.AbstractState]:
         h_shift = (data.enthalpy_of_formation - h_ig) / M
         s_shift = (data.standard_entropy - s_ig) / M
         basis = BASIS_FORMATION
+    T_triple = state.Ttriple()
+    formulation = formulation_of(canonical)
+    if formulation != "reference":
+        state = open_state(canonical, formulation)
     info = Fluid(
         name=canonical,
         T_min=state.Tmin(),
@@ -103,6 +124,8 @@ def open_fluid(name: str) -> tuple[Fluid, CP.AbstractState]:
         h_shift=h_shift,
         s_shift=s_shift,
         basis=basis,
+        T_triple=T_triple,
+        formulation=formulation,
     )
     return info, state
 

@@ -7,9 +7,11 @@ the same mixture at the dead state, and the pure species of reactions.
 
 from __future__ import annotations
 
+import math
 from collections.abc import Mapping
 from typing import TYPE_CHECKING
 
+from audit.constants import GAS_CONSTANT
 from audit.errors import StateError
 from audit.formation import lookup
 from audit.properties import mixtures
@@ -137,6 +139,26 @@ class MixtureStates:
                 f"(it is {state.phase} there); write {data.formula}(g) or give other conditions"
             )
         return state.h * state.molar_mass, state.s * state.molar_mass
+
+    def species_real_molar(
+        self, name: str, phase: str, T: float, P: float
+    ) -> tuple[float, float, float]:
+        """A pure species of a cell reaction at its own state, T [K] and P [Pa], on the formation
+        basis: (h [J/mol], s [J/(mol K)], φ [-]).
+
+        ``phase`` ``"g"``: the real gas, the ideal gas of :meth:`species_molar` corrected by its
+        residual enthalpy and fugacity coefficient φ from the reference equation of state, so that
+        g = g_ig(T, P) + R T ln φ and s = s_ig + (h_res − R T ln φ)/T; ``"l"``: the real liquid
+        (φ reported as 1).
+        """
+        h, s = self.species_molar(name, phase, T, P)
+        if phase != "g":
+            return h, s, 1.0
+        data = lookup(name)
+        assert data is not None  # species_molar has refused it otherwise
+        h_res, phi = self._mixtures.departure(data.fluid, T, P)
+        g_res = GAS_CONSTANT * T * math.log(phi)
+        return h + h_res, s + (h_res - g_res) / T, phi
 
     def species_molar_mass(self, name: str) -> float:
         """Molar mass [kg/mol] of a species with formation data (formula or CoolProp name)."""

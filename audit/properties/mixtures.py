@@ -51,12 +51,11 @@ import math
 from collections.abc import Mapping
 from dataclasses import dataclass
 
-import CoolProp.CoolProp as CP
-
 from audit.constants import GAS_CONSTANT, P_STANDARD, T_STANDARD
 from audit.errors import StateError
 from audit.formation import SPECIES, lookup
 from audit.model.composition import check_fractions
+from audit.properties.library import CP
 from audit.wording import to_bar, to_celsius
 
 BACKEND = "HEOS"
@@ -161,6 +160,35 @@ class IdealGasMixtures:
         self._check_range(fluid, T)
         h, s0 = self._standard(fluid, T)
         return h, s0 - GAS_CONSTANT * math.log(P / P_STANDARD)
+
+    def departure(self, fluid: str, T: float, P: float) -> tuple[float, float]:
+        """The real pure gas ``fluid`` at T [K], P [Pa] against the ideal gas: its residual
+        enthalpy h − h_ig [J/mol] and its fugacity coefficient φ = f/P [-], from the reference
+        equation of state (ln φ = (g − g_ig)/(R T), CoolProp HEOS). (0, 1) where the real fluid
+        would not be a gas (at or above its vapour pressure): the written gas is then a
+        hypothetical ideal-gas state, as in the standard state; (0, 1) too above the equation's
+        upper temperature or pressure, where it is not valid (and a gas at cell pressures is ideal
+        to well within the property allowance)."""
+        self._check_range(fluid, T)
+        p_sat = self.saturation_pressure(fluid, T)
+        if p_sat is not None and P >= p_sat:
+            return 0.0, 1.0
+        state = self._state(fluid)
+        if T > state.Tmax() or P > state.pmax():
+            return 0.0, 1.0
+        try:
+            state.update(CP.PT_INPUTS, P, T)
+            self.flash_count += 1
+            h_res = state.hmolar() - state.hmolar_idealgas()
+            phi = state.fugacity_coefficient(0)
+        except ValueError as exc:
+            raise StateError(
+                f"the real-gas state of {SPECIES[fluid].formula} at {to_celsius(T):.6g} °C and "
+                f"{to_bar(P):.6g} bar cannot be evaluated: {str(exc)[:160]}"
+            ) from None
+        if not (math.isfinite(h_res) and math.isfinite(phi) and phi > 0.0):  # pragma: no cover
+            raise StateError(f"CoolProp returned a non-finite real-gas value for {fluid}")
+        return h_res, phi
 
     # -- mixtures ---------------------------------------------------------------------------------
     def state(

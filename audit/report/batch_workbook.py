@@ -26,6 +26,7 @@ from openpyxl.styles import Alignment, Font, PatternFill
 from openpyxl.utils import get_column_letter
 from openpyxl.worksheet.worksheet import Worksheet
 
+from audit.clock import run_time
 from audit.findings import ERROR, INFO, WARNING
 from audit.outcomes import (
     FAIL,
@@ -133,7 +134,7 @@ def write_batch_workbook(
     sheet = book.active
     sheet.title = "Summary"
     verdicts = Counter(o.verdict(fail_on) for o in outcomes)
-    when = (run_at or datetime.now(timezone.utc)).astimezone(timezone.utc)
+    when = (run_at or run_time()).astimezone(timezone.utc)
     append_row(sheet, ["plant-audit batch summary"])
     sheet["A1"].font = Font(bold=True, size=14)
     append_row(sheet, ["Run at (UTC)", when.strftime("%Y-%m-%d %H:%M:%S")])

@@ -54,6 +54,7 @@ class Column:
     flatten: bool = False  # CSV: one column per key of the mapping, named key.name
     machine: bool = True  # False: a workbook-only column (computed by its sheet)
     wrap: bool = False  # the workbook cell wraps
+    omit_none: bool = False  # the JSON and CSV leave the field out of a row where it is None
 
     def value(self, row: Any) -> Any:
         """The field's value in ``row`` (the result object), as stored."""
@@ -91,14 +92,18 @@ class Table:
     # -- the machine outputs --------------------------------------------------------------------
     def json_row(self, row: Any) -> dict[str, Any]:
         """One object of the JSON: every machine column, structured values as plain data."""
-        return {c.key: plain(c.value(row)) for c in self.machine_columns if c.json}
+        return {
+            c.key: plain(c.value(row))
+            for c in self.machine_columns
+            if c.json and not (c.omit_none and c.value(row) is None)
+        }
 
     def csv_row(self, row: Any) -> dict[str, Any]:
         """One row of the CSV table (SI): structured values as one cell, mappings flattened."""
         out: dict[str, Any] = {}
         flattened: dict[str, Any] = {}
         for c in self.machine_columns:
-            if not c.csv:
+            if not c.csv or (c.omit_none and c.value(row) is None):
                 continue
             value = plain(c.value(row))
             if c.flatten:
@@ -107,6 +112,25 @@ class Table:
                 out[c.key] = c.cell(value) if c.cell else value
         out.update(flattened)  # after the other columns
         return out
+
+
+def printed_cell(claims: Mapping[str, Any] | None) -> str:
+    """A stream's printed properties beside the computed ones, in one cell: ``s: 0.5957 printed,
+    0.59722 computed, -15 last digits ✗``; ✗ marks a property that differs beyond its allowance,
+    ≈ one within the difference between formulations (:mod:`audit.printed`)."""
+    if not claims:
+        return ""
+    marks = {"agrees": "✓", "formulation": "≈", "differs": "✗"}
+    parts = []
+    for name, claim in claims.items():
+        get = claim.get if isinstance(claim, Mapping) else lambda key, c=claim: getattr(c, key)
+        digits = get("digits")
+        moved = f", {digits:+.3g} last digits" if digits is not None else ""
+        parts.append(
+            f"{name}: {get('text')} printed, {get('computed_text')} computed{moved} "
+            f"{marks.get(str(get('verdict')), '')}"
+        )
+    return "; ".join(parts)
 
 
 def plain(value: Any) -> Any:
@@ -145,6 +169,7 @@ STREAMS = Table(
         Column("description", "description", wrap=True),
         Column("line", "line in file", fmt=INTEGER),
         Column("composition"),  # mole fractions by species: JSON and CSV only
+        Column("printed", "printed vs computed", cell=printed_cell, omit_none=True, wrap=True),
         # the workbook's own columns
         Column("findings", "findings", machine=False),
         Column("from_step", "from step", machine=False),
@@ -173,6 +198,7 @@ STREAMS = Table(
         "a",
         "psi",
         "basis",
+        "printed",
         "velocity",
         "elevation",
         "line",
@@ -209,6 +235,11 @@ STEPS = Table(
         Column("energy_tolerance", "energy tolerance [kW | kJ]", "power"),
         Column("bound_basis", "bound basis"),
         Column("classical_bound", "classical bound [kW | kJ]", "power"),
+        Column("W_rev_exergy", "exergy drop Ẇ_rev [kW | kJ]", "power"),
+        Column("T_isothermal", "isothermal at [°C]", "temperature"),
+        Column("minus_dG_isothermal", "−ΔG at that temperature [kW | kJ]", "power"),
+        Column("minus_dA_isothermal", "−ΔA at that temperature [kJ]", "power"),
+        Column("useful_work_bound", "useful-work bound Ẇ_rev − P0·ΔV [kJ]", "power"),
         Column("second_law_efficiency", "second-law efficiency [%]", "fraction", fmt=PERCENT),
         Column("isentropic_efficiency", "isentropic efficiency [%]", "fraction", fmt=PERCENT),
         Column("claimed", "claimed", joined=", "),
@@ -217,6 +248,8 @@ STEPS = Table(
         Column("extra", flatten=True),  # kind-specific values: JSON object, CSV extra.* columns
         Column("description", "description", wrap=True),
         Column("line", "line in file", fmt=INTEGER),
+        Column("profile", csv=False, json=False),  # heat exchangers' T–Q points: the pictures
+        Column("exchanger", csv=False, json=False),  # heat exchangers' rating values
         # the workbook's own columns
         Column("findings", "findings", machine=False),
         Column("basis", "basis", machine=False),
@@ -252,6 +285,11 @@ STEPS = Table(
         "isentropic_efficiency",
         "bound_basis",
         "classical_bound",
+        "W_rev_exergy",
+        "T_isothermal",
+        "minus_dG_isothermal",
+        "minus_dA_isothermal",
+        "useful_work_bound",
         "claimed",
         "inferred",
         "notes",
@@ -280,6 +318,9 @@ FINDINGS = Table(
         Column("contributors", "largest uncertainty contributors", wrap=True),
         Column("monte_carlo_uncertainty"),
         Column("probable_causes", "probable causes", joined="; ", wrap=True),
+        Column("tolerance_rule", "tolerance rule"),
+        Column("tolerance_basis", "tolerance make-up", wrap=True),
+        Column("rounding_bound", "of which rounding of the written values", OWN, difference=True),
         # the workbook's own columns
         Column("unit", "unit", machine=False),
         Column("margin_unit", "margin unit", machine=False),
@@ -297,6 +338,7 @@ FINDINGS = Table(
         "margin_unit",
         "margin_relative",
         "tolerance",
+        "tolerance_basis",
         "message",
         "probable_causes",
         "accepted",

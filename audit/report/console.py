@@ -25,7 +25,7 @@ from rich.text import Text
 from audit.findings import ERROR, INFO, SEVERITY_RANK, WARNING, Finding, at_or_above
 from audit.report.display import shown, unit
 from audit.results import AuditResult
-from audit.wording import safe_text, to_bar, to_celsius
+from audit.wording import percent, safe_text, to_bar, to_celsius
 
 STYLES = {ERROR: "bold red", WARNING: "yellow", INFO: "blue"}
 DEFAULT_WIDTH = 100
@@ -211,7 +211,7 @@ def _margin(f: Finding) -> str:
     value = shown(f.margin, f.quantity, difference=difference)
     text = f"margin {value:.4g} {unit(f.quantity, difference=difference)}"
     if f.margin_relative is not None:
-        text += f" ({f.margin_relative:.1%})"
+        text += f" ({percent(f.margin_relative)})"
     return text
 
 

@@ -24,6 +24,7 @@ DISPLAY: dict[str, tuple[str, float, float]] = {
     "specific_energy": ("kJ/kg", 1e-3, 0.0),
     "specific_entropy": ("kJ/(kg·K)", 1e-3, 0.0),
     "density": ("kg/m³", 1.0, 0.0),
+    "specific_volume": ("m³/kg", 1.0, 0.0),
     "fraction": ("-", 1.0, 0.0),
     "voltage": ("V", 1.0, 0.0),
     "current": ("A", 1.0, 0.0),

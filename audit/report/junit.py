@@ -20,6 +20,7 @@ from pathlib import Path
 
 from audit.findings import Finding, at_or_above
 from audit.outcomes import INTERNAL, INVALID, SKIPPED, UNWRITTEN, FileOutcome
+from audit.printable import xml_safe
 from audit.report.files import write_text
 
 PLANT_CASE = "plant and streams"
@@ -132,8 +133,20 @@ def junit_tree(outcomes: list[FileOutcome], fail_on: str = "error") -> ET.Elemen
         suite.set("time", f"{outcome.seconds:.3f}")
     for key, value in totals.items():
         root.set(key, str(value))
+    _make_safe(root)
     ET.indent(root)
     return ET.ElementTree(root)
+
+
+def _make_safe(root: ET.Element) -> None:
+    """Spell every character XML 1.0 does not allow (and every control or format character) in the
+    tree's attributes and texts as an escape, so that the file is well formed whatever the ids and
+    file names hold (:func:`audit.printable.xml_safe`); texts keep their line breaks."""
+    for element in root.iter():
+        for key, value in element.attrib.items():
+            element.set(key, xml_safe(value))
+        if element.text:
+            element.text = "\n".join(xml_safe(line) for line in element.text.split("\n"))
 
 
 def write_junit(outcomes: list[FileOutcome], path: str | Path, fail_on: str = "error") -> None:

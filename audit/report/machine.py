@@ -33,15 +33,16 @@ import json
 import math
 from dataclasses import asdict
 from pathlib import Path
-from typing import Any
-
-import pandas as pd  # type: ignore[import-untyped]
+from typing import TYPE_CHECKING, Any
 
 from audit.exitcodes import EXIT_FINDINGS, EXIT_PASS
 from audit.report.columns import FINDINGS, STEPS, STREAMS, Table
 from audit.report.files import write_text
 from audit.report.plain_tables import json_units, plain_frame
 from audit.results import AuditResult
+
+if TYPE_CHECKING:  # pandas loads only when the CSV tables are written
+    import pandas as pd  # type: ignore[import-untyped]
 
 JSON_VERSION = "1"
 
@@ -94,21 +95,27 @@ def to_dict(result: AuditResult, fail_on: str = "error", marginal: bool = False)
     )
 
 
+def json_text(result: AuditResult, fail_on: str = "error", marginal: bool = False) -> str:
+    """The JSON results as text (what :func:`write_json` writes)."""
+    return (
+        json.dumps(to_dict(result, fail_on, marginal), indent=2, sort_keys=True, ensure_ascii=False)
+        + "\n"
+    )
+
+
 def write_json(
     result: AuditResult, path: str | Path, fail_on: str = "error", marginal: bool = False
 ) -> None:
     """Write the JSON results atomically (a temporary file moved into place); raises
     :class:`audit.errors.ReportError` when the file cannot be written."""
-    text = (
-        json.dumps(to_dict(result, fail_on, marginal), indent=2, sort_keys=True, ensure_ascii=False)
-        + "\n"
-    )
-    write_text(path, text, "the JSON results")
+    write_text(path, json_text(result, fail_on, marginal), "the JSON results")
 
 
 def table_frame(table: Table, rows: list[Any]) -> pd.DataFrame:
     """One table of the CSV output (SI units), its columns from the registry; indexed by the
     table's index column when it has one."""
+    import pandas as pd
+
     columns = [c.key for c in table.machine_columns if c.csv and not c.flatten]
     if not rows:
         return pd.DataFrame() if table.index else pd.DataFrame([], columns=columns)

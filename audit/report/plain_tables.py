@@ -13,11 +13,12 @@ Cells are plain values: lists are joined with ``"; "`` (``S01; S02``), mappings 
 
 from __future__ import annotations
 
-from typing import Any
-
-import pandas as pd  # type: ignore[import-untyped]
+from typing import TYPE_CHECKING, Any
 
 from audit.report.columns import FINDINGS, OWN, STEPS, STREAMS, Column, Table
+
+if TYPE_CHECKING:  # pandas loads only when a table is built
+    import pandas as pd  # type: ignore[import-untyped]
 
 SI_UNITS: dict[str, str] = {
     "temperature": "K",
@@ -75,6 +76,9 @@ EXTRA_UNITS: dict[str, str | None] = {
     "E_rev": "V",
     "E_tn": "V",
     "E_rev_checked": "V",
+    "E_rev_standard": "V",
+    "species_pressures": "Pa",
+    "fugacity_coefficients": "-",
     "E_tn_checked": "V",
     "gibbs_work": "W",
     "electrical_power": "W",
@@ -134,6 +138,8 @@ def plain_rows(table: Table, rows: list[Any]) -> list[dict[str, Any]]:
         for column in table.machine_columns:
             if not column.csv or column.flatten:
                 continue
+            if column.key not in values:  # left out where it is None (omit_none)
+                continue
             unit = column_unit(column)
             value = plain_cell(values[column.key])
             if unit in VESSEL_UNITS and table.name == "steps":
@@ -160,7 +166,7 @@ def plain_headers(table: Table) -> list[str]:
     """The headers of a machine table without its flattened columns (an empty table's)."""
     headers = []
     for column in table.machine_columns:
-        if not column.csv or column.flatten:
+        if not column.csv or column.flatten or column.omit_none:
             continue
         unit = column_unit(column)
         headers.append(header(column.key, unit))
@@ -174,6 +180,8 @@ def plain_headers(table: Table) -> list[str]:
 def plain_frame(table: Table, rows: list[Any]) -> pd.DataFrame:
     """A machine table as a DataFrame: unit headers, plain cells, indexed by the table's index
     column when it has one (``id``)."""
+    import pandas as pd
+
     records = plain_rows(table, rows)
     frame = pd.DataFrame(records) if records else pd.DataFrame([], columns=plain_headers(table))
     return frame.set_index(table.index) if table.index else frame

@@ -8,6 +8,7 @@ from pathlib import Path
 from typing import Any
 
 from audit.reconcile.records import Reconciliation, finite
+from audit.report.files import write_text
 
 SCHEMA_VERSION = 1
 
@@ -38,5 +39,5 @@ def _clean(value: Any) -> Any:
 
 
 def write_reconciliation_json(result: Reconciliation, path: Path) -> None:
-    """Write :func:`to_dict` to ``path``."""
-    path.write_text(json.dumps(to_dict(result), indent=2, ensure_ascii=False) + "\n", encoding="utf-8")
+    """Write :func:`to_dict` to ``path`` atomically (:mod:`audit.report.files`)."""
+    write_text(path, json.dumps(to_dict(result), indent=2, ensure_ascii=False) + "\n", "the JSON result")

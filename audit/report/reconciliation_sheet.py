@@ -13,6 +13,7 @@ from openpyxl import Workbook
 from openpyxl.styles import Font
 
 from audit.reconcile.records import Reconciliation
+from audit.report.files import write_atomically
 from audit.report.reconciliation_text import shown, unit_of
 
 HEADERS = [
@@ -99,4 +100,4 @@ def write_reconciliation_workbook(result: Reconciliation, path: Path) -> None:
     workbook = Workbook()
     workbook.remove(workbook.active)
     write_reconciliation_sheet(workbook, result)
-    workbook.save(path)
+    write_atomically(path, workbook.save, "the reconciliation workbook")

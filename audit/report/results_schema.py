@@ -53,12 +53,13 @@ def _of(annotation: str) -> dict[str, Any]:
 def _rows(table: Table, record: type, description: str) -> dict[str, Any]:
     hints = _annotations(record)
     keys = [c.key for c in table.machine_columns if c.json]
+    required = [c.key for c in table.machine_columns if c.json and not c.omit_none]
     return {
         "type": "array",
         "description": description,
         "items": {
             "type": "object",
-            "required": keys,
+            "required": required,  # a field left out where it is None (omit_none) is optional
             "additionalProperties": False,
             "properties": {key: _of(hints.get(key, "")) for key in keys},
         },

@@ -31,20 +31,23 @@ workbook keeps to:
 * the file is written atomically (:func:`audit.report.files.write_atomically`): a crash leaves the
   previous file untouched and no temporary file; a file that cannot be written raises
   :class:`audit.errors.ReportError` (exit code 4);
-* the same result gives the same bytes: the document's created/modified times and every zip entry's
-  time are the run time from ``result.provenance``;
-* openpyxl writes a formula without a cached value; the file module adds it (the solver's residual,
-  equal to the formula's arithmetic to rounding), so readers that do not calculate (pandas, openpyxl
-  with ``data_only=True``, file previews) and LibreOffice, which by default shows an .xlsx file's
-  cached values, show the number; Excel recalculates on load (the file asks for it), and
-  LibreOffice does on Data ▸ Calculate ▸ Recalculate Hard or when set to recalculate on load.
+* the same result gives the same bytes: the document's created/modified times are the run time
+  from ``result.provenance``, and every zip entry has the writer's fixed time;
+* every formula is written with its cached value (the solver's residual, equal to the formula's
+  arithmetic to rounding), so readers that do not calculate (pandas, openpyxl with
+  ``data_only=True``, file previews) and LibreOffice, which by default shows an .xlsx file's cached
+  values, show the number; Excel recalculates on load (the file asks for it), and LibreOffice does
+  on Data ▸ Calculate ▸ Recalculate Hard or when set to recalculate on load;
+* it is written in two passes by the same sheet code (:mod:`audit.report.workbook_cells`): one
+  measures column widths, row heights and each column's common style, the other writes the cells
+  with XlsxWriter in constant-memory mode, one row at a time, styles set per column (memory flat
+  in the number of rows).
 """
 
 from __future__ import annotations
 
 from pathlib import Path
-
-from openpyxl import Workbook
+from typing import Any, BinaryIO
 
 from audit.findings import SEVERITY_RANK
 from audit.report import workbook_file
@@ -62,7 +65,7 @@ from audit.report.sheets.context import (
     TOLERANCE_QUANTITY,
     Book,
 )
-from audit.report.workbook_cells import safe_text
+from audit.report.workbook_cells import Layout, safe_text
 from audit.results import AuditResult
 
 __all__ = [
@@ -86,26 +89,37 @@ WIDE = {FINDINGS: "A:C", STEPS: "A:A", STREAMS: "A:A"}
 """The wide tables, printed across pages with these id columns on every page."""
 
 
-def build(result: AuditResult, fail_on: str = "error") -> Book:
-    """The workbook of ``result``, every sheet written and set up for printing."""
+PAPER_A4 = 9
+"""The paper size code of A4."""
+
+
+def measure(result: AuditResult, fail_on: str = "error") -> dict[str, Layout]:
+    """The first pass: every sheet's column widths, row heights and column styles."""
     book = Book(result, fail_on)
+    for module in WRITERS:
+        module.write(book)
+    return {title: sheet.layout for title, sheet in book.sheets.items()}
+
+
+def build(result: AuditResult, fail_on: str, wb: Any, layouts: dict[str, Layout]) -> Book:
+    """The second pass: every sheet of ``result`` written into ``wb`` (an XlsxWriter workbook)
+    and set up for printing."""
+    book = Book(result, fail_on, wb, layouts)
     for module in WRITERS:
         module.write(book)
     for title, sheet in book.sheets.items():
         # Printed landscape; the narrow sheets one page wide, the wide tables (Findings,
         # Steps, Streams) across pages with the header row and the id columns on every page.
         ws = sheet.ws
-        ws.page_setup.orientation = "landscape"
-        ws.page_setup.paperSize = ws.PAPERSIZE_A4
+        ws.set_landscape()
+        ws.set_paper(PAPER_A4)
         if sheet.header_titles:
-            ws.print_title_rows = f"{sheet.header_row}:{sheet.header_row}"
+            ws.repeat_rows(sheet.header_row - 1)
         if title in WIDE:
-            ws.print_title_cols = WIDE[title]
-            ws.page_setup.scale = 60
+            ws.repeat_columns(WIDE[title])
+            ws.set_print_scale(60)
         else:
-            ws.page_setup.fitToWidth = 1
-            ws.page_setup.fitToHeight = 0
-            ws.sheet_properties.pageSetUpPr.fitToPage = True
+            ws.fit_to_pages(1, 0)
     return book
 
 
@@ -117,14 +131,13 @@ def write_workbook(result: AuditResult, path: str | Path, fail_on: str = "error"
     """
     if fail_on not in SEVERITY_RANK:
         raise ValueError(f"fail_on must be one of {sorted(SEVERITY_RANK)}, not {fail_on!r}")
-    book = build(result, fail_on)
-    wb: Workbook = book.wb
+    layouts = measure(result, fail_on)
     when = workbook_file.run_time(result)
-    wb.properties.creator = "plant-audit"
-    wb.properties.title = safe_text(f"plant-audit findings: {result.name}")
-    wb.properties.created = when
-    wb.properties.modified = when
-    formulas = {title: book.sheets[title].formulas for title in SHEETS}
-    write_atomically(
-        path, lambda stream: workbook_file.package(wb, formulas, when, stream), "the workbook"
-    )
+    title = safe_text(f"plant-audit findings: {result.name}")
+
+    def write(stream: BinaryIO) -> None:
+        wb = workbook_file.open_workbook(stream, title, when)
+        build(result, fail_on, wb, layouts)
+        workbook_file.close(wb)
+
+    write_atomically(path, write, "the workbook")

@@ -1,42 +1,59 @@
 """Cell writing for the findings workbook: styles, number formats, text that is never a formula,
-and columns and rows sized to their content. Used by :mod:`audit.report.workbook` only."""
+and columns and rows sized to their content. Used by :mod:`audit.report.workbook` only.
+
+A sheet is written twice by the same sheet code. The first pass (``Sheet(title)``, no worksheet)
+only measures: how wide each column must be, which rows wrap and how tall they get, and which style
+most cells of each column share. The second pass writes the cells with XlsxWriter in its
+constant-memory mode (each row goes to disk when the next one starts, so memory stays flat in the
+number of rows): each column gets its common style once (:meth:`Sheet.layout_columns`), and a cell
+carries a style of its own only where it differs (a fill, a link, a bold id, a vessel's unit).
+"""
 
 from __future__ import annotations
 
 import math
 import re
+from collections import Counter
 from collections.abc import Sequence
-from dataclasses import dataclass
-from typing import Any
-
-from openpyxl.cell.cell import ILLEGAL_CHARACTERS_RE
-from openpyxl.styles import Alignment, Border, Font, PatternFill, Side
-from openpyxl.utils import get_column_letter, quote_sheetname
-from openpyxl.worksheet.hyperlink import Hyperlink
-from openpyxl.worksheet.worksheet import Worksheet
+from dataclasses import dataclass, field
+from typing import Any, NamedTuple
 
 from audit.findings import ERROR, INFO, WARNING
 from audit.report.machine import FORMULA_TRIGGERS
-from audit.results import finite_or_none
+from audit.wording import finite_or_none
+
+
+class Fill(NamedTuple):
+    """A solid cell fill of one colour (RGB hex). (Named tuples: a cell's style is looked up by
+    them for every cell, and their hash and comparison run at C speed.)"""
+
+    color: str
+
+
+class Font(NamedTuple):
+    """A cell font: the workbook's default face, bold or not, a size, a colour, underlined."""
+
+    bold: bool = False
+    size: int = 11
+    color: str | None = None
+    underline: bool = False
+
 
 # Fills for the severities and the verdict; the word is always written too (greyscale prints).
 FILLS = {
-    ERROR: PatternFill("solid", fgColor="F4A6A6"),
-    WARNING: PatternFill("solid", fgColor="FFE699"),
-    INFO: PatternFill("solid", fgColor="DDEBF7"),
-    "pass": PatternFill("solid", fgColor="C6EFCE"),
+    ERROR: Fill("F4A6A6"),
+    WARNING: Fill("FFE699"),
+    INFO: Fill("DDEBF7"),
+    "pass": Fill("C6EFCE"),
 }
-HEADER_FILL = PatternFill("solid", fgColor="D9D9D9")
+HEADER_FILL = Fill("D9D9D9")
 FONT = "Calibri"  # the workbook's default font
-HEADER_FONT = Font(name=FONT, bold=True)
-BOLD = Font(name=FONT, bold=True)
-PLAIN = Font(name=FONT)
-LINK_FONT = Font(name=FONT, color="0563C1", underline="single")
-TITLE_FONT = Font(name=FONT, bold=True, size=14)
-SECTION_FONT = Font(name=FONT, bold=True, size=12)
-HEADER_BORDER = Border(bottom=Side(style="thin"))
-WRAP_TOP = Alignment(wrap_text=True, vertical="top")
-TOP = Alignment(vertical="top")
+HEADER_FONT = Font(bold=True)
+BOLD = Font(bold=True)
+PLAIN = Font()
+LINK_FONT = Font(color="0563C1", underline=True)
+TITLE_FONT = Font(bold=True, size=14)
+SECTION_FONT = Font(bold=True, size=12)
 
 # Number formats, one per display unit (resolution: about four significant figures or better).
 FORMATS = {
@@ -52,6 +69,7 @@ FORMATS = {
     "specific_energy": "#,##0.00",
     "specific_entropy": "0.00000",
     "density": "0.000",
+    "specific_volume": "0.000000",
     "fraction": "0.0000",
     "mass": "#,##0.000",
     "velocity": "0.00",
@@ -61,11 +79,20 @@ PERCENT = "0.0%"
 INTEGER = "0"
 GENERAL = "General"
 
+MAX_LINKS = 65_530
+"""The most hyperlinks a worksheet may hold (the file format's limit); later cells keep their text
+without the link."""
+
+_ILLEGAL = re.compile(r"[\000-\010]|[\013-\014]|[\016-\037]")
+"""Control characters an .xlsx cell cannot hold (XML 1.0)."""
+
 
 def safe_text(value: str) -> str:
     """``value`` with the control characters a workbook cannot hold replaced by U+FFFD, and
     carriage returns as line feeds (XML readers turn them into line feeds anyway)."""
-    return ILLEGAL_CHARACTERS_RE.sub("\ufffd", value.replace("\r\n", "\n").replace("\r", "\n"))
+    if value.isprintable():  # the usual text: no control character at all
+        return value
+    return _ILLEGAL.sub("\ufffd", value.replace("\r\n", "\n").replace("\r", "\n"))
 
 
 @dataclass
@@ -76,71 +103,143 @@ class Formula:
     cached: float | None
 
 
-class Sheet:
-    """A worksheet written cell by cell, which remembers how wide each column must be and which
-    cells wrap, so that widths and row heights fit the content."""
+Style = tuple  # (number format, fill, font, wrap, horizontal, quote prefix, header)
+"""A cell's look; equal tuples share one format of the file."""
 
-    def __init__(self, ws: Worksheet) -> None:
+
+@dataclass
+class Layout:
+    """What the measuring pass of one sheet found: final column widths, row heights, each
+    column's most common style, the header."""
+
+    widths: dict[int, float] = field(default_factory=dict)
+    heights: dict[int, float] = field(default_factory=dict)
+    column_style: dict[int, Style] = field(default_factory=dict)
+    measured: dict[int, float] = field(default_factory=dict)
+
+
+class Sheet:
+    """A worksheet written cell by cell; measuring (``ws`` None) or writing (``ws`` an XlsxWriter
+    worksheet, ``layout`` from the measuring pass, ``formats`` the book's format cache)."""
+
+    def __init__(self, title: str, ws: Any = None, layout: Layout | None = None, formats: Any = None):
+        self.title = title
         self.ws = ws
-        self.widths: dict[int, float] = {}
+        self.layout = layout or Layout()
+        self.formats = formats
+        self.widths: dict[int, float] = dict(self.layout.measured)
         self.fixed: dict[int, float] = {}
         self.wrapped: list[tuple[int, int, str]] = []
-        self.formulas: list[tuple[str, float]] = []
+        self.merged: list[tuple[int, int, int]] = []
+        self.styles: dict[int, Counter] = {}
         self.header_titles: list[str] = []
         self.header_row = 1
+        self.extremes: dict[tuple[int, str], list[float]] = {}
+        self.links = 0
+        self._row = 0
 
+    # -- cells -------------------------------------------------------------------------------------
     def put(
         self,
         row: int,
         col: int,
         value: Any,
         fmt: str | None = None,
-        fill: PatternFill | None = None,
+        fill: Fill | None = None,
         font: Font | None = None,
         link: str | None = None,
         wrap: bool = False,
         width: bool = True,
-    ) -> Any:
-        cell = self.ws.cell(row=row, column=col)
-        if isinstance(value, Formula):
-            cell.value = value.text
-            if value.cached is not None:
-                self.formulas.append((cell.coordinate, value.cached))
-        elif isinstance(value, str):
-            cell.value = safe_text(value)
-            cell.data_type = "s"  # an explicit string: never read as a formula
-            if value.startswith(FORMULA_TRIGGERS):
-                cell.quotePrefix = True
-        elif isinstance(value, float):
-            cell.value = finite_or_none(value)
-        else:
-            cell.value = value
-        if fmt and not isinstance(value, str):
-            cell.number_format = fmt
-        if fill is not None:
-            cell.fill = fill
-        if font is not None:
-            cell.font = font
+        align: str | None = None,
+        merge_to: int | None = None,
+    ) -> None:
+        """Write ``value`` at (``row``, ``col``), 1-based; text always as text (quote-prefixed when
+        it starts like a formula), numbers as numbers with ``fmt``, a :class:`Formula` with its
+        cached value; ``merge_to``: the cell spans to that column."""
+        is_text = isinstance(value, str)
+        quote = is_text and value.startswith(FORMULA_TRIGGERS)
         if link is not None:
-            cell.hyperlink = Hyperlink(ref=cell.coordinate, location=link)
-            cell.font = LINK_FONT
+            font = LINK_FONT
+        style = (None if is_text else fmt, fill, font, wrap, align, quote, False)
+        if self.ws is None:
+            self._measure_cell(row, col, value, fmt, style, wrap, width, merge_to)
+            return
+        if row != self._row:
+            self._row = row
+            height = self.layout.heights.get(row)
+            if height is not None:
+                self.ws.set_row(row - 1, height)
+        cell_format = None if style == self.layout.column_style.get(col) else self.formats.get(style)
+        r, c = row - 1, col - 1
+        if type(value) is float and link is None and merge_to is None:  # the usual cell
+            if math.isfinite(value):
+                self.ws.write_number(r, c, value, cell_format)
+            else:
+                self.ws.write_blank(r, c, None, cell_format or self.formats.get(style))
+            return
+        if merge_to is not None:
+            self.ws.merge_range(
+                r, c, r, merge_to - 1, safe_text(value) if is_text else value, cell_format
+            )
+        elif link is not None and self.links < MAX_LINKS:
+            self.links += 1
+            self.ws.write_url(r, c, "internal:" + link, cell_format, safe_text(value))
+        elif is_text:
+            self.ws.write_string(r, c, safe_text(value), cell_format)
+        elif isinstance(value, Formula):
+            cached = value.cached if value.cached is not None else 0
+            self.ws.write_formula(r, c, value.text, cell_format, cached)
+        elif isinstance(value, bool):
+            self.ws.write_boolean(r, c, value, cell_format)
+        elif isinstance(value, (int, float)):
+            number = finite_or_none(float(value)) if isinstance(value, float) else value
+            if number is None:
+                self.ws.write_blank(r, c, None, cell_format or self.formats.get(style))
+            else:
+                self.ws.write_number(r, c, number, cell_format)
+        elif value is None:
+            self.ws.write_blank(r, c, None, cell_format or self.formats.get(style))
+        else:
+            self.ws.write_string(r, c, safe_text(str(value)), cell_format)
+
+    def _measure_cell(
+        self,
+        row: int,
+        col: int,
+        value: Any,
+        fmt: str | None,
+        style: Style,
+        wrap: bool,
+        width: bool,
+        merge_to: int | None,
+    ) -> None:
+        counts = self.styles.get(col)
+        if counts is None:
+            counts = self.styles[col] = Counter()
+        counts[style] += 1
+        if merge_to is not None:
+            self.merged.append((row, col, merge_to))
         if wrap:
-            cell.alignment = WRAP_TOP
             if isinstance(value, str):
                 self.wrapped.append((row, col, value))
-        else:
-            cell.alignment = TOP
-            if width:
-                self._measure(col, value, fmt)
-        return cell
-
-    def _measure(self, col: int, value: Any, fmt: str | None) -> None:
-        if value is None:
-            return
-        if isinstance(value, Formula):
-            value = value.cached
-        length = len(value) if isinstance(value, str) else _shown_length(value, fmt)
-        self.widths[col] = max(self.widths.get(col, 0), length)
+        elif width and value is not None:
+            if isinstance(value, Formula):
+                value = value.cached
+            if type(value) is float and fmt and fmt != GENERAL:
+                # the shown length grows with the magnitude on either side of zero: the smallest
+                # and the largest value of a column and format give its widest text (see fit)
+                if math.isfinite(value):
+                    extremes = self.extremes.get((col, fmt))
+                    if extremes is None:
+                        self.extremes[(col, fmt)] = [value, value]
+                    elif value < extremes[0]:
+                        extremes[0] = value
+                    elif value > extremes[1]:
+                        extremes[1] = value
+                return
+            length = len(value) if isinstance(value, str) else _shown_length(value, fmt)
+            if length > self.widths.get(col, 0):
+                self.widths[col] = length
 
     def fix(self, col: int, width: float) -> None:
         """Give column ``col`` this width (its text wraps)."""
@@ -148,43 +247,74 @@ class Sheet:
 
     def header(self, titles: Sequence[str], row: int = 1) -> None:
         for col, title in enumerate(titles, start=1):
-            cell = self.put(row, col, title, fill=HEADER_FILL, font=HEADER_FONT, width=False)
-            cell.border = HEADER_BORDER
-            cell.alignment = Alignment(wrap_text=True, vertical="bottom")
+            self.put(row, col, title, fill=HEADER_FILL, font=HEADER_FONT, width=False, align="header")
         self.header_titles = list(titles)
         self.header_row = row
 
+    # -- the sheet ---------------------------------------------------------------------------------
+    def freeze(self, cell: str) -> None:
+        if self.ws is not None:
+            self.ws.freeze_panes(cell)
+
+    def highlight(self, cells: str, formula: str, fill: Fill, font: Font) -> None:
+        """Conditional format: ``cells`` take ``fill`` and ``font`` while ``formula`` holds."""
+        if self.ws is not None:
+            self.ws.conditional_format(
+                cells,
+                {
+                    "type": "formula",
+                    "criteria": "=" + formula,
+                    "format": self.formats.highlight(fill, font),
+                },
+            )
+
     def table(self, last_row: int, freeze: str = "B2") -> None:
         """Freeze the header row (and the id column), filter on, widths that fit."""
-        self.ws.freeze_panes = freeze
-        last_col = get_column_letter(len(self.header_titles))
-        self.ws.auto_filter.ref = f"A{self.header_row}:{last_col}{max(last_row, self.header_row)}"
+        self.freeze(freeze)
+        if self.ws is not None:
+            last_col = len(self.header_titles) - 1
+            self.ws.autofilter(self.header_row - 1, 0, max(last_row, self.header_row) - 1, last_col)
         self.fit()
 
     def fit(self, cap: int = 60, header_cap: int = 24) -> None:
         """Column widths from the content (headers wrap past ``header_cap`` characters), then row
-        heights for the header and the wrapped cells."""
+        heights for the header and the wrapped cells (measuring); the measured layout (writing)."""
+        if self.ws is not None:
+            return
+        for (col, fmt), extremes in self.extremes.items():
+            length = max(_shown_length(v, fmt) for v in extremes)
+            if length > self.widths.get(col, 0):
+                self.widths[col] = length
+        self.extremes.clear()
         titles = self.header_titles
         final: dict[int, float] = {}
-        for col in range(1, self.ws.max_column + 1):
+        last = max([*self.styles, *self.fixed, len(titles), 0])
+        for col in range(1, last + 1):
             head = len(titles[col - 1]) if col <= len(titles) else 0
-            width = self.fixed.get(col) or min(
+            final[col] = self.fixed.get(col) or min(
                 max(self.widths.get(col, 0), min(head, header_cap), 6) + 2, cap
             )
-            final[col] = width
-            self.ws.column_dimensions[get_column_letter(col)].width = width
+        heights: dict[int, float] = {}
         if titles:
             lines = max(_lines(title, final[col]) for col, title in enumerate(titles, start=1))
-            self.ws.row_dimensions[self.header_row].height = LINE_HEIGHT * lines + 2
-        heights: dict[int, int] = {}
+            heights[self.header_row] = LINE_HEIGHT * lines + 2
+        rows: dict[int, int] = {}
+        spans = {(row, col): to for row, col, to in self.merged}
         for row, col, text in self.wrapped:
-            span = final.get(col, 10)
-            for merged in self.ws.merged_cells.ranges:
-                if merged.min_row == row and merged.min_col == col:
-                    span = sum(final.get(c, 10) for c in range(col, merged.max_col + 1))
-            heights[row] = max(heights.get(row, 1), _lines(text, span))
-        for row, lines in heights.items():
-            self.ws.row_dimensions[row].height = LINE_HEIGHT * lines + 2
+            to = spans.get((row, col), col)
+            span = sum(final.get(c, 10) for c in range(col, to + 1))
+            rows[row] = max(rows.get(row, 1), _lines(text, span))
+        for row, lines in rows.items():
+            heights[row] = LINE_HEIGHT * lines + 2
+        column_style = {col: counts.most_common(1)[0][0] for col, counts in self.styles.items()}
+        self.layout = Layout(final, heights, column_style, dict(self.widths))
+
+    def layout_columns(self) -> None:
+        """Writing: each column's width and common style, set once for the whole column."""
+        for col, width in self.layout.widths.items():
+            style = self.layout.column_style.get(col)
+            cell_format = self.formats.get(style) if style is not None else None
+            self.ws.set_column(col - 1, col - 1, width, cell_format)
 
 
 LINE_HEIGHT = 15  # points per line of 11-point text
@@ -225,8 +355,18 @@ def _shown_length(value: Any, fmt: str | None) -> int:
     return len(text) + len(suffix) + (1 if core.endswith("%") else 0)
 
 
+def column_letter(col: int) -> str:
+    """The letters of a 1-based column number (1 → A, 27 → AA)."""
+    letters = ""
+    while col:
+        col, remainder = divmod(col - 1, 26)
+        letters = chr(65 + remainder) + letters
+    return letters
+
+
 def location(sheet: str, row: int, col: int = 1) -> str:
-    return f"{quote_sheetname(sheet)}!{get_column_letter(col)}{row}"
+    quoted = "'" + sheet.replace("'", "''") + "'"
+    return f"{quoted}!{column_letter(col)}{row}"
 
 
 def with_unit(fmt: str, label: str) -> str:

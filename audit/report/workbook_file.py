@@ -1,21 +1,25 @@
-"""Writing the findings workbook's file: openpyxl's parts with each formula's cached value, fixed
-entry and document times (the same result gives the same bytes). Used by
-:mod:`audit.report.workbook`, which writes the bytes with :mod:`audit.report.files`."""
+"""The findings workbook's file: an XlsxWriter workbook in constant-memory mode, with fixed
+document times (the same result gives the same bytes). Used by :mod:`audit.report.workbook`, which
+writes the bytes with :mod:`audit.report.files`."""
 
 from __future__ import annotations
 
-import io
-import re
-import zipfile
 from datetime import datetime
-from typing import BinaryIO
+from typing import Any, BinaryIO
 
-from openpyxl import Workbook
-from openpyxl.writer.excel import ExcelWriter
+from xlsxwriter import Workbook
 
+from audit.report.workbook_cells import FONT, GENERAL, Fill, Font, Style
 from audit.results import AuditResult
 
 _ZIP_EPOCH = (1980, 1, 1, 0, 0, 0)  # the earliest time a zip entry can hold
+
+OPTIONS = {
+    "constant_memory": True,  # each row to disk when the next starts
+    "strings_to_numbers": False,
+    "strings_to_formulas": False,  # text is text (the sheets write it as text anyway)
+    "strings_to_urls": False,
+}
 
 
 def run_time(result: AuditResult) -> datetime:
@@ -29,45 +33,57 @@ def run_time(result: AuditResult) -> datetime:
     return max(when, datetime(*_ZIP_EPOCH))
 
 
-def package(
-    wb: Workbook, formulas: dict[str, list[tuple[str, float]]], when: datetime, stream: BinaryIO
-) -> None:
-    """Write the workbook to ``stream``: openpyxl's parts, with cached formula values and fixed
-    entry times."""
-    raw = io.BytesIO()
-    with zipfile.ZipFile(raw, "w", zipfile.ZIP_DEFLATED, allowZip64=True) as archive:
-        ExcelWriter(wb, archive).write_data()  # save_workbook would stamp 'modified' with now
-    parts = {ws.path.lstrip("/"): formulas.get(ws.title, []) for ws in wb.worksheets}
-    stamp = when.timetuple()[:6]
-    with (
-        zipfile.ZipFile(raw) as source,
-        zipfile.ZipFile(stream, "w", zipfile.ZIP_DEFLATED, allowZip64=True) as target,
-    ):
-        for info in source.infolist():
-            content = source.read(info.filename)
-            if parts.get(info.filename):
-                content = cache_formula_values(content, parts[info.filename])
-            entry = zipfile.ZipInfo(info.filename, date_time=stamp)
-            entry.compress_type = zipfile.ZIP_DEFLATED
-            entry.create_system = 0
-            target.writestr(entry, content)
+def open_workbook(stream: BinaryIO, title: str, when: datetime) -> Any:
+    """A new workbook writing to ``stream``, its document created and modified at ``when``."""
+    wb = Workbook(stream, OPTIONS)
+    wb.set_properties({"title": title, "author": "plant-audit", "created": when})
+    return wb
 
 
-def cache_formula_values(xml: bytes, cached: list[tuple[str, float]]) -> bytes:
-    """Put each formula cell's value into its empty ``<v/>`` (openpyxl writes none)."""
-    text = xml.decode("utf-8")
-    values: dict[str, str] = {}
-    for coordinate, value in cached:
-        values.setdefault(coordinate, f"<v>{float(value)!r}</v>")
-
-    def fill(match: re.Match) -> str:
-        # the first formula cell of each coordinate takes its value (one pass over the sheet)
-        value = values.pop(match.group(2), None)
-        return match.group(0) if value is None else match.group(1) + value
-
-    # A coordinate without a match: an openpyxl that writes cells differently; the formula stays
-    # uncached and spreadsheet programs still compute it on load (the tests catch the change).
-    return _FORMULA_CELL.sub(fill, text).encode("utf-8")
+def close(wb: Any) -> None:
+    """Finish the file: the parts are put together and written to the stream."""
+    wb.close()
 
 
-_FORMULA_CELL = re.compile(r'(<c r="([A-Z]+[0-9]+)"[^>]*><f>[^<]*</f>)(?:<v\s*/>|<v></v>)')
+class Formats:
+    """The formats of one XlsxWriter workbook, one per distinct :data:`Style`, made on first use."""
+
+    def __init__(self, workbook: Any) -> None:
+        self.workbook = workbook
+        self.cache: dict[Style, Any] = {}
+
+    def get(self, style: Style | None) -> Any:
+        if style is None:
+            return None
+        made = self.cache.get(style)
+        if made is None:
+            made = self.cache[style] = self.workbook.add_format(_properties(style))
+        return made
+
+    def highlight(self, fill: Fill, font: Font) -> Any:
+        """A conditional format (a fill and a font)."""
+        return self.workbook.add_format({"bg_color": "#" + fill.color, "bold": font.bold})
+
+
+def _properties(style: Style) -> dict[str, Any]:
+    fmt, fill, font, wrap, align, quote, _ = style
+    properties: dict[str, Any] = {"font_name": FONT, "valign": "top"}
+    if fmt and fmt != GENERAL:
+        properties["num_format"] = fmt
+    if fill is not None:
+        properties.update(pattern=1, bg_color="#" + fill.color)
+    if font is not None:
+        properties.update(bold=font.bold, font_size=font.size)
+        if font.color:
+            properties["font_color"] = "#" + font.color
+        if font.underline:
+            properties["underline"] = 1
+    if wrap:
+        properties["text_wrap"] = True
+    if align == "header":
+        properties.update(text_wrap=True, valign="bottom", bottom=1)
+    elif align is not None:
+        properties["align"] = align
+    if quote:
+        properties["quote_prefix"] = True
+    return properties

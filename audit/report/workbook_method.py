@@ -37,12 +37,32 @@ METHOD_TEXT: tuple[tuple[str, str], ...] = (
         "stream depend on that reference (their differences are exact for isothermal steps).",
     ),
     (
+        "Printed properties",
+        "A stream fixes its state by one pair (state_from, or the first given of (P, quality), "
+        "(T, quality), (P, h), (P, s), (T, P)); every other printed property (T, P, quality, h, s, u, "
+        "v, ρ, T_sat) is checked against that state. Allowed: half a unit of its last written digit "
+        "(GUM JCGM 100:2008 §F.2.2.1), the fixing pair's rounding carried through worst-case, and "
+        "1e-8 relative (CoolProp against the published verification tables). Beyond that, within the "
+        "difference between IAPWS-95 and IAPWS-IF97 for water: formulation-difference (warning); "
+        "otherwise printed-property-mismatch (error). The Streams sheet shows printed beside "
+        "computed: ✓ agrees, ≈ within the formulation difference, ✗ differs.",
+    ),
+    (
+        "References and formulations",
+        "Printed h and s are read on the fluid's own reference (CoolProp's default: IAPWS for "
+        "water, IIR for most refrigerants) unless the balance declares another (reference: IIR, "
+        "ASHRAE, NBP, IAPWS or an explicit h and s at a stated state); they are shifted by one "
+        "constant in h and one in s at the edge. formulation: IF97 evaluates water on IAPWS-IF97 "
+        "instead of IAPWS-95. The equation of state of each fluid is listed below with its source.",
+    ),
+    (
         "First law (steady flow)",
         "residual = Σ Q_j − W − (Σ ṁ_e·e_e − Σ ṁ_i·e_i), e = h + V²/2 + g·z. In the Steps sheet the "
         "formula column computes Q − W − (enthalpy flow out − enthalpy flow in) − (kinetic+potential "
         "out − kinetic+potential in) from the cells of its row; the solver's own residual stands "
         "beside it. An energy-imbalance finding is raised when |residual| exceeds the energy "
-        "tolerance.",
+        "tolerance: the larger of energy_relative × the step's energy scale and the absolute floor, "
+        "which never exceeds energy_floor_fraction × the step's own work or heat.",
     ),
     (
         "Closed vessel (batch)",
@@ -67,11 +87,15 @@ METHOD_TEXT: tuple[tuple[str, str], ...] = (
     ),
     (
         "Bound basis",
-        "Which potential governs the step: 'exergy drop' in general; '−ΔG (isothermal flow)' when "
-        "every stream and declared heat temperature lies within the isothermal band (then "
-        "Ẇ_rev = −ΔG); for vessels, −ΔA when isothermal, −ΔG for the work other than expansion work "
-        "when also isobaric, else the closed-system exergy drop. The classical bound column holds "
-        "that −ΔG or −ΔA when it applies.",
+        "Which potential governs the step, and the bound the work check uses (Ẇ_rev): 'exergy "
+        "drop' in general (heat at its boundary temperatures); '−ΔG (isothermal flow)' when every "
+        "stream and declared heat temperature lies within the isothermal band of one temperature "
+        "T (undeclared heat is then exchanged at T): Ẇ_rev = −ΔG = −(ΔĖ − T·ΔṠ) of the streams at "
+        "that one T, so Ẇ_rev − W = T·Ṡ_gen + residual; for vessels, '−ΔA (isothermal closed)': "
+        "W_rev = −ΔA = −(ΔU − T·ΔS), useful work at most −ΔA − P0·ΔV (and, when also isobaric, "
+        "work other than expansion work at most −ΔG = −ΔA − P·ΔV), else the closed-system exergy "
+        "drop. Each bound has its own column: exergy drop, −ΔG and −ΔA at that temperature, the "
+        "useful-work bound; the classical bound column repeats −ΔG or −ΔA when it governs.",
     ),
     (
         "Heat without a declared temperature",

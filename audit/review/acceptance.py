@@ -34,7 +34,7 @@ from pydantic import ValidationError
 
 from audit.errors import InputError, InputErrors, Problem
 from audit.findings import WARNING, Finding
-from audit.input.document import load_document
+from audit.input.document import parse_document, read_text
 from audit.model.acceptance import Acceptance
 from audit.model.editor_schema import SCHEMA_KEY
 from audit.results import AuditResult
@@ -116,7 +116,15 @@ def load_beside(balance_path: str | Path) -> list[Acceptance]:
     path = beside_file(balance_path)
     if path is None:
         return []
-    document = load_document(path)
+    text = read_text(path)
+    if all(not line.strip() or line.lstrip().startswith("#") for line in text.splitlines()):
+        raise InputError(
+            "the acceptance file is empty; it holds 'accepted:' with a list of acceptances "
+            "(delete the file if nothing is accepted)",
+            file=str(path),
+            line=1,
+        )
+    document = parse_document(text, str(path))
     data = document.data
     if isinstance(data, dict):
         data = {k: v for k, v in data.items() if k != SCHEMA_KEY}  # for editors only
@@ -127,6 +135,33 @@ def load_beside(balance_path: str | Path) -> list[Acceptance]:
             line=1,
         )
     return parse_acceptances(data["accepted"], document)
+
+
+def refuse_contradictions(acceptances: list[Acceptance]) -> list[Acceptance]:
+    """Refuse two acceptances of one finding (same name, step and stream) that say different
+    things (another reason, reviewer or expiry): a reviewer must not have to guess which holds.
+    Returns ``acceptances`` unchanged otherwise."""
+    seen: dict[tuple, Acceptance] = {}
+    problems = []
+    for acceptance in acceptances:
+        key = (acceptance.finding, acceptance.step, acceptance.stream)
+        first = seen.setdefault(key, acceptance)
+        if first is not acceptance and (
+            (first.reason, first.accepted_by, first.expires)
+            != (acceptance.reason, acceptance.accepted_by, acceptance.expires)
+        ):
+            file, _, line = (acceptance.source or "").rpartition(":")
+            problems.append(
+                Problem(
+                    f"this acceptance of '{acceptance.finding}' at {acceptance.where()} contradicts "
+                    f"the one at {first.source} (another reason, reviewer or expiry); keep one",
+                    file=file or acceptance.source,
+                    line=int(line) if line.isdigit() else None,
+                )
+            )
+    if problems:
+        raise InputErrors(problems)
+    return acceptances
 
 
 def apply_acceptances(

@@ -106,7 +106,9 @@ def margin_function(
     margins take flow changes as mass-conserving (:func:`reference_shift`); T0 [K]."""
     name = finding.name
     candidates: list[Margin] = []
-    nominal = {group: _group_residual(group, streams) for group in flow_groups(result, streams)}
+    # The step stage reads these margins with each conserved fluid's own reference
+    # (audit.steps.allowances.reference_shift): the whole group residual is shifted, nominal or not.
+    nominal: dict[tuple, float] = {}
     if name in ENERGY_FINDINGS:
         sign = 1.0 if result.energy_residual >= 0 else -1.0
         candidates.append(lambda r, s: sign * (r.energy_residual - reference_shift(r, s, nominal)[0]))

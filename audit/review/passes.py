@@ -11,13 +11,16 @@ from __future__ import annotations
 from collections import defaultdict
 
 from audit.findings import Finding
+from audit.results import StepResult
 from audit.review.causes import name_causes
 from audit.review.inputs import check_declarations, declares_uncertainty
 from audit.review.margins import LAW_FINDINGS
 from audit.review.propagation import MONTE_CARLO_SEED
+from audit.review.rounding import assess_rounding
 from audit.review.runner import StepRunner
 from audit.review.uncertainty import DEFAULT_COVERAGE_FACTOR, assess_step
 from audit.solve import Solution
+from audit.steps.allowances import ROUNDING
 
 
 def review(solution: Solution, monte_carlo_trials: int = 0) -> tuple[list[Finding], dict[str, str]]:
@@ -30,12 +33,15 @@ def review(solution: Solution, monte_carlo_trials: int = 0) -> tuple[list[Findin
     runner = StepRunner(solution)
     by_result = {r.id: r for r in results}
     by_step: dict[int, list[tuple[int, Finding]]] = defaultdict(list)
-    findings = solution.findings
+    findings, spent_on_rounding = _rounding(runner, solution.findings, by_result)
+    provenance: dict[str, str] = {
+        "rounding": f"worst-case bound of the written digits' rounding through the steps' "
+        f"sensitivities (GUM, JCGM 100:2008, §F.2.2.1); {spent_on_rounding} step re-evaluations"
+    }
     for position, finding in enumerate(findings):
         if finding.step in runner.index and finding.name in LAW_FINDINGS:
             by_step[runner.index[finding.step]].append((position, finding))
     findings = list(findings)
-    provenance: dict[str, str] = {}
     expanded: dict[int, float] = {}
     if declared:
         unc = balance.balance.uncertainty
@@ -63,3 +69,27 @@ def review(solution: Solution, monte_carlo_trials: int = 0) -> tuple[list[Findin
     findings, spent_on_causes = name_causes(runner, findings, expanded, by_result)
     provenance["probable causes"] = f"{spent_on_causes} step re-evaluations (audit.review.causes)"
     return findings, provenance
+
+
+def _rounding(
+    runner: StepRunner, findings: list[Finding], by_result: dict[str, StepResult]
+) -> tuple[list[Finding], int]:
+    """The default verdict (:mod:`audit.review.rounding`) of every law finding whose tolerance
+    rule is rounding: widened by the rounding bound, or dropped when the rounding explains it.
+    Returns the findings (same order, those explained left out) and the re-evaluations spent."""
+    started = runner.runs
+    by_step: dict[int, list[tuple[int, Finding]]] = defaultdict(list)
+    for position, finding in enumerate(findings):
+        if finding.step in runner.index and finding.tolerance_rule == ROUNDING:
+            by_step[runner.index[finding.step]].append((position, finding))
+    changed: dict[int, Finding | None] = {}
+    for index, items in sorted(by_step.items()):
+        result = by_result.get(runner.balance.steps[index].id)
+        if result is not None:
+            changed.update(assess_rounding(runner, index, items, result))
+    kept = []
+    for position, finding in enumerate(findings):
+        new = changed.get(position, finding)
+        if new is not None:
+            kept.append(new)
+    return kept, runner.runs - started

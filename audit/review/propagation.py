@@ -31,8 +31,6 @@ import math
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
-import numpy as np
-
 from audit.errors import InputError
 
 MONTE_CARLO_SEED = 1012008
@@ -118,6 +116,8 @@ def monte_carlo(
     Returns the sample standard deviation of each output [SI] and the number of draws that could
     not be evaluated (left out).
     """
+    import numpy as np  # loaded only when needed: it costs a start-up
+
     rng = np.random.default_rng(seed)
     draws = np.asarray(x0, dtype=float) + rng.standard_normal((trials, len(x0))) * np.asarray(
         u, dtype=float

@@ -35,7 +35,7 @@ from __future__ import annotations
 import math
 from collections import defaultdict
 from collections.abc import Callable, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from pydantic import BaseModel
 
@@ -46,6 +46,12 @@ from audit.review.margins import Margin, margin_function
 from audit.review.propagation import MONTE_CARLO_SEED, monte_carlo, propagate
 from audit.review.runner import StepRunner, with_value
 from audit.review.verdicts import with_verdict
+
+MAX_PROPAGATED_INPUTS = 300
+"""Most uncertain inputs of one step whose uncertainty is propagated. Each input costs two
+re-evaluations of the step, and each re-evaluation costs time in proportion to the step's streams:
+past this (a mixer with a hundred inlets and more), the propagation would grow with the square of
+the step's size, so it is not run and the findings say so (they stand without a verdict)."""
 
 DEFAULT_COVERAGE_FACTOR = 2.0
 TOP_CONTRIBUTORS = 5
@@ -103,6 +109,19 @@ def assess_step(
     if not laws:
         return {}, StepUncertainty({}, 0)
     inputs = step_inputs(runner, index)
+    if len(inputs) > MAX_PROPAGATED_INPUTS:
+        note = (
+            f" (the uncertainty of the step's {len(inputs):,} inputs was not propagated: more than "
+            f"{MAX_PROPAGATED_INPUTS}, so the review's time grows no faster than the step's size; "
+            "the finding stands without an uncertainty verdict)"
+        )
+        return (
+            {
+                position: replace(finding, message=finding.message + note)
+                for position, finding, _ in laws
+            },
+            StepUncertainty({}, 0),
+        )
     if not inputs:
         return (
             {position: with_verdict(finding, 0.0, k) for position, finding, _ in laws},

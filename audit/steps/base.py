@@ -17,11 +17,13 @@ from typing import Any
 from audit.findings import Finding
 from audit.model.steps import HeatClaim, StepBase
 from audit.model.tolerances import Tolerances
-from audit.physics.bounds import isothermal_flow_work_bound
 from audit.physics.efficiency import second_law_efficiency
 from audit.properties.engine import PropertyEngine
 from audit.results import Balance, BoundaryChoice, HeatFlow, StepResult, StreamResult
-from audit.steps.laws import energy_tolerance, flow_balance, law_findings
+from audit.steps.allowances import allowances, declared_rule, reference_shift
+from audit.steps.balances import flow_balance
+from audit.steps.laws import energy_tolerance, law_findings
+from audit.steps.potentials import exchange_at, govern_flow, isothermal_temperature
 
 CONSERVATIVE_WORDS = "conservative boundary temperature"
 """What the note of a heat flow says when its boundary temperature was not declared."""
@@ -94,27 +96,6 @@ def inferred_heat(balance_without_heat: Balance) -> float:
     return -balance_without_heat.energy_residual
 
 
-def bound_basis_flow(
-    streams: Sequence[StreamResult],
-    heat_flows: Sequence[HeatFlow],
-    tol: Tolerances,
-    dG: float,
-) -> tuple[str, float | None]:
-    """Which potential governs a flow step, and its value [W].
-
-    Rule: when every stream (and every declared finite heat boundary temperature) lies within
-    ``isothermal_band`` of one temperature, the reversible work of a steady-flow step exchanging
-    heat at that temperature is −ΔG (Gibbs function of the streams); otherwise the bound is the
-    exergy drop of design note 2.4.
-    """
-    temperatures = [s.T for s in streams] + [
-        q.temperature for q in heat_flows if q.claimed and math.isfinite(q.temperature)
-    ]
-    if temperatures and max(temperatures) - min(temperatures) <= tol.isothermal_band:
-        return "-ΔG (isothermal flow)", isothermal_flow_work_bound(dG)
-    return "exergy drop", None
-
-
 def finish_flow_step(
     step: StepBase,
     kind: str,
@@ -133,14 +114,34 @@ def finish_flow_step(
 ) -> tuple[StepResult, Balance]:
     """Apply the laws to a flow step and build its :class:`StepResult` (kind checks come after).
 
+    The work bound is the one that governs (:mod:`audit.steps.potentials`): −ΔG at the step's
+    one temperature for an isothermal step (its undeclared heat exchanged at that temperature),
+    else the exergy drop.
+
     ``energy_scale_floor`` [W] raises the scale of the relative energy tolerance where the streams'
     own turnover misses the step's largest energy term (a reacting step's heat of reaction).
     """
     tol = ctx.tolerances
+    T_iso = isothermal_temperature([s.T for s in (*inlets, *outlets)], heat_flows, tol.isothermal_band)
+    if T_iso is not None:
+        exchange_at(heat_flows, T_iso)
     balance = flow_balance(inlets, outlets, heat_flows, W, ctx.T0)
     balance.energy_scale = max(balance.energy_scale, energy_scale_floor)
+    basis, classical = govern_flow(balance, T_iso)
     conservative = any(q.conservative for q in heat_flows)
     inlet_mass = sum(s.mass_flow for s in inlets)
+    allowance = (
+        None
+        if declared_rule(tol, batch=False)
+        else allowances(
+            [(s, s.mass_flow) for s in (*inlets, *outlets)],
+            heat_flows,
+            W,
+            balance.W_rev,
+            ctx.T0,
+            ctx.engine,
+        )
+    )
     for finding in law_findings(
         step.id,
         balance,
@@ -152,9 +153,10 @@ def finish_flow_step(
         check_energy=check_energy,
         energy_finding=energy_finding,
         check_mass=check_mass,
+        allowance=allowance,
+        shift=reference_shift(inlets, outlets),
     ):
         ctx.add(finding)
-    basis, classical = bound_basis_flow([*inlets, *outlets], heat_flows, tol, balance.dG)
     result = StepResult(
         id=step.id,
         kind=kind,

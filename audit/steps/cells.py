@@ -13,7 +13,7 @@ work with the reversible work of the streams, which for an isothermal cell excha
 own temperature is −ΔG of the reaction (a fuel cell cannot deliver more, an electrolyser cannot
 take less; ``work-above-bound``, ``input-below-minimum``). The cell checks [1, ch. 2], [2, ch. 14]:
 
-* reversible voltage E_rev = ΔG_rxn(T, P) / (n F) and thermoneutral voltage E_tn = ΔH_rxn / (n F),
+* reversible voltage E_rev = ΔG_rxn(T, p_i) / (n F) and thermoneutral voltage E_tn = ΔH_rxn / (n F),
   for the reaction written in the direction the cell runs (splitting in an electrolyser: ΔG > 0;
   in a fuel cell the signs are reversed so both are positive). A fuel cell cannot run above E_rev,
   an electrolyser not below it (``voltage-beyond-reversible``);
@@ -24,13 +24,13 @@ take less; ``work-above-bound``, ``input-below-minimum``). The cell checks [1, c
   fuel it consumes), and equal to a claimed ``faradaic_efficiency`` (``faraday-mismatch``);
 * a claimed power equals V I N (``power-mismatch``).
 
-Conditions: E_rev and E_tn are evaluated with every species pure at the cell's ``temperature`` and
-``pressure`` in its written phase (gases ideal, liquid water from IAPWS-95), which is the Nernst
-equation for pure product and reactant gases at the cell pressure. Where the balance does not
-declare them, the voltage and heat checks use the most lenient of the four corners (lowest and
-highest stream temperature, lowest and highest stream pressure), and the values reported are at the
-outlets' mean temperature and pressure. Voltage tolerance: ``energy_relative`` × E_rev (the same
-relative tolerance as the energy checks, since n F ξ̇ V is a power); Faraday: ``energy_relative``.
+Conditions (:mod:`audit.steps.cell_voltage`, one function for the reported values and the checks):
+E_rev and E_tn at the cell's ``temperature`` (else the outlets' mean) with every species at its own
+state: each gas at its own partial pressure in its stream, a real gas with its fugacity from the
+reference equation of state (the Nernst equation with fugacities), liquid water at its own
+pressure; ``E_rev_standard`` beside it has every species at 1 bar. Voltage tolerance:
+:data:`audit.steps.cell_checks.VOLTAGE_ALLOWANCE` (what the formation data and the property
+formulation leave uncertain in E_rev); Faraday: ``energy_relative``.
 
 References
 ----------
@@ -45,6 +45,7 @@ from collections.abc import Sequence
 
 from pydantic import Field, field_validator, model_validator
 
+from audit.constants import P_STANDARD
 from audit.formation import species
 from audit.model.steps import CurrentClaim, PowerClaim, PressureClaim, TemperatureClaim, VoltageClaim
 from audit.physics.electrochemistry import (
@@ -54,7 +55,8 @@ from audit.physics.electrochemistry import (
 )
 from audit.results import StepResult, StreamResult
 from audit.steps.base import HeatClaim, StepBase, StepContext
-from audit.steps.cell_checks import cell_findings, reaction_corners
+from audit.steps.cell_checks import cell_findings
+from audit.steps.cell_voltage import cell_reaction
 from audit.steps.reacting import (
     element_findings,
     extents_and_findings,
@@ -164,10 +166,10 @@ def evaluate_cell(step: CellStep, ctx: StepContext, kind: str) -> StepResult:
         notes.append(f"Cell reaction taken as '{text}' (the default for the kind).")
     reaction = parse_reaction(text)
     T_rep, P_rep = step_conditions(step.temperature, step.pressure, outlets)
-    reported = properties_at(ctx, [reaction], T_rep, P_rep)[0]
+    reported = cell_reaction(ctx, reaction, T_rep, inlets, outlets, P_rep)
     if (reported.dG < 0) == driven:  # written against the direction the cell runs
         reaction = _reversed(reaction)
-        reported = properties_at(ctx, [reaction], T_rep, P_rep)[0]
+        reported = cell_reaction(ctx, reaction, T_rep, inlets, outlets, P_rep)
     n = step.electrons or round(4 * abs(reaction.nu()["O2"]))
     sign = 1.0 if driven else -1.0
 
@@ -209,11 +211,9 @@ def evaluate_cell(step: CellStep, ctx: StepContext, kind: str) -> StepResult:
         for finding in species_found:
             ctx.add(finding)
 
-    corners = reaction_corners(ctx, reaction, step, [*inlets, *outlets])
-    E_rev = [reversible_voltage(-sign * p.dG, n) for p in corners]
-    E_tn = [thermoneutral_voltage(-sign * p.dH, n) for p in corners]
-    E_rev_checked = min(E_rev) if driven else max(E_rev)
-    E_tn_checked = min(E_tn)
+    E_rev = reversible_voltage(-sign * reported.dG, n)
+    E_tn = thermoneutral_voltage(-sign * reported.dH, n)
+    standard = properties_at(ctx, [reaction], T_rep, P_STANDARD)[0]
     charge = step.current * step.cells if step.current is not None else None
     efficiency = None
     if charge is not None and xi > 0.0:
@@ -228,10 +228,13 @@ def evaluate_cell(step: CellStep, ctx: StepContext, kind: str) -> StepResult:
             "dH_rxn": reported.dH,
             "dS_rxn": reported.dS,
             "dG_rxn": reported.dG,
-            "E_rev": reversible_voltage(-sign * reported.dG, n),
-            "E_tn": thermoneutral_voltage(-sign * reported.dH, n),
-            "E_rev_checked": E_rev_checked,
-            "E_tn_checked": E_tn_checked,
+            "species_pressures": dict(reported.pressures or {}),
+            "fugacity_coefficients": dict(reported.fugacity or {}),
+            "E_rev": E_rev,
+            "E_tn": E_tn,
+            "E_rev_standard": reversible_voltage(-sign * standard.dG, n),
+            "E_rev_checked": E_rev,
+            "E_tn_checked": E_tn,
             "gibbs_work": sign * xi * reported.dG,
             "electrical_power": electrical,
             "stack_power": stack,
@@ -241,7 +244,7 @@ def evaluate_cell(step: CellStep, ctx: StepContext, kind: str) -> StepResult:
     )
     if not elements[0]:
         for finding in cell_findings(
-            step, ctx, result, driven, n, xi, E_rev_checked, E_tn_checked, efficiency, stack, heat
+            step, ctx, result, driven, n, xi, E_rev, E_tn, efficiency, stack, heat
         ):
             ctx.add(finding)
     return result

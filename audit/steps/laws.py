@@ -1,4 +1,7 @@
-"""The laws every step obeys: mass, first law, entropy generation, reversible work.
+"""The laws every step obeys, as findings: mass, first law, entropy generation, work bound.
+
+The balances themselves are computed in :mod:`audit.steps.balances`; this module turns them into
+findings with their tolerances.
 
 Sign convention: Q is heat INTO the step, W is work DELIVERED BY the step.
 
@@ -26,180 +29,42 @@ References
 
 from __future__ import annotations
 
-from collections.abc import Sequence
-
 from audit.findings import ERROR, Finding, relative
 from audit.model.tolerances import Tolerances
-from audit.physics.bounds import energy_residual, entropy_generation, reversible_work
-from audit.physics.exergy import carnot_factor, exergy_destroyed, heat_exergy
-from audit.physics.exergy import entropy_of_heat as heat_entropy
-from audit.results import Balance, HeatFlow, StreamResult
-
-
-def heat_exergy_factor(T_boundary: float, T0: float) -> float:
-    """Carnot factor 1 − T0/T_j of heat crossing the boundary at T_j [K]; 1 for T_j = ∞
-    (:func:`audit.physics.exergy.carnot_factor`)."""
-    return carnot_factor(T_boundary, T0)
-
-
-def entropy_of_heat(heat_flows: Sequence[HeatFlow]) -> float:
-    """Σ Q_j / T_j [W/K] (0 for heat from an infinitely hot source)."""
-    return sum(heat_entropy(q.Q, q.temperature) for q in heat_flows)
-
-
-def exergy_of_heat(heat_flows: Sequence[HeatFlow], T0: float) -> float:
-    """Σ Q_j (1 − T0/T_j) [W] over the heat flows into the step."""
-    return sum(heat_exergy(q.Q, q.temperature, T0) for q in heat_flows)
-
-
-def flow_balance(
-    inlets: Sequence[StreamResult],
-    outlets: Sequence[StreamResult],
-    heat_flows: Sequence[HeatFlow],
-    W: float,
-    T0: float,
-) -> Balance:
-    """Steady-flow balances of a step; see the module docstring for the equations.
-
-    Parameters
-    ----------
-    inlets, outlets : evaluated streams
-    heat_flows : heat into the step [W] with boundary temperatures [K]
-    W : work delivered by the step [W]
-    T0 : dead-state temperature [K]
-    """
-    (H_in, U_in, S_in, G_in, A_in, KE_in), (H_out, U_out, S_out, G_out, A_out, KE_out) = (
-        _flow_totals(inlets),
-        _flow_totals(outlets),
-    )
-    dH = H_out - H_in
-    dU = U_out - U_in
-    dS = S_out - S_in
-    dG = G_out - G_in
-    dA = A_out - A_in
-    Q = sum(q.Q for q in heat_flows) if heat_flows else 0  # as sum() of nothing
-    dE = dH + KE_out - KE_in
-    residual = energy_residual(Q, W, dE)
-    mass: dict[str, float] = {}
-    for s in inlets:
-        mass[s.fluid] = mass.get(s.fluid, 0.0) + s.mass_flow
-    for s in outlets:
-        mass[s.fluid] = mass.get(s.fluid, 0.0) - s.mass_flow
-    S_gen = entropy_generation(dS, entropy_of_heat(heat_flows))
-    W_rev = reversible_work(dE, dS, T0, exergy_of_heat(heat_flows, T0))
-    heat_scale = sum(abs(q.Q) for q in heat_flows)
-    scale = max(abs(W), heat_scale, energy_turnover(inlets, outlets))
-    return Balance(
-        H_in=H_in,
-        H_out=H_out,
-        KE_PE_in=KE_in,
-        KE_PE_out=KE_out,
-        dH=dH,
-        dU=dU,
-        dS=dS,
-        dG=dG,
-        dA=dA,
-        Q=Q,
-        W=W,
-        energy_residual=residual,
-        mass_residual=mass,
-        S_gen=S_gen,
-        W_rev=W_rev,
-        exergy_destroyed=exergy_destroyed(S_gen, T0),
-        energy_scale=scale,
-    )
-
-
-def _flow_totals(streams: Sequence[StreamResult]) -> tuple[float, float, float, float, float, float]:
-    """Σ ṁ h, Σ ṁ u, Σ ṁ s, Σ ṁ g, Σ ṁ a [W, W/K] and Σ ṁ (V²/2 + g z) [W] of ``streams``, in one
-    pass (summed in the order given, as ``sum`` would)."""
-    H = U = S = G = A = KE = 0.0
-    for s in streams:
-        m = s.mass_flow
-        H += m * s.h
-        U += m * s.u
-        S += m * s.s
-        G += m * s.g
-        A += m * s.a
-        KE += m * s.kinetic_potential
-    return H, U, S, G, A, KE
-
-
-def energy_turnover(inlets: Sequence[StreamResult], outlets: Sequence[StreamResult]) -> float:
-    """The enthalpy a step moves between its streams [W]: Σ_i ṁ_i |e_i − ē_out| per fluid.
-
-    ē_out is the mass-weighted mean outlet energy of the same fluid (the inlet's own when the fluid
-    has no outlet). For a one-inlet, one-outlet step it is ṁ |Δe|; it is the scale of the relative
-    energy tolerance (absolute enthalpies, which depend on the reference, are never a scale).
-    """
-    flows: dict[str, list[float]] = {}
-    for s in outlets:
-        entry = flows.get(s.fluid)
-        if entry is None:
-            entry = flows[s.fluid] = [0.0, 0.0]
-        entry[0] += s.mass_flow
-        entry[1] += s.mass_flow * (s.h + s.kinetic_potential)
-    turnover = 0.0
-    for s in inlets:
-        m_out, e_out = flows.get(s.fluid, (0.0, 0.0))
-        e_mean = e_out / m_out if m_out > 0 else s.h + s.kinetic_potential
-        turnover += s.mass_flow * abs(s.h + s.kinetic_potential - e_mean)
-    return turnover
-
-
-def closed_balance(
-    mass: float,
-    initial: StreamResult,
-    final: StreamResult,
-    heat_flows: Sequence[HeatFlow],
-    W: float,
-    T0: float,
-) -> Balance:
-    """Balances of a closed step from ``initial`` to ``final`` of ``mass`` [kg]; totals [J], [J/K].
-
-    W is the total work delivered by the contents [J] (boundary and shaft work).
-    """
-    dU = mass * (final.u - initial.u)
-    dH = mass * (final.h - initial.h)
-    dS = mass * (final.s - initial.s)
-    dG = mass * (final.g - initial.g)
-    dA = mass * (final.a - initial.a)
-    Q = sum(q.Q for q in heat_flows)
-    residual = energy_residual(Q, W, dU)
-    S_gen = entropy_generation(dS, entropy_of_heat(heat_flows))
-    W_rev = reversible_work(dU, dS, T0, exergy_of_heat(heat_flows, T0))
-    scale = max(abs(W), sum(abs(q.Q) for q in heat_flows), abs(dU))
-    mass_residual = (
-        {initial.fluid: 0.0}
-        if initial.fluid == final.fluid
-        else {initial.fluid: mass, final.fluid: -mass}
-    )
-    return Balance(
-        H_in=mass * initial.u,
-        H_out=mass * final.u,
-        KE_PE_in=0.0,
-        KE_PE_out=0.0,
-        dH=dH,
-        dU=dU,
-        dS=dS,
-        dG=dG,
-        dA=dA,
-        Q=Q,
-        W=W,
-        energy_residual=residual,
-        mass_residual=mass_residual,
-        S_gen=S_gen,
-        W_rev=W_rev,
-        exergy_destroyed=exergy_destroyed(S_gen, T0),
-        energy_scale=scale,
-    )
+from audit.results import Balance
+from audit.steps.allowances import DECLARED, ROUNDING, Allowances
 
 
 def energy_tolerance(balance: Balance, tol: Tolerances, batch: bool) -> float:
     """Allowed energy residual and work-bound margin [W] or [J]: the larger of the relative
-    tolerance times the step's energy scale and the absolute tolerance."""
+    tolerance times the step's energy scale and the absolute floor (:func:`energy_floor`)."""
+    return max(tol.energy_relative * balance.energy_scale, energy_floor(balance, tol, batch))
+
+
+def energy_floor(balance: Balance, tol: Tolerances, batch: bool) -> float:
+    """The absolute floor of the energy tolerance [W] or [J], never more than
+    ``energy_floor_fraction`` of the step's own size, the larger of its work and its net heat, so
+    that the floor cannot hide a small machine: min(absolute, fraction · max(|W|, |Q|)). A step
+    with neither work nor heat (a valve, a splitter, a mixer) keeps the whole floor: its turnover
+    is its residual itself."""
     absolute = tol.energy_absolute_batch if batch else tol.energy_absolute
-    return max(tol.energy_relative * balance.energy_scale, absolute)
+    size = max(abs(balance.W), abs(balance.Q))
+    return absolute if size == 0.0 else min(absolute, tol.energy_floor_fraction * size)
+
+
+def floor_note(balance: Balance, tol: Tolerances, batch: bool) -> str:
+    """Words for a finding whose tolerance the absolute floor set (empty otherwise)."""
+    floor = energy_floor(balance, tol, batch)
+    if floor <= tol.energy_relative * balance.energy_scale:
+        return ""
+    absolute = tol.energy_absolute_batch if batch else tol.energy_absolute
+    if floor < absolute:
+        return (
+            f"; the tolerance is the absolute floor, capped at "
+            f"{tol.energy_floor_fraction:.0%} of the step's "
+            f"{_kw(max(abs(balance.W), abs(balance.Q)), batch)} of work or heat"
+        )
+    return f"; the tolerance is the absolute floor of {_kw(absolute, batch)}"
 
 
 def law_findings(
@@ -213,12 +78,34 @@ def law_findings(
     check_energy: bool = True,
     energy_finding: str = "energy-imbalance",
     check_mass: bool = True,
+    allowance: Allowances | None = None,
+    shift: tuple[float, float] = (0.0, 0.0),
 ) -> list[Finding]:
-    """The law checks shared by every step: mass, first law, work bound, entropy generation."""
+    """The law checks shared by every step: mass, first law, work bound, entropy generation.
+
+    With ``allowance`` (the default rule, :mod:`audit.steps.allowances`) a law finding is raised
+    when its margin exceeds the property-method allowance, marked ``tolerance_rule="rounding"``:
+    the review adds the rounding bound of the written values (:mod:`audit.review.rounding`) and
+    keeps it only beyond both. Without, the balance's written tolerances apply
+    (:func:`energy_tolerance`).
+    ``shift`` is :func:`audit.steps.allowances.reference_shift` of the step's streams: the energy,
+    work and entropy margins are read with each conserved fluid's enthalpy and entropy from its
+    mean outlet state (zero when the mass balances exactly)."""
     findings: list[Finding] = []
     energy_q = "energy" if batch else "power"
     entropy_q = "entropy" if batch else "entropy_rate"
-    tol_E = energy_tolerance(balance, tol, batch)
+    if allowance is None:
+        tol_E = tol_W = energy_tolerance(balance, tol, batch)
+        rule = DECLARED
+        absolute = tol.energy_absolute_batch if batch else tol.energy_absolute
+        basis_E = basis_W = (
+            f"{tol.energy_relative:.3g} of the step's energy scale {_kw(balance.energy_scale, batch)}, "
+            f"at least {_kw(absolute, batch)} (the balance's tolerances)"
+        )
+    else:
+        tol_E, tol_W, rule = allowance.energy, allowance.exergy, ROUNDING
+        basis_E, basis_W = allowance.energy_basis, allowance.exergy_basis
+    dH_shift, dS_shift = shift
     note = f" {conservative_note}" if conservative_note else ""
 
     mass_tol = max(tol.mass_relative * inlet_mass, tol.mass_absolute)
@@ -261,9 +148,10 @@ def law_findings(
         # (and, on the formation basis, absolute enthalpies), so their residuals say nothing more.
         return findings
 
-    if check_energy and abs(balance.energy_residual) > tol_E:
-        r = balance.energy_residual
+    r = balance.energy_residual - dH_shift
+    if check_energy and abs(r) > tol_E:
         change = balance.dU if batch else balance.dH + balance.KE_PE_out - balance.KE_PE_in
+        change += dH_shift
         findings.append(
             Finding(
                 ERROR,
@@ -272,18 +160,21 @@ def law_findings(
                 f"the first law does not close: heat in minus work out is "
                 f"{_kw(balance.Q - balance.W, batch)}, but the "
                 f"{'contents' if batch else 'streams'}' energy changes by {_kw(change, batch)}, a "
-                f"residual of {_kw(r, batch)} (tolerance {_kw(tol_E, batch)})",
+                f"residual of {_kw(r, batch)} ({tolerance_words(tol_E, batch)}"
+                f"{floor_note(balance, tol, batch) if rule == DECLARED else ''})",
                 claimed=balance.Q - balance.W,
-                bound=balance.dH + balance.KE_PE_out - balance.KE_PE_in if not batch else balance.dU,
+                bound=change,
                 margin=abs(r),
                 margin_relative=relative(abs(r), balance.energy_scale),
                 quantity=energy_q,
                 tolerance=tol_E,
+                tolerance_rule=rule,
+                tolerance_basis=basis_E,
             )
         )
 
-    excess = balance.W - balance.W_rev
-    if excess > tol_E:
+    excess = balance.W - balance.W_rev + dH_shift - T0 * dS_shift
+    if excess > tol_W:
         if balance.W > 0:
             name = "work-above-bound"
             message = (
@@ -303,35 +194,52 @@ def law_findings(
                 ERROR,
                 name,
                 step_id,
-                message + f"; tolerance {_kw(tol_E, batch)}.{note}",
+                message + f"; {tolerance_words(tol_W, batch)}.{note}",
                 claimed=balance.W,
-                bound=balance.W_rev,
+                bound=balance.W - excess,
                 margin=excess,
                 margin_relative=relative(excess, balance.W_rev or balance.W),
                 quantity=energy_q,
-                tolerance=tol_E,
+                tolerance=tol_W,
+                tolerance_rule=rule,
+                tolerance_basis=basis_W,
             )
         )
 
-    tol_S = tol_E / T0
-    if balance.S_gen < -tol_S:
+    tol_S = tol_W / T0
+    S_gen = balance.S_gen + dS_shift
+    if S_gen < -tol_S:
+        unit = "kJ/K" if batch else "kW/K"
         findings.append(
             Finding(
                 ERROR,
                 "negative-entropy-generation",
                 step_id,
-                f"entropy generation is {balance.S_gen / 1e3:.4g} {'kJ/K' if batch else 'kW/K'}, "
-                f"below zero: the step as written would destroy entropy (tolerance "
-                f"{tol_S / 1e3:.3g} {'kJ/K' if batch else 'kW/K'}).{note}",
-                claimed=balance.S_gen,
+                f"entropy generation is {S_gen / 1e3:.4g} {unit} (T0·S_gen = "
+                f"{_kw(T0 * S_gen, batch)} of exergy created), below zero: the step as written "
+                f"would destroy entropy ({entropy_tolerance_words(tol_S, batch, T0)}).{note}",
+                claimed=S_gen,
                 bound=0.0,
-                margin=-balance.S_gen,
-                margin_relative=relative(-balance.S_gen, balance.dS),
+                margin=-S_gen,
+                margin_relative=relative(-S_gen, balance.dS),
                 quantity=entropy_q,
                 tolerance=tol_S,
+                tolerance_rule=rule,
+                tolerance_basis=basis_W,
             )
         )
     return findings
+
+
+def tolerance_words(tolerance: float, batch: bool) -> str:
+    """How a law message states its energy tolerance [W or J] (the review rewrites it)."""
+    return f"tolerance {_kw(tolerance, batch)}"
+
+
+def entropy_tolerance_words(tolerance: float, batch: bool, T0: float) -> str:
+    """How a law message states its entropy tolerance [W/K or J/K] and its power T0·tolerance."""
+    unit = "kJ/K" if batch else "kW/K"
+    return f"tolerance {tolerance / 1e3:.3g} {unit}, {_kw(T0 * tolerance, batch)} at T0"
 
 
 def _kw(value: float, batch: bool) -> str:

@@ -35,8 +35,6 @@ from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
 from fractions import Fraction
 
-import numpy as np
-
 from audit.constants import (
     FARADAY,  # noqa: F401  (read here by older code and tests)
     P_STANDARD,
@@ -50,8 +48,12 @@ from audit.wording import to_bar, to_celsius
 
 _ARROWS = ("->", "→", "=>")
 _TERM = re.compile(
-    r"^\s*(?:(\d+(?:\.\d+)?(?:/\d+)?|\.\d+|½)\s*)?([A-Za-z][A-Za-z0-9]*)\s*(?:\((g|l)\))?\s*$"
+    r"^\s*(?:(\d+(?:\.\d+)?(?:/\d+)?|\.\d+|½)\s*)?([A-Za-z][A-Za-z0-9]*)\s*(?:\((g|l)\))?\s*$",
+    re.ASCII,
 )
+MAX_COEFFICIENT = 1000.0
+"""Largest stoichiometric coefficient read (common practice: the combustion of the heaviest fuels
+in a balance needs a few tens of O2 per molecule)."""
 _INERT_IN_FUEL = {"CO2", "H2O", "N2", "O2", "Ar"}
 
 
@@ -127,9 +129,7 @@ def _side(part: str, text: str) -> tuple[Term, ...]:
                 "coefficient and a formula, like '2 H2O' or '1/2 O2(g)'"
             )
         number, name, phase = match.groups()
-        coefficient = 1.0 if number is None else (0.5 if number == "½" else float(Fraction(number)))
-        if coefficient <= 0.0:
-            raise ValueError(f"the coefficient of {name} in '{text}' must be positive")
+        coefficient = _coefficient(number, name, text)
         data = lookup(name)
         if data is None:
             known = ", ".join(sorted(s.formula for s in SPECIES.values()))
@@ -139,6 +139,28 @@ def _side(part: str, text: str) -> tuple[Term, ...]:
             )
         terms.append(Term(coefficient, data.formula, phase or "g"))
     return tuple(terms)
+
+
+def _coefficient(number: str | None, name: str, text: str) -> float:
+    """The coefficient written before ``name``: positive, finite and at most
+    :data:`MAX_COEFFICIENT`."""
+    if number is None:
+        return 1.0
+    if number == "½":
+        return 0.5
+    try:
+        coefficient = float(Fraction(number)) if len(number) <= 20 else math.inf
+    except (ZeroDivisionError, OverflowError):
+        coefficient = math.inf
+    if coefficient <= 0.0:
+        raise ValueError(f"the coefficient of {name} in '{text}' must be positive")
+    if not coefficient <= MAX_COEFFICIENT:
+        shown = number if len(number) <= 20 else f"{number[:20]}... ({len(number)} characters)"
+        raise ValueError(
+            f"the coefficient '{shown}' of {name} in '{text[:200]}' is not a number from 0 to "
+            f"{MAX_COEFFICIENT:g}"
+        )
+    return coefficient
 
 
 def _elements(amounts: Iterable[tuple[float, str]]) -> dict[str, float]:
@@ -202,6 +224,8 @@ def fit_extents(
     the others are the least-squares solution of Σ_k ν_ik ξ_k = Δn_i over all species. Returns the
     extents and the residual Δn_i − Σ_k ν_ik ξ_k per species [mol/s].
     """
+    import numpy as np  # loaded only when needed: it costs a start-up
+
     formulas = sorted(set(change) | {f for r in reactions for f in r.nu()})
     nu = np.array([[r.nu().get(f, 0.0) for r in reactions] for f in formulas])
     target = np.array([change.get(f, 0.0) for f in formulas])
@@ -226,6 +250,8 @@ class ReactionProperties:
     dH: float
     dS: float
     dG: float
+    pressures: Mapping[str, float] | None = None
+    fugacity: Mapping[str, float] | None = None
 
 
 def reaction_properties(
@@ -248,6 +274,41 @@ def reaction_properties(
         dH += nu * h
         dS += nu * s
     return ReactionProperties(T=T, P=P, dH=dH, dS=dS, dG=dH - T * dS)
+
+
+def reaction_properties_at_states(
+    engine: PropertyEngine,
+    reaction: Reaction,
+    T: float,
+    pressures: Mapping[str, float],
+    default_P: float,
+) -> ReactionProperties:
+    """Reaction properties at T [K] with every species at its own pressure [Pa] (``pressures`` by
+    label, ``H2O(l)`` for the liquid; ``default_P`` for one not given): each gas a real gas at its
+    own (partial) pressure, its fugacity from the reference equation of state, the liquid at its
+    own pressure [1, ch. 14]. This is ΔG = ΔG°(T) + R T Σ ν_i ln(f_i / p°) for the gases plus the
+    liquid's own g, the Nernst equation with fugacities.
+
+    Raises :class:`StateError` where a species cannot be evaluated at its state.
+    """
+    dH = dS = 0.0
+    used: dict[str, float] = {}
+    phis: dict[str, float] = {}
+    for nu, term in reaction.signed_terms():
+        P = pressures.get(term.label, default_P)
+        try:
+            h, s, phi = engine.species_real_molar(term.formula, term.phase, T, P)
+        except StateError as exc:
+            raise StateError(
+                f"the reaction '{reaction.equation}' with {term.label} at {to_celsius(T):.6g} °C "
+                f"and {to_bar(P):.6g} bar: {exc.problem.message}"
+            ) from None
+        dH += nu * h
+        dS += nu * s
+        used[term.label], phis[term.label] = P, phi
+    return ReactionProperties(
+        T=T, P=default_P, dH=dH, dS=dS, dG=dH - T * dS, pressures=used, fugacity=phis
+    )
 
 
 # -- heating values ---------------------------------------------------------------------------

@@ -7,6 +7,7 @@ such as ``N2: 0.79, O2: 0.21``, or a name) or ``text``."""
 
 from __future__ import annotations
 
+import math
 import re
 from datetime import date, datetime, time, timedelta
 from typing import Any
@@ -14,7 +15,17 @@ from typing import Any
 from audit.input.tables.grid import Cell
 
 QUANTITY_KINDS = frozenset(
-    {"temperature", "pressure", "specific_enthalpy", "specific_entropy", "velocity", "length", "flow"}
+    {
+        "temperature",
+        "pressure",
+        "specific_enthalpy",
+        "specific_entropy",
+        "specific_volume",
+        "density",
+        "velocity",
+        "length",
+        "flow",
+    }
 )
 """The cell kinds that are quantities written with a unit."""
 
@@ -45,6 +56,8 @@ def number_text(value: Any) -> str:
     if isinstance(value, int):
         return str(value)
     if isinstance(value, float):
+        if not math.isfinite(value):
+            raise Bad(f"the cell holds {value!r}, not a finite number (too large for the workbook)")
         return repr(value)
     if isinstance(value, (datetime, date, time, timedelta)):
         raise Bad(

@@ -15,8 +15,11 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 from typing import Any
 
-MAX_CELLS = 2_000_000
-"""Largest sheet read [cells]; a stream table of a large site is a few thousand cells."""
+from audit.input.tables.package import check_package
+
+MAX_CELLS = 200_000
+"""Largest sheet read [cells]; a stream table of a large site is a few thousand cells. Checked on
+the sheet's XML before the workbook is loaded (:mod:`audit.input.tables.package`)."""
 
 Fail = Callable[[str], Exception]
 """Makes the error for a message about the table file as a whole (the caller knows the place)."""
@@ -81,15 +84,57 @@ def read_csv(raw: bytes, display: str, delimiter: str, fail: Fail) -> Grid:
             f"offset {exc.start}); save it as 'CSV UTF-8'"
         ) from None
     rows = []
-    reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter)
+    reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter, strict=True)
     try:
         for number, record in enumerate(reader, start=1):
             rows.append((number, [Cell(value) for value in record]))
     except csv.Error as exc:
+        reason = str(exc)
+        if "unexpected end of data" in reason:
+            start = _open_quote_line(text, delimiter)
+            reason = (
+                "a quoted field is never closed"
+                + (f" (its quote opens on line {start})" if start else "")
+                + "; close the quote or remove it"
+            )
         raise fail(
-            f"the table '{display}' is not valid CSV near record {reader.line_num}: {exc}"
+            f"the table '{display}' is not valid CSV near line {reader.line_num}: {reason}"
         ) from None
+    _check_delimiter(rows, display, delimiter, fail)
     return Grid(display=display, sheet=None, rows=rows)
+
+
+def _open_quote_line(text: str, delimiter: str) -> int | None:
+    """The line on which the quoted field that never closes begins."""
+    inside, start = False, None
+    for number, line in enumerate(text.split("\n"), start=1):
+        for position, character in enumerate(line):
+            if character != '"':
+                continue
+            if not inside and (position == 0 or line[position - 1] == delimiter):
+                inside, start = True, number
+            elif inside:
+                inside = False
+    return start if inside else None
+
+
+def _check_delimiter(rows: list, display: str, delimiter: str, fail: Fail) -> None:
+    """Refuse a table whose header row is one cell holding another common separator: the file
+    separates its fields with ';' or a tab, and 'delimiter' says so."""
+    for _, cells in rows:
+        if all(c.blank for c in cells):
+            continue
+        if len(cells) == 1 and isinstance(cells[0].value, str):
+            for other, name in ((";", "';'"), ("\t", "a tab"), ("|", "'|'")):
+                if other != delimiter and other in cells[0].value:
+                    spelt = "'\\t'" if other == "\t" else f"'{other}'"
+                    raise fail(
+                        f"the table '{display}' reads as one column: its fields seem to be "
+                        f"separated by {name}, not '{delimiter}'; say so with "
+                        f"'delimiter: {spelt}' under the table's entry (e.g. streams_from: "
+                        f"{{file: ..., delimiter: {spelt}}})"
+                    )
+        return
 
 
 def read_workbook(
@@ -102,6 +147,8 @@ def read_workbook(
     import openpyxl
     from openpyxl.utils.exceptions import InvalidFileException
 
+    declared = check_package(raw, display, MAX_CELLS, fail)
+    hidden = {info.name: info.state for info in declared if info.state != "visible"}
     try:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")  # openpyxl warns of extensions it does not read
@@ -115,9 +162,19 @@ def read_workbook(
         ValueError,
         TypeError,
         EOFError,
+        SyntaxError,  # a part that is not well-formed XML (ElementTree's and lxml's errors)
+        AttributeError,  # a part missing what openpyxl expects of it
+        IndexError,
     ) as exc:
         raise fail(f"the table '{display}' cannot be read as an .xlsx workbook ({exc})") from None
-    names = values.sheetnames
+    names = [name for name in values.sheetnames if name not in hidden]
+    if sheet is not None and sheet in hidden:
+        raise fail_sheet(
+            f"the sheet '{sheet}' of '{display}' is {_HIDDEN[hidden[sheet]]}: a reviewer looking at "
+            "the workbook does not see it; make it visible to read it"
+        )
+    if not names:
+        raise fail(f"the workbook '{display}' has no visible sheet")
     if sheet is None:
         if len(names) == 1:
             sheet = names[0]
@@ -160,6 +217,12 @@ def read_workbook(
         (str(r), r.min_row, r.min_col, r.max_row, r.max_col) for r in values_sheet.merged_cells.ranges
     ]
     return Grid(display=display, sheet=sheet, rows=rows, merged=merged)
+
+
+_HIDDEN = {
+    "hidden": "hidden",
+    "veryHidden": "very hidden (hidden so that the sheet tabs do not list it)",
+}
 
 
 def _listing(names: list[str]) -> str:

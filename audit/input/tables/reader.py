@@ -9,8 +9,9 @@ import hashlib
 from collections.abc import Mapping
 from pathlib import Path
 
-from audit.errors import InputErrors, Problem
+from audit.errors import InputError, InputErrors, Problem
 from audit.input.document import Document
+from audit.input.files import MAX_FILE_BYTES, read_bytes
 from audit.input.tables.claims import merge_claims
 from audit.input.tables.grid import Grid, read_csv, read_workbook
 from audit.input.tables.sources import (
@@ -61,7 +62,14 @@ def resolve(
             read.append(table)
     if problems:
         raise InputErrors(problems)
-    merged = Document(data=new, file=document.file, positions=document.positions, cells=cells)
+    merged = Document(
+        data=new,
+        file=document.file,
+        positions=document.positions,
+        cells=cells,
+        texts=document.texts,
+        source=document.source,
+    )
     return merged, read
 
 
@@ -77,10 +85,14 @@ def _load(
     cache_key = (found.path, source.sheet)
     if cache_key in grids:
         return grids[cache_key]
-    raw = found.path.read_bytes()
 
     def fail_file(message: str) -> Exception:
         return fail(document, found.named_at, message)
+
+    try:
+        raw = read_bytes(found.path, MAX_FILE_BYTES, "a table")
+    except InputError as exc:
+        raise fail_file(f"the table '{found.display}' {exc.problem.message}") from None
 
     if found.suffix == ".csv":
         grid = read_csv(raw, found.display, source.delimiter, fail_file)

@@ -12,7 +12,8 @@ from pathlib import Path
 from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
 from audit.errors import InputError, InputErrors, Problem
-from audit.input.document import MAX_FILE_BYTES, Document
+from audit.input.document import Document
+from audit.input.files import MAX_FILE_BYTES
 
 SOURCE_KEYS = ("streams_from", "claims_from")
 """The balance-file keys that name tables."""
@@ -154,6 +155,12 @@ def locate(document: Document, key: str, source: TableSource, allow_outside: boo
         raise fail(document, here, f"the table '{display}' does not exist")
     if resolved.is_dir():
         raise fail(document, here, f"the table '{display}' is a folder, not a file")
+    if not resolved.is_file():
+        raise fail(
+            document,
+            here,
+            f"the table '{display}' is not a regular file (a named pipe, a device or a socket)",
+        )
     size = resolved.stat().st_size
     if size > MAX_FILE_BYTES:
         raise fail(

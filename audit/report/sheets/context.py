@@ -6,12 +6,11 @@ from __future__ import annotations
 from collections.abc import Iterable, Sequence
 from typing import Any
 
-from openpyxl import Workbook
-
 from audit.findings import SEVERITY_RANK, Finding
 from audit.report.columns import OWN, Column
 from audit.report.display import in_si, shown
-from audit.report.workbook_cells import Sheet
+from audit.report.workbook_cells import Layout, Sheet
+from audit.report.workbook_file import Formats
 from audit.results import AuditResult
 
 OVERVIEW, FINDINGS, STEPS, STREAMS, HEAT, EXERGY, METHOD = (
@@ -33,6 +32,7 @@ TOLERANCE_QUANTITY = {
     "energy_relative": "fraction",
     "energy_absolute": "power",
     "energy_absolute_batch": "energy",
+    "energy_floor_fraction": "fraction",
     "mass_relative": "fraction",
     "mass_absolute": "mass_flow",
     "efficiency": "fraction",
@@ -50,18 +50,31 @@ TOLERANCE_QUANTITY = {
 class Book:
     """The workbook being written: one :class:`Sheet` per title of :data:`SHEETS`, the result,
     the gate, the findings in the Findings sheet's order, and where each step, stream and first
-    finding of a step or stream stands (for links between sheets)."""
+    finding of a step or stream stands (for links between sheets).
 
-    def __init__(self, result: AuditResult, fail_on: str) -> None:
+    Without ``wb`` the book only measures (:mod:`audit.report.workbook_cells`); with ``wb`` (an
+    XlsxWriter workbook) and the ``layouts`` that measuring found, it writes."""
+
+    def __init__(
+        self,
+        result: AuditResult,
+        fail_on: str,
+        wb: Any = None,
+        layouts: dict[str, Layout] | None = None,
+    ) -> None:
         self.result = result
         self.fail_on = fail_on
-        self.wb = Workbook()
+        self.wb = wb
+        self.formats = Formats(wb) if wb is not None else None
         self.sheets: dict[str, Sheet] = {}
-        for index, title in enumerate(SHEETS):
-            ws = self.wb.active if index == 0 else self.wb.create_sheet()
-            assert ws is not None
-            ws.title = title
-            self.sheets[title] = Sheet(ws)
+        for title in SHEETS:
+            if wb is None:
+                self.sheets[title] = Sheet(title)
+            else:
+                layout = (layouts or {}).get(title, Layout())
+                sheet = Sheet(title, wb.add_worksheet(title), layout, self.formats)
+                sheet.layout_columns()
+                self.sheets[title] = sheet
         self.step_row = {s.id: row for row, s in enumerate(result.steps, start=2)}
         self.stream_row = {s.id: row for row, s in enumerate(result.streams, start=2)}
         self.findings = ordered(result.findings)

@@ -3,9 +3,7 @@ vessels (batch totals in kJ, not rates) listed below and not charted."""
 
 from __future__ import annotations
 
-from openpyxl.chart import BarChart, Reference
-from openpyxl.chart.data_source import AxDataSource, StrRef
-from openpyxl.worksheet.worksheet import Worksheet
+from typing import Any
 
 from audit.report.display import shown
 from audit.report.sheets.context import EXERGY, STEPS, Book, worst
@@ -26,6 +24,8 @@ def write(book: Book) -> None:
         ["rank", "step", "kind", "exergy destroyed [kW]", "Ṡ_gen [kW/K]", "findings", "description"]
     )
     flow = sorted((s for s in book.result.steps if not s.batch), key=lambda s: -s.exergy_destroyed)
+    if not flow:  # rows are written in order: the note goes in before any vessel row
+        sh.put(2, 9, "no flow steps: nothing to chart", width=False)
     row = 2
     for rank, s in enumerate(flow, start=1):
         severity = worst(book.result.findings_for(s.id))
@@ -37,7 +37,6 @@ def write(book: Book) -> None:
         sh.put(row, 6, severity or "none", fill=FILLS[severity] if severity else None)
         sh.put(row, 7, s.description or "", wrap=True)
         row += 1
-    last_flow_row = row - 1
     vessels = [s for s in book.result.steps if s.batch]
     if vessels:
         row += 1
@@ -65,33 +64,39 @@ def write(book: Book) -> None:
             sh.put(row, 6, severity or "none", fill=FILLS[severity] if severity else None)
             sh.put(row, 7, s.description or "", wrap=True)
             row += 1
-    sh.ws.freeze_panes = "A2"
+    sh.freeze("A2")
     sh.fix(7, 40)
     sh.fit()
-    if flow:
-        sh.ws.add_chart(chart(sh.ws, last_flow_row), "I2")
-    else:
-        sh.put(2, 9, "no flow steps: nothing to chart")
+    if flow and book.wb is not None:
+        sh.ws.insert_chart("I2", chart(book, flow))
 
 
-def chart(ws: Worksheet, last_row: int) -> BarChart:
-    chart = BarChart()
-    chart.type = "col"
-    chart.style = 10
-    chart.title = "Exergy destroyed per step, largest first [kW]"
-    chart.y_axis.title = "exergy destroyed [kW]"
-    chart.x_axis.title = "step"
-    chart.y_axis.numFmt = "#,##0"
-    chart.x_axis.delete = False
-    chart.y_axis.delete = False
-    chart.legend = None
-    chart.gapWidth = 60
-    data = Reference(ws, min_col=4, min_row=1, max_row=last_row)
-    categories = Reference(ws, min_col=2, min_row=2, max_row=last_row)
-    chart.add_data(data, titles_from_data=True)
-    # The step ids are text: a string reference (set_categories would write a numeric one).
-    chart.series[0].cat = AxDataSource(strRef=StrRef(f=str(categories)))
-    chart.x_axis.tickLblPos = "low"  # step names below the plot even for negative bars
-    chart.width = 22
-    chart.height = 12
+CM = 96 / 2.54
+"""Pixels per centimetre (96 dpi), for the chart's size."""
+
+
+def chart(book: Book, flow: list[Any]) -> Any:
+    """A column chart of the exergy destroyed per flow step (rows 2 to the last flow step); the
+    step ids and the values go in as the chart's cached data (the sheet is already on disk)."""
+    chart = book.wb.add_chart({"type": "column"})
+    last = len(flow) + 1
+    sheet = "'" + EXERGY + "'"
+    chart.add_series(
+        {
+            "name": f"={sheet}!D1",
+            "name_data": ["exergy destroyed [kW]"],
+            "categories": f"={sheet}!$B$2:$B${last}",
+            "categories_data": [s.id for s in flow],
+            "values": f"={sheet}!$D$2:$D${last}",
+            "values_data": [shown(s.exergy_destroyed, "power") for s in flow],
+            "gap": 60,
+        }
+    )
+    chart.set_style(10)
+    chart.set_title({"name": "Exergy destroyed per step, largest first [kW]"})
+    chart.set_y_axis({"name": "exergy destroyed [kW]", "num_format": "#,##0"})
+    # step names below the plot even for negative bars
+    chart.set_x_axis({"name": "step", "label_position": "low"})
+    chart.set_legend({"none": True})
+    chart.set_size({"width": round(22 * CM), "height": round(12 * CM)})
     return chart

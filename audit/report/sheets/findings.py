@@ -12,7 +12,14 @@ from audit.report.display import unit
 from audit.report.sheets.context import FINDINGS, STEPS, STREAMS, Book, cell_value
 from audit.report.workbook_cells import BOLD, FILLS, FORMATS, GENERAL, PLAIN, location
 
-WIDTHS = {"message": 70, "probable_causes": 50, "accepted": 30, "contributors": 30, "meaning": 40}
+WIDTHS = {
+    "message": 70,
+    "probable_causes": 50,
+    "tolerance_basis": 50,
+    "accepted": 30,
+    "contributors": 30,
+    "meaning": 40,
+}
 
 
 def _own(book: Book, f: Finding, key: str) -> Any:
@@ -32,6 +39,8 @@ def write(book: Book) -> None:
     sh = book.sheets[FINDINGS]
     columns = COLUMNS.sheet_columns()
     sh.header(COLUMNS.headers())
+    for key, width in WIDTHS.items():
+        sh.fix(COLUMNS.sheet_order.index(key) + 1, width)
     for row, f in enumerate(book.findings, start=2):
         value_fmt = FORMATS.get(f.quantity or "", GENERAL)
         for col, column in enumerate(columns, start=1):
@@ -59,6 +68,4 @@ def write(book: Book) -> None:
                 sh.put(row, col, cell_value(column, f, quantity), fmt=fmt, wrap=column.wrap)
     if not book.findings:
         sh.put(2, 1, "no findings")
-    for key, width in WIDTHS.items():
-        sh.fix(COLUMNS.sheet_order.index(key) + 1, width)
     sh.table(len(book.findings) + 1, freeze="C2")

@@ -49,6 +49,7 @@ def write(book: Book) -> None:
         wrap=True,
     )
     row += 2
+    row = _equations_of_state(book, row)
     sh.put(row, 1, "Published sources", font=SECTION_FONT, width=False)
     row += 1
     for col, title in enumerate(["used for", "source"], start=1):
@@ -62,3 +63,23 @@ def write(book: Book) -> None:
     sh.fix(2, 100)
     sh.fix(3, 12)
     sh.fit()
+
+
+def _equations_of_state(book: Book, row: int) -> int:
+    """The equation of state each fluid of this balance was evaluated on, with its citation (from
+    the provenance); the next free row."""
+    sh = book.sheets[METHOD]
+    text = book.result.provenance.get("equations of state", "")
+    if not text:
+        return row
+    sh.put(row, 1, "Equations of state of this balance", font=SECTION_FONT, width=False)
+    row += 1
+    for col, title in enumerate(["fluid", "equation of state and source"], start=1):
+        sh.put(row, col, title, fill=HEADER_FILL, font=HEADER_FONT, width=False)
+    row += 1
+    for entry in text.split("; "):
+        fluid, _, source = entry.partition(": ")
+        sh.put(row, 1, fluid)
+        sh.put(row, 2, source, wrap=True)
+        row += 1
+    return row + 1

@@ -6,8 +6,6 @@ from __future__ import annotations
 
 from typing import Any
 
-from openpyxl.styles import Alignment, Font, PatternFill
-
 from audit.findings import ERROR, SEVERITY_RANK
 from audit.report.display import shown, unit
 from audit.report.sheets.context import (
@@ -32,6 +30,8 @@ from audit.report.workbook_cells import (
     INTEGER,
     SECTION_FONT,
     TITLE_FONT,
+    Fill,
+    Font,
     location,
 )
 from audit.report.workbook_method import CAUTION
@@ -52,8 +52,7 @@ def write(book: Book) -> None:
     failed = r.fails(book.fail_on)
     sh.put(1, 1, "plant-audit findings workbook", font=TITLE_FONT, width=False)
     sh.put(2, 1, "Caution", font=HEADER_FONT, wrap=True)
-    sh.put(2, 2, CAUTION, wrap=True, font=BOLD)
-    sh.ws.merge_cells("B2:D2")
+    sh.put(2, 2, CAUTION, wrap=True, font=BOLD, merge_to=4)
     row = 4
 
     def section(title: str) -> None:
@@ -67,14 +66,13 @@ def write(book: Book) -> None:
         value: Any,
         unit_label: str = "",
         fmt: str | None = None,
-        fill: PatternFill | None = None,
+        fill: Fill | None = None,
         link: str | None = None,
         font: Font | None = None,
     ) -> None:
         nonlocal row
         sh.put(row, 1, label)
-        cell = sh.put(row, 2, value, fmt=fmt, fill=fill, link=link, font=font)
-        cell.alignment = Alignment(horizontal="left", vertical="top")
+        sh.put(row, 2, value, fmt=fmt, fill=fill, link=link, font=font, align="left")
         if unit_label:
             sh.put(row, 3, unit_label)
         row += 1

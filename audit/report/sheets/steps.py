@@ -10,9 +10,6 @@ from __future__ import annotations
 import math
 from typing import Any
 
-from openpyxl.formatting.rule import FormulaRule
-from openpyxl.utils import get_column_letter
-
 from audit.findings import ERROR
 from audit.report.columns import STEPS as COLUMNS
 from audit.report.columns import VESSEL_QUANTITY, Column
@@ -27,7 +24,16 @@ from audit.report.sheets.context import (
     marker,
     worst,
 )
-from audit.report.workbook_cells import BOLD, FILLS, FORMATS, PLAIN, Formula, location, with_unit
+from audit.report.workbook_cells import (
+    BOLD,
+    FILLS,
+    FORMATS,
+    PLAIN,
+    Formula,
+    column_letter,
+    location,
+    with_unit,
+)
 from audit.results import StepResult
 
 FLOW_ONLY = ("KE_PE_in", "KE_PE_out", "mass_residual")
@@ -48,7 +54,9 @@ def write(book: Book) -> None:
     sh = book.sheets[STEPS]
     columns = COLUMNS.sheet_columns()
     sh.header(COLUMNS.headers())
-    letter = {c.key: get_column_letter(index) for index, c in enumerate(columns, start=1)}
+    for key, width in WIDTHS.items():
+        sh.fix(COLUMNS.sheet_order.index(key) + 1, width)
+    letter = {c.key: column_letter(index) for index, c in enumerate(columns, start=1)}
     for row, s in enumerate(book.result.steps, start=2):
         worst_severity = worst(book.result.findings_for(s.id))
         fill = FILLS[worst_severity] if worst_severity else None
@@ -78,8 +86,6 @@ def write(book: Book) -> None:
                 sh.put(row, col, residual_formula(s, row, letter), fmt=fmt)
             elif not (s.batch and key in FLOW_ONLY):
                 sh.put(row, col, cell_value(column, s, quantity), fmt=fmt, wrap=column.wrap)
-    for key, width in WIDTHS.items():
-        sh.fix(COLUMNS.sheet_order.index(key) + 1, width)
     sh.table(len(book.result.steps) + 1)
     if book.result.steps:
         # The formula's cell turns red while |residual| exceeds the step's energy tolerance,
@@ -87,13 +93,11 @@ def write(book: Book) -> None:
         residual = letter["residual_formula"]
         tolerance = letter["energy_tolerance"]
         last = len(book.result.steps) + 1
-        sh.ws.conditional_formatting.add(
+        sh.highlight(
             f"{residual}2:{residual}{last}",
-            FormulaRule(
-                formula=[f"AND(ISNUMBER({residual}2),ABS({residual}2)>{tolerance}2)"],
-                fill=FILLS[ERROR],
-                font=BOLD,
-            ),
+            f"AND(ISNUMBER({residual}2),ABS({residual}2)>{tolerance}2)",
+            FILLS[ERROR],
+            BOLD,
         )
 
 

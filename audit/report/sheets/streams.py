@@ -17,6 +17,8 @@ def write(book: Book) -> None:
     sh = book.sheets[STREAMS]
     columns = COLUMNS.sheet_columns()
     sh.header(COLUMNS.headers())
+    for key, width in WIDTHS.items():
+        sh.fix(COLUMNS.sheet_order.index(key) + 1, width)
     steps = book.result.steps
     producer = {o: s.id for s in steps for o in s.outlets}
     consumer = {i: s.id for s in steps for i in s.inlets}
@@ -49,6 +51,4 @@ def write(book: Book) -> None:
             else:
                 fmt = column.fmt or (FORMATS[column.quantity] if column.quantity else None)
                 sh.put(row, col, cell_value(column, s), fmt=fmt, wrap=column.wrap)
-    for key, width in WIDTHS.items():
-        sh.fix(COLUMNS.sheet_order.index(key) + 1, width)
     sh.table(len(book.result.streams) + 1)

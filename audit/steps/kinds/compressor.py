@@ -5,7 +5,8 @@ Claims: ``shaft_power`` is the power the compressor ABSORBS (omit it to infer it
 if declared, else T0; ``isentropic_efficiency`` optional, checked against the streams.
 
 Extra checks: η_s = (h_out,s − h_in)/(h_out − h_in) ≤ 1; outlet pressure above inlet pressure;
-liquid or two-phase fluid at the suction (error: compressors are not built to take liquid).
+liquid or two-phase fluid at the suction (error: compressors are not built to take liquid);
+saturated vapour (quality 1) is dry vapour.
 """
 
 from __future__ import annotations
@@ -16,7 +17,7 @@ from pydantic import Field
 
 from audit.findings import ERROR, Finding
 from audit.model.steps import DutyClaim, PowerClaim, TemperatureClaim
-from audit.results import StepResult
+from audit.results import StepResult, StreamResult
 from audit.steps.base import StepBase, StepContext, register
 from audit.steps.machines import evaluate_work_absorber
 
@@ -45,7 +46,7 @@ def evaluate(step: Compressor, ctx: StepContext) -> StepResult:
     """
     result = evaluate_work_absorber(step, "compressor", ctx, "compressor")
     inlet = ctx.stream(step.inlet)
-    if inlet.phase in ("liquid", "two-phase", "supercritical liquid"):
+    if inlet.phase in ("liquid", "two-phase", "supercritical liquid") and not _dry_saturated(inlet):
         detail = f"quality {inlet.quality:.3f}" if inlet.quality is not None else inlet.phase
         ctx.add(
             Finding(
@@ -60,6 +61,11 @@ def evaluate(step: Compressor, ctx: StepContext) -> StepResult:
             )
         )
     return result
+
+
+def _dry_saturated(stream: StreamResult) -> bool:
+    """True for saturated vapour (quality 1): on the dew line, with no liquid in it."""
+    return stream.phase == "two-phase" and stream.quality is not None and stream.quality >= 1.0
 
 
 register("compressor", Compressor, evaluate, "compressor, fan or blower: shaft power absorbed")

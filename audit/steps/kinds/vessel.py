@@ -8,14 +8,15 @@ piston). Omit one of heat or work to have it inferred.
 Balances (design note 2.6): Q − W = m (u2 − u1); S_gen = m (s2 − s1) − Σ Q_j/T_j;
 W_rev = −(ΔU − T0 ΔS) + Σ Q_j (1 − T0/T_j), total work.
 
-Bound basis: isothermal (|T2 − T1| within ``isothermal_band`` and every declared heat temperature
-at that temperature) gives W ≤ −ΔA; isothermal and isobaric gives W_other ≤ −ΔG for the work
-other than expansion work; otherwise the closed-system exergy drop.
+Bound basis (:mod:`audit.steps.potentials`): isothermal (T1, T2 and every declared heat
+temperature within ``isothermal_band`` of one temperature T, undeclared heat exchanged at T) gives
+W ≤ −ΔA = −(ΔU − T ΔS), the useful work at most −ΔA − P0 ΔV and, when also isobaric, the work
+other than expansion work at most −ΔG = −ΔA − P ΔV; otherwise the closed-system exergy drop, and
+the useful work at most W_rev − P0 ΔV.
 """
 
 from __future__ import annotations
 
-import math
 from typing import Annotated, Literal
 
 from pydantic import BaseModel, ConfigDict, model_validator
@@ -24,11 +25,13 @@ from audit.errors import StateError
 from audit.model.quantities import Energy, Mass
 from audit.model.steps import ClaimField, TemperatureClaim
 from audit.model.streams import PropertyPair
-from audit.physics.bounds import isothermal_closed_work_bound, isothermal_flow_work_bound
 from audit.physics.efficiency import second_law_efficiency
 from audit.results import HeatFlow, StepResult, StreamResult
+from audit.steps.allowances import allowances, declared_rule
+from audit.steps.balances import closed_balance
 from audit.steps.base import CONSERVATIVE_NOTE, StepBase, StepContext, heat_flow, register
-from audit.steps.laws import closed_balance, energy_tolerance, law_findings
+from audit.steps.laws import energy_tolerance, law_findings
+from audit.steps.potentials import exchange_at, govern_closed, isothermal_temperature
 
 
 class BatchHeat(BaseModel):
@@ -101,8 +104,8 @@ def _contents(step: Vessel, ctx: StepContext, which: str, spec: PropertyPair) ->
 
 def evaluate(step: Vessel, ctx: StepContext) -> StepResult:
     """Apply the laws of a closed step from the initial to the final contents (mass, first law, work
-    bound, entropy generation; totals in J and J/K) and choose the classical bound (−ΔA isothermal,
-    −ΔG of other work isothermal and isobaric, else the exergy drop).
+    bound, entropy generation; totals in J and J/K) against the governing bound (−ΔA isothermal,
+    else the exergy drop; the useful-work bound beside it).
 
     Sign convention: Q is heat into the step, W is work delivered by the step, both totals over the
     process; heat not claimed is inferred.
@@ -135,8 +138,15 @@ def evaluate(step: Vessel, ctx: StepContext) -> StepResult:
         heat.append(heat_flow(Q, None, ctx.T0, claimed=False, label="inferred", coldest=coldest))
         inferred.append("heat")
         claimed.append("work" if work_claimed else "no work")
-    balance = closed_balance(m, initial, final, heat, W, ctx.T0)
     tol = ctx.tolerances
+    T_iso = isothermal_temperature([initial.T, final.T], heat, tol.isothermal_band)
+    if T_iso is not None:
+        exchange_at(heat, T_iso)
+    balance = closed_balance(m, initial, final, heat, W, ctx.T0)
+    V1, V2 = m / initial.rho, m / final.rho
+    isobaric = abs(final.P - initial.P) <= tol.isobaric_relative * initial.P
+    P_one = 0.5 * (initial.P + final.P) if isobaric else None
+    basis, classical = govern_closed(balance, T_iso, P_one, ctx.P0, V2 - V1)
     conservative = any(q.conservative for q in heat)
     for finding in law_findings(
         step.id,
@@ -146,23 +156,13 @@ def evaluate(step: Vessel, ctx: StepContext) -> StepResult:
         batch=True,
         inlet_mass=m,
         conservative_note=CONSERVATIVE_NOTE if conservative else "",
+        allowance=None
+        if declared_rule(tol, batch=True)
+        else allowances(
+            [(initial, m), (final, m)], heat, W, balance.W_rev, ctx.T0, ctx.engine, batch=True
+        ),
     ):
         ctx.add(finding)
-    temps = [initial.T, final.T] + [
-        q.temperature for q in heat if q.claimed and math.isfinite(q.temperature)
-    ]
-    isothermal = max(temps) - min(temps) <= tol.isothermal_band
-    isobaric = abs(final.P - initial.P) <= tol.isobaric_relative * initial.P
-    if isothermal and isobaric:
-        basis, classical = (
-            "-ΔG other work (isothermal, isobaric closed)",
-            isothermal_flow_work_bound(balance.dG),
-        )
-    elif isothermal:
-        basis, classical = "-ΔA (isothermal closed)", isothermal_closed_work_bound(balance.dA)
-    else:
-        basis, classical = "exergy drop (closed)", None
-    V1, V2 = m / initial.rho, m / final.rho
     second = second_law_efficiency(W, balance.W_rev)
     return StepResult(
         id=step.id,
@@ -179,7 +179,7 @@ def evaluate(step: Vessel, ctx: StepContext) -> StepResult:
         claimed=claimed,
         inferred=inferred,
         notes=[CONSERVATIVE_NOTE] if conservative else [],
-        extra={"V_initial": V1, "V_final": V2, "useful_work_bound": balance.W_rev - ctx.P0 * (V2 - V1)},
+        extra={"V_initial": V1, "V_final": V2},
         description=step.description,
         line=ctx.line,
     )
