@@ -336,19 +336,7 @@ def evaluate_stream(
         mass_flow = _mass_flow(spec.flow, fluid, state.rho, state.molar_mass, engine)
     return StreamResult(
         id=stream_id,
-        fluid=state.fluid,
-        T=state.T,
-        P=state.P,
-        rho=state.rho,
-        h=state.h,
-        s=state.s,
-        u=state.u,
-        g=state.g,
-        a=state.a,
-        psi=state.psi,
-        phase=state.phase,
-        quality=state.quality,
-        basis=state.basis,
+        state=state,
         mass_flow=mass_flow,
         molar_flow=mass_flow / state.molar_mass,
         flow_as_written=spec.flow.basis,
@@ -357,7 +345,6 @@ def evaluate_stream(
         declared_phase=spec.phase,
         description=spec.description,
         line=line,
-        composition=dict(state.composition) if state.composition is not None else None,
     )
 
 

@@ -26,7 +26,7 @@ from audit.report.files import write_text
 from audit.report.junit import junit_tree
 from audit.report.machine import to_dict, write_csv
 from audit.report.plain_tables import plain_headers
-from audit.results import STEP_FIELDS, StepResult, StreamResult
+from audit.results import STEP_FIELDS, STREAM_FIELDS, StepResult, StreamResult
 
 CLEAN = SAMPLE / "quillon-bay-clean.yaml"
 SEEDED = SAMPLE / "quillon-bay-seeded.yaml"
@@ -154,7 +154,9 @@ def test_json_and_csv_modes_follow_the_umask(tmp_path):
 )
 def test_registry_lists_every_field_in_field_order(table, record):
     """Adding a field to a result object fails here until the registry lists it."""
-    published = {StepResult: STEP_FIELDS}.get(record) or [f.name for f in dataclasses.fields(record)]
+    published = {StepResult: STEP_FIELDS, StreamResult: STREAM_FIELDS}.get(record) or [
+        f.name for f in dataclasses.fields(record)
+    ]
     assert [c.key for c in table.machine_columns] == list(published)
     assert len(table.sheet_order) == len(set(table.sheet_order))
     assert all(table.column(key).header for key in table.sheet_order)

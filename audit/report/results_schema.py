@@ -10,13 +10,14 @@ from __future__ import annotations
 import dataclasses
 import inspect
 import json
-from typing import Any
+from typing import Any, get_args
 
 from audit.exitcodes import EXIT_FINDINGS, EXIT_PASS
 from audit.findings import SEVERITY_RANK, Finding
 from audit.report.columns import FINDINGS, STEPS, STREAMS, Table
 from audit.report.plain_tables import json_units
 from audit.results import PlantTotals, StepResult, StreamResult
+from audit.results.delegated import Delegated
 
 RESULTS_SCHEMA_FILE = "plant-audit-results.schema.json"
 _NUMBER = {"type": ["number", "null"]}  # non-finite numbers are written as null
@@ -27,6 +28,9 @@ def _annotations(record: type) -> dict[str, str]:
     for name, member in inspect.getmembers(record):
         if isinstance(member, property):
             hints[name] = str(member.fget.__annotations__.get("return"))
+        elif isinstance(member, Delegated):  # a value of a composed part, typed Delegated[...]
+            (kind,) = get_args(getattr(member, "__orig_class__", Delegated[Any])) or (Any,)
+            hints[name] = kind.__name__ if isinstance(kind, type) else str(kind)
     return hints
 
 
