@@ -687,7 +687,7 @@ def _docstring_references() -> list[tuple[str, str, str]]:
     import audit.steps.kinds
 
     modules = [
-        "audit.steps.laws",
+        "audit.steps.balances",
         "audit.formation",
         "audit.properties.engine",
         "audit.properties.mixtures",

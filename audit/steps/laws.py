@@ -1,30 +1,9 @@
 """The laws every step obeys, as findings: mass, first law, entropy generation, work bound.
 
-The balances themselves are computed in :mod:`audit.steps.balances`; this module turns them into
-findings with their tolerances.
-
-Sign convention: Q is heat INTO the step, W is work DELIVERED BY the step.
-
-Steady flow, inlets i, outlets e, heat flows Q_j at boundary temperatures T_j [1, ch. 4, 6, 7]:
-
-* first law:  residual = Σ Q_j − W − (Σ ṁ_e e_e − Σ ṁ_i e_i),  e = h + V²/2 + g z
-* entropy generation:  Ṡ_gen = Σ ṁ_e s_e − Σ ṁ_i s_i − Σ Q_j / T_j  ≥ 0
-* reversible work:  Ẇ_rev = −(ΔĖ − T0 ΔṠ) + Σ Q_j (1 − T0 / T_j)
-  which equals Σ ṁ_i ψ_i − Σ ṁ_e ψ_e + Σ Q_j (1 − T0/T_j) whenever each fluid is conserved (the
-  dead-state terms of ψ cancel) and stays valid for reacting steps on the formation basis;
-* exergy destroyed (Gouy–Stodola):  Ẋ_d = T0 Ṡ_gen, and Ẇ_rev − W = Ẋ_d + residual.
-
-Closed (batch) step from state 1 to state 2 with mass m:
-
-* Q − W = m (u2 − u1);  S_gen = m (s2 − s1) − Σ Q_j / T_j;
-* W_rev = −(ΔU − T0 ΔS) + Σ Q_j (1 − T0 / T_j)  (total work; the useful work bound is this minus
-  P0 ΔV), which reduces to −ΔA for an isothermal step exchanging heat at its own temperature.
-
-References
-----------
-.. [1] M. J. Moran, H. N. Shapiro, D. D. Boettner, M. B. Bailey, *Fundamentals of Engineering
-   Thermodynamics*, 8th ed., Wiley, 2014.
-.. [2] A. Bejan, *Advanced Engineering Thermodynamics*, 4th ed., Wiley, 2016, ch. 3 (Gouy–Stodola).
+The balances themselves (their equations, sign convention and sources) are computed in
+:mod:`audit.steps.balances`; this module turns them into findings with their tolerances: the
+property-method allowance of :mod:`audit.steps.allowances` by default (the review adds the rounding
+of the written values), or the balance's written tolerances when it declares them.
 """
 
 from __future__ import annotations
