@@ -1,4 +1,5 @@
-"""One reconciliation round on a network: finite-difference Jacobians through the property engine,
+"""One reconciliation round on a network: finite-difference Jacobians (forward differences, the
+last one kept for the next round) through the property engine,
 the solver, and the per-reading statistics; :mod:`audit.reconcile.gross` repeats rounds."""
 
 from __future__ import annotations
@@ -47,13 +48,17 @@ def residual_function(network: Network):  # noqa: ANN201 - a closure
 
 
 def jacobian_function(network: Network):  # noqa: ANN201 - a closure
-    """∂f/∂x by central differences through the property engine (one-sided where a side
-    cannot be evaluated, e.g. across the saturation line), each column evaluating only the
-    steps its variable enters."""
+    """∂f/∂x by forward differences through the property engine (backward where the forward
+    side cannot be evaluated, e.g. across the saturation line), each column evaluating only the
+    steps its variable enters. The last Jacobian is kept: a round that starts where the previous
+    one ended (:mod:`audit.reconcile.gross`) reuses it instead of evaluating it again."""
     keys = [c.step for c in network.constraints]
     rows_of = {step: [j for j, k in enumerate(keys) if k == step] for step in set(keys)}
 
     def jacobian(x: np.ndarray) -> np.ndarray:
+        cached = network.last_jacobian
+        if cached is not None and np.array_equal(cached[0], x):
+            return cached[1].copy()
         base = np.asarray(network.residuals(list(x)), dtype=float)
         J = np.zeros((len(keys), x.size))
         for i, var in enumerate(network.variables):
@@ -63,23 +68,18 @@ def jacobian_function(network: Network):  # noqa: ANN201 - a closure
                 continue
             u = var.u if var.u is not None and math.isfinite(var.u) else None
             h = RELATIVE_STEP * u if u else UNMEASURED_STEP * max(abs(x[i]), 1e-3)
-            sides: list[np.ndarray | None] = []
             for sign in (1.0, -1.0):
                 shifted = x.copy()
                 shifted[i] += sign * h
                 try:
-                    sides.append(np.asarray(network.residuals(list(shifted), steps))[rows])
+                    side = np.asarray(network.residuals(list(shifted), steps))[rows]
                 except InputError:
-                    sides.append(None)
-            plus, minus = sides
-            if plus is not None and minus is not None:
-                J[rows, i] = (plus - minus) / (2 * h)
-            elif plus is not None:
-                J[rows, i] = (plus - base[rows]) / h
-            elif minus is not None:
-                J[rows, i] = (base[rows] - minus) / h
+                    continue
+                J[rows, i] = sign * (side - base[rows]) / h
+                break
             else:
                 raise NotEvaluable(f"{var.key} cannot be varied at {x[i]:g}")
+        network.last_jacobian = (x.copy(), J.copy())
         return J
 
     return jacobian

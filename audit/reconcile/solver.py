@@ -43,7 +43,6 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 import numpy as np
-import scipy.linalg
 
 TOLERANCE = 1e-6
 """Convergence: largest step in standard uncertainties and largest residual in standard deviations
@@ -165,6 +164,15 @@ def reconcile_values(
     )
 
 
+def _null_space(M: np.ndarray) -> np.ndarray:
+    """An orthonormal basis of the null space of ``M`` (columns), from its singular value
+    decomposition (numpy's LAPACK), singular values below :data:`RANK_TOLERANCE` of the largest
+    taken as zero."""
+    _, s, vh = np.linalg.svd(M, full_matrices=True)
+    rank = int(np.sum(s > RANK_TOLERANCE * s[0])) if s.size and s[0] > 0 else 0
+    return vh[rank:, :].T
+
+
 @dataclass
 class _Linear:
     a: np.ndarray  # scaled A L
@@ -197,8 +205,8 @@ def _linearise(
     A, B, fs = A / scale[:, None], B / scale[:, None], f / scale
     y = np.linalg.solve(L, x[meas] - xm) if meas.size else np.zeros(0)
     if unmeas.size:
-        P = scipy.linalg.null_space(B.T, rcond=RANK_TOLERANCE).T
-        null_b = scipy.linalg.null_space(B, rcond=RANK_TOLERANCE)
+        P = _null_space(B.T).T
+        null_b = _null_space(B)
         observable = (
             np.linalg.norm(null_b, axis=1) < 1e-6 if null_b.size else np.ones(unmeas.size, dtype=bool)
         )

@@ -35,7 +35,7 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import optimize, stats
+from scipy import special
 
 EQUIVALENT = 0.999
 """|Correlation| of two normalised corrections from which the readings form one set [-]."""
@@ -61,7 +61,7 @@ class ReadingStatistics:
 
 def global_critical(dof: int, confidence: float) -> float:
     """χ²_{ν}(confidence), the global test's critical value [-] (NaN for ν = 0)."""
-    return float(stats.chi2.ppf(confidence, dof)) if dof > 0 else math.nan
+    return float(special.chdtri(dof, 1.0 - confidence)) if dof > 0 else math.nan
 
 
 def sidak_critical(n_tests: int, confidence: float) -> float:
@@ -70,25 +70,22 @@ def sidak_critical(n_tests: int, confidence: float) -> float:
     if n_tests <= 0:
         return math.nan
     alpha_each = 1.0 - confidence ** (1.0 / n_tests)
-    return float(stats.norm.isf(alpha_each / 2.0))
+    return float(-special.ndtri(alpha_each / 2.0))
 
 
 def global_power(dof: int, confidence: float, noncentrality: float) -> float:
     """P[χ²(ν, λ) > χ²_{ν}(confidence)], the global test's power for a shift λ [-]."""
     if dof <= 0:
         return math.nan
-    return float(stats.ncx2.sf(global_critical(dof, confidence), dof, noncentrality))
+    return float(1.0 - special.chndtr(global_critical(dof, confidence), dof, noncentrality))
 
 
 def detectable_noncentrality(dof: int, confidence: float, power: float = POWER) -> float:
     """The λ at which the global test detects with probability ``power`` [-]."""
     if dof <= 0:
         return math.inf
-
-    def gap(lam: float) -> float:
-        return global_power(dof, confidence, lam) - power
-
-    return float(optimize.brentq(gap, 1e-9, 1e4))
+    # the non-centrality at which the non-central χ² CDF at the critical value is 1 − power
+    return float(special.chndtrinc(global_critical(dof, confidence), dof, 1.0 - power))
 
 
 def reading_statistics(

@@ -173,6 +173,7 @@ class Network:
                 self.constraints.append(Constraint(f"{result.id} duty", result.id, "duty", "W"))
         self.evaluations = 0
         self._cache: dict[tuple, StreamResult] = {}
+        self.last_jacobian: tuple[Any, Any] | None = None  # (x, ∂f/∂x at x), see rounds
 
     @property
     def x0(self) -> list[float]:
