@@ -16,14 +16,28 @@ How the parts fit:
 * :mod:`audit.reconcile.assemble` builds the :class:`~audit.reconcile.records.Reconciliation`.
 
 Reconciliation is a statistical estimate, not a calibration.
+
+The package loads numpy and scipy only when :func:`reconcile` is first used: the reports import
+:mod:`audit.reconcile.records` (plain records) without them.
 """
 
 from __future__ import annotations
 
 from pathlib import Path
+from typing import TYPE_CHECKING, Any
 
-from audit.reconcile.assemble import reconcile
 from audit.reconcile.records import Reconciliation
+
+if TYPE_CHECKING:
+    from audit.reconcile.assemble import reconcile
+
+
+def __getattr__(name: str) -> Any:
+    if name == "reconcile":
+        from audit.reconcile.assemble import reconcile
+
+        return reconcile
+    raise AttributeError(name)
 
 
 def reconcile_file(
@@ -31,6 +45,7 @@ def reconcile_file(
 ) -> Reconciliation:
     """Read, solve and reconcile the balance file at ``path`` (see :func:`reconcile`)."""
     from audit.reading import load_balance
+    from audit.reconcile.assemble import reconcile
     from audit.solve import solve
 
     balance, document = load_balance(path)

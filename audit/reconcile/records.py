@@ -11,6 +11,9 @@ CAUTION = (
     "reading named here is a reading to check, not a proven fault."
 )
 
+FLAGS = ("", "gross error", "suspect", "not checkable", "just determined", "estimated", "unobservable")
+"""Every flag a :class:`Reading` can carry (empty: checked and consistent)."""
+
 MEASUREMENT_ERROR = "measurement error"
 IMPOSSIBLE_CLAIM = "impossible claim"
 
@@ -61,7 +64,10 @@ class GlobalTest:
 @dataclass
 class Elimination:
     """One round of the serial elimination: the reading removed (made unmeasured), the set it
-    belongs to (any member would do), its normalised correction and the global test after."""
+    belongs to (any member would do), its normalised correction and the global test after;
+    ``close``: readings whose normalised corrections are hard to tell apart from it (correlation
+    at least 0.95), named with it as "one of these"; ``estimate``: the removed reading's value
+    estimated with every gross error removed."""
 
     removed: str
     equivalent_set: list[str]
@@ -70,6 +76,13 @@ class Elimination:
     measured: float
     after: GlobalTest
     note: str = ""
+    close: list[str] = field(default_factory=list)
+    swapped: str = ""  # why a close reading was removed in the place of the first one taken
+
+    @property
+    def named(self) -> list[str]:
+        """The readings named "one of these": the equivalent set and the close readings."""
+        return [*self.equivalent_set, *(k for k in self.close if k not in self.equivalent_set)]
 
 
 @dataclass
@@ -109,7 +122,7 @@ class Reconciliation:
     @property
     def gross_errors(self) -> list[list[str]]:
         """The sets named by the serial elimination (each: 'one of these')."""
-        return [e.equivalent_set for e in self.eliminations]
+        return [e.named for e in self.eliminations]
 
     @property
     def unobservable(self) -> list[str]:

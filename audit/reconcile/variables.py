@@ -136,6 +136,7 @@ class Network:
         self.solution = solution
         self.runner = StepRunner(solution)
         self.variables = list(variables)
+        self.index = {var.key: i for i, var in enumerate(self.variables)}
         self.by_stream: dict[str, list[int]] = defaultdict(list)
         self.by_step: dict[str, list[int]] = defaultdict(list)
         for i, var in enumerate(self.variables):

@@ -11,7 +11,8 @@ JSON structure, version ``JSON_VERSION``::
      "streams": [{id, fluid, T, P, rho, h, s, u, g, a, psi, phase, quality, basis, mass_flow, ...}],
      "steps": [{id, kind, batch, Q, W, dH, dU, dS, dG, dA, energy_residual, S_gen, W_rev, ...}],
      "findings": [{severity, name, step, stream, message, claimed, bound, margin, ...}],
-     "plant": {heat_in, heat_out, work_out, work_in, exergy_destroyed, ...}}
+     "plant": {heat_in, heat_out, work_out, work_in, exergy_destroyed, ...},
+     "reconciliation": {...}}   (``plant-audit reconcile`` only: :mod:`audit.report.reconciliation_json`)
 
 The fields of streams, steps and findings, and the CSV columns, come from the column registry
 (:mod:`audit.report.columns`); the CSV tables name their SI units in the headers and hold plain
@@ -36,6 +37,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 from audit.exitcodes import EXIT_FINDINGS, EXIT_PASS
+from audit.reconcile.records import Reconciliation
 from audit.report.columns import FINDINGS, STEPS, STREAMS, Table
 from audit.report.files import write_text
 from audit.report.plain_tables import json_units, plain_frame
@@ -60,11 +62,17 @@ def _clean(value: Any) -> Any:
     return value
 
 
-def to_dict(result: AuditResult, fail_on: str = "error", marginal: bool = False) -> dict:
+def to_dict(
+    result: AuditResult,
+    fail_on: str = "error",
+    marginal: bool = False,
+    reconciliation: Reconciliation | None = None,
+) -> dict:
     """The versioned JSON structure of a result (see the module docstring), its verdict at the
-    gate ``fail_on`` (and on marginal findings with ``marginal``)."""
+    gate ``fail_on`` (and on marginal findings with ``marginal``), and the ``reconciliation``
+    section when one is given."""
     failed = result.fails(fail_on, marginal=marginal)
-    return _clean(
+    data = _clean(
         {
             "format": "plant-audit-results",
             "version": JSON_VERSION,
@@ -93,22 +101,34 @@ def to_dict(result: AuditResult, fail_on: str = "error", marginal: bool = False)
             "plant": asdict(result.plant),
         }
     )
+    if reconciliation is not None:
+        from audit.report.reconciliation_json import section
+
+        data["reconciliation"] = section(reconciliation)
+    return data
 
 
-def json_text(result: AuditResult, fail_on: str = "error", marginal: bool = False) -> str:
+def json_text(
+    result: AuditResult,
+    fail_on: str = "error",
+    marginal: bool = False,
+    reconciliation: Reconciliation | None = None,
+) -> str:
     """The JSON results as text (what :func:`write_json` writes)."""
-    return (
-        json.dumps(to_dict(result, fail_on, marginal), indent=2, sort_keys=True, ensure_ascii=False)
-        + "\n"
-    )
+    data = to_dict(result, fail_on, marginal, reconciliation)
+    return json.dumps(data, indent=2, sort_keys=True, ensure_ascii=False) + "\n"
 
 
 def write_json(
-    result: AuditResult, path: str | Path, fail_on: str = "error", marginal: bool = False
+    result: AuditResult,
+    path: str | Path,
+    fail_on: str = "error",
+    marginal: bool = False,
+    reconciliation: Reconciliation | None = None,
 ) -> None:
     """Write the JSON results atomically (a temporary file moved into place); raises
     :class:`audit.errors.ReportError` when the file cannot be written."""
-    write_text(path, json_text(result, fail_on, marginal), "the JSON results")
+    write_text(path, json_text(result, fail_on, marginal, reconciliation), "the JSON results")
 
 
 def table_frame(table: Table, rows: list[Any]) -> pd.DataFrame:

@@ -1,19 +1,43 @@
-"""The reconciliation as JSON (section ``reconciliation``, values SI, keys as in the records)."""
+"""The ``reconciliation`` section of the JSON results (``plant-audit reconcile FILE --json X``):
+the :class:`~audit.reconcile.records.Reconciliation` record as plain data, values SI, keys as in
+the records, non-finite numbers as null; its structure is part of the published results schema
+(:mod:`audit.report.results_schema`)."""
 
 from __future__ import annotations
 
-import json
 from dataclasses import asdict
-from pathlib import Path
 from typing import Any
 
 from audit.reconcile.records import Reconciliation, finite
-from audit.report.files import write_text
 
-SCHEMA_VERSION = 1
+SECTION_KEYS = (
+    "name",
+    "file",
+    "confidence",
+    "converged",
+    "message",
+    "iterations",
+    "tolerance",
+    "first",
+    "final",
+    "critical_value",
+    "critical_method",
+    "readings",
+    "eliminations",
+    "constraints",
+    "phase_notes",
+    "origins",
+    "redundancy",
+    "evaluations",
+    "caution",
+    "gross_errors",
+    "unobservable",
+    "fails",
+)
+"""The keys of the section (the schema requires each)."""
 
 
-def to_dict(result: Reconciliation) -> dict[str, Any]:
+def section(result: Reconciliation) -> dict[str, Any]:
     """The reconciliation as plain data (NaN and infinity as null)."""
     data = asdict(result)
     data["readings"] = [{**asdict(r), "correction": r.correction} for r in result.readings]
@@ -25,7 +49,7 @@ def to_dict(result: Reconciliation) -> dict[str, Any]:
     data["gross_errors"] = result.gross_errors
     data["unobservable"] = result.unobservable
     data["fails"] = result.fails()
-    return {"schema": f"plant-audit reconciliation {SCHEMA_VERSION}", "reconciliation": _clean(data)}
+    return _clean(data)
 
 
 def _clean(value: Any) -> Any:
@@ -36,8 +60,3 @@ def _clean(value: Any) -> Any:
     if isinstance(value, (list, tuple)):
         return [_clean(v) for v in value]
     return value
-
-
-def write_reconciliation_json(result: Reconciliation, path: Path) -> None:
-    """Write :func:`to_dict` to ``path`` atomically (:mod:`audit.report.files`)."""
-    write_text(path, json.dumps(to_dict(result), indent=2, ensure_ascii=False) + "\n", "the JSON result")

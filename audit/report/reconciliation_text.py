@@ -65,11 +65,7 @@ def console_section(result: Reconciliation, all_readings: bool = False) -> str:
     for number, elim in enumerate(result.eliminations, 1):
         reading = by_key[elim.removed]
         note = "; " + elim.note.lstrip("; ") if elim.note else ""
-        who = (
-            elim.removed
-            if len(elim.equivalent_set) <= 1
-            else ("one of {" + ", ".join(elim.equivalent_set) + "}")
-        )
+        who = elim.removed if len(elim.named) <= 1 else ("one of {" + ", ".join(elim.named) + "}")
         lines.append(
             f"  gross error {number}: {who}, normalised correction "
             f"{elim.normalised:.3g}; read {_num(shown(reading, elim.measured))}, estimated "
@@ -78,6 +74,14 @@ def console_section(result: Reconciliation, all_readings: bool = False) -> str:
         lines.append(
             f"    then γ = {elim.after.statistic:.4g} against χ²({elim.after.dof}) = "
             f"{elim.after.critical:.4g}: {'passed' if elim.after.passed else 'failed'}"
+        )
+    if result.eliminations:
+        final = result.final
+        removed = ", ".join(r.key for r in result.readings if r.flag == "gross error")
+        lines.append(
+            f"  global test with the gross errors removed ({removed}): "
+            f"γ = {final.statistic:.4g} against χ²({final.dof}) = {final.critical:.4g}: "
+            f"{'passed' if final.passed else 'FAILED'}"
         )
     lines.append(
         f"  normalised corrections tested against {result.critical_value:.3f} ({result.critical_method})"

@@ -149,8 +149,73 @@ def results_schema() -> dict[str, Any]:
                 "additionalProperties": False,
                 "properties": plant,
             },
+            "reconciliation": _reconciliation(),
         },
     }
+
+
+def _record(record: type, extra: dict[str, Any] | None = None) -> dict[str, Any]:
+    """An object with the fields of a dataclass ``record`` (and ``extra`` properties)."""
+    properties = {f.name: _of(str(f.type)) for f in dataclasses.fields(record)}
+    properties.update(extra or {})
+    return {
+        "type": "object",
+        "required": sorted(properties),
+        "additionalProperties": False,
+        "properties": properties,
+    }
+
+
+def _reconciliation() -> dict[str, Any]:
+    """The ``reconciliation`` section (``plant-audit reconcile`` only;
+    :mod:`audit.report.reconciliation_json`)."""
+    from audit.reconcile.records import (
+        FLAGS,
+        Elimination,
+        FindingOrigin,
+        GlobalTest,
+        Reading,
+        Reconciliation,
+    )
+    from audit.report.reconciliation_json import SECTION_KEYS
+
+    test = _record(GlobalTest, {"passed": {"type": "boolean"}})
+    elimination = _record(Elimination, {"after": test, "equivalent_set": {"type": "array"}})
+    reading = _record(Reading, {"correction": dict(_NUMBER)})
+    reading["properties"]["flag"] = {"enum": list(FLAGS)}
+    section = _record(
+        Reconciliation,
+        {
+            "first": test,
+            "final": test,
+            "readings": {"type": "array", "items": reading},
+            "eliminations": {"type": "array", "items": elimination},
+            "origins": {"type": "array", "items": _record(FindingOrigin)},
+            "constraints": {
+                "type": "array",
+                "items": {
+                    "type": "object",
+                    "required": ["constraint", "residual", "unit"],
+                    "additionalProperties": False,
+                    "properties": {
+                        "constraint": {"type": "string"},
+                        "residual": dict(_NUMBER),
+                        "unit": {"type": "string"},
+                    },
+                },
+            },
+            "gross_errors": {"type": "array", "items": {"type": "array", "items": {"type": "string"}}},
+            "unobservable": {"type": "array", "items": {"type": "string"}},
+            "fails": {"type": "boolean"},
+        },
+    )
+    section["required"] = list(SECTION_KEYS)
+    section["description"] = (
+        "plant-audit reconcile only: the readings adjusted together so that every balance closes, "
+        "the global test, the gross errors named (each a set: one of these); SI units. A "
+        "statistical estimate, not a calibration."
+    )
+    return section
 
 
 def results_schema_text() -> str:

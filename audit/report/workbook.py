@@ -11,6 +11,8 @@ Sheets, in this order:
 * **Streams**: every stream's state and flow;
 * **Heat flows**: every heat flow across a step's boundary, with its boundary temperature;
 * **Exergy losses**: exergy destroyed per flow step, largest first, and a bar chart of it;
+* **Reconciliation** (written by ``plant-audit reconcile FILE -o X.xlsx`` only): the global test,
+  the gross errors and every reading measured and reconciled (:mod:`audit.report.sheets.reconciliation`);
 * **Method**: sign convention, equations, tolerances and the published sources.
 
 One module per sheet in :mod:`audit.report.sheets`; the columns of the Findings, Steps and Streams
@@ -50,9 +52,19 @@ from pathlib import Path
 from typing import Any, BinaryIO
 
 from audit.findings import SEVERITY_RANK
+from audit.reconcile.records import Reconciliation
 from audit.report import workbook_file
 from audit.report.files import write_atomically
-from audit.report.sheets import exergy, findings, heat, method, overview, steps, streams
+from audit.report.sheets import (
+    exergy,
+    findings,
+    heat,
+    method,
+    overview,
+    reconciliation,
+    steps,
+    streams,
+)
 from audit.report.sheets.context import (
     EXERGY,
     FINDINGS,
@@ -82,8 +94,9 @@ __all__ = [
     "write_workbook",
 ]
 
-WRITERS = (overview, findings, steps, streams, heat, exergy, method)
-"""The sheet modules, in the order of :data:`SHEETS`."""
+WRITERS = (overview, findings, steps, streams, heat, exergy, reconciliation, method)
+"""The sheet modules, in the order of :func:`~audit.report.sheets.context.titles` (the
+Reconciliation sheet writes nothing without a reconciliation)."""
 
 WIDE = {FINDINGS: "A:C", STEPS: "A:A", STREAMS: "A:A"}
 """The wide tables, printed across pages with these id columns on every page."""
@@ -93,18 +106,26 @@ PAPER_A4 = 9
 """The paper size code of A4."""
 
 
-def measure(result: AuditResult, fail_on: str = "error") -> dict[str, Layout]:
+def measure(
+    result: AuditResult, fail_on: str = "error", reconciliation: Reconciliation | None = None
+) -> dict[str, Layout]:
     """The first pass: every sheet's column widths, row heights and column styles."""
-    book = Book(result, fail_on)
+    book = Book(result, fail_on, reconciliation=reconciliation)
     for module in WRITERS:
         module.write(book)
     return {title: sheet.layout for title, sheet in book.sheets.items()}
 
 
-def build(result: AuditResult, fail_on: str, wb: Any, layouts: dict[str, Layout]) -> Book:
+def build(
+    result: AuditResult,
+    fail_on: str,
+    wb: Any,
+    layouts: dict[str, Layout],
+    reconciliation: Reconciliation | None = None,
+) -> Book:
     """The second pass: every sheet of ``result`` written into ``wb`` (an XlsxWriter workbook)
     and set up for printing."""
-    book = Book(result, fail_on, wb, layouts)
+    book = Book(result, fail_on, wb, layouts, reconciliation)
     for module in WRITERS:
         module.write(book)
     for title, sheet in book.sheets.items():
@@ -123,21 +144,27 @@ def build(result: AuditResult, fail_on: str, wb: Any, layouts: dict[str, Layout]
     return book
 
 
-def write_workbook(result: AuditResult, path: str | Path, fail_on: str = "error") -> None:
+def write_workbook(
+    result: AuditResult,
+    path: str | Path,
+    fail_on: str = "error",
+    reconciliation: Reconciliation | None = None,
+) -> None:
     """Write the findings workbook of ``result`` to ``path`` (an .xlsx file), atomically.
 
-    ``fail_on`` ("error" or "warning") sets the verdict shown on the overview. Raises
+    ``fail_on`` ("error" or "warning") sets the verdict shown on the overview; with a
+    ``reconciliation`` the workbook has the Reconciliation sheet, referenced from the Overview. Raises
     :class:`audit.errors.ReportError` when the file cannot be written there.
     """
     if fail_on not in SEVERITY_RANK:
         raise ValueError(f"fail_on must be one of {sorted(SEVERITY_RANK)}, not {fail_on!r}")
-    layouts = measure(result, fail_on)
+    layouts = measure(result, fail_on, reconciliation)
     when = workbook_file.run_time(result)
     title = safe_text(f"plant-audit findings: {result.name}")
 
     def write(stream: BinaryIO) -> None:
         wb = workbook_file.open_workbook(stream, title, when)
-        build(result, fail_on, wb, layouts)
+        build(result, fail_on, wb, layouts, reconciliation)
         workbook_file.close(wb)
 
     write_atomically(path, write, "the workbook")

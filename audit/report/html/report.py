@@ -6,8 +6,10 @@ from __future__ import annotations
 
 from pathlib import Path
 
+from audit.reconcile.records import Reconciliation
 from audit.report.files import write_text
 from audit.report.html.page import caution, page, verdict_badge
+from audit.report.html.reconciliation import reconciliation_section
 from audit.report.html.sections import (
     exchangers,
     findings_table,
@@ -33,8 +35,14 @@ SECTIONS = (
 )
 
 
-def report_html(result: AuditResult, fail_on: str = "error", marginal: bool = False) -> str:
-    """The report of ``result`` as one HTML document (text)."""
+def report_html(
+    result: AuditResult,
+    fail_on: str = "error",
+    marginal: bool = False,
+    reconciliation: Reconciliation | None = None,
+) -> str:
+    """The report of ``result`` as one HTML document (text), with a Reconciliation section after
+    the findings when a ``reconciliation`` is given."""
     marks = step_marks(result)
     failed = result.fails(fail_on, marginal=marginal)
     counts = result.counts(include_accepted=False)
@@ -46,7 +54,10 @@ def report_html(result: AuditResult, fail_on: str = "error", marginal: bool = Fa
         + (f", {accepted} accepted by a reviewer" if accepted else "")
         + f"; fails on: {fail_on}{' or marginal' if marginal else ''}"
     )
-    nav = "".join(f'<a href="#{key}">{name}</a>' for key, name in SECTIONS)
+    sections: tuple[tuple[str, str], ...] = SECTIONS
+    if reconciliation is not None:
+        sections = (SECTIONS[0], ("reconciliation", "Reconciliation"), *SECTIONS[1:])
+    nav = "".join(f'<a href="#{key}">{name}</a>' for key, name in sections)
     failing = [s for s, m in marks.items() if m]
     where = (
         "Failing steps: " + ", ".join(f'<a href="{step_anchor(s)}">{esc(s)}</a>' for s in failing)
@@ -62,6 +73,14 @@ def report_html(result: AuditResult, fail_on: str = "error", marginal: bool = Fa
         caution(),
         f"<nav>{nav}</nav>",
         f'<h2 id="findings">Findings</h2><p>{where}</p>{findings_table(result)}',
+        *(
+            [
+                '<h2 id="reconciliation">Reconciliation</h2>',
+                reconciliation_section(reconciliation),
+            ]
+            if reconciliation is not None
+            else []
+        ),
         '<h2 id="network">Network</h2><p>Each box links to its step\'s balance; red: an open error, '
         "amber: an open warning.</p>",
         f'<div class="figure">{network_svg(result, step_anchor)}</div>',
@@ -78,8 +97,12 @@ def report_html(result: AuditResult, fail_on: str = "error", marginal: bool = Fa
 
 
 def write_html(
-    result: AuditResult, path: str | Path, fail_on: str = "error", marginal: bool = False
+    result: AuditResult,
+    path: str | Path,
+    fail_on: str = "error",
+    marginal: bool = False,
+    reconciliation: Reconciliation | None = None,
 ) -> None:
     """Write the HTML report atomically; raises :class:`audit.errors.ReportError` when the file
     cannot be written."""
-    write_text(path, report_html(result, fail_on, marginal), "the HTML report")
+    write_text(path, report_html(result, fail_on, marginal, reconciliation), "the HTML report")

@@ -7,6 +7,7 @@ from collections.abc import Iterable, Sequence
 from typing import Any
 
 from audit.findings import SEVERITY_RANK, Finding
+from audit.reconcile.records import Reconciliation
 from audit.report.columns import OWN, Column
 from audit.report.display import in_si, shown
 from audit.report.workbook_cells import Layout, Sheet
@@ -23,6 +24,8 @@ OVERVIEW, FINDINGS, STEPS, STREAMS, HEAT, EXERGY, METHOD = (
     "Method",
 )
 SHEETS = (OVERVIEW, FINDINGS, STEPS, STREAMS, HEAT, EXERGY, METHOD)
+RECONCILIATION = "Reconciliation"
+"""The sheet ``plant-audit reconcile`` adds before the Method sheet."""
 
 RATE_BASIS = "rate (kW)"
 TOTAL_BASIS = "total (kJ)"
@@ -53,7 +56,9 @@ class Book:
     finding of a step or stream stands (for links between sheets).
 
     Without ``wb`` the book only measures (:mod:`audit.report.workbook_cells`); with ``wb`` (an
-    XlsxWriter workbook) and the ``layouts`` that measuring found, it writes."""
+    XlsxWriter workbook) and the ``layouts`` that measuring found, it writes. With a
+    ``reconciliation`` (:class:`audit.reconcile.records.Reconciliation`) the book also has the
+    sheet :data:`RECONCILIATION`."""
 
     def __init__(
         self,
@@ -61,13 +66,15 @@ class Book:
         fail_on: str,
         wb: Any = None,
         layouts: dict[str, Layout] | None = None,
+        reconciliation: Reconciliation | None = None,
     ) -> None:
         self.result = result
+        self.reconciliation = reconciliation
         self.fail_on = fail_on
         self.wb = wb
         self.formats = Formats(wb) if wb is not None else None
         self.sheets: dict[str, Sheet] = {}
-        for title in SHEETS:
+        for title in titles(reconciliation is not None):
             if wb is None:
                 self.sheets[title] = Sheet(title)
             else:
@@ -84,6 +91,11 @@ class Book:
                 self.first_finding_row.setdefault(("step", f.step), row)
             if f.stream:
                 self.first_finding_row.setdefault(("stream", f.stream), row)
+
+
+def titles(reconciled: bool = False) -> tuple[str, ...]:
+    """The sheets of the workbook, in order (with the Reconciliation sheet when ``reconciled``)."""
+    return (*SHEETS[:-1], RECONCILIATION, SHEETS[-1]) if reconciled else SHEETS
 
 
 def rank(severity: str) -> int:

@@ -14,6 +14,7 @@ from audit.report.sheets.context import (
     HEAT,
     METHOD,
     OVERVIEW,
+    RECONCILIATION,
     STEPS,
     STREAMS,
     TOLERANCE_QUANTITY,
@@ -43,6 +44,11 @@ SHEET_GUIDE = (
     (HEAT, "every heat flow across a step's boundary and its temperature"),
     (EXERGY, "exergy destroyed per step, largest first, with a chart"),
     (METHOD, "sign convention, equations, tolerances and published sources"),
+)
+
+RECONCILIATION_GUIDE = (
+    RECONCILIATION,
+    "every reading measured and reconciled, its correction and uncertainty before and after",
 )
 
 
@@ -99,6 +105,9 @@ def write(book: Book) -> None:
     item("steps", len(r.steps), fmt=INTEGER)
     item("where exergy is lost", "see the chart on the Exergy losses sheet", link=location(EXERGY, 1))
 
+    if book.reconciliation is not None:
+        _reconciliation(book, section, item)
+
     section("Balance")
     item("name", r.name)
     item("revision", r.revision or "")
@@ -153,9 +162,29 @@ def write(book: Book) -> None:
         item(key, number_or_text(text))
 
     section("Sheets")
-    for title, what in SHEET_GUIDE:
+    guide: tuple[tuple[str, str], ...] = SHEET_GUIDE
+    if book.reconciliation is not None:
+        guide = (*SHEET_GUIDE[:-1], RECONCILIATION_GUIDE, SHEET_GUIDE[-1])
+    for title, what in guide:
         sh.put(row, 1, title, link=location(title, 1))
         sh.put(row, 2, what)
         row += 1
     sh.fix(2, min(max(sh.widths.get(2, 0) + 2, 45), 70))
     sh.fit(cap=70)
+
+
+def _reconciliation(book: Book, section: Any, item: Any) -> None:
+    """The global test and the gross errors of the reconciliation, linked to its sheet."""
+    from audit.report.sheets.reconciliation import test_lines
+
+    rec = book.reconciliation
+    assert rec is not None
+    section("Reconciliation (a statistical estimate, not a calibration)")
+    for label, text, passed in test_lines(rec):
+        item(label, text, fill=FILLS["pass"] if passed else FILLS[ERROR])
+    for number, elim in enumerate(rec.eliminations, 1):
+        who = (
+            elim.removed if len(elim.named) <= 1 else "one of " + ", ".join(elim.named)
+        )
+        item(f"gross error {number}", who, fill=FILLS[ERROR])
+    item("every reading", f"see the {RECONCILIATION} sheet", link=location(RECONCILIATION, 1))
