@@ -31,9 +31,7 @@ def reconciliation_section(result: Reconciliation, every: bool = False) -> str:
         items.append(f"<li><strong>not converged</strong>: {esc(result.message)}</li>")
     for number_, elim in enumerate(result.eliminations, 1):
         who = (
-            esc(elim.removed)
-            if len(elim.named) <= 1
-            else "one of {" + esc(", ".join(elim.named)) + "}"
+            esc(elim.removed) if len(elim.named) <= 1 else "one of {" + esc(", ".join(elim.named)) + "}"
         )
         note = esc(elim.note.lstrip("; "))
         items.append(

@@ -183,8 +183,6 @@ def _reconciliation(book: Book, section: Any, item: Any) -> None:
     for label, text, passed in test_lines(rec):
         item(label, text, fill=FILLS["pass"] if passed else FILLS[ERROR])
     for number, elim in enumerate(rec.eliminations, 1):
-        who = (
-            elim.removed if len(elim.named) <= 1 else "one of " + ", ".join(elim.named)
-        )
+        who = elim.removed if len(elim.named) <= 1 else "one of " + ", ".join(elim.named)
         item(f"gross error {number}", who, fill=FILLS[ERROR])
     item("every reading", f"see the {RECONCILIATION} sheet", link=location(RECONCILIATION, 1))

@@ -91,9 +91,7 @@ def write(book: Book) -> None:
     sh.put(row, 2, solver, width=False)
     row += 1
     for number, elim in enumerate(result.eliminations, 1):
-        who = (
-            elim.removed if len(elim.named) <= 1 else "one of " + ", ".join(elim.named)
-        )
+        who = elim.removed if len(elim.named) <= 1 else "one of " + ", ".join(elim.named)
         note = elim.note.lstrip("; ")
         sh.put(row, 1, f"gross error {number}", font=BOLD, width=False)
         sh.put(
