@@ -16,6 +16,8 @@ Three levels, each overriding the one above::
         duty: 2 %                  # heat duties and heat losses
         energy: 2 %                # batch heat and work
         mass: 0.5 %                # a vessel's contents
+        correlations:              # correlated reading errors (used by the reconciliation)
+          - {readings: [S05.flow, S06.flow], coefficient: 0.5}
     streams:
       S20: {..., uncertainty: {P: 0.02 bar, flow: 2 %}}   # or 'exact', or 'measured'
     steps:
@@ -224,6 +226,23 @@ Coverage = Annotated[
 ]
 
 
+class Correlation(BaseModel):
+    """Two readings whose errors are correlated (one transmitter type, one calibration): their
+    covariance is ``coefficient`` u₁ u₂ (GUM, JCGM 100:2008, §5.2.2)."""
+
+    model_config = ConfigDict(extra="forbid")
+
+    readings: tuple[str, str] = Field(
+        description="the two readings, each STREAM.PROPERTY or STEP.CLAIM as the reconciliation "
+        "names them, e.g. [S05.flow, S06.flow] or [C1.shaft_power, P1.shaft_power]"
+    )
+    coefficient: float = Field(
+        ge=-1.0,
+        le=1.0,
+        description="correlation coefficient r of their errors, from -1 to 1 (0: independent)",
+    )
+
+
 class BalanceUncertainty(BaseModel):
     """A balance's default uncertainties per kind of quantity (``balance: uncertainty:``)."""
 
@@ -249,6 +268,11 @@ class BalanceUncertainty(BaseModel):
     duty: PowerSpread | None = Field(None, description="heat duties and heat losses")
     energy: EnergySpread | None = Field(None, description="batch (vessel) heat and work")
     mass: MassSpread | None = Field(None, description="a vessel's contents")
+    correlations: list[Correlation] = Field(
+        default_factory=list,
+        description="pairs of readings whose errors are correlated; used by the reconciliation "
+        "(plant-audit reconcile); the verdicts take every input as independent",
+    )
 
 
 class StreamUncertainty(BaseModel):

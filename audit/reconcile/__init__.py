@@ -7,11 +7,14 @@ How the parts fit:
   :mod:`audit.review.uncertainty` reads them, and the unmeasured quantities) and the constraints
   (each step's mass and first-law balances) from a solved balance; it re-evaluates streams and
   steps through :mod:`audit.solve`;
+* :mod:`audit.reconcile.correlations` checks the correlations the balance declares and builds
+  the covariance of the readings;
 * :mod:`audit.reconcile.solver` solves the weighted least-squares problem with the constraints
   satisfied (Gauss–Newton/SQP on the linearised constraints, projection of the unmeasured);
 * :mod:`audit.reconcile.statistics` the global test, normalised corrections (Šidák's critical
   value), equivalent sets and detectability; :mod:`audit.reconcile.rounds` one solved round;
-* :mod:`audit.reconcile.gross` serial elimination of gross errors;
+* :mod:`audit.reconcile.gross` serial elimination of gross errors (the readings hard to tell
+  apart named with each, and the removal set that fits best kept);
 * :mod:`audit.reconcile.after` phase checks and the audit of the reconciled balance;
 * :mod:`audit.reconcile.assemble` builds the :class:`~audit.reconcile.records.Reconciliation`.
 

@@ -7,6 +7,7 @@ from collections.abc import Sequence
 
 from audit.errors import InputError
 from audit.reconcile.after import origins, phase_after, phase_before
+from audit.reconcile.correlations import check_positive_definite, declared_correlations
 from audit.reconcile.gross import eliminate, global_test
 from audit.reconcile.records import Reading, Reconciliation, finite
 from audit.reconcile.rounds import Round
@@ -36,6 +37,9 @@ def reconcile(
         )
     check_declarations(balance, document)
     network = Network(solution, build_variables(solution, unmeasured))
+    network.correlations = declared_correlations(solution, network.variables)
+    measured = [i for i, var in enumerate(network.variables) if var.is_measured]
+    check_positive_definite(solution, network.variables, measured, network.correlations)
     notes = phase_before(solution)
     first, last, eliminations = eliminate(network, confidence)
     estimate = last.estimate

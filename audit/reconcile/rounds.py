@@ -11,6 +11,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from audit.errors import InputError
+from audit.reconcile.correlations import covariance
 from audit.reconcile.solver import Estimate, NotEvaluable, reconcile_values
 from audit.reconcile.statistics import (
     ReadingStatistics,
@@ -24,6 +25,11 @@ RELATIVE_STEP = 1e-4
 """Finite-difference step of a measured variable, as a fraction of its standard uncertainty."""
 UNMEASURED_STEP = 1e-7
 """Finite-difference step of an unmeasured variable, as a fraction of its size."""
+ROUND_OFF_FLOOR = 1e-8
+"""A constraint whose sensitivity to one standard uncertainty of every variable is below this
+fraction of the size of its terms is taken as insensitive: the round-off of a forward difference
+is about machine precision (2.2e-16) times that size divided by :data:`RELATIVE_STEP`, some
+10^-12, four orders below; a real sensitivity is many orders above [-]."""
 
 
 @dataclass
@@ -91,9 +97,16 @@ def solve_round(
     """Reconcile with the variables ``measured`` (indices) as readings; the others estimated."""
     variables = network.variables
     readings = [variables[i].measured for i in measured]
-    sigma: np.ndarray = np.diag([float(variables[i].u or 0.0) ** 2 for i in measured])
+    sigma = covariance(variables, measured, network.correlations)
+    floor = ROUND_OFF_FLOOR * np.asarray(network.magnitudes(list(x_start)))
     estimate = reconcile_values(
-        residual_function(network), jacobian_function(network), x_start, readings, sigma, measured
+        residual_function(network),
+        jacobian_function(network),
+        x_start,
+        readings,
+        sigma,
+        measured,
+        floor,
     )
     stats = reading_statistics(
         estimate.corrections,

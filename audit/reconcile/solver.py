@@ -86,6 +86,7 @@ def reconcile_values(
     readings: Sequence[float],
     sigma: np.ndarray,
     measured: Sequence[int],
+    row_floor: Sequence[float] | None = None,
 ) -> Estimate:
     """Reconcile: weighted least squares with exact constraints (see the module docstring).
 
@@ -97,6 +98,8 @@ def reconcile_values(
     readings : the readings of the ``measured`` variables, in that order [SI]
     sigma : their covariance Σ [SI²], positive definite
     measured : indices of the measured variables among the n
+    row_floor : per constraint, the sensitivity below which its linearised row is round-off and
+        taken as zero [units of the constraint per standard uncertainty] (default: none)
     """
     x = np.asarray(x_start, dtype=float).copy()
     n = x.size
@@ -104,10 +107,11 @@ def reconcile_values(
     unmeas = np.array([i for i in range(n) if i not in set(meas.tolist())], dtype=int)
     xm = np.asarray(readings, dtype=float)
     L = np.linalg.cholesky(np.asarray(sigma, dtype=float)) if meas.size else np.zeros((0, 0))
+    floor = np.zeros(0) if row_floor is None else np.asarray(row_floor, dtype=float)
     f = residual(x)
     converged, message, iterations = False, "", 0
     for iterations in range(1, MAX_ITERATIONS + 1):  # noqa: B007 - reported after the loop
-        lin = _linearise(jacobian(x), f, x, xm, L, meas, unmeas)
+        lin = _linearise(jacobian(x), f, x, xm, L, meas, unmeas, floor)
         dx = lin.step
         step_size = float(np.max(np.abs(lin.dy), initial=0.0))
         for _ in range(MAX_HALVINGS + 1):
@@ -136,7 +140,7 @@ def reconcile_values(
             f"the solver did not converge in {MAX_ITERATIONS} iterations (tolerance "
             f"{TOLERANCE:g} in standard uncertainties)"
         )
-    lin = _linearise(jacobian(x), f, x, xm, L, meas, unmeas)
+    lin = _linearise(jacobian(x), f, x, xm, L, meas, unmeas, floor)
     y = np.linalg.solve(L, x[meas] - xm) if meas.size else np.zeros(0)
     q = lin.pinv_g @ lin.g if lin.g.size else np.zeros((meas.size, meas.size))
     cov_v = L @ q @ L.T
@@ -195,10 +199,18 @@ def _linearise(
     L: np.ndarray,
     meas: np.ndarray,
     unmeas: np.ndarray,
+    floor: np.ndarray,
 ) -> _Linear:
     A = J[:, meas] @ L if meas.size else np.zeros((J.shape[0], 0))
     z_scale = np.maximum(np.abs(x[unmeas]), 1e-12) if unmeas.size else np.zeros(0)
     B = J[:, unmeas] * z_scale if unmeas.size else np.zeros((J.shape[0], 0))
+    if floor.size:
+        # a row whose sensitivity is round-off (an energy balance of streams in one state,
+        # whose readings enter only through their common enthalpy) carries no information:
+        # scaled by its own norm it would become a full constraint of noise
+        noise = np.hypot(np.linalg.norm(A, axis=1), np.linalg.norm(B, axis=1)) <= floor
+        A, B, f = A.copy(), B.copy(), f.copy()
+        A[noise], B[noise], f[noise] = 0.0, 0.0, 0.0
     scale = np.linalg.norm(A, axis=1)
     b_norm = np.linalg.norm(B, axis=1)
     scale = np.where(scale > 0, scale, np.where(b_norm > 0, b_norm, 1.0))

@@ -175,6 +175,7 @@ class Network:
         self.evaluations = 0
         self._cache: dict[tuple, StreamResult] = {}
         self.last_jacobian: tuple[Any, Any] | None = None  # (x, ∂f/∂x at x), see rounds
+        self.correlations: dict[tuple[int, int], float] = {}  # {(i, j): r}, see correlations
 
     @property
     def x0(self) -> list[float]:
@@ -232,6 +233,24 @@ class Network:
         for result, step in self.steps_at(x, streams, steps):
             found.update(self._step_residuals(result, step, streams))
         return [found.get(c.key, math.nan) for c in self.constraints]
+
+    def magnitudes(self, x: Sequence[float]) -> list[float]:
+        """The size of the terms of each constraint at ``x``, in its unit: the flows of a mass
+        balance's streams [kg/s]; Σ ṁ h in and out plus |Q| and |W| of an energy or duty
+        balance [W] (a vessel's m u and totals [J]). The round-off of a residual is about
+        machine precision times this size."""
+        self.evaluations += 1
+        streams = self.streams_at(x)
+        size: dict[str, float] = {}
+        for result, _ in self.steps_at(x, streams):
+            flows = sum(streams[s].mass_flow for s in [*result.inlets, *result.outlets])
+            energy = abs(result.H_in) + abs(result.H_out) + abs(result.Q) + abs(result.W)
+            size[result.id] = energy
+            size[f"{result.id} flows"] = flows
+        return [
+            size[f"{c.step} flows"] if c.kind == "mass" and size[f"{c.step} flows"] else size[c.step]
+            for c in self.constraints
+        ]
 
     def _step_residuals(
         self, result: StepResult, step: Any, streams: dict[str, StreamResult]

@@ -17,7 +17,7 @@ from audit.model.acceptance import Acceptance
 from audit.model.balance import BalanceInfo, DeadState
 from audit.model.streams import StreamSpec
 from audit.model.tolerances import ToleranceOverrides, Tolerances
-from audit.model.uncertainty import BalanceUncertainty
+from audit.model.uncertainty import BalanceUncertainty, Correlation
 from audit.steps import BALANCE_MODEL, REGISTRY
 
 TITLE = "# Balance file fields"
@@ -110,6 +110,12 @@ def reference_text() -> str:
         *_section("balance.dead_state", DeadState),
         *_section("balance.tolerances", Tolerances),
         *_section("balance.uncertainty", BalanceUncertainty),
+        *_section(
+            "balance.uncertainty.correlations",
+            Correlation,
+            "Each entry of `correlations:`; the reconciliation (`plant-audit reconcile`) builds the "
+            "covariance of the readings from them.",
+        ),
         *_section("streams.<id>", StreamSpec, "Each entry of `streams:`, keyed by the stream id."),
     ]
     for kind, model in sorted(BALANCE_MODEL.step_kinds.items()):
