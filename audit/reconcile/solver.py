@@ -86,7 +86,7 @@ def reconcile_values(
     readings: Sequence[float],
     sigma: np.ndarray,
     measured: Sequence[int],
-    row_floor: Sequence[float] | None = None,
+    row_floor: Sequence[float] | np.ndarray | None = None,
 ) -> Estimate:
     """Reconcile: weighted least squares with exact constraints (see the module docstring).
 
