@@ -157,10 +157,12 @@ def evaluate_step(
     streams: dict[str, StreamResult],
     index: int,
     step: Any = None,
+    residuals_only: bool = False,
 ) -> tuple[StepResult, list[Finding]]:
     """Evaluate step ``index`` of ``balance`` (or ``step``, a changed copy of it) on ``streams``
     through its kind's ``evaluate``, with the balance's tolerances and the step's own overrides.
-    Returns the step's result and its findings."""
+    Returns the step's result and its findings (with ``residuals_only``, those a kind finds
+    without the checks its balances do not need: see :class:`audit.steps.base.StepContext`)."""
     step = balance.steps[index] if step is None else step
     info = balance.balance
     line, _ = document.position(("steps", index))
@@ -171,6 +173,7 @@ def evaluate_step(
         P0=info.dead_state.P,
         tolerances=merged(info.tolerances, step.tolerances),
         line=line,
+        residuals_only=residuals_only,
     )
     result = REGISTRY[step.kind].evaluate(step, ctx)
     return result, ctx.findings

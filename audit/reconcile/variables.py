@@ -211,7 +211,8 @@ class Network:
     def steps_at(
         self, x: Sequence[float], streams: dict[str, StreamResult], only: set[str] | None = None
     ) -> list[tuple[StepResult, Any]]:
-        """The steps (result and claims) re-evaluated on ``streams`` with their claims at ``x``."""
+        """The steps (result and claims) re-evaluated on ``streams`` with their claims at ``x``,
+        for their balances only (``residuals_only``: their other findings are not wanted)."""
         results = []
         for index, step in enumerate(self.runner.balance.steps):
             if only is not None and step.id not in only:
@@ -220,7 +221,7 @@ class Network:
             for i in self.by_step.get(step.id, []):
                 if x[i] != self.variables[i].item.value:
                     changed = with_value(changed, self.variables[i].item.path, float(x[i]))
-            results.append((self.runner.run(index, changed, streams)[0], changed))
+            results.append((self.runner.run(index, changed, streams, True)[0], changed))
         return results
 
     def residuals(self, x: Sequence[float], steps: set[str] | None = None) -> list[float]:

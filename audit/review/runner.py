@@ -49,12 +49,23 @@ class StepRunner:
         )
 
     def run(
-        self, index: int, step: Any = None, streams: dict[str, StreamResult] | None = None
+        self,
+        index: int,
+        step: Any = None,
+        streams: dict[str, StreamResult] | None = None,
+        residuals_only: bool = False,
     ) -> tuple[StepResult, list[Finding]]:
-        """Evaluate step ``index`` (or a changed copy ``step``) with some streams replaced."""
+        """Evaluate step ``index`` (or a changed copy ``step``) with some streams replaced
+        (``residuals_only``: see :func:`audit.solve.evaluate_step`)."""
         self.runs += 1
         return evaluate_step(
-            self.balance, self.document, self.engine, {**self.streams, **(streams or {})}, index, step
+            self.balance,
+            self.document,
+            self.engine,
+            {**self.streams, **(streams or {})},
+            index,
+            step,
+            residuals_only,
         )
 
 

@@ -47,6 +47,9 @@ class StepContext:
     tolerances: Tolerances
     line: int | None = None
     findings: list[Finding] = field(default_factory=list)
+    residuals_only: bool = False
+    """Set by the reconciliation, which needs a step's balances only: a kind may then skip
+    checks that compute nothing its balances use (a heat exchanger's approach profile)."""
 
     def stream(self, stream_id: str) -> StreamResult:
         return self.streams[stream_id]

@@ -172,7 +172,8 @@ def evaluate(step: HeatExchanger, ctx: StepContext) -> StepResult:
             )
         )
         return result
-    _check_temperatures(step, ctx, result, hi, ho, ci, co)
+    if not ctx.residuals_only:
+        _check_temperatures(step, ctx, result, hi, ho, ci, co)
     return result
 
 
