@@ -47,6 +47,7 @@ NAMES: dict[str, str] = {
     "mixer-outlet-pressure": "a mixer outlet above its lowest inlet pressure",
     "stream-unused": "a stream that no step produces or consumes",
     "step-not-evaluated": "a check of the step could not be evaluated",
+    "below-freezing-point": "a liquid solution (brine, glycol) colder than its freezing point",
     "below-dew-point": "a gas mixture with a species above its saturation pressure (it would condense)",
     "element-imbalance": "atoms of an element appear or vanish in a reacting step",
     "species-imbalance": "species flows that the step's written reactions and extents do not explain",
