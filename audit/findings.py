@@ -38,6 +38,12 @@ NAMES: dict[str, str] = {
     "temperature-cross": "heat-exchanger terminal temperatures cross for the arrangement",
     "internal-pinch": "the two sides' temperatures cross inside the exchanger",
     "approach-below-minimum": "the smallest approach temperature is below the stated minimum",
+    "drum-outlets-differ": "a flash drum's vapour and liquid outlets at different pressures or "
+    "temperatures",
+    "drum-outlet-not-saturated": "a flash drum outlet that is not saturated (superheated or wet "
+    "vapour, subcooled or flashing liquid)",
+    "drum-split-off-lever-rule": "a flash drum's vapour flow that differs from the lever rule's "
+    "share of the feed",
     "splitter-state-differs": "a splitter outlet whose state differs from the inlet's",
     "phase-mismatch": "a stream's declared phase differs from the computed phase",
     "printed-property-mismatch": "a printed stream property that its state does not have, beyond the "
