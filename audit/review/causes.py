@@ -26,11 +26,11 @@ every failing step it closes (a stream shared by a valve and an evaporator gets 
 Single slips only; when several close a step, the one that leaves the smallest margin comes first
 (at most :data:`MAX_CAUSES`).
 
-Bound: per failing step at most 7 slips per stream (1 pressure, 1 temperature, 1 fraction basis of
-a solution and 4 flow slips when the file says how each is written, 9 when it does not), each
-re-evaluating the stream's steps (at most two, by the plant topology), plus 3 per claimed power or
-energy, 1 per claimed temperature or pressure and 1 per inlet/outlet pair: at most 18
-re-evaluations per stream, 3 per claim and 1 per pair, and a slip shared by two failing steps is evaluated once.
+Bound: per failing step at most 6 slips per stream (1 pressure, 1 temperature and 4 flow slips when
+the file says how each is written, 8 when it does not), each re-evaluating the stream's steps (at
+most two, by the plant topology), plus 3 per claimed power or energy, 1 per claimed temperature or
+pressure and 1 per inlet/outlet pair: at most 16 re-evaluations per stream, 3 per claim and 1 per
+pair, and a slip shared by two failing steps is evaluated once.
 
 Each re-evaluation costs time in proportion to the step's streams, so the stream slips of a step
 with more than :data:`MAX_SEARCHED_STREAMS` streams (a mixer with thousands of inlets) are not
@@ -50,7 +50,7 @@ from audit.errors import InputError
 from audit.findings import ERROR, MARGINAL, VIOLATED, Finding
 from audit.results import StepResult, StreamResult
 from audit.review.margins import LAW_FINDINGS, Margin, margin_function
-from audit.review.reference_slips import FluidSlip, reference_slips
+from audit.review.reference_slips import FluidSlip, fraction_basis_slips, reference_slips
 from audit.review.runner import StepRunner
 from audit.review.slips import Slip, step_slips, stream_slips
 
@@ -209,7 +209,7 @@ def name_causes(
         # Of the reference slips that close, only those leaving the fewest errors are named (a
         # reference 18 kJ/kg off may still close a loose step but leave a wet suction behind).
         judged = []
-        for fluid_slip in reference_slips(runner):
+        for fluid_slip in [*reference_slips(runner), *fraction_basis_slips(runner)]:
             order += 1
             outcome = _judge_fluid_slip(runner, fluid_slip, failing, by_step_findings)
             if outcome is not None:

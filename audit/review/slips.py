@@ -5,8 +5,7 @@ are:
 
 * on a stream of the step: its pressure read as gauge instead of absolute (P + site pressure) or
   the reverse (P − site pressure), whichever the way it is written allows; its temperature read in
-  °F instead of °C or the reverse; a solution's fraction by mass read for by volume or the reverse
-  (glycols); its flow ×3.6 or ÷3.6 (kg/s and t/h confused) or ×3600 or
+  °F instead of °C or the reverse; its flow ×3.6 or ÷3.6 (kg/s and t/h confused) or ×3600 or
   ÷3600 (kg/s and kg/h);
 * on a claim of the step (the fields its model declares as claims,
   :func:`audit.model.steps.step_claims`): a power or energy ×1000 or ÷1000 (kW and MW, kJ and MJ
@@ -54,7 +53,7 @@ class Slip:
 
     sentence: str
     stream: str | None = None
-    changes: dict[str, Any] = field(default_factory=dict)
+    changes: dict[str, float] = field(default_factory=dict)
     step_index: int | None = None
     step: Any = None
 
@@ -136,18 +135,6 @@ def stream_slips(runner: StepRunner, stream_id: str) -> list[Slip]:
         text = _written(document, ("streams", stream_id, "T"))
         for T, sentence in _temperature_slips(spec.T, text, f"stream {stream_id}'s temperature"):
             slips.append(Slip(sentence, stream=stream_id, changes={"T": T}))
-    if spec.fraction_basis is not None:
-        other = "mass" if spec.fraction_basis == "volume" else "volume"
-        written = _written(document, ("streams", stream_id, "fraction"))
-        shown = f"'{written}'" if written is not None else f"{spec.fraction:.4g}"
-        slips.append(
-            Slip(
-                f"closes if stream {stream_id}'s fraction {shown} is by {other}, not by "
-                f"{spec.fraction_basis}",
-                stream=stream_id,
-                changes={"fraction_basis": other},
-            )
-        )
     text = _written(document, ("streams", stream_id, "flow"))
     shown = f"'{text}'" if text is not None else "as written"
     for factor, size, words in _FLOW_SLIPS:
