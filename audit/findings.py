@@ -24,6 +24,8 @@ NAMES: dict[str, str] = {
     "energy-imbalance": "the first law does not close within tolerance",
     "mass-imbalance": "mass of a fluid appears or vanishes in the step",
     "efficiency-above-one": "isentropic efficiency above 1",
+    "section-efficiency-above-one": "a turbine section between extractions with an isentropic "
+    "efficiency above 1",
     "efficiency-mismatch": "a claimed isentropic efficiency differs from the streams' one",
     "wet-exhaust": "turbine exhaust wetter than the moisture limit",
     "liquid-at-suction": "liquid or two-phase fluid at a compressor suction",
