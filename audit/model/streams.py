@@ -174,7 +174,8 @@ class StreamSpec(StateSpec):
     fluid: str | None = Field(  # type: ignore[assignment]
         None,
         description="CoolProp fluid name, e.g. 'Water', 'Ammonia', 'Air' (or give "
-        "'composition' for a gas mixture)",
+        "'composition' for a gas mixture); or a liquid by its plain name, e.g. 'propylene "
+        "glycol' with 'fraction' (see 'fraction')",
     )
     composition: dict[str, float] | str | None = Field(
         None,
@@ -188,8 +189,11 @@ class StreamSpec(StateSpec):
     fraction: float | None = Field(
         None,
         description="an aqueous solution (brine, glycol): the solute's fraction, 0 to 1 or a "
-        "percentage ('30 %'), with 'fraction_basis'; 'fluid' names the solute in plain words, "
-        "e.g. 'propylene glycol', 'calcium chloride'",
+        "percentage ('30 %'), with 'fraction_basis'; 'fluid' names the solute: ethylene glycol, "
+        "propylene glycol, glycerol, ethanol, methanol, ammonia, calcium chloride, magnesium "
+        "chloride, sodium chloride, lithium chloride, potassium carbonate, potassium acetate, "
+        "potassium formate (Melinder 2010 fits, within their ranges; T and P only). Pure "
+        "heat-transfer liquids take no fraction: diethylbenzene, d-limonene",
     )
     fraction_basis: Literal["mass", "volume"] | None = Field(
         None,
