@@ -341,7 +341,11 @@ def _liquid_state(spec: StreamSpec, engine: PropertyEngine) -> State:
             "as a mass, molar or actual volumetric flow"
         )
     return engine.liquid_state(
-        cast(str, spec.fluid), spec.fraction, spec.fraction_basis, float(spec.T), float(spec.P)
+        cast(str, spec.fluid),
+        spec.fraction,
+        spec.fraction_basis,
+        cast(float, spec.T),
+        cast(float, spec.P),
     )
 
 

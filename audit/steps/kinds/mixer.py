@@ -68,7 +68,7 @@ def evaluate(step: Mixer, ctx: StepContext) -> StepResult:
                 bound=lowest.P,
                 margin=outlet.P - lowest.P,
                 quantity="pressure",
-                **({"stream": outlet.id} if outlet.id == step.vent else {}),
+                stream=outlet.id if outlet.id == step.vent else None,
             )
         )
     return result
