@@ -295,3 +295,12 @@ steps:
     # K (CoolProp's transcription of the fit, class DEBLiquidClass), from 293.15 to 333.15 K.
     expected = 3 * (999.729 * 40 + 2.87576 * (333.15**2 - 293.15**2) / 2)
     assert_close(step.Q, expected, "kW", rtol=2e-3)
+
+
+def test_the_field_reference_names_every_liquid_of_the_allow_list():
+    from audit.model.streams import StreamSpec
+    from audit.properties.liquids import PURE_LIQUIDS, SOLUTIONS
+
+    text = " ".join(str(StreamSpec.model_fields["fraction"].description).split())
+    for name in [*SOLUTIONS, *PURE_LIQUIDS]:
+        assert name in text, name

@@ -15,7 +15,7 @@ from __future__ import annotations
 
 from typing import Annotated, ClassVar, Literal
 
-from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
+from pydantic import BaseModel, ConfigDict, Field, WithJsonSchema, field_validator, model_validator
 
 from audit.model.composition import check_fractions, named_composition
 from audit.model.quantities import (
@@ -186,7 +186,18 @@ class StreamSpec(StateSpec):
     composition_basis: Literal["mole", "mass"] = Field(
         "mole", description="whether the composition gives mole (default) or mass fractions"
     )
-    fraction: float | None = Field(
+    fraction: Annotated[
+        float | None,
+        WithJsonSchema(
+            {
+                "anyOf": [
+                    {"type": "number", "minimum": 0, "maximum": 1},
+                    {"type": "string", "pattern": r"^\s*[0-9]+(\.[0-9]*)?\s*%\s*$"},
+                    {"type": "null"},
+                ]
+            }
+        ),
+    ] = Field(
         None,
         description="an aqueous solution (brine, glycol): the solute's fraction, 0 to 1 or a "
         "percentage ('30 %'), with 'fraction_basis'; 'fluid' names the solute: ethylene glycol, "
