@@ -1,7 +1,8 @@
 """Comparing revisions: the sample plant's clean → seeded revisions, and small edits of them.
 
 What the seeded revision changed is listed in sample_plant/README.md (streams S06, S08, S10, S11,
-S20, S60, S61, S62, S70, S71; T1 and C1 shaft power); the expected findings are computed from two `audit.run` calls.
+S20, S60, S61, S62, S70, S71; T1 and C1 shaft power); the expected findings are computed from two
+`audit.run` calls.
 """
 
 from __future__ import annotations
