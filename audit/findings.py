@@ -24,6 +24,8 @@ NAMES: dict[str, str] = {
     "energy-imbalance": "the first law does not close within tolerance",
     "mass-imbalance": "mass of a fluid appears or vanishes in the step",
     "efficiency-above-one": "isentropic efficiency above 1",
+    "section-efficiency-above-one": "a turbine section between extractions with an isentropic "
+    "efficiency above 1",
     "efficiency-mismatch": "a claimed isentropic efficiency differs from the streams' one",
     "wet-exhaust": "turbine exhaust wetter than the moisture limit",
     "liquid-at-suction": "liquid or two-phase fluid at a compressor suction",
@@ -38,6 +40,12 @@ NAMES: dict[str, str] = {
     "temperature-cross": "heat-exchanger terminal temperatures cross for the arrangement",
     "internal-pinch": "the two sides' temperatures cross inside the exchanger",
     "approach-below-minimum": "the smallest approach temperature is below the stated minimum",
+    "drum-outlets-differ": "a flash drum's vapour and liquid outlets at different pressures or "
+    "temperatures",
+    "drum-outlet-not-saturated": "a flash drum outlet that is not saturated (superheated or wet "
+    "vapour, subcooled or flashing liquid)",
+    "drum-split-off-lever-rule": "a flash drum's vapour flow that differs from the lever rule's "
+    "share of the feed",
     "splitter-state-differs": "a splitter outlet whose state differs from the inlet's",
     "phase-mismatch": "a stream's declared phase differs from the computed phase",
     "printed-property-mismatch": "a printed stream property that its state does not have, beyond the "
@@ -47,6 +55,7 @@ NAMES: dict[str, str] = {
     "mixer-outlet-pressure": "a mixer outlet above its lowest inlet pressure",
     "stream-unused": "a stream that no step produces or consumes",
     "step-not-evaluated": "a check of the step could not be evaluated",
+    "below-freezing-point": "a liquid solution (brine, glycol) colder than its freezing point",
     "below-dew-point": "a gas mixture with a species above its saturation pressure (it would condense)",
     "element-imbalance": "atoms of an element appear or vanish in a reacting step",
     "species-imbalance": "species flows that the step's written reactions and extents do not explain",

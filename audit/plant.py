@@ -1,18 +1,22 @@
 """The plant around the steps: its topology (every stream a step names exists, produced and consumed
-by at most one step, no two steps with one id) and its totals (boundary heat, work, exergy destroyed).
+by at most one step, no two steps with one id), its totals (boundary heat, work, exergy destroyed)
+and the findings on a stream's state alone (a gas mixture below its dew point, a liquid solution
+below its freezing point).
 """
 
 from __future__ import annotations
 
 import difflib
 from collections import defaultdict
-from typing import Any
+from typing import Any, cast
 
 from audit.errors import Problem
-from audit.findings import WARNING, Finding
+from audit.findings import ERROR, WARNING, Finding, relative
 from audit.input.document import Document
 from audit.model.balance import Balance
+from audit.properties.state import State
 from audit.results import PlantTotals, StepResult, StreamResult
+from audit.wording import celsius
 
 
 # -- topology ----------------------------------------------------------------------------------------
@@ -177,3 +181,49 @@ def plant_totals(
         boundary_energy_residual=Q_net - W_net - (energy(boundary_out) - energy(boundary_in)),
         sum_of_step_residuals=sum(s.energy_residual for s in flow_steps),
     )
+
+
+# -- a stream's state alone -----------------------------------------------------------------------
+def freezing_finding(stream_id: str, state: State) -> Finding:
+    """A liquid solution colder than its freezing point: it would be ice slurry, not liquid."""
+    T_f = cast(float, state.below_freezing)
+    return Finding(
+        ERROR,
+        "below-freezing-point",
+        None,
+        f"stream {stream_id} ({state.fluid}) at {celsius(state.T)} is {T_f - state.T:.3g} K below "
+        f"the solution's freezing point ({celsius(T_f)}): it would freeze; a stronger solution "
+        "or a warmer stream is needed (its values here carry the liquid from the freezing point "
+        "at constant heat capacity)",
+        claimed=state.T,
+        bound=T_f,
+        margin=T_f - state.T,
+        quantity="temperature",
+        stream=stream_id,
+    )
+
+
+def dew_point_findings(stream_id: str, state: State) -> list[Finding]:
+    """A gas mixture with a species above its saturation pressure would condense; the ideal-gas
+    mixture model does not, so the stream's values assume a gas that cannot exist."""
+    found = []
+    for formula, partial, p_sat in state.condensing:
+        found.append(
+            Finding(
+                ERROR,
+                "below-dew-point",
+                None,
+                f"stream {stream_id} is below its dew point: the partial pressure of {formula} "
+                f"({partial / 1e3:.4g} kPa) exceeds its saturation pressure at "
+                f"{celsius(state.T)} ({p_sat / 1e3:.4g} kPa), so it would condense; the "
+                "ideal-gas mixture model does not condense: give the condensate as a stream of its "
+                "own and the gas at its dew point or above",
+                claimed=partial,
+                bound=p_sat,
+                margin=partial - p_sat,
+                margin_relative=relative(partial - p_sat, p_sat),
+                quantity="pressure",
+                stream=stream_id,
+            )
+        )
+    return found

@@ -23,13 +23,13 @@ from typing import Any, cast
 
 from audit.clock import reproducible, run_time
 from audit.errors import InputErrors, Problem, StateError
-from audit.findings import ERROR, WARNING, Finding, relative
+from audit.findings import WARNING, Finding
 from audit.input.document import Document
 from audit.model.balance import Balance
 from audit.model.references import FORMULATION_FLUIDS
 from audit.model.streams import StreamSpec
 from audit.model.tolerances import merged
-from audit.plant import check_topology, plant_totals
+from audit.plant import check_topology, dew_point_findings, freezing_finding, plant_totals
 from audit.printed import check_stream
 from audit.properties.engine import BACKEND, GAS_CONSTANT, PropertyEngine, State, coolprop_version
 from audit.results import AuditResult, StepResult, StreamResult
@@ -206,7 +206,11 @@ def to_result(
             "CoolProp": coolprop_version(),
             "property back end": f"{BACKEND} (IAPWS-95 for water)",
             "equations of state": "; ".join(
-                f"{fluid}: {text}" for fluid, text in engine.equations_of_state().items()
+                f"{fluid}: {text}"
+                for fluid, text in {
+                    **engine.equations_of_state(),
+                    **engine.liquid_correlations(),
+                }.items()
             ),
             "Python": platform.python_version(),
             "run at (UTC)": run_time().strftime("%Y-%m-%d %H:%M:%S"),
@@ -244,9 +248,11 @@ def _evaluate_streams(
                     stream=stream_id,
                 )
             )
+        if result.state.below_freezing is not None:
+            findings.append(freezing_finding(stream_id, result.state))
         if result.composition is not None:
             findings.extend(
-                _dew_point_findings(stream_id, engine.state(result.fluid, "TP", result.T, result.P))
+                dew_point_findings(stream_id, engine.state(result.fluid, "TP", result.T, result.P))
             )
     return streams, problems
 
@@ -293,32 +299,6 @@ def _other_formulation(engine: PropertyEngine, fluid: str) -> PropertyEngine | N
     )
 
 
-def _dew_point_findings(stream_id: str, state: State) -> list[Finding]:
-    """A gas mixture with a species above its saturation pressure would condense; the ideal-gas
-    mixture model does not, so the stream's values assume a gas that cannot exist."""
-    found = []
-    for formula, partial, p_sat in state.condensing:
-        found.append(
-            Finding(
-                ERROR,
-                "below-dew-point",
-                None,
-                f"stream {stream_id} is below its dew point: the partial pressure of {formula} "
-                f"({partial / 1e3:.4g} kPa) exceeds its saturation pressure at "
-                f"{celsius(state.T)} ({p_sat / 1e3:.4g} kPa), so it would condense; the "
-                "ideal-gas mixture model does not condense: give the condensate as a stream of its "
-                "own and the gas at its dew point or above",
-                claimed=partial,
-                bound=p_sat,
-                margin=partial - p_sat,
-                margin_relative=relative(partial - p_sat, p_sat),
-                quantity="pressure",
-                stream=stream_id,
-            )
-        )
-    return found
-
-
 def evaluate_stream(
     stream_id: str, spec: StreamSpec, engine: PropertyEngine, line: int | None
 ) -> StreamResult:
@@ -333,6 +313,9 @@ def evaluate_stream(
             mass_flow = spec.flow.value * P_ref * state.molar_mass / (GAS_CONSTANT * T_ref)
         else:
             mass_flow = _mass_flow(spec.flow, state.fluid, state.rho, state.molar_mass, engine)
+    elif spec.fraction is not None or engine.is_liquid(cast(str, spec.fluid)):
+        state = _liquid_state(spec, engine)
+        mass_flow = _mass_flow(spec.flow, state.fluid, state.rho, state.molar_mass, engine)
     else:
         fluid = cast(str, spec.fluid)  # validated: a stream without a composition names its fluid
         state = engine.state(fluid, pair, a, engine.to_tool_basis(fluid, pair, b))
@@ -348,6 +331,24 @@ def evaluate_stream(
         declared_phase=spec.phase,
         description=spec.description,
         line=line,
+    )
+
+
+def _liquid_state(spec: StreamSpec, engine: PropertyEngine) -> State:
+    """A brine, glycol or heat-transfer liquid (:mod:`audit.properties.liquids`), from T and P."""
+    if spec.pair != "TP" or spec.claims() or spec.state_from is not None:
+        raise StateError(f"{spec.fluid} is a liquid of the incompressible library: give T and P only")
+    if spec.flow.basis == "normal_volume":
+        raise StateError(
+            f"a normal or standard volumetric flow is for gases; give the flow of {spec.fluid} "
+            "as a mass, molar or actual volumetric flow"
+        )
+    return engine.liquid_state(
+        cast(str, spec.fluid),
+        spec.fraction,
+        spec.fraction_basis,
+        cast(float, spec.T),
+        cast(float, spec.P),
     )
 
 

@@ -49,6 +49,26 @@ def write_accepted(balance: Path, entries: list[dict]) -> Path:
     return path
 
 
+def every_finding(result) -> list[dict]:
+    """One acceptance per finding of ``result``: by its step, or by its stream (a finding on a
+    stream's state alone, such as a glycol below its freezing point)."""
+    found = dict.fromkeys((f.step, f.name, f.stream) for f in result.findings)
+    return [
+        entry(step, name) if step is not None else stream_entry(str(stream), name)
+        for step, name, stream in found
+    ]
+
+
+def stream_entry(stream: str, finding: str) -> dict:
+    return {
+        "stream": stream,
+        "finding": finding,
+        "reason": "vendor curve pending",
+        "accepted_by": "process lead",
+        "expires": FAR_FUTURE,
+    }
+
+
 def entry(step: str, finding: str, expires: str = FAR_FUTURE, **more: str) -> dict:
     return {
         "step": step,
@@ -86,8 +106,7 @@ def test_accepted_finding_stays_visible_but_no_longer_fails(seeded: Path, plain)
 
 
 def test_all_findings_accepted_passes_the_gate(seeded: Path, plain) -> None:
-    pairs = dict.fromkeys((f.step, f.name) for f in plain.findings)
-    write_accepted(seeded, [entry(step, name) for step, name in pairs])
+    write_accepted(seeded, every_finding(plain))
     result = audit.run(seeded)
     assert plain.fails("error")
     assert not result.fails("error") and not result.fails("warning")
@@ -220,8 +239,7 @@ def test_check_command_passes_when_known_findings_are_accepted(
     seeded: Path, plain, capsys: pytest.CaptureFixture[str]
 ) -> None:
     assert main(["check", str(seeded), "--brief"]) == 1
-    pairs = dict.fromkeys((f.step, f.name) for f in plain.findings)
-    write_accepted(seeded, [entry(step, name) for step, name in pairs])
+    write_accepted(seeded, every_finding(plain))
     capsys.readouterr()
     assert main(["check", str(seeded), "--brief"]) == 0
     out = capsys.readouterr().out
@@ -233,8 +251,7 @@ def test_check_command_passes_when_known_findings_are_accepted(
 def test_check_command_fails_on_a_new_error_beside_accepted_ones(seeded: Path, plain) -> None:
     """The review gate: a revision whose known findings are accepted passes; the same revision
     with one more error fails."""
-    pairs = dict.fromkeys((f.step, f.name) for f in plain.findings)
-    write_accepted(seeded, [entry(step, name) for step, name in pairs])
+    write_accepted(seeded, every_finding(plain))
     assert main(["check", str(seeded), "-q"]) == 0
     text = seeded.read_text(encoding="utf-8")
     # a new error: the pump P1 now claims far less power than it takes (clean in both revisions)

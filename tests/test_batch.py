@@ -311,7 +311,7 @@ def test_batch_command_writes_summary_workbooks_and_junit(
             assert (suite.get("tests"), suite.get("errors")) == ("1", "1")
             assert suite.find("testcase/error").get("type") == "invalid-input"
             continue
-        failing_steps = {f.step for f in result.findings if at_or_above(f.severity, "error")}
+        failing_steps = {f.step or "plant" for f in result.findings if at_or_above(f.severity, "error")}
         assert int(suite.get("tests")) == len(result.steps) + 1
         assert int(suite.get("failures")) == len(failing_steps)
         failed = {

@@ -56,12 +56,12 @@ def test_tables_say_absolute_and_list_the_steps(seeded) -> None:
     assert text.startswith("Streams (pressures absolute)") and "P abs" in text
     assert "Basis of h and s. formation: S01," in text
     steps = step_table(seeded, 100)
-    assert re.search(r"T1\s+turbine\s+0\.0\s+1450\.0\s+263\.1\s+102\.8%\s+2 errors", steps)
+    assert re.search(r"T1\s+turbine\s+0\.0\s+1450\.0\s+249\.7\s+105\.0%\s+3 errors", steps)
     assert re.search(r"V1\s+valve\s+.*\s+ok$", steps, re.MULTILINE)
 
 
 def test_the_verdict_line_is_plain(seeded) -> None:
-    assert findings_summary(seeded, width=100).splitlines()[-1] == "FAIL: 13 errors"
+    assert findings_summary(seeded, width=100).splitlines()[-1] == "FAIL: 18 errors"
     clean = audit.run(SAMPLE / "quillon-bay-clean.yaml")
     assert findings_summary(clean, width=100).splitlines()[-1] == "PASS"
     measured = audit.run(SAMPLE / "quillon-bay-measured.yaml")
@@ -89,7 +89,7 @@ def test_the_command_fits_columns_and_writes_no_colour_when_piped(
     out = capsys.readouterr().out
     assert max(len(line) for line in out.splitlines()) <= 90
     assert "\x1b[" not in out
-    assert out.rstrip().endswith("FAIL: 13 errors")
+    assert out.rstrip().endswith("FAIL: 18 errors")
 
 
 def test_text_from_the_balance_is_made_safe() -> None:

@@ -1,7 +1,8 @@
 """Comparing revisions: the sample plant's clean → seeded revisions, and small edits of them.
 
 What the seeded revision changed is listed in sample_plant/README.md (streams S06, S08, S10, S11,
-S20; T1 and C1 shaft power); the expected findings are computed from two `audit.run` calls.
+S20, S60, S61, S62, S70, S71; T1 and C1 shaft power); the expected findings are computed from two
+`audit.run` calls.
 """
 
 from __future__ import annotations
@@ -68,14 +69,19 @@ def test_changed_streams_and_claims_are_the_seeded_edits(clean, seeded) -> None:
         "S10",
         "S11",
         "S20",
+        "S60",
+        "S61",
+        "S62",
+        "S70",
+        "S71",
     }  # sample_plant/README.md, "what was changed"
     s11 = {c.field: c for c in diff.changes if c.id == "S11"}
     assert {"T", "mass_flow"} <= set(s11)
     assert s11["T"].old == clean.stream("S11").T and s11["T"].new == seeded.stream("S11").T
     assert math.isclose(s11["T"].new - s11["T"].old, 80.0, abs_tol=1e-9)  # 80 → 160 degC
     claims = {(c.id, c.field): c for c in diff.changes if c.where == "step"}
-    # shaft power as written: T1 1.148 MW → 1.45 MW, C1 152.3 kW → 95 kW (work delivered > 0)
-    assert claims["T1", "W"].old == pytest.approx(1.148e6, rel=1e-12)
+    # shaft power as written: T1 1.120 MW → 1.45 MW, C1 152.3 kW → 95 kW (work delivered > 0)
+    assert claims["T1", "W"].old == pytest.approx(1.120e6, rel=1e-12)
     assert claims["T1", "W"].new == pytest.approx(1.45e6, rel=1e-12)
     assert claims["C1", "W"].old == pytest.approx(-152.3e3, rel=1e-12)
     assert claims["C1", "W"].new == pytest.approx(-95e3, rel=1e-12)
@@ -139,7 +145,7 @@ def test_diff_command_prints_and_writes_the_workbook(
     assert main(["diff", str(CLEAN), str(SEEDED), "-o", str(out)]) == EXIT_FINDINGS
     text = capsys.readouterr().out
     assert f"New findings ({len(seeded.findings)}):" in text
-    assert "T1: W 1148 kW → 1450 kW" in text
+    assert "T1: W 1120 kW → 1450 kW" in text
     assert f"Verdict: FAIL ({len(seeded.findings)} new finding(s) at or above 'error'" in text
     assert "not a safety or code-compliance review" in text
     openpyxl = pytest.importorskip("openpyxl")

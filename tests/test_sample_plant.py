@@ -28,6 +28,11 @@ EXPECTED_SEEDED = {
     ("EL1", "input-below-minimum"),
     ("EL1", "power-mismatch"),
     ("EL1", "energy-imbalance"),
+    ("T1", "section-efficiency-above-one"),
+    ("F1", "drum-split-off-lever-rule"),
+    ("F1", "energy-imbalance"),
+    ("F1", "input-below-minimum"),
+    (None, "below-freezing-point"),
 }
 
 
@@ -55,7 +60,10 @@ def test_seeded_margins_match_the_readme():
     # The margins quoted in sample_plant/README.md, to the digits printed there.
     result = audit.run(SAMPLE / "quillon-bay-seeded.yaml")
     by_name = {(f.step, f.name): f for f in result.findings}
-    assert round(by_name[("T1", "work-above-bound")].bound / 1e6, 2) == 1.41
+    assert round(by_name[("T1", "work-above-bound")].bound / 1e6, 2) == 1.38
+    assert round(by_name[("T1", "section-efficiency-above-one")].claimed, 3) == 1.063
+    assert round(by_name[("F1", "drum-split-off-lever-rule")].bound * 3.6, 4) == 0.3915
+    assert round(by_name[(None, "below-freezing-point")].bound - 273.15, 2) == -5.08
     assert round(by_name[("C1", "input-below-minimum")].bound / -1e3, 1) == 123.5
     assert round(by_name[("HX1", "internal-pinch")].margin, 1) == 6.6
     assert round(by_name[("SP1", "mass-imbalance")].margin, 3) == 0.306

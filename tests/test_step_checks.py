@@ -31,7 +31,7 @@ CASES = [
         "efficiency above one",
         "S04: {fluid: Water, T: 186.8 degC",
         "S04: {fluid: Water, quality: 0.97",
-        ("T1", "efficiency-above-one"),
+        ("T1", "section-efficiency-above-one"),  # T1 has an extraction: checked per section
     ),
     (
         "liquid at compressor suction",
@@ -102,7 +102,7 @@ CASES = [
     ),
     (
         "turbine claims more than its exergy drop",
-        "shaft_power: 1.148 MW",
+        "shaft_power: 1.120 MW",
         "shaft_power: 1.45 MW",
         ("T1", "work-above-bound"),
     ),
@@ -116,8 +116,8 @@ CASES = [
     ("claimed boiler duty differs", "duty: 8.30 MW", "duty: 8.60 MW", ("B1", "duty-mismatch")),
     (
         "mass not conserved",
-        "flow: 3.6 t/h, description: to letdown valve",
-        "flow: 3.9 t/h, description: to letdown valve",
+        "flow: 3.1 t/h, description: to letdown valve",
+        "flow: 3.4 t/h, description: to letdown valve",
         ("SP1", "mass-imbalance"),
     ),
     ("vessel heat that cannot be", "added: 458.6 MJ", "added: 400 MJ", ("CIP1", "energy-imbalance")),

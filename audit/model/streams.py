@@ -15,7 +15,7 @@ from __future__ import annotations
 
 from typing import Annotated, ClassVar, Literal
 
-from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
+from pydantic import BaseModel, ConfigDict, Field, WithJsonSchema, field_validator, model_validator
 
 from audit.model.composition import check_fractions, named_composition
 from audit.model.quantities import (
@@ -174,7 +174,8 @@ class StreamSpec(StateSpec):
     fluid: str | None = Field(  # type: ignore[assignment]
         None,
         description="CoolProp fluid name, e.g. 'Water', 'Ammonia', 'Air' (or give "
-        "'composition' for a gas mixture)",
+        "'composition' for a gas mixture); or a liquid by its plain name, e.g. 'propylene "
+        "glycol' with 'fraction' (see 'fraction')",
     )
     composition: dict[str, float] | str | None = Field(
         None,
@@ -184,6 +185,31 @@ class StreamSpec(StateSpec):
     )
     composition_basis: Literal["mole", "mass"] = Field(
         "mole", description="whether the composition gives mole (default) or mass fractions"
+    )
+    fraction: Annotated[
+        float | None,
+        WithJsonSchema(
+            {
+                "anyOf": [
+                    {"type": "number", "minimum": 0, "maximum": 1},
+                    {"type": "string", "pattern": r"^\s*[0-9]+(\.[0-9]*)?\s*%\s*$"},
+                    {"type": "null"},
+                ]
+            }
+        ),
+    ] = Field(
+        None,
+        description="an aqueous solution (brine, glycol): the solute's fraction, 0 to 1 or a "
+        "percentage ('30 %'), with 'fraction_basis'; 'fluid' names the solute: ethylene glycol, "
+        "propylene glycol, glycerol, ethanol, methanol, ammonia, calcium chloride, magnesium "
+        "chloride, sodium chloride, lithium chloride, potassium carbonate, potassium acetate, "
+        "potassium formate (Melinder 2010 fits, within their ranges; T and P only). Pure "
+        "heat-transfer liquids take no fraction: diethylbenzene, d-limonene",
+    )
+    fraction_basis: Literal["mass", "volume"] | None = Field(
+        None,
+        description="whether 'fraction' is by mass or by volume (volume: pure solute and water "
+        "before mixing, at 20 °C; offered for the glycols and glycerol)",
     )
     flow: StreamFlow = Field(description="mass, molar or volumetric flow")
     velocity: Velocity | None = Field(None, description="mean velocity, for kinetic energy")
@@ -221,6 +247,43 @@ class StreamSpec(StateSpec):
         if isinstance(value, str):
             return [part for part in value.replace(",", " ").split() if part]
         return value
+
+    @field_validator("fraction", mode="before")
+    @classmethod
+    def _fraction_number(cls, value: object) -> object:
+        """A fraction is a number from 0 to 1 or a percentage written '30 %'."""
+        if isinstance(value, bool):
+            raise ValueError(f"expected a fraction (0 to 1, or '30 %'), not {value}")
+        if isinstance(value, str) and value.strip().endswith("%"):
+            try:
+                return float(value.strip()[:-1]) / 100.0
+            except ValueError:
+                raise ValueError(f"'{value}' is not a percentage such as '30 %'") from None
+        if isinstance(value, int | float) and not 0.0 <= value <= 1.0:
+            raise ValueError(
+                f"a fraction is a number from 0 to 1; {value} is not (write '{value} %' for a "
+                "percentage)"
+            )
+        return value
+
+    @model_validator(mode="after")
+    def _solution(self) -> StreamSpec:
+        if self.fraction is None and self.fraction_basis is None:
+            return self
+        if self.fraction is None or self.fraction_basis is None:
+            raise ValueError(
+                "a solution gives both 'fraction' and 'fraction_basis' (mass or volume): the "
+                "balance says which"
+            )
+        if not 0.0 <= self.fraction <= 1.0:
+            raise ValueError(f"a fraction is from 0 to 100 %; {self.fraction * 100:g} % is not")
+        if self.fluid is None:
+            raise ValueError("a solution names its solute in 'fluid', e.g. 'propylene glycol'")
+        if self.pair != "TP" or self.claims() or self.state_from is not None:
+            raise ValueError("a liquid solution is written with T and P only")
+        if self.phase not in (None, "liquid"):
+            raise ValueError(f"a liquid solution is a liquid; it cannot be declared {self.phase}")
+        return self
 
     @model_validator(mode="after")
     def _fluid_or_composition(self) -> StreamSpec:

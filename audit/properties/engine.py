@@ -60,6 +60,8 @@ from audit.properties.fluids import (
 )
 from audit.properties.formulations import refine
 from audit.properties.library import CP, coolprop_version
+from audit.properties.liquid_states import LiquidStates
+from audit.properties.liquids import LiquidLibrary
 from audit.properties.mixture_states import MixtureStates
 from audit.properties.state import BASIS_FLUID, BASIS_FORMATION, BASIS_MIXTURE, State
 from audit.wording import to_bar, to_celsius
@@ -76,7 +78,7 @@ __all__ = [
 ]
 
 
-class PropertyEngine(MixtureStates, DeclaredBases):
+class PropertyEngine(MixtureStates, LiquidStates, DeclaredBases):
     """Evaluates and caches stream states for one balance (one dead state, one saturation band).
 
     Parameters
@@ -110,16 +112,19 @@ class PropertyEngine(MixtureStates, DeclaredBases):
         self._tsat: dict[tuple[str, float], float] = {}
         self._mixtures = mixtures.IdealGasMixtures()
         self._mixture_names: dict[str, tuple[mixtures.Component, ...]] = {}
+        self._liquids = LiquidLibrary()
+        self._liquid_names = {}
+        self._liquid_dead = {}
         self._flashes = 0
 
     @property
     def flash_count(self) -> int:
         """Number of CoolProp evaluations so far (pure fluids and mixture species)."""
-        return self._flashes + self._mixtures.flash_count
+        return self._flashes + self._mixtures.flash_count + self._liquids.flash_count
 
     @flash_count.setter
     def flash_count(self, value: int) -> None:
-        self._flashes = value - self._mixtures.flash_count
+        self._flashes = value - self._mixtures.flash_count - self._liquids.flash_count
 
     # -- fluids -------------------------------------------------------------------------------
     def fluid(self, name: str) -> Fluid:
@@ -140,7 +145,7 @@ class PropertyEngine(MixtureStates, DeclaredBases):
     def saturation_temperature(self, fluid: str, P: float) -> float | None:
         """T_sat(P) [K] of a pure fluid, or None above the critical pressure (and for a gas
         mixture, which the engine does not condense)."""
-        if fluid in self._mixture_names:
+        if fluid in self._mixture_names or fluid in self._liquid_names:
             return None
         info = self.fluid(fluid)
         if P >= info.P_crit:
@@ -179,8 +184,11 @@ class PropertyEngine(MixtureStates, DeclaredBases):
         if cached is not None:
             return cached
         components = self._mixture_names.get(fluid)
+        liquid = self._liquid_names.get(fluid)
         if components is not None:
             result = self._mixture_from_pair(components, pair, a, b)
+        elif liquid is not None:
+            result = self._liquid_from_pair(liquid, pair, a, b, table_basis)
         else:
             result = self._evaluate(fluid, pair, a, b, table_basis)
         self._cache[key] = result
@@ -323,6 +331,8 @@ class PropertyEngine(MixtureStates, DeclaredBases):
         if components is not None:
             dead = self._mixtures.state(components, self.dead_T, self.dead_P, check_ideal=False)
             return dead.h, dead.s
+        if fluid in self._liquid_names:
+            return self.liquid_dead_state(fluid)
         return self._dead_state(self.fluid(fluid))
 
     def saturation_pressure(self, fluid: str, T: float) -> float | None:

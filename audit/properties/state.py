@@ -22,7 +22,9 @@ class State:
     the two-phase region), molar_mass [kg/mol]; ``basis`` says whether h, s, u, g, a are on the
     formation basis or the fluid's own reference. A gas mixture also carries its ``composition``
     (mole fractions by formula) and the species that would condense at its state, as (formula,
-    partial pressure [Pa], saturation pressure [Pa]).
+    partial pressure [Pa], saturation pressure [Pa]). A liquid of the incompressible library
+    below its freezing point carries that point [K] in ``below_freezing``
+    (:mod:`audit.properties.liquids`).
     """
 
     fluid: str
@@ -41,3 +43,4 @@ class State:
     basis: str
     composition: tuple[tuple[str, float], ...] | None = None
     condensing: tuple[tuple[str, float, float], ...] = ()
+    below_freezing: float | None = None

@@ -50,7 +50,7 @@ from audit.errors import InputError
 from audit.findings import ERROR, MARGINAL, VIOLATED, Finding
 from audit.results import StepResult, StreamResult
 from audit.review.margins import LAW_FINDINGS, Margin, margin_function
-from audit.review.reference_slips import FluidSlip, reference_slips
+from audit.review.reference_slips import FluidSlip, fraction_basis_slips, reference_slips
 from audit.review.runner import StepRunner
 from audit.review.slips import Slip, step_slips, stream_slips
 
@@ -209,7 +209,7 @@ def name_causes(
         # Of the reference slips that close, only those leaving the fewest errors are named (a
         # reference 18 kJ/kg off may still close a loose step but leave a wet suction behind).
         judged = []
-        for fluid_slip in reference_slips(runner):
+        for fluid_slip in [*reference_slips(runner), *fraction_basis_slips(runner)]:
             order += 1
             outcome = _judge_fluid_slip(runner, fluid_slip, failing, by_step_findings)
             if outcome is not None:

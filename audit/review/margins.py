@@ -47,10 +47,13 @@ def flow_groups(
 ) -> list[tuple[tuple[str, ...], tuple[str, ...]]]:
     """The parts of a step that conserve mass on their own, as (inlets, outlets): each
     inlet/outlet pair when the step pairs its streams one to one with the same fluid (one-stream
-    steps, exchanger sides), else the inlets and outlets of each fluid."""
+    steps, exchanger sides), else the inlets and outlets of each fluid. A mixer's streams are never
+    pairs (a deaerator's vent is no inlet's outlet; :func:`audit.steps.allowances.flow_groups`)."""
     ins, outs = result.inlets, result.outlets
-    if len(ins) == len(outs) and all(
-        streams[i].fluid == streams[o].fluid for i, o in zip(ins, outs, strict=True)
+    if (
+        result.kind != "mixer"
+        and len(ins) == len(outs)
+        and all(streams[i].fluid == streams[o].fluid for i, o in zip(ins, outs, strict=True))
     ):
         return [((i,), (o,)) for i, o in zip(ins, outs, strict=True)]
     by_fluid: dict[str, tuple[list[str], list[str]]] = defaultdict(lambda: ([], []))

@@ -6,11 +6,16 @@ the differences between two references (:mod:`audit.model.references`). Undone, 
 every stream of the fluid whose state is fixed by h or s (a state fixed by T, P or quality does
 not depend on the reference); :mod:`audit.review.causes` names it when that closes every failing
 step the fluid passes through and breaks none.
+
+The fraction-basis slip is its kin for a liquid solution (:mod:`audit.properties.liquids`): a glycol
+fraction written by volume when it was by mass, or the reverse, on every stream of that liquid;
+undone, every such stream is re-evaluated with the other basis (:func:`fraction_basis_slips`).
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import Any
 
 from audit.errors import StateError
 from audit.model.references import NAMED_REFERENCES, for_fluid
@@ -26,7 +31,7 @@ class FluidSlip:
 
     sentence: str
     fluid: str
-    changes: dict[str, dict[str, float]] = field(default_factory=dict)
+    changes: dict[str, dict[str, Any]] = field(default_factory=dict)
 
 
 def reference_slips(runner: StepRunner) -> list[FluidSlip]:
@@ -71,4 +76,24 @@ def reference_slips(runner: StepRunner) -> list[FluidSlip]:
                 f"from the tool's basis; declare 'reference: {{{fluid}: {name}}}' under 'balance:'"
             )
             slips.append(FluidSlip(sentence, fluid, changes))
+    return slips
+
+
+def fraction_basis_slips(runner: StepRunner) -> list[FluidSlip]:
+    """One slip per liquid solution whose fraction is written with a basis: the other basis (by
+    mass for by volume, and the reverse) on every stream of that liquid."""
+    by_liquid: dict[str, list[str]] = {}
+    for stream_id, spec in runner.balance.streams.items():
+        if spec.fraction_basis is not None:
+            by_liquid.setdefault(runner.streams[stream_id].fluid, []).append(stream_id)
+    slips = []
+    for fluid, stream_ids in by_liquid.items():
+        written = runner.balance.streams[stream_ids[0]].fraction_basis
+        other = "mass" if written == "volume" else "volume"
+        changes: dict[str, dict[str, Any]] = {sid: {"fraction_basis": other} for sid in stream_ids}
+        sentence = (
+            f"closes if the fraction of {fluid} is by {other}, not by {written} "
+            f"(streams {', '.join(stream_ids)})"
+        )
+        slips.append(FluidSlip(sentence, fluid, changes))
     return slips

@@ -38,8 +38,9 @@ class StepRunner:
                 self.users[stream_id].append(i)
         self.runs = 0
 
-    def stream(self, stream_id: str, changes: dict[str, float]) -> StreamResult:
-        """The stream re-evaluated with some of its inputs (T, P, quality, h, s, flow) changed."""
+    def stream(self, stream_id: str, changes: dict[str, Any]) -> StreamResult:
+        """The stream re-evaluated with some of its inputs (T, P, quality, h, s, flow, a solution's
+        fraction basis) changed."""
         spec = self.balance.streams[stream_id]
         update: dict[str, Any] = {}
         for name, value in changes.items():

@@ -121,13 +121,16 @@ def allowances(
 
 
 def flow_groups(
-    inlets: Sequence[StreamResult], outlets: Sequence[StreamResult]
+    inlets: Sequence[StreamResult], outlets: Sequence[StreamResult], paired: bool = True
 ) -> list[tuple[list[StreamResult], list[StreamResult]]]:
     """The parts of a step that conserve mass on their own, as (inlets, outlets): each
     inlet/outlet pair when the step pairs its streams one to one with the same fluid (one-stream
-    steps, exchanger sides), else the inlets and outlets of each fluid."""
-    if len(inlets) == len(outlets) and all(
-        i.fluid == o.fluid for i, o in zip(inlets, outlets, strict=True)
+    steps, exchanger sides) and ``paired`` (a mixer is not: its vent is no inlet's outlet), else the
+    inlets and outlets of each fluid."""
+    if (
+        paired
+        and len(inlets) == len(outlets)
+        and all(i.fluid == o.fluid for i, o in zip(inlets, outlets, strict=True))
     ):
         return [([i], [o]) for i, o in zip(inlets, outlets, strict=True)]
     by_fluid: dict[str, tuple[list[StreamResult], list[StreamResult]]] = defaultdict(lambda: ([], []))
@@ -139,7 +142,7 @@ def flow_groups(
 
 
 def reference_shift(
-    inlets: Sequence[StreamResult], outlets: Sequence[StreamResult]
+    inlets: Sequence[StreamResult], outlets: Sequence[StreamResult], paired: bool = True
 ) -> tuple[float, float]:
     """(Σ Δṁ_g h_ref,g [W], Σ Δṁ_g s_ref,g [W/K]) over the groups of :func:`flow_groups` that
     have both inlets and outlets, Δṁ_g being the group's mass residual (in − out) [kg/s] and
@@ -147,7 +150,7 @@ def reference_shift(
     group's reference is the residual minus the first term; the entropy generation plus the
     second; the work-bound margin plus the first minus T0 times the second."""
     dH = dS = 0.0
-    for ins, outs in flow_groups(inlets, outlets):
+    for ins, outs in flow_groups(inlets, outlets, paired):
         if not ins or not outs:
             continue  # a fluid that only enters or only leaves (it reacts): taken as measured
         change = sum(s.mass_flow for s in ins) - sum(s.mass_flow for s in outs)

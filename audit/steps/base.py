@@ -114,6 +114,7 @@ def finish_flow_step(
     notes: Sequence[str] = (),
     check_mass: bool = True,
     energy_scale_floor: float = 0.0,
+    paired: bool = True,
 ) -> tuple[StepResult, Balance]:
     """Apply the laws to a flow step and build its :class:`StepResult` (kind checks come after).
 
@@ -123,6 +124,8 @@ def finish_flow_step(
 
     ``energy_scale_floor`` [W] raises the scale of the relative energy tolerance where the streams'
     own turnover misses the step's largest energy term (a reacting step's heat of reaction).
+    ``paired=False`` says that equal numbers of inlets and outlets are not pairs (a mixer with a
+    vent; :func:`audit.steps.allowances.flow_groups`).
     """
     tol = ctx.tolerances
     T_iso = isothermal_temperature([s.T for s in (*inlets, *outlets)], heat_flows, tol.isothermal_band)
@@ -157,7 +160,7 @@ def finish_flow_step(
         energy_finding=energy_finding,
         check_mass=check_mass,
         allowance=allowance,
-        shift=reference_shift(inlets, outlets),
+        shift=reference_shift(inlets, outlets, paired),
     ):
         ctx.add(finding)
     result = StepResult(

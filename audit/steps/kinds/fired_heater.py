@@ -3,7 +3,9 @@ fluid); the fuel, air and flue gas are on the formation basis, so the first law 
 accounts for the heat of combustion without a heating value.
 
 Claims: the streams ``fuel``, ``air`` (combustion air), ``flue_gas`` and the ``heated`` side
-(``inlet``, ``outlet``); ``duty`` (optional) is the heat the heated side receives; ``heat_loss``
+(``inlet``, ``outlet`` and, for a boiler, ``blowdown``: the drum water drawn off, a second outlet of
+the heated side); ``duty`` (optional) is the heat the heated side receives (into the steam and the
+blowdown); ``heat_loss``
 (default 0) is the casing and radiation loss, at ``heat_loss_temperature`` if known; ``fuel_lhv``
 or ``fuel_hhv`` (optional) is a claimed heating value of the fuel, per kg (``"47.0 MJ/kg"``), per
 mole (``"802 kJ/mol"``) or per normal or standard cubic metre (``"35.9 MJ/Nm3"``, ``"37.7
@@ -116,6 +118,12 @@ class HeatedSide(BaseModel):
 
     inlet: str
     outlet: str
+    blowdown: str | None = Field(
+        None, description="a boiler's blowdown: drum water drawn off (a second outlet of the side)"
+    )
+
+    def outlets(self) -> list[str]:
+        return [self.outlet] if self.blowdown is None else [self.outlet, self.blowdown]
 
 
 class FiredHeater(StepBase):
@@ -131,7 +139,7 @@ class FiredHeater(StepBase):
     fuel_hhv: HeatingValue | None = Field(None, description="claimed higher heating value")
 
     def stream_ids(self) -> tuple[list[str], list[str]]:
-        return [self.fuel, self.air, self.heated.inlet], [self.flue_gas, self.heated.outlet]
+        return [self.fuel, self.air, self.heated.inlet], [self.flue_gas, *self.heated.outlets()]
 
 
 def evaluate(step: FiredHeater, ctx: StepContext) -> StepResult:
@@ -146,10 +154,11 @@ def evaluate(step: FiredHeater, ctx: StepContext) -> StepResult:
     loss is Q < 0; no work.
     """
     fuel, air, flue = ctx.stream(step.fuel), ctx.stream(step.air), ctx.stream(step.flue_gas)
-    hin, hout = ctx.stream(step.heated.inlet), ctx.stream(step.heated.outlet)
+    hin = ctx.stream(step.heated.inlet)
+    side = [ctx.stream(s) for s in step.heated.outlets()]
     tol = ctx.tolerances
     elements, residuals = element_findings(step.id, ctx, [fuel, air], [flue])
-    problems = elements + _side_findings(step.id, ctx, hin, hout)
+    problems = elements + _side_findings(step.id, ctx, hin, side)
 
     fuel_species = species_flows(fuel)
     values = heating_values(ctx.engine, fuel_species)
@@ -159,7 +168,7 @@ def evaluate(step: FiredHeater, ctx: StepContext) -> StepResult:
         step.heat_loss,
         step.heat_loss_temperature,
         ctx.T0,
-        min(s.T for s in (fuel, air, flue, hin, hout)),
+        min(s.T for s in (fuel, air, flue, hin, *side)),
     )
     claimed = ["heat_loss" if step.heat_loss is not None else "no heat loss", "no work"]
     claimed += [name for name in ("duty", "fuel_lhv", "fuel_hhv") if getattr(step, name) is not None]
@@ -168,7 +177,7 @@ def evaluate(step: FiredHeater, ctx: StepContext) -> StepResult:
         "fired_heater",
         ctx,
         [fuel, air, hin],
-        [flue, hout],
+        [flue, *side],
         heat,
         0.0,
         claimed,
@@ -177,7 +186,7 @@ def evaluate(step: FiredHeater, ctx: StepContext) -> StepResult:
         energy_scale_floor=input_lhv,
     )
 
-    received = hout.mass_flow * (hout.h + hout.kinetic_potential) - hin.mass_flow * (
+    received = sum(s.mass_flow * (s.h + s.kinetic_potential) for s in side) - hin.mass_flow * (
         hin.h + hin.kinetic_potential
     )
     oxygen = species_flows(air).get("O2", 0.0) + fuel_species.get("O2", 0.0)
@@ -203,7 +212,8 @@ def evaluate(step: FiredHeater, ctx: StepContext) -> StepResult:
                 "duty-mismatch",
                 step.id,
                 f"the claimed duty {format_power(step.duty)} differs from the "
-                f"{format_power(received)} the heated side ({hin.id} → {hout.id}) receives, by "
+                f"{format_power(received)} the heated side ({hin.id} → "
+                f"{', '.join(s.id for s in side)}) receives, by "
                 f"{format_power(abs(gap))} (tolerance {format_power(result.energy_tolerance)})",
                 claimed=step.duty,
                 bound=received,
@@ -240,21 +250,23 @@ def evaluate(step: FiredHeater, ctx: StepContext) -> StepResult:
 
 
 def _side_findings(
-    step_id: str, ctx: StepContext, inlet: StreamResult, outlet: StreamResult
+    step_id: str, ctx: StepContext, inlet: StreamResult, outlets: list[StreamResult]
 ) -> list[Finding]:
     found = []
-    if inlet.fluid != outlet.fluid:
-        found.append(
-            Finding(
-                ERROR,
-                "side-changes-fluid",
-                step_id,
-                f"the heated side enters as {inlet.fluid} ({inlet.id}) and leaves as {outlet.fluid} "
-                f"({outlet.id}); it keeps its own fluid",
+    for outlet in outlets:
+        if inlet.fluid != outlet.fluid:
+            found.append(
+                Finding(
+                    ERROR,
+                    "side-changes-fluid",
+                    step_id,
+                    f"the heated side enters as {inlet.fluid} ({inlet.id}) and leaves as "
+                    f"{outlet.fluid} ({outlet.id}); it keeps its own fluid",
+                )
             )
-        )
     tol = ctx.tolerances
-    residual = inlet.mass_flow - outlet.mass_flow
+    leaving = sum(s.mass_flow for s in outlets)
+    residual = inlet.mass_flow - leaving
     mass_tol = max(tol.mass_relative * inlet.mass_flow, tol.mass_absolute)
     if abs(residual) > mass_tol:
         found.append(
@@ -263,7 +275,7 @@ def _side_findings(
                 "mass-imbalance",
                 step_id,
                 f"the heated side enters with {inlet.mass_flow:.4g} kg/s ({inlet.id}) and leaves with "
-                f"{outlet.mass_flow:.4g} kg/s ({outlet.id})",
+                f"{leaving:.4g} kg/s ({', '.join(s.id for s in outlets)})",
                 claimed=residual,
                 bound=0.0,
                 margin=abs(residual),
