@@ -12,13 +12,16 @@ imports it with ``COOLPROP_DISABLE_SUPERANCILLARIES_ENTIRELY`` (CoolProp's own e
 read when each fluid is added to its library) set for the import alone, and :func:`new_state`
 adds a fluid's own equation of state again, with its expansions, before the first state object of
 that fluid is made. A fluid's expansions then cost about 40 ms instead of 3.5 s for all of them,
-and every number is the one the fully loaded library gives (the sample plant's JSON, the IAPWS and
-reference tests are unchanged bit for bit; see DEVELOPERS.md).
+and every number is the one the fully loaded library gives, bit for bit (the sample plants' JSON,
+the IAPWS and reference tests; ``tests/test_start_up.py`` compares saturation states with CoolProp
+loaded whole).
 
-When the user has set the switch, no expansions are built at all (saturation states are then found
-by iteration: the sample plant's results agree to about 1e-12 relative, saturation pressures near
-a triple point to 3e-8; CO2 below its triple point is refused instead of extrapolated). The notice
-CoolProp writes to the standard output at load is kept out of the program's own output.
+When the user has set the switch, no expansions are built at all and saturation states are found
+by iteration: the sample plants' results then move by up to 1.2e-9 relative (a step's enthalpy
+change, a difference of large flows; most values by about 1e-12), and some calls outside the
+fluid's range answer differently (a (P, Q) state of CO2 below its triple-point pressure is refused
+instead of extrapolated). The notice CoolProp writes to the standard output at load is kept out of
+the program's own output.
 """
 
 from __future__ import annotations
