@@ -35,8 +35,6 @@ from audit.review.acceptance import (
     load_beside,
     refuse_contradictions,
 )
-from audit.review.passes import review
-from audit.solve import solve, to_result
 
 
 @dataclass
@@ -112,6 +110,10 @@ def audit_balance(
     """Solve a validated balance (:func:`audit.solve.solve`), then review its findings
     (:func:`audit.review.passes.review`: verdicts with uncertainty and rounding, probable
     causes). ``monte_carlo`` > 0 cross-checks the uncertainties with that many draws per step."""
+    # loaded here, once the file is read and valid: a refused input is answered without them
+    from audit.review.passes import review
+    from audit.solve import solve, to_result
+
     solution = solve(balance, document)
     findings, notes = review(solution, monte_carlo_trials=monte_carlo)
     return to_result(solution, findings, notes, sha256=sha256)

@@ -3,6 +3,7 @@ load-time notice kept out of the output when its superancillary switch is set.""
 
 from __future__ import annotations
 
+import json
 import os
 import subprocess
 import sys
@@ -63,3 +64,45 @@ def test_superancillary_switch_keeps_the_notice_out_of_the_output(tmp_path):
     assert done.returncode == 0
     assert "superancillaries" not in done.stdout + done.stderr
     assert done.stdout.strip().endswith("PASS")
+
+
+_SATURATION = """
+import json, sys
+if sys.argv[1] == "audit":
+    from audit.properties.library import CP, new_state
+else:
+    import CoolProp.CoolProp as CP
+
+    def new_state(backend, name):
+        return CP.AbstractState(backend, name)
+
+values = []
+for fluid in ("Water", "CO2", "Ammonia", "Nitrogen"):
+    state = new_state("HEOS", fluid)
+    for fraction in (0.3, 0.6, 0.9, 0.99):
+        T = state.Ttriple() + fraction * (state.T_critical() - state.Ttriple())
+        for quality in (0, 1):
+            state.update(CP.QT_INPUTS, quality, T)
+            values += [state.p(), state.rhomolar(), state.hmass(), state.smass()]
+    state.update(CP.PT_INPUTS, 101325.0, 300.0)
+    values += [state.hmass(), state.smass()]
+print(json.dumps(values))
+"""
+
+
+def _saturation_values(how: str) -> list[float]:
+    done = subprocess.run(
+        [sys.executable, "-c", _SATURATION, how],
+        capture_output=True,
+        text=True,
+        env={**os.environ, "PYTHONPATH": os.pathsep.join(sys.path)},
+        check=True,
+    )
+    return json.loads(done.stdout.strip().splitlines()[-1])
+
+
+def test_expansions_per_fluid_give_the_fully_loaded_library_numbers():
+    # CoolProp itself, loaded whole (every fluid's saturation expansions built at load), is the
+    # reference: the property layer, which builds them for the fluids it opens only, must give
+    # the same saturation and single-phase states bit for bit.
+    assert _saturation_values("audit") == _saturation_values("whole")

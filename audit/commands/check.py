@@ -114,7 +114,6 @@ def _draws(text: str) -> int:
 def run(args: argparse.Namespace) -> int:
     from audit.api import Inputs
     from audit.api import run as audit_file
-    from audit.report.console import colour_wanted, findings_summary, step_table, stream_table
 
     configured(args)
     outputs = planned_outputs(args)
@@ -153,6 +152,8 @@ def run(args: argparse.Namespace) -> int:
     assert result is not None
     if json_text is not None:
         sys.stdout.write(json_text)
+    from audit.report.console import colour_wanted, findings_summary, step_table, stream_table
+
     failed = result.fails(args.fail_on, marginal=args.fail_on_marginal)
     console = _console(json_text)
     if args.quiet:

@@ -17,7 +17,7 @@ from audit.constants import GAS_CONSTANT, P_STANDARD, T_STANDARD
 from audit.errors import StateError
 from audit.formation import species
 from audit.properties.formulations import open_state
-from audit.properties.library import CP
+from audit.properties.library import CP, new_state
 from audit.properties.state import BASIS_FLUID, BASIS_FORMATION
 from audit.wording import to_bar, to_celsius
 
@@ -86,7 +86,7 @@ def open_fluid(
     if not PAIRS:
         _fill_codes()
     try:
-        state = CP.AbstractState(BACKEND, name)
+        state = new_state(BACKEND, name)
     except ValueError:
         if name.strip().lower() in WATER_NAMES:
             raise StateError(

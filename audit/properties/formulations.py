@@ -22,7 +22,7 @@ from __future__ import annotations
 
 from audit.errors import StateError
 from audit.model.references import FORMULATION_FLUIDS
-from audit.properties.library import CP
+from audit.properties.library import CP, new_state
 
 BACKENDS = {"reference": "HEOS", "IF97": "IF97"}
 """CoolProp back end of each formulation."""
@@ -52,7 +52,7 @@ def open_state(name: str, formulation: str) -> CP.AbstractState:
             f"the formulation {formulation} exists for "
             f"{', '.join(sorted(FORMULATION_FLUIDS.get(formulation, ())))} only, not for {name}"
         )
-    return CP.AbstractState(BACKENDS[formulation], name)
+    return new_state(BACKENDS[formulation], name)
 
 
 def citation(name: str, formulation: str) -> str:

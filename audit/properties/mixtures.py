@@ -55,7 +55,7 @@ from audit.constants import GAS_CONSTANT, P_STANDARD, T_STANDARD
 from audit.errors import StateError
 from audit.formation import SPECIES, lookup
 from audit.model.composition import check_fractions
-from audit.properties.library import CP
+from audit.properties.library import CP, new_state
 from audit.wording import to_bar, to_celsius
 
 BACKEND = "HEOS"
@@ -270,7 +270,7 @@ class IdealGasMixtures:
     def _state(self, fluid: str) -> CP.AbstractState:
         state = self._states.get(fluid)
         if state is None:
-            state = CP.AbstractState(BACKEND, fluid)
+            state = new_state(BACKEND, fluid)
             self._states[fluid] = state
         return state
 

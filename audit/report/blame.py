@@ -25,8 +25,12 @@ def blamed_streams(result: AuditResult) -> dict[str, list[str]]:
 
 def blamed_text(result: AuditResult, stream_id: str) -> str | None:
     """'none of its own; a probable cause of findings at step R1, step EV1' for a blamed stream,
-    None for the others."""
-    places = blamed_streams(result).get(stream_id)
+    None for the others (for many streams: :func:`blamed_streams` once, then :func:`blame_note`)."""
+    return blame_note(blamed_streams(result).get(stream_id))
+
+
+def blame_note(places: list[str] | None) -> str | None:
+    """The text of :func:`blamed_text` for a stream blamed at ``places`` (None: not blamed)."""
     if not places:
         return None
     return "none of its own; a probable cause of findings at " + ", ".join(places)

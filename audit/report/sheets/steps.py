@@ -50,6 +50,14 @@ def _format(column: Column, quantity: str | None) -> str | None:
     return FORMATS[quantity] if quantity else None
 
 
+def _plan(column: Column, batch: bool) -> tuple[Column, str | None, str | None]:
+    """A column with its quantity and number format on a flow step's row or a vessel's."""
+    quantity = column.quantity
+    if batch and quantity in VESSEL_QUANTITY:
+        quantity = VESSEL_QUANTITY[quantity]
+    return column, quantity, _format(column, quantity)
+
+
 def write(book: Book) -> None:
     sh = book.sheets[STEPS]
     columns = COLUMNS.sheet_columns()
@@ -57,15 +65,13 @@ def write(book: Book) -> None:
     for key, width in WIDTHS.items():
         sh.fix(COLUMNS.sheet_order.index(key) + 1, width)
     letter = {c.key: column_letter(index) for index, c in enumerate(columns, start=1)}
+    # each column's quantity and number format, for flow steps and for vessels (batch steps)
+    plans = {batch: [_plan(c, batch) for c in columns] for batch in (False, True)}
     for row, s in enumerate(book.result.steps, start=2):
         worst_severity = worst(book.result.findings_for(s.id))
         fill = FILLS[worst_severity] if worst_severity else None
-        for col, column in enumerate(columns, start=1):
+        for col, (column, quantity, fmt) in enumerate(plans[s.batch], start=1):
             key = column.key
-            quantity = column.quantity
-            if s.batch and quantity in VESSEL_QUANTITY:
-                quantity = VESSEL_QUANTITY[quantity]
-            fmt = _format(column, quantity)
             if key == "id":
                 sh.put(row, col, s.id, fill=fill, font=BOLD if worst_severity == ERROR else PLAIN)
             elif key == "findings":

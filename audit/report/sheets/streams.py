@@ -5,7 +5,7 @@ link to their rows."""
 from __future__ import annotations
 
 from audit.findings import Finding
-from audit.report.blame import blamed_text
+from audit.report.blame import blame_note, blamed_streams
 from audit.report.columns import STREAMS as COLUMNS
 from audit.report.sheets.context import FINDINGS, STEPS, STREAMS, Book, cell_value, marker, worst
 from audit.report.workbook_cells import FILLS, FORMATS, location
@@ -22,6 +22,7 @@ def write(book: Book) -> None:
     steps = book.result.steps
     producer = {o: s.id for s in steps for o in s.outlets}
     consumer = {i: s.id for s in steps for i in s.inlets}
+    blamed = blamed_streams(book.result)
     stream_findings: dict[str, list[Finding]] = {}
     for f in book.result.findings:
         if f.stream:
@@ -43,7 +44,7 @@ def write(book: Book) -> None:
                         link=location(FINDINGS, book.first_finding_row[("stream", s.id)]),
                     )
                 else:
-                    sh.put(row, col, blamed_text(book.result, s.id) or "none")
+                    sh.put(row, col, blame_note(blamed.get(s.id)) or "none")
             elif key in ("from_step", "to_step"):
                 step_id = (producer if key == "from_step" else consumer).get(s.id)
                 if step_id:
