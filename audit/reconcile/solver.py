@@ -242,8 +242,10 @@ def _linearise(
         step[meas] = L @ dy
     b_pinv = np.linalg.pinv(B, rcond=RANK_TOLERANCE) if unmeas.size else np.zeros((0, A.shape[0]))
     if unmeas.size:
+        # the minimum-norm step: it closes every balance, also those holding unobservable
+        # quantities (whose values the balances do not fix: they are reported as unobservable,
+        # with no value, and never enter the statistics)
         dw = b_pinv @ (-fs - A @ dy)
-        dw[~observable] = 0.0
         step[unmeas] = dw * z_scale
     return _Linear(
         a=A,
