@@ -52,6 +52,7 @@ from typing import Any, BinaryIO
 from audit.findings import SEVERITY_RANK
 from audit.report import workbook_file
 from audit.report.files import write_atomically
+from audit.report.printing import set_up_page
 from audit.report.sheets import exergy, findings, heat, method, overview, steps, streams
 from audit.report.sheets.context import (
     EXERGY,
@@ -85,14 +86,6 @@ __all__ = [
 WRITERS = (overview, findings, steps, streams, heat, exergy, method)
 """The sheet modules, in the order of :data:`SHEETS`."""
 
-WIDE = {FINDINGS: "A:C", STEPS: "A:A", STREAMS: "A:A"}
-"""The wide tables, printed across pages with these id columns on every page."""
-
-
-PAPER_A4 = 9
-"""The paper size code of A4."""
-
-
 def measure(result: AuditResult, fail_on: str = "error") -> dict[str, Layout]:
     """The first pass: every sheet's column widths, row heights and column styles."""
     book = Book(result, fail_on)
@@ -107,19 +100,11 @@ def build(result: AuditResult, fail_on: str, wb: Any, layouts: dict[str, Layout]
     book = Book(result, fail_on, wb, layouts)
     for module in WRITERS:
         module.write(book)
-    for title, sheet in book.sheets.items():
-        # Printed landscape; the narrow sheets one page wide, the wide tables (Findings,
-        # Steps, Streams) across pages with the header row and the id columns on every page.
-        ws = sheet.ws
-        ws.set_landscape()
-        ws.set_paper(PAPER_A4)
-        if sheet.header_titles:
-            ws.repeat_rows(sheet.header_row - 1)
-        if title in WIDE:
-            ws.repeat_columns(WIDE[title])
-            ws.set_print_scale(60)
-        else:
-            ws.fit_to_pages(1, 0)
+    result = book.result
+    for sheet in book.sheets.values():
+        # Landscape A4, one page wide, the header row on every page (audit.report.printing).
+        header_row = sheet.header_row if sheet.header_titles else 0
+        set_up_page(sheet.ws, "plant-audit findings", result.name, result.revision, header_row)
     return book
 
 

@@ -74,6 +74,8 @@ FORMATS = {
     "mass": "#,##0.000",
     "velocity": "0.00",
     "elevation": "0.00",
+    "voltage": "0.000",
+    "current": "0.00",
 }
 PERCENT = "0.0%"
 INTEGER = "0"

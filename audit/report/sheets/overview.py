@@ -150,7 +150,8 @@ def write(book: Book) -> None:
 
     section("Run")
     for key, text in r.provenance.items():
-        item(key, number_or_text(text))
+        value = number_or_text(text)
+        item(key, value, fmt="0.000" if isinstance(value, float) else None)
 
     section("Sheets")
     for title, what in SHEET_GUIDE:
