@@ -10,6 +10,8 @@ Sheets, in this order:
   same row that hold Q, W and the enthalpy flows in and out, beside the solver's own residual;
 * **Streams**: every stream's state and flow;
 * **Heat flows**: every heat flow across a step's boundary, with its boundary temperature;
+* **Exchangers**: per heat exchanger its duty, approaches, LMTD and smallest approach, and a T–Q
+  chart of both sides with the smallest approach marked;
 * **Exergy losses**: exergy destroyed per flow step, largest first, and a bar chart of it;
 * **Method**: sign convention, equations, tolerances and the published sources.
 
@@ -53,8 +55,18 @@ from audit.findings import SEVERITY_RANK
 from audit.report import workbook_file
 from audit.report.files import write_atomically
 from audit.report.printing import set_up_page
-from audit.report.sheets import exergy, findings, heat, method, overview, steps, streams
+from audit.report.sheets import (
+    exchangers,
+    exergy,
+    findings,
+    heat,
+    method,
+    overview,
+    steps,
+    streams,
+)
 from audit.report.sheets.context import (
+    EXCHANGERS,
     EXERGY,
     FINDINGS,
     HEAT,
@@ -70,6 +82,7 @@ from audit.report.workbook_cells import Layout, safe_text
 from audit.results import AuditResult
 
 __all__ = [
+    "EXCHANGERS",
     "EXERGY",
     "FINDINGS",
     "HEAT",
@@ -83,8 +96,9 @@ __all__ = [
     "write_workbook",
 ]
 
-WRITERS = (overview, findings, steps, streams, heat, exergy, method)
+WRITERS = (overview, findings, steps, streams, heat, exchangers, exergy, method)
 """The sheet modules, in the order of :data:`SHEETS`."""
+
 
 def measure(result: AuditResult, fail_on: str = "error") -> dict[str, Layout]:
     """The first pass: every sheet's column widths, row heights and column styles."""
@@ -101,9 +115,10 @@ def build(result: AuditResult, fail_on: str, wb: Any, layouts: dict[str, Layout]
     for module in WRITERS:
         module.write(book)
     result = book.result
-    for sheet in book.sheets.values():
+    for title, sheet in book.sheets.items():
         # Landscape A4, one page wide, the header row on every page (audit.report.printing).
-        header_row = sheet.header_row if sheet.header_titles else 0
+        # (the Exchangers sheet's blocks below its table have headers of their own)
+        header_row = sheet.header_row if sheet.header_titles and title != EXCHANGERS else 0
         set_up_page(sheet.ws, "plant-audit findings", result.name, result.revision, header_row)
     return book
 

@@ -9,6 +9,7 @@ from typing import Any
 from audit.findings import ERROR, SEVERITY_RANK
 from audit.report.display import shown, unit
 from audit.report.sheets.context import (
+    EXCHANGERS,
     EXERGY,
     FINDINGS,
     HEAT,
@@ -41,6 +42,7 @@ SHEET_GUIDE = (
     (STEPS, "every step's balances; the first-law residual is a live formula"),
     (STREAMS, "every stream's state and flow"),
     (HEAT, "every heat flow across a step's boundary and its temperature"),
+    (EXCHANGERS, "per heat exchanger: duty, approaches, LMTD and a T–Q chart"),
     (EXERGY, "exergy destroyed per step, largest first, with a chart"),
     (METHOD, "sign convention, equations, tolerances and published sources"),
 )
