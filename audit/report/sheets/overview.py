@@ -4,10 +4,14 @@ safety caution, with links to the other sheets."""
 
 from __future__ import annotations
 
+import io
+import math
 from typing import Any
 
 from audit.findings import ERROR, SEVERITY_RANK
 from audit.report.display import shown, unit
+from audit.report.pictures.network_layout import network
+from audit.report.pictures.network_png import draw
 from audit.report.sheets.context import (
     EXCHANGERS,
     EXERGY,
@@ -36,6 +40,16 @@ from audit.report.workbook_cells import (
     location,
 )
 from audit.report.workbook_method import CAUTION
+
+MAX_DRAWN_STEPS = 200
+"""Plants with more steps are not drawn in the workbook (too many boxes to read, and the layout
+time grows fast); the HTML report draws them."""
+PICTURE_WIDTH = 940.0
+"""The widest the network picture is shown on the sheet [px] (about columns A and B)."""
+RESOLUTION = 2.0
+"""Image pixels per pixel shown (sharp when zoomed and printed); the image is at most
+``RESOLUTION * PICTURE_WIDTH`` pixels wide, which bounds the time to draw it."""
+ROW_PIXELS = 20  # the height of a row of the default height (15 pt) [px]
 
 SHEET_GUIDE = (
     (FINDINGS, "one row per finding, most severe first; the step links to its row"),
@@ -101,6 +115,9 @@ def write(book: Book) -> None:
     item("steps", len(r.steps), fmt=INTEGER)
     item("where exergy is lost", "see the chart on the Exergy losses sheet", link=location(EXERGY, 1))
 
+    section("Network (red: a step with an open error; amber: with an open warning)")
+    row = network_picture(book, row)
+
     section("Balance")
     item("name", r.name)
     item("revision", r.revision or "")
@@ -162,3 +179,37 @@ def write(book: Book) -> None:
         row += 1
     sh.fix(2, min(max(sh.widths.get(2, 0) + 2, 45), 70))
     sh.fit(cap=70)
+
+
+def network_picture(book: Book, row: int) -> int:
+    """The plant's network as a PNG picture from ``row`` (column A), over as many empty rows as it
+    takes; the row after it."""
+    sh, result = book.sheets[OVERVIEW], book.result
+    if not result.steps:
+        sh.put(row, 1, "no steps to draw")
+        return row + 1
+    if len(result.steps) > MAX_DRAWN_STEPS:
+        sh.put(
+            row,
+            1,
+            f"{len(result.steps)} steps: too many to draw here; the HTML report draws the network",
+            width=False,
+        )
+        return row + 1
+    laid = network(result)
+    scale = min(1.0, PICTURE_WIDTH / laid.width)  # shown pixels per layout pixel
+    if book.wb is not None:
+        pixels = scale * RESOLUTION  # image pixels per layout pixel
+        sh.ws.insert_image(
+            row - 1,
+            0,
+            "network.png",
+            {
+                "image_data": io.BytesIO(draw(laid, pixels)),
+                "x_scale": 1 / RESOLUTION,
+                "y_scale": 1 / RESOLUTION,
+                "object_position": 1,  # moves and sizes with the cells
+                "description": laid.title,
+            },
+        )
+    return row + math.ceil(laid.height * scale / ROW_PIXELS) + 1
