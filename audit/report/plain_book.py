@@ -45,16 +45,16 @@ class PlainBook:
             {"title": safe_text(title), "author": "plant-audit", "created": max(created, EPOCH)}
         )
         self.what, self.balance, self.revision = title.split(":")[0], balance, revision
-        self._formats: dict[tuple, Any] = {}
+        self._formats: dict[tuple, Any] = {}  # by the parts' items (equal looks may get two)
 
     def format(self, *parts: dict[str, Any] | None) -> Any:
         """The workbook format of the properties in ``parts`` (one per distinct set)."""
-        properties = dict(BASE)
-        for part in parts:
-            properties.update(part or {})
-        key = tuple(sorted(properties.items()))
+        key = tuple(tuple(part.items()) for part in parts if part)
         made = self._formats.get(key)
         if made is None:
+            properties = dict(BASE)
+            for part in parts:
+                properties.update(part or {})
             made = self._formats[key] = self.wb.add_format(properties)
         return made
 
