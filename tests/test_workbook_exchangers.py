@@ -105,3 +105,76 @@ def test_fired_heater_efficiency_on_the_stated_basis(book, seeded):
     assert ws.cell(row, col).value == pytest.approx(b1.extra["efficiency_lhv"])
     assert ws.cell(row, col).number_format == "0.0%"
     assert ws.cell(_row(ws, "HX1"), col).value is None
+
+
+CO_CURRENT = """
+streams:
+  HI: {{fluid: Water, T: 90 degC, P: 3 bar, flow: 1 kg/s}}
+  HO: {{fluid: Water, T: {hot_out} degC, P: 3 bar, flow: 1 kg/s}}
+  CI: {{fluid: Water, T: 20 degC, P: 3 bar, flow: 1 kg/s}}
+  CO: {{fluid: Water, T: {cold_out} degC, P: 3 bar, flow: 1 kg/s}}
+steps:
+  - id: HX9
+    kind: heat_exchanger
+    hot: {{inlet: HI, outlet: HO}}
+    cold: {{inlet: CI, outlet: CO}}
+    arrangement: co-current
+"""
+
+
+def _exchangers_sheet(tmp_path, hot_out, cold_out):
+    from conftest import audit_text
+
+    result = audit_text(tmp_path, CO_CURRENT.format(hot_out=hot_out, cold_out=cold_out))
+    path = tmp_path / "co.xlsx"
+    write_workbook(result, path)
+    return result, openpyxl.load_workbook(path)
+
+
+def test_co_current_exchanger_names_its_inlet_and_outlet_ends(tmp_path):
+    result, book = _exchangers_sheet(tmp_path, 56, 54)
+    ws = book[EXCHANGERS]
+    headers = [c.value for c in ws[1]]
+    row = _row(ws, "HX9")
+    assert ws.cell(row, headers.index("arrangement") + 1).value == "co-current"
+    # terminal differences of the written temperatures (analytic): inlet end 90 − 20 = 70 K,
+    # outlet end 56 − 54 = 2 K
+    approaches = [ws.cell(row, col).value for col in (5, 6)]
+    assert approaches == [pytest.approx(70.0), pytest.approx(2.0)]
+    assert len(ws._charts) == 1
+    assert ws.cell(row, headers.index("findings") + 1).value == "none"
+
+
+def test_temperature_cross_links_to_its_exchanger(tmp_path):
+    # co-current, the hot side leaving (40 °C) colder than the cold side leaves (70 °C)
+    result, book = _exchangers_sheet(tmp_path, 40, 70)
+    assert {f.name for f in result.findings} >= {"temperature-cross"}
+    findings, ws = book[FINDINGS], book[EXCHANGERS]
+    row = _row(findings, "temperature-cross", column=2)
+    block = _row(ws, "HX9 (co-current): temperature against duty")
+    assert findings.cell(row, 2).hyperlink.location == f"'{EXCHANGERS}'!A{block}"
+    # terminals that cross leave no profile to draw: the block says so, the values stay
+    assert ws.cell(block + 1, 1).value.startswith("no temperature profile")
+    assert not ws._charts
+    row = _row(ws, "HX9")
+    assert [ws.cell(row, col).value for col in (5, 6)] == [pytest.approx(70.0), pytest.approx(-30.0)]
+    assert ws.cell(row, 7).value is None  # no LMTD across a terminal that is not positive
+
+
+def test_a_plant_without_exchangers_says_so(tmp_path):
+    from conftest import audit_text
+
+    result = audit_text(
+        tmp_path,
+        """
+streams:
+  A: {fluid: Water, T: 20 degC, P: 3 bar, flow: 1 kg/s}
+  B: {fluid: Water, T: 20 degC, P: 2 bar, flow: 1 kg/s}
+steps:
+  - {id: V9, kind: valve, inlet: A, outlet: B}
+""",
+    )
+    path = tmp_path / "valve.xlsx"
+    write_workbook(result, path)
+    ws = openpyxl.load_workbook(path)[EXCHANGERS]
+    assert ws.cell(2, 1).value == "no heat exchangers" and not ws._charts
