@@ -15,6 +15,7 @@ from pathlib import Path
 import openpyxl
 import pytest
 from conftest import SAMPLE
+from openpyxl.utils import get_column_letter
 
 import audit
 from audit.diff import compare
@@ -199,3 +200,17 @@ def test_libreoffice_prints_each_workbook_on_few_landscape_pages(books, tmp_path
     assert len(pages["seeded"]) <= 14  # every sheet of the findings workbook
     assert len(pages["summary"]) <= 4
     assert len(pages["diff"]) <= 4
+
+
+def test_overview_text_stays_within_its_columns(books):
+    """Text running on past its cell widens the printed page (LibreOffice prints it): the
+    Overview's long values (the property library's versions, a long path) wrap in their cell."""
+    ws = openpyxl.load_workbook(books["seeded"])["Overview"]
+    widths = [ws.column_dimensions[get_column_letter(c)].width for c in range(1, ws.max_column + 1)]
+    for row in ws.iter_rows(min_row=2):
+        for cell in row:
+            if not isinstance(cell.value, str) or cell.coordinate in ws.merged_cells:
+                continue
+            room = sum(widths[cell.column - 1 :])  # up to the last column of the sheet
+            if len(cell.value) > room:
+                assert cell.alignment.wrap_text, (cell.coordinate, cell.value)

@@ -49,6 +49,8 @@ PICTURE_WIDTH = 940.0
 RESOLUTION = 2.0
 """Image pixels per pixel shown (sharp when zoomed and printed); the image is at most
 ``RESOLUTION * PICTURE_WIDTH`` pixels wide, which bounds the time to draw it."""
+LONG_TEXT = 60
+"""Values longer than this wrap in their cell (text running on to the right would widen the page)."""
 ROW_PIXELS = 20  # the height of a row of the default height (15 pt) [px]
 
 SHEET_GUIDE = (
@@ -88,7 +90,8 @@ def write(book: Book) -> None:
     ) -> None:
         nonlocal row
         sh.put(row, 1, label)
-        sh.put(row, 2, value, fmt=fmt, fill=fill, link=link, font=font, align="left")
+        wrap = isinstance(value, str) and len(value) > LONG_TEXT  # kept within the page width
+        sh.put(row, 2, value, fmt=fmt, fill=fill, link=link, font=font, align="left", wrap=wrap)
         if unit_label:
             sh.put(row, 3, unit_label)
         row += 1
@@ -115,7 +118,7 @@ def write(book: Book) -> None:
     item("steps", len(r.steps), fmt=INTEGER)
     item("where exergy is lost", "see the chart on the Exergy losses sheet", link=location(EXERGY, 1))
 
-    section("Network (red: a step with an open error; amber: with an open warning)")
+    section("Network (red: a step with an open error; amber: an open warning)")
     row = network_picture(book, row)
 
     section("Balance")
