@@ -3,8 +3,8 @@
 Sheets, in this order:
 
 * **Overview**: the balance, its file and SHA-256, the dead state, the site pressure, the verdict at
-  the chosen threshold, counts by severity, plant totals, tolerances, versions, run time and the
-  safety caution;
+  the chosen threshold, counts by severity, the plant's network as a picture (failing steps red or
+  amber), plant totals, tolerances, versions, run time and the safety caution;
 * **Findings**: one row per finding, most severe first, linked to its step's (or stream's) row;
 * **Steps**: every step's balances; the first-law residual is a live formula over the cells of the
   same row that hold Q, W and the enthalpy flows in and out, beside the solver's own residual;
@@ -33,7 +33,10 @@ workbook keeps to:
 * the file is written atomically (:func:`audit.report.files.write_atomically`): a crash leaves the
   previous file untouched and no temporary file; a file that cannot be written raises
   :class:`audit.errors.ReportError` (exit code 4);
-* the same result gives the same bytes: the document's created/modified times are the run time
+* every sheet prints on A4 landscape, one page wide, with its header row on every page, a page
+  header naming the balance and its revision and a footer with the sheet and the page
+  (:mod:`audit.report.printing`);
+* the same result gives the same bytes (the network picture too): the document's created/modified times are the run time
   from ``result.provenance``, and every zip entry has the writer's fixed time;
 * every formula is written with its cached value (the solver's residual, equal to the formula's
   arithmetic to rounding), so readers that do not calculate (pandas, openpyxl with

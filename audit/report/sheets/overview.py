@@ -1,5 +1,6 @@
 """The Overview sheet: the balance, its file and SHA-256, the dead state, the site pressure, the
-verdict at the chosen threshold, counts by severity, plant totals, tolerances, the run and the
+verdict at the chosen threshold, counts by severity, the plant's network as a PNG picture
+(:mod:`audit.report.pictures.network_png`), plant totals, tolerances, the run and the
 safety caution, with links to the other sheets."""
 
 from __future__ import annotations
