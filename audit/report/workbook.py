@@ -36,8 +36,9 @@ workbook keeps to:
 * every sheet prints on A4 landscape, one page wide, with its header row on every page, a page
   header naming the balance and its revision and a footer with the sheet and the page
   (:mod:`audit.report.printing`);
-* the same result gives the same bytes (the network picture too): the document's created/modified times are the run time
-  from ``result.provenance``, and every zip entry has the writer's fixed time;
+* the same result gives the same bytes (the network picture too): the document's created and
+  modified times are the run time from ``result.provenance``, and every zip entry has the
+  writer's fixed time;
 * every formula is written with its cached value (the solver's residual, equal to the formula's
   arithmetic to rounding), so readers that do not calculate (pandas, openpyxl with
   ``data_only=True``, file previews) and LibreOffice, which by default shows an .xlsx file's cached
