@@ -47,7 +47,7 @@ MAX_DRAWN_STEPS = 200
 time grows fast); the HTML report draws them."""
 PICTURE_WIDTH = 940.0
 """The widest the network picture is shown on the sheet [px] (about columns A and B)."""
-RESOLUTION = 2.0
+RESOLUTION = 1.5
 """Image pixels per pixel shown (sharp when zoomed and printed); the image is at most
 ``RESOLUTION * PICTURE_WIDTH`` pixels wide, which bounds the time to draw it."""
 LONG_TEXT = 60
