@@ -169,6 +169,7 @@ def test_sheets_have_plain_names_in_order(book):
         "Steps",
         "Streams",
         "Heat flows",
+        "Exchangers",
         "Exergy losses",
         "Method",
     ]

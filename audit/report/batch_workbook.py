@@ -8,23 +8,19 @@ Sheets:
   workbook, and the problems of an invalid file or an internal error;
 * ``Findings``: one row per finding of every audited file, accepted ones marked.
 
+Written with XlsxWriter in constant-memory mode (:mod:`audit.report.plain_book`): numbers in
+engineering units with number formats, every sheet printing landscape one page wide with its header
+row on every page; the document's times are the run time, so the same outcomes give the same bytes.
 Written atomically by :func:`audit.report.files.write_atomically`.
 """
 
 from __future__ import annotations
 
-import math
 import os
 from collections import Counter
 from datetime import datetime, timezone
 from pathlib import Path
-from typing import Any
-
-from openpyxl import Workbook
-from openpyxl.cell.cell import ILLEGAL_CHARACTERS_RE
-from openpyxl.styles import Alignment, Font, PatternFill
-from openpyxl.utils import get_column_letter
-from openpyxl.worksheet.worksheet import Worksheet
+from typing import Any, BinaryIO
 
 from audit.clock import run_time
 from audit.findings import ERROR, INFO, WARNING
@@ -40,50 +36,62 @@ from audit.outcomes import (
 )
 from audit.report.display import shown, unit
 from audit.report.files import write_atomically
+from audit.report.plain_book import BOLD, TITLE, PlainBook
+from audit.report.workbook_cells import FORMATS, INTEGER
 
 CAUTION = (
     "The audit checks thermodynamic consistency only; it is not a safety or "
     "code-compliance review. Defer to local codes and licensed engineers."
 )
 
-_FORMULA_TRIGGERS = ("=", "+", "-", "@", "\t", "\r")
-_HEADER_FILL = PatternFill("solid", fgColor="DDE4EE")
 _VERDICT_FILL = {
-    PASS: PatternFill("solid", fgColor="D8EED8"),
-    FAIL: PatternFill("solid", fgColor="F6D5D1"),
-    VERDICT_INVALID: PatternFill("solid", fgColor="FBE8C8"),
-    VERDICT_INTERNAL: PatternFill("solid", fgColor="E0D4EC"),
-    VERDICT_UNWRITTEN: PatternFill("solid", fgColor="E0D4EC"),
-    VERDICT_SKIPPED: PatternFill("solid", fgColor="EEEEEE"),  # not a balance (audit.discovery)
+    PASS: "D8EED8",
+    FAIL: "F6D5D1",
+    VERDICT_INVALID: "FBE8C8",
+    VERDICT_INTERNAL: "E0D4EC",
+    VERDICT_UNWRITTEN: "E0D4EC",
+    VERDICT_SKIPPED: "EEEEEE",  # not a balance (audit.discovery)
 }
 
 SUMMARY_COLUMNS = [
-    ("File", 48),
-    ("Balance", 30),
-    ("Revision", 12),
-    ("Verdict", 15),
-    ("Errors", 8),
-    ("Warnings", 10),
+    ("File", 36),
+    ("Balance", 22),
+    ("Revision", 10),
+    ("Verdict", 11),
+    ("Errors", 7),
+    ("Warnings", 9),
     ("Info", 6),
-    ("Accepted", 10),
-    ("Worst finding", 60),
-    ("Exergy destroyed [kW]", 14),
-    ("New since last run", 50),
-    ("Workbook", 36),
-    ("Problems", 80),
+    ("Accepted", 9),
+    ("Worst finding", 50),
+    ("Exergy destroyed [kW]", 12),
+    ("New since last run", 34),
+    ("Workbook", 26),
+    ("Problems", 50),
 ]
+SUMMARY_FORMATS = [None, None, None, None, INTEGER, INTEGER, INTEGER, INTEGER, None]
+SUMMARY_FORMATS += [FORMATS["power"], None, None, None]
+SUMMARY_WRAP = (0, 8, 10, 11, 12)
 FINDING_COLUMNS = [
-    ("File", 48),
-    ("Step", 10),
-    ("Stream", 10),
+    ("File", 36),
+    ("Step", 9),
+    ("Stream", 9),
     ("Severity", 9),
-    ("Finding", 28),
-    ("Accepted", 40),
-    ("New since last run", 12),
+    ("Finding", 24),
+    ("Accepted", 30),
+    ("New since last run", 10),
     ("Margin", 12),
-    ("Unit", 10),
-    ("Message", 100),
+    ("Unit", 8),
+    ("Message", 70),
 ]
+FALLBACK_FORMAT = "0.0000"
+"""The number format of a value whose quantity has no format of its own."""
+
+
+def number_format(quantity: str | None, difference: bool = False) -> str:
+    """The number format of a value of ``quantity`` in its display unit."""
+    if difference and quantity == "temperature":
+        quantity = "temperature_difference"
+    return FORMATS.get(quantity or "", FALLBACK_FORMAT)
 
 
 def summary_rows(
@@ -130,50 +138,63 @@ def write_batch_workbook(
     """Write the batch summary workbook to ``path`` (atomically); return the path. Raises
     :class:`audit.errors.ReportError` when the file cannot be written."""
     path = Path(path)
-    book = Workbook()
-    sheet = book.active
-    sheet.title = "Summary"
-    verdicts = Counter(o.verdict(fail_on) for o in outcomes)
     when = (run_at or run_time()).astimezone(timezone.utc)
-    append_row(sheet, ["plant-audit batch summary"])
-    sheet["A1"].font = Font(bold=True, size=14)
-    append_row(sheet, ["Run at (UTC)", when.strftime("%Y-%m-%d %H:%M:%S")])
-    append_row(sheet, ["Fails on", f"findings at or above '{fail_on}' that no reviewer accepted"])
-    append_row(
-        sheet,
-        [
-            "Files",
-            f"{len(outcomes)}: "
-            + ", ".join(
-                f"{verdicts[v]} {v.lower()}"
-                for v in (PASS, FAIL, VERDICT_INVALID, VERDICT_INTERNAL)
-                + ((VERDICT_UNWRITTEN,) if verdicts[VERDICT_UNWRITTEN] else ())
-            ),
-        ],
-    )
-    append_row(sheet, ["Caution", CAUTION])
-    append_row(sheet, [])
-    write_header(sheet, SUMMARY_COLUMNS)
-    header_row = sheet.max_row
-    link_column = [c for c, _ in SUMMARY_COLUMNS].index("Workbook") + 1
-    verdict_column = [c for c, _ in SUMMARY_COLUMNS].index("Verdict") + 1
-    for row in summary_rows(outcomes, path.parent, fail_on):
-        append_row(sheet, row)
-        r = sheet.max_row
-        link = sheet.cell(r, link_column)
-        if link.value:
-            link.hyperlink = str(link.value)
-            link.style = "Hyperlink"
-        verdict = sheet.cell(r, verdict_column)
-        verdict.fill = _VERDICT_FILL[verdict.value]
-        sheet.cell(r, len(SUMMARY_COLUMNS)).alignment = Alignment(wrap_text=True, vertical="top")
-    sheet.freeze_panes = sheet.cell(header_row + 1, 2)
-    sheet.auto_filter.ref = (
-        f"A{header_row}:{get_column_letter(len(SUMMARY_COLUMNS))}{max(sheet.max_row, header_row)}"
-    )
 
-    findings = book.create_sheet("Findings")
-    write_header(findings, FINDING_COLUMNS)
+    def write(stream: BinaryIO) -> None:
+        book = PlainBook(
+            stream,
+            "plant-audit batch summary",
+            when,
+            f"batch of {len(outcomes)} files, run at {when:%Y-%m-%d %H:%M:%S} UTC",
+            None,
+        )
+        _summary(book, outcomes, path, fail_on, when)
+        _findings(book, outcomes)
+        book.close()
+
+    write_atomically(path, write, "the batch summary workbook")
+    return path
+
+
+def _summary(
+    book: PlainBook, outcomes: list[FileOutcome], path: Path, fail_on: str, when: datetime
+) -> None:
+    sheet = book.sheet("Summary", [w for _, w in SUMMARY_COLUMNS])
+    verdicts = Counter(o.verdict(fail_on) for o in outcomes)
+    sheet.line(["plant-audit batch summary"], style=TITLE)
+    sheet.line(["Run at (UTC)", when.strftime("%Y-%m-%d %H:%M:%S")], styles={0: BOLD})
+    sheet.line(
+        ["Fails on", f"findings at or above '{fail_on}' that no reviewer accepted"], styles={0: BOLD}
+    )
+    files = f"{len(outcomes)}: " + ", ".join(
+        f"{verdicts[v]} {v.lower()}"
+        for v in (PASS, FAIL, VERDICT_INVALID, VERDICT_INTERNAL)
+        + ((VERDICT_UNWRITTEN,) if verdicts[VERDICT_UNWRITTEN] else ())
+    )
+    sheet.line(["Files", files], styles={0: BOLD})
+    sheet.line(["Caution", CAUTION], styles={0: BOLD})
+    sheet.line([])
+    sheet.header([c for c, _ in SUMMARY_COLUMNS])
+    link_column = [c for c, _ in SUMMARY_COLUMNS].index("Workbook")
+    verdict_column = [c for c, _ in SUMMARY_COLUMNS].index("Verdict")
+    last = sheet.header_row
+    for row in summary_rows(outcomes, path.parent, fail_on):
+        fill = {"bg_color": "#" + _VERDICT_FILL[row[verdict_column]], "pattern": 1}
+        target = row[link_column]
+        last = sheet.line(
+            row,
+            SUMMARY_FORMATS,
+            wrap=SUMMARY_WRAP,
+            links={link_column: "external:" + target} if target else None,
+            styles={verdict_column: fill},
+        )
+    sheet.finish(last, freeze=(sheet.header_row, 1))
+
+
+def _findings(book: PlainBook, outcomes: list[FileOutcome]) -> None:
+    sheet = book.sheet("Findings", [w for _, w in FINDING_COLUMNS])
+    sheet.header([c for c, _ in FINDING_COLUMNS])
+    last = 1
     for outcome in outcomes:
         if outcome.result is None:
             continue
@@ -181,8 +202,8 @@ def write_batch_workbook(
         new = set(outcome.new_since_last or []) if compared else None
         for f in outcome.result.findings:
             difference = f.quantity == "temperature"
-            append_row(
-                findings,
+            formats: list[str | None] = [None] * 7 + [number_format(f.quantity, difference)]
+            last = sheet.line(
                 [
                     outcome.path,
                     f.step,
@@ -195,42 +216,9 @@ def write_batch_workbook(
                     unit(f.quantity, difference=difference),
                     f.message,
                 ],
+                formats,
+                wrap=(0, 5, 9),
             )
-    findings.freeze_panes = "B2"
-    findings.auto_filter.ref = f"A1:{get_column_letter(len(FINDING_COLUMNS))}{findings.max_row}"
-    append_row(findings, [])
-    append_row(findings, [CAUTION])
-    write_atomically(path, book.save, "the batch summary workbook")
-    return path
-
-
-def write_header(sheet: Worksheet, columns: list[tuple[str, int]]) -> None:
-    """Append a bold header row and set the column widths."""
-    row = append_row(sheet, [name for name, _ in columns])
-    for index, (_, width) in enumerate(columns, start=1):
-        cell = sheet.cell(row, index)
-        cell.font = Font(bold=True)
-        cell.fill = _HEADER_FILL
-        cell.alignment = Alignment(wrap_text=True, vertical="top")
-        sheet.column_dimensions[get_column_letter(index)].width = width
-
-
-def append_row(sheet: Worksheet, values: list[object]) -> int:
-    """Append a row; text is stored as text (never read as a formula: text starting with ``=``,
-    ``+``, ``-``, ``@`` also gets the quote prefix) without the control characters a workbook
-    cannot hold; non-finite numbers become empty cells. Returns the row number."""
-    row = sheet.max_row + 1 if sheet.max_row > 1 or sheet["A1"].value is not None else 1
-    sheet.cell(row, 1)  # an empty row still takes its place
-    for column, value in enumerate(values, start=1):
-        cell = sheet.cell(row, column)
-        if isinstance(value, str):
-            text = ILLEGAL_CHARACTERS_RE.sub("\ufffd", value)
-            cell.value = text
-            cell.data_type = "s"
-            if text.startswith(_FORMULA_TRIGGERS):
-                cell.quotePrefix = True
-        elif isinstance(value, float) and not math.isfinite(value):
-            cell.value = None
-        else:
-            cell.value = value
-    return row
+    sheet.finish(last, freeze=(1, 1))
+    sheet.line([])
+    sheet.line([CAUTION])

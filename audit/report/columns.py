@@ -55,9 +55,12 @@ class Column:
     machine: bool = True  # False: a workbook-only column (computed by its sheet)
     wrap: bool = False  # the workbook cell wraps
     omit_none: bool = False  # the JSON and CSV leave the field out of a row where it is None
+    read: Callable[[Any], Any] | None = None  # a workbook-only column's value, read from the row
 
     def value(self, row: Any) -> Any:
         """The field's value in ``row`` (the result object), as stored."""
+        if self.read is not None:
+            return self.read(row)
         return getattr(row, self.key)
 
 
@@ -112,6 +115,25 @@ class Table:
                 out[c.key] = c.cell(value) if c.cell else value
         out.update(flattened)  # after the other columns
         return out
+
+
+def heating_value_basis(step: Any) -> str | None:
+    """A fired heater's or boiler's heating-value basis: the one its fuel claim states (``LHV``,
+    ``HHV``), ``LHV (none stated)`` when it states neither; None for other steps."""
+    if "efficiency_lhv" not in step.extra:
+        return None
+    if "fuel_hhv" in step.claimed:
+        return "HHV"
+    return "LHV" if "fuel_lhv" in step.claimed else "LHV (none stated)"
+
+
+def fired_efficiency(step: Any) -> float | None:
+    """A fired heater's or boiler's efficiency on its stated heating-value basis [-] (the step
+    computes it: ``extra["efficiency_lhv"]``, ``extra["efficiency_hhv"]``); None for other steps."""
+    basis = heating_value_basis(step)
+    if basis is None:
+        return None
+    return step.extra.get("efficiency_hhv" if basis == "HHV" else "efficiency_lhv")
 
 
 def printed_cell(claims: Mapping[str, Any] | None) -> str:
@@ -254,6 +276,20 @@ STEPS = Table(
         Column("findings", "findings", machine=False),
         Column("basis", "basis", machine=False),
         Column("residual_formula", "first-law residual, formula [kW | kJ]", "power", machine=False),
+        Column(
+            "fired_efficiency",
+            "fired efficiency, stated heating-value basis [%]",
+            "fraction",
+            fmt=PERCENT,
+            machine=False,
+            read=lambda step: fired_efficiency(step),
+        ),
+        Column(
+            "heating_value_basis",
+            "heating-value basis",
+            machine=False,
+            read=lambda step: heating_value_basis(step),
+        ),
     ),
     sheet_order=(
         "id",
@@ -283,6 +319,8 @@ STEPS = Table(
         "exergy_destroyed",
         "second_law_efficiency",
         "isentropic_efficiency",
+        "fired_efficiency",
+        "heating_value_basis",
         "bound_basis",
         "classical_bound",
         "W_rev_exergy",

@@ -3,13 +3,15 @@
 Sheets, in this order:
 
 * **Overview**: the balance, its file and SHA-256, the dead state, the site pressure, the verdict at
-  the chosen threshold, counts by severity, plant totals, tolerances, versions, run time and the
-  safety caution;
+  the chosen threshold, counts by severity, the plant's network as a picture (failing steps red or
+  amber), plant totals, tolerances, versions, run time and the safety caution;
 * **Findings**: one row per finding, most severe first, linked to its step's (or stream's) row;
 * **Steps**: every step's balances; the first-law residual is a live formula over the cells of the
   same row that hold Q, W and the enthalpy flows in and out, beside the solver's own residual;
 * **Streams**: every stream's state and flow;
 * **Heat flows**: every heat flow across a step's boundary, with its boundary temperature;
+* **Exchangers**: per heat exchanger its duty, approaches, LMTD and smallest approach, and a T–Q
+  chart of both sides with the smallest approach marked;
 * **Exergy losses**: exergy destroyed per flow step, largest first, and a bar chart of it;
 * **Reconciliation** (written by ``plant-audit reconcile FILE -o X.xlsx`` only): the global test,
   the gross errors and every reading measured and reconciled (:mod:`audit.report.sheets.reconciliation`);
@@ -33,8 +35,12 @@ workbook keeps to:
 * the file is written atomically (:func:`audit.report.files.write_atomically`): a crash leaves the
   previous file untouched and no temporary file; a file that cannot be written raises
   :class:`audit.errors.ReportError` (exit code 4);
-* the same result gives the same bytes: the document's created/modified times are the run time
-  from ``result.provenance``, and every zip entry has the writer's fixed time;
+* every sheet prints on A4 landscape, one page wide, with its header row on every page, a page
+  header naming the balance and its revision and a footer with the sheet and the page
+  (:mod:`audit.report.printing`);
+* the same result gives the same bytes (the network picture too): the document's created and
+  modified times are the run time from ``result.provenance``, and every zip entry has the
+  writer's fixed time;
 * every formula is written with its cached value (the solver's residual, equal to the formula's
   arithmetic to rounding), so readers that do not calculate (pandas, openpyxl with
   ``data_only=True``, file previews) and LibreOffice, which by default shows an .xlsx file's cached
@@ -55,7 +61,9 @@ from audit.findings import SEVERITY_RANK
 from audit.reconcile.records import Reconciliation
 from audit.report import workbook_file
 from audit.report.files import write_atomically
+from audit.report.printing import set_up_page
 from audit.report.sheets import (
+    exchangers,
     exergy,
     findings,
     heat,
@@ -66,6 +74,7 @@ from audit.report.sheets import (
     streams,
 )
 from audit.report.sheets.context import (
+    EXCHANGERS,
     EXERGY,
     FINDINGS,
     HEAT,
@@ -81,6 +90,7 @@ from audit.report.workbook_cells import Layout, safe_text
 from audit.results import AuditResult
 
 __all__ = [
+    "EXCHANGERS",
     "EXERGY",
     "FINDINGS",
     "HEAT",
@@ -94,16 +104,9 @@ __all__ = [
     "write_workbook",
 ]
 
-WRITERS = (overview, findings, steps, streams, heat, exergy, reconciliation, method)
+WRITERS = (overview, findings, steps, streams, heat, exchangers, exergy, reconciliation, method)
 """The sheet modules, in the order of :func:`~audit.report.sheets.context.titles` (the
 Reconciliation sheet writes nothing without a reconciliation)."""
-
-WIDE = {FINDINGS: "A:C", STEPS: "A:A", STREAMS: "A:A"}
-"""The wide tables, printed across pages with these id columns on every page."""
-
-
-PAPER_A4 = 9
-"""The paper size code of A4."""
 
 
 def measure(
@@ -128,19 +131,12 @@ def build(
     book = Book(result, fail_on, wb, layouts, reconciliation)
     for module in WRITERS:
         module.write(book)
+    result = book.result
     for title, sheet in book.sheets.items():
-        # Printed landscape; the narrow sheets one page wide, the wide tables (Findings,
-        # Steps, Streams) across pages with the header row and the id columns on every page.
-        ws = sheet.ws
-        ws.set_landscape()
-        ws.set_paper(PAPER_A4)
-        if sheet.header_titles:
-            ws.repeat_rows(sheet.header_row - 1)
-        if title in WIDE:
-            ws.repeat_columns(WIDE[title])
-            ws.set_print_scale(60)
-        else:
-            ws.fit_to_pages(1, 0)
+        # Landscape A4, one page wide, the header row on every page (audit.report.printing).
+        # (the Exchangers sheet's blocks below its table have headers of their own)
+        header_row = sheet.header_row if sheet.header_titles and title != EXCHANGERS else 0
+        set_up_page(sheet.ws, "plant-audit findings", result.name, result.revision, header_row)
     return book
 
 

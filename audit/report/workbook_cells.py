@@ -74,6 +74,8 @@ FORMATS = {
     "mass": "#,##0.000",
     "velocity": "0.00",
     "elevation": "0.00",
+    "voltage": "0.000",
+    "current": "0.00",
 }
 PERCENT = "0.0%"
 INTEGER = "0"
@@ -276,7 +278,7 @@ class Sheet:
             self.ws.autofilter(self.header_row - 1, 0, max(last_row, self.header_row) - 1, last_col)
         self.fit()
 
-    def fit(self, cap: int = 60, header_cap: int = 24) -> None:
+    def fit(self, cap: int = 60, header_cap: int = 12) -> None:
         """Column widths from the content (headers wrap past ``header_cap`` characters), then row
         heights for the header and the wrapped cells (measuring); the measured layout (writing)."""
         if self.ws is not None:

@@ -12,18 +12,22 @@ from audit.report.columns import OWN, Column
 from audit.report.display import in_si, shown
 from audit.report.workbook_cells import Layout, Sheet
 from audit.report.workbook_file import Formats
-from audit.results import AuditResult
+from audit.results import AuditResult, StepResult
 
-OVERVIEW, FINDINGS, STEPS, STREAMS, HEAT, EXERGY, METHOD = (
+OVERVIEW, FINDINGS, STEPS, STREAMS, HEAT, EXCHANGERS, EXERGY, METHOD = (
     "Overview",
     "Findings",
     "Steps",
     "Streams",
     "Heat flows",
+    "Exchangers",
     "Exergy losses",
     "Method",
 )
-SHEETS = (OVERVIEW, FINDINGS, STEPS, STREAMS, HEAT, EXERGY, METHOD)
+SHEETS = (OVERVIEW, FINDINGS, STEPS, STREAMS, HEAT, EXCHANGERS, EXERGY, METHOD)
+
+CHART_ROWS = 22
+"""The rows a T–Q chart covers on the Exchangers sheet."""
 RECONCILIATION = "Reconciliation"
 """The sheet ``plant-audit reconcile`` adds before the Method sheet."""
 
@@ -85,6 +89,7 @@ class Book:
         self.step_row = {s.id: row for row, s in enumerate(result.steps, start=2)}
         self.stream_row = {s.id: row for row, s in enumerate(result.streams, start=2)}
         self.findings = ordered(result.findings)
+        self.exchanger_row = exchanger_blocks(result)
         self.first_finding_row: dict[tuple[str, str], int] = {}
         for row, f in enumerate(self.findings, start=2):
             if f.step:
@@ -96,6 +101,26 @@ class Book:
 def titles(reconciled: bool = False) -> tuple[str, ...]:
     """The sheets of the workbook, in order (with the Reconciliation sheet when ``reconciled``)."""
     return (*SHEETS[:-1], RECONCILIATION, SHEETS[-1]) if reconciled else SHEETS
+
+
+def exchanger_blocks(result: AuditResult) -> dict[str, int]:
+    """The first row of each heat exchanger's block on the Exchangers sheet: below the table of
+    the exchangers (a header and one row each) and a blank row, one block after another."""
+    exchangers = [s for s in result.steps if s.exchanger is not None]
+    row = len(exchangers) + 3
+    blocks = {}
+    for s in exchangers:
+        blocks[s.id] = row
+        row += block_rows(s)
+    return blocks
+
+
+def block_rows(step: StepResult) -> int:
+    """The rows of an exchanger's block: a title, the T–Q points under their header, the two points
+    of the smallest approach under theirs, and a blank row; at least the chart's height."""
+    if step.profile is None:
+        return 3  # the title, a note, a blank row
+    return max(len(step.profile.duty) + 6, CHART_ROWS + 2)
 
 
 def rank(severity: str) -> int:

@@ -9,8 +9,11 @@ from audit.findings import ERROR, NAMES, Finding
 from audit.report.columns import FINDINGS as COLUMNS
 from audit.report.columns import OWN
 from audit.report.display import unit
-from audit.report.sheets.context import FINDINGS, STEPS, STREAMS, Book, cell_value
+from audit.report.sheets.context import EXCHANGERS, FINDINGS, STEPS, STREAMS, Book, cell_value
 from audit.report.workbook_cells import BOLD, FILLS, FORMATS, GENERAL, PLAIN, location
+
+CHARTED = ("internal-pinch", "temperature-cross")
+"""Findings whose name links to the exchanger's T–Q chart on the Exchangers sheet."""
 
 WIDTHS = {
     "message": 70,
@@ -53,6 +56,9 @@ def write(book: Book) -> None:
                     fill=FILLS[f.severity],
                     font=BOLD if f.severity == ERROR else PLAIN,
                 )
+            elif key == "name" and f.name in CHARTED and f.step in book.exchanger_row:
+                # the finding links to its exchanger's T–Q chart
+                sh.put(row, col, f.name, link=location(EXCHANGERS, book.exchanger_row[f.step]))
             elif key == "step":
                 if f.step:
                     sh.put(row, col, f.step, link=location(STEPS, book.step_row.get(f.step, 1)))

@@ -1,14 +1,20 @@
 """The Overview sheet: the balance, its file and SHA-256, the dead state, the site pressure, the
-verdict at the chosen threshold, counts by severity, plant totals, tolerances, the run and the
+verdict at the chosen threshold, counts by severity, the plant's network as a PNG picture
+(:mod:`audit.report.pictures.network_png`), plant totals, tolerances, the run and the
 safety caution, with links to the other sheets."""
 
 from __future__ import annotations
 
+import io
+import math
 from typing import Any
 
 from audit.findings import ERROR, SEVERITY_RANK
 from audit.report.display import shown, unit
+from audit.report.pictures.network_layout import network
+from audit.report.pictures.network_png import draw
 from audit.report.sheets.context import (
+    EXCHANGERS,
     EXERGY,
     FINDINGS,
     HEAT,
@@ -37,11 +43,24 @@ from audit.report.workbook_cells import (
 )
 from audit.report.workbook_method import CAUTION
 
+MAX_DRAWN_STEPS = 200
+"""Plants with more steps are not drawn in the workbook (too many boxes to read, and the layout
+time grows fast); the HTML report draws them."""
+PICTURE_WIDTH = 940.0
+"""The widest the network picture is shown on the sheet [px] (about columns A and B)."""
+RESOLUTION = 1.5
+"""Image pixels per pixel shown (sharp when zoomed and printed); the image is at most
+``RESOLUTION * PICTURE_WIDTH`` pixels wide, which bounds the time to draw it."""
+LONG_TEXT = 60
+"""Values longer than this wrap in their cell (text running on to the right would widen the page)."""
+ROW_PIXELS = 20  # the height of a row of the default height (15 pt) [px]
+
 SHEET_GUIDE = (
     (FINDINGS, "one row per finding, most severe first; the step links to its row"),
     (STEPS, "every step's balances; the first-law residual is a live formula"),
     (STREAMS, "every stream's state and flow"),
     (HEAT, "every heat flow across a step's boundary and its temperature"),
+    (EXCHANGERS, "per heat exchanger: duty, approaches, LMTD and a T–Q chart"),
     (EXERGY, "exergy destroyed per step, largest first, with a chart"),
     (METHOD, "sign convention, equations, tolerances and published sources"),
 )
@@ -78,7 +97,8 @@ def write(book: Book) -> None:
     ) -> None:
         nonlocal row
         sh.put(row, 1, label)
-        sh.put(row, 2, value, fmt=fmt, fill=fill, link=link, font=font, align="left")
+        wrap = isinstance(value, str) and len(value) > LONG_TEXT  # kept within the page width
+        sh.put(row, 2, value, fmt=fmt, fill=fill, link=link, font=font, align="left", wrap=wrap)
         if unit_label:
             sh.put(row, 3, unit_label)
         row += 1
@@ -107,6 +127,9 @@ def write(book: Book) -> None:
 
     if book.reconciliation is not None:
         _reconciliation(book, section, item)
+
+    section("Network (red: a step with an open error; amber: an open warning)")
+    row = network_picture(book, row)
 
     section("Balance")
     item("name", r.name)
@@ -159,7 +182,8 @@ def write(book: Book) -> None:
 
     section("Run")
     for key, text in r.provenance.items():
-        item(key, number_or_text(text))
+        value = number_or_text(text)
+        item(key, value, fmt="0.000" if isinstance(value, float) else None)
 
     section("Sheets")
     guide: tuple[tuple[str, str], ...] = SHEET_GUIDE
@@ -186,3 +210,37 @@ def _reconciliation(book: Book, section: Any, item: Any) -> None:
         who = elim.removed if len(elim.named) <= 1 else "one of " + ", ".join(elim.named)
         item(f"gross error {number}", who, fill=FILLS[ERROR])
     item("every reading", f"see the {RECONCILIATION} sheet", link=location(RECONCILIATION, 1))
+
+
+def network_picture(book: Book, row: int) -> int:
+    """The plant's network as a PNG picture from ``row`` (column A), over as many empty rows as it
+    takes; the row after it."""
+    sh, result = book.sheets[OVERVIEW], book.result
+    if not result.steps:
+        sh.put(row, 1, "no steps to draw")
+        return row + 1
+    if len(result.steps) > MAX_DRAWN_STEPS:
+        sh.put(
+            row,
+            1,
+            f"{len(result.steps)} steps: too many to draw here; the HTML report draws the network",
+            width=False,
+        )
+        return row + 1
+    laid = network(result)
+    scale = min(1.0, PICTURE_WIDTH / laid.width)  # shown pixels per layout pixel
+    if book.wb is not None:
+        pixels = scale * RESOLUTION  # image pixels per layout pixel
+        sh.ws.insert_image(
+            row - 1,
+            0,
+            "network.png",
+            {
+                "image_data": io.BytesIO(draw(laid, pixels)),
+                "x_scale": 1 / RESOLUTION,
+                "y_scale": 1 / RESOLUTION,
+                "object_position": 1,  # moves and sizes with the cells
+                "description": laid.title,
+            },
+        )
+    return row + math.ceil(laid.height * scale / ROW_PIXELS) + 1
