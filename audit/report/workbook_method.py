@@ -186,6 +186,14 @@ SOURCES: tuple[tuple[str, str], ...] = (
         "Transfer, 6th ed., Wiley, 2007, ch. 11.",
     ),
     (
+        "chillers and heat pumps: entropic mean temperature of a stream's heat",
+        "T. J. Kotas, The Exergy Method of Thermal Plant Analysis, Butterworths, 1985, §3.4.",
+    ),
+    (
+        "chillers and heat pumps: reversible COP between the two sides",
+        "A. Bejan, Advanced Engineering Thermodynamics, 4th ed., Wiley, 2016, ch. 9.",
+    ),
+    (
         "fuel cells and electrolysers: reversible and thermoneutral voltage, Faraday's law",
         "J. Larminie, A. Dicks, Fuel Cell Systems Explained, 2nd ed., Wiley, 2003, ch. 2.",
     ),
