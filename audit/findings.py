@@ -63,6 +63,8 @@ NAMES: dict[str, str] = {
     "two sides' streams",
     "machine-side-wrong-way": "a chiller or heat pump side heated that should be cooled, or the "
     "reverse",
+    "water-below-wet-bulb": "a cooling tower's water leaving colder than the inlet air's wet-bulb "
+    "temperature (the limit of evaporative cooling)",
     "acceptance-unmatched": "a reviewer's acceptance that matches no finding of the audit",
     "acceptance-expired": "a reviewer's acceptance past its expiry date: the finding counts again",
 }

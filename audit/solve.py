@@ -26,6 +26,7 @@ from audit.errors import InputErrors, Problem, StateError
 from audit.findings import ERROR, WARNING, Finding, relative
 from audit.input.document import Document
 from audit.model.balance import Balance
+from audit.model.humid_air import HUMIDITIES, is_humid_air
 from audit.model.references import FORMULATION_FLUIDS
 from audit.model.streams import StreamSpec
 from audit.model.tolerances import merged
@@ -75,6 +76,7 @@ def solve(balance: Balance, document: Document) -> Solution:
         info.tolerances.saturation_band,
         reference=info.reference,
         formulation=info.formulation,
+        dead_relative_humidity=info.dead_state.relative_humidity,
     )
     findings: list[Finding] = []
     streams, problems = _evaluate_streams(balance, document, engine, findings)
@@ -241,7 +243,7 @@ def _evaluate_streams(
                     stream=stream_id,
                 )
             )
-        if result.composition is not None:
+        if spec.composition is not None and result.composition is not None:
             findings.extend(
                 _dew_point_findings(stream_id, engine.state(result.fluid, "TP", result.T, result.P))
             )
@@ -321,7 +323,9 @@ def evaluate_stream(
 ) -> StreamResult:
     """A stream's state and flows from its written spec, through the property engine."""
     pair, a, b = spec.inputs()
-    if isinstance(spec.composition, dict):  # a named composition is expanded on validation
+    if is_humid_air(spec.fluid):
+        state, mass_flow = _humid_air(spec, engine)
+    elif isinstance(spec.composition, dict):  # a named composition is expanded on validation
         # A gas mixture (audit.properties.mixtures); a normal or standard volume of it is converted
         # with the ideal-gas molar volume at its reference conditions, as combustion practice does.
         state = engine.mixture_state(spec.composition, a, b, spec.composition_basis)
@@ -346,6 +350,26 @@ def evaluate_stream(
         description=spec.description,
         line=line,
     )
+
+
+def _humid_air(spec: StreamSpec, engine: PropertyEngine) -> tuple[State, float]:
+    """A humid-air stream's state and mass flow of humid air [kg/s] (:mod:`audit.model.humid_air`):
+    a dry-air mass flow is multiplied by 1 + W; a normal volume is converted with the ideal-gas
+    molar volume at its reference conditions, as for gas mixtures."""
+    how = next(name for name in HUMIDITIES if getattr(spec, name) is not None)
+    T, P = cast(float, spec.T), cast(float, spec.P)
+    state = engine.humid_air_state(T, P, how, float(getattr(spec, how)))
+    flow = spec.flow
+    if spec.flow_of == "dry air":
+        return state, flow.value * (1.0 + engine.humidity_ratio_of_state(state))
+    if flow.basis == "normal_volume":
+        T_ref, P_ref = flow.reference  # type: ignore[misc]
+        return state, flow.value * P_ref * state.molar_mass / (GAS_CONSTANT * T_ref)
+    if flow.basis == "actual_volume":
+        return state, flow.value * state.rho
+    if flow.basis == "molar":
+        return state, flow.value * state.molar_mass
+    return state, flow.value
 
 
 def _mass_flow(flow: Flow, fluid: str, rho: float, molar_mass: float, engine: PropertyEngine) -> float:

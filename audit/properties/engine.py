@@ -59,6 +59,7 @@ from audit.properties.fluids import (
     short_reason,
 )
 from audit.properties.formulations import refine
+from audit.properties.humid_air import HumidAirStates
 from audit.properties.library import CP, coolprop_version
 from audit.properties.mixture_states import MixtureStates
 from audit.properties.state import BASIS_FLUID, BASIS_FORMATION, BASIS_MIXTURE, State
@@ -76,7 +77,7 @@ __all__ = [
 ]
 
 
-class PropertyEngine(MixtureStates, DeclaredBases):
+class PropertyEngine(MixtureStates, DeclaredBases, HumidAirStates):
     """Evaluates and caches stream states for one balance (one dead state, one saturation band).
 
     Parameters
@@ -87,6 +88,8 @@ class PropertyEngine(MixtureStates, DeclaredBases):
         ambiguous [K]
     reference : the reference printed h and s are on (``balance: reference:``; None: the fluid's own)
     formulation : the declared formulation (``balance: formulation:``; None: reference equations)
+    dead_relative_humidity : the dead state's relative humidity φ0 [-] (humid air's exergy,
+        :mod:`audit.properties.humid_air`)
     """
 
     def __init__(
@@ -96,8 +99,10 @@ class PropertyEngine(MixtureStates, DeclaredBases):
         saturation_band: float = 0.1,
         reference: object = None,
         formulation: object = None,
+        dead_relative_humidity: float = 1.0,
     ) -> None:
         self.reference = reference
+        self.dead_relative_humidity = dead_relative_humidity
         self.formulation = formulation
         self._offsets: dict[str, tuple[float, float]] = {}
         self.dead_T = dead_T
