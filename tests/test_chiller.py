@@ -15,13 +15,13 @@ import math
 
 import CoolProp.CoolProp as CP
 import pytest
+from conftest import assert_close, audit_text, names
 
 from audit.physics.refrigeration import (
     entropic_mean_temperature,
     reversible_cop_cooling,
     reversible_cop_heating,
 )
-from conftest import assert_close, audit_text, names
 
 P = 3e5
 
@@ -124,7 +124,10 @@ def test_cooling_duty_claim_and_side_mass(tmp_path):
     result = audit_text(tmp_path, text)
     found = {f.name: f for f in result.findings}
     assert found["duty-mismatch"].message.startswith("the claimed cooling duty (300 kW) differs from")
-    text = _chiller(12.0).replace("CHW2: {fluid: Water, T: 7 degC, P: 3 bar, flow: 10.0", "CHW2: {fluid: Water, T: 7 degC, P: 3 bar, flow: 10.5")
+    text = _chiller(12.0).replace(
+        "CHW2: {fluid: Water, T: 7 degC, P: 3 bar, flow: 10.0",
+        "CHW2: {fluid: Water, T: 7 degC, P: 3 bar, flow: 10.5",
+    )
     result = audit_text(tmp_path, text)
     assert any(
         f.name == "mass-imbalance" and f.message.startswith("the evaporator side enters with 10 kg/s")

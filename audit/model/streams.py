@@ -23,10 +23,10 @@ from audit.model.quantities import (
     Density,
     Length,
     SpecificEnthalpy,
-    Temperature,
     SpecificEntropy,
     SpecificVolume,
     StreamFlow,
+    Temperature,
     Velocity,
 )
 from audit.model.steps import ClaimField, PressureClaim, TemperatureClaim

@@ -195,11 +195,11 @@ SOURCES: tuple[tuple[str, str], ...] = (
     ),
     (
         "cooling towers: the wet-bulb limit of evaporative cooling",
-        "ASHRAE Handbook—HVAC Systems and Equipment, ch. 40 \"Cooling towers\", ASHRAE, 2016.",
+        'ASHRAE Handbook—HVAC Systems and Equipment, ch. 40 "Cooling towers", ASHRAE, 2016.',
     ),
     (
         "humid air: relative humidity, thermodynamic wet bulb",
-        "ASHRAE Handbook—Fundamentals, ch. 1 \"Psychrometrics\", ASHRAE, 2017.",
+        'ASHRAE Handbook—Fundamentals, ch. 1 "Psychrometrics", ASHRAE, 2017.',
     ),
     (
         "humid air: enhancement factor (CIPM-2007)",
