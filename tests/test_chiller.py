@@ -54,8 +54,10 @@ def test_reversible_cop_is_carnot_between_the_entropic_mean_temperatures():
     assert 280.15 / (308.15 - 280.15) < 12
 
 
-def _chiller(cop: float, written_cop: bool = False, kind: str = "chiller") -> str:
-    m_e = 10.0
+def _chiller(
+    cop: float, written_cop: bool = False, kind: str = "chiller", duty: float | None = None
+) -> str:
+    m_e = 10.0 if duty is None else round(duty / (_h(12.0) - _h(7.0)), 6)
     Q_e = m_e * (_h(12.0) - _h(7.0))
     power = Q_e / cop
     m_c = (Q_e + power) / (_h(35.0) - _h(30.0))
@@ -142,3 +144,15 @@ def test_inferred_power(tmp_path, kind):
     assert names(result) == set()
     step = result.steps[0]
     assert "power" in step.inferred
+
+
+def test_probable_cause_refrigeration_tons_written_as_kw(tmp_path):
+    """A datasheet's 60 TR (211.0 kW, the duty of the streams) written as '60 kW' with its COP:
+    the power the audit takes, duty / COP, misses the first law; the cause names the tons.
+    1 TR = 12 000 Btu/h = 3516.85 W (international-table Btu, 1055.05585262 J)."""
+    text = _chiller(12.0, written_cop=True, duty=60 * 3516.852842) + "    cooling_duty: 60 kW\n"
+    result = audit_text(tmp_path, text)
+    energy = next(f for f in result.findings if f.name == "energy-imbalance")
+    assert energy.probable_causes[0].startswith(
+        "closes if step CH1's cooling_duty '60 kW' is 211 kW (refrigeration tons written as kW)"
+    )

@@ -105,3 +105,14 @@ def test_fan_power_is_work_absorbed(tmp_path):
     # 40 kW into an adiabatic tower whose streams already close: a first-law finding
     assert ("CT1", "energy-imbalance") in names(result)
     assert result.steps[0].balance.W == -40e3
+
+
+def test_probable_cause_relative_humidity_as_a_percentage(tmp_path):
+    """The inlet air's 40 % written '0.4 %': the tower misses the first law by the air's missing
+    vapour; the cause says the number was a fraction."""
+    text = _case(30.0).replace("relative_humidity: 0.4,", "relative_humidity: '0.4 %',")
+    result = audit_text(tmp_path, text)
+    energy = next(f for f in result.findings if f.name == "energy-imbalance")
+    assert energy.probable_causes[0] == (
+        "closes if stream AIR1's relative humidity '0.4 %' is the fraction 0.4 (40%), not a percentage"
+    )
