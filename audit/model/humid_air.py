@@ -12,7 +12,7 @@ from __future__ import annotations
 import re
 from typing import Annotated
 
-from pydantic import BeforeValidator
+from pydantic import BeforeValidator, WithJsonSchema
 
 HUMID_AIR_NAMES = {"humid air", "humidair", "moist air", "humid_air", "moist_air"}
 """Names of the humid-air fluid (any case)."""
@@ -102,9 +102,35 @@ def check_humid_air(spec: object) -> None:
         raise ValueError(f"humid air is a gas; it cannot be declared {spec.phase}")  # type: ignore[attr-defined]
 
 
-RelativeHumidity = Annotated[float, BeforeValidator(parse_relative_humidity)]
+RelativeHumidity = Annotated[
+    float,
+    BeforeValidator(parse_relative_humidity),
+    WithJsonSchema(
+        {
+            "anyOf": [
+                {"type": "number", "minimum": 0, "maximum": 1},
+                {"type": "string", "pattern": r"^\s*[0-9.]+\s*%?\s*$"},
+            ],
+            "description": "a fraction from 0 to 1 (0.6) or a percentage with '%' ('60 %')",
+        }
+    ),
+]
 """A relative humidity as written (a fraction, or a percentage with '%'), as a fraction [-]."""
 DEAD_STATE_HUMIDITY = 1.0
 """The dead state's relative humidity unless the balance writes one: saturated, so that liquid
 water at (T0, P0), which "Water" streams are measured from, has no exergy against the dead-state
 atmosphere (Wepfer, Gaggioli and Obert 1979 discuss the choice; a balance writes the site's)."""
+HumidityRatio = Annotated[
+    float,
+    BeforeValidator(parse_humidity_ratio),
+    WithJsonSchema(
+        {
+            "anyOf": [
+                {"type": "number", "minimum": 0},
+                {"type": "string", "pattern": r"^\s*[0-9.eE+-]+\s*(g/kg|kg/kg)?\s*$"},
+            ],
+            "description": "kg of water vapour per kg of dry air (0.010) or with 'g/kg' ('10 g/kg')",
+        }
+    ),
+]
+"""A humidity ratio as written, in kg of water vapour per kg of dry air."""

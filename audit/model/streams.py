@@ -15,10 +15,10 @@ from __future__ import annotations
 
 from typing import Annotated, ClassVar, Literal
 
-from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, field_validator, model_validator
+from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
 
 from audit.model.composition import check_fractions, named_composition
-from audit.model.humid_air import check_humid_air, parse_humidity_ratio, parse_relative_humidity
+from audit.model.humid_air import HumidityRatio, RelativeHumidity, check_humid_air
 from audit.model.quantities import (
     Density,
     Length,
@@ -214,12 +214,12 @@ class StreamSpec(StateSpec):
     )
     description: str | None = None
     uncertainty: StreamUncertaintyField = None
-    relative_humidity: Annotated[float | None, BeforeValidator(parse_relative_humidity)] = Field(
+    relative_humidity: RelativeHumidity | None = Field(
         None,
         description="humid air: relative humidity, a fraction from 0 to 1 or a percentage with "
         "'%' (e.g. 0.6 or '60 %')",
     )
-    humidity_ratio: Annotated[float | None, BeforeValidator(parse_humidity_ratio)] = Field(
+    humidity_ratio: HumidityRatio | None = Field(
         None,
         description="humid air: kg of water vapour per kg of dry air, or with 'g/kg' "
         "(e.g. 0.010 or '10 g/kg')",
