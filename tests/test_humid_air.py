@@ -212,3 +212,26 @@ def test_flows_of_humid_air(tmp_path, engine):
     flows = {s.id: s.mass_flow for s in result.streams}
     assert_close(flows["A1"], 10.0 * (1 + W), "kg/s", rtol=1e-12)
     assert flows["A2"] == 10.0
+
+
+def test_liquid_water_carries_its_chemical_exergy_against_a_dry_dead_state(engine):
+    """With φ0 = 0.6, liquid water at (T0, P0) has the exergy −R_w T0 ln φ0 (Wepfer, Gaggioli and
+    Obert 1979; analytic: R_w = R/M_w, M_w = 18.015268 g/mol): 0.4615 kJ/(kg K) × 298.15 K × 0.511
+    = 70.3 kJ/kg; with the default saturated dead state it has none."""
+    expected = -R / 18.015268e-3 * 298.15 * math.log(0.6)
+    assert_close(engine.state("Water", "TP", 298.15, P).psi, expected, "kJ/kg", rtol=1e-9)
+    assert_close(expected, 70.3e3, "kJ/kg", atol=0.05e3)
+    saturated = PropertyEngine(298.15, P)
+    assert saturated.state("Water", "TP", 298.15, P).psi == 0.0
+    # and it is what evaporating it into the dead-state air gives back: ψ of that air is zero,
+    # so liquid water's ψ equals (g_liq − μ_w,0) computed from the humid-air model itself
+    T0 = 298.15
+    W0 = engine.humidity_from("relative_humidity", T0, P, 0.6)
+
+    def G(W: float) -> float:
+        return (1.0 + W) * engine.humid_air_state(T0, P, "humidity_ratio", W).g
+
+    dW = 1e-5 * W0
+    mu_w0 = (G(W0 + dW) - G(W0 - dW)) / (2 * dW)
+    liquid = engine.state("Water", "TP", T0, P)
+    assert_close(liquid.g - mu_w0, expected, "kJ/kg", atol=0.05)

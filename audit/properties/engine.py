@@ -275,10 +275,18 @@ class PropertyEngine(MixtureStates, DeclaredBases, HumidAirStates):
             quality=quality,
             g=h - T * s,
             a=u - T * s,
-            psi=(h - h0) - self.dead_T * (s - s0),
+            psi=(h - h0) - self.dead_T * (s - s0) + self._chemical(info.name),
             molar_mass=info.molar_mass,
             basis=info.basis,
         )
+
+    def _chemical(self, fluid: str) -> float:
+        """The chemical exergy [J/kg] of liquid water at the dead state against the dead-state
+        atmosphere, added to every "Water" state's ψ when the dead state is not saturated
+        (:meth:`water_chemical_exergy`); 0 otherwise and for other fluids."""
+        if self.dead_relative_humidity == 1.0 or fluid != "Water":
+            return 0.0
+        return self.water_chemical_exergy()
 
     def _phase_for_TP(self, info: Fluid, T: float, P: float) -> CP.phases | None:
         """Decide the phase of a (T, P) input from T_sat(P); refuse states in the band."""

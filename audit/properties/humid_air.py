@@ -47,7 +47,8 @@ per kg of humid air (mass fractions y_a = 1/(1 + W), y_w = W/(1 + W)); μ_a,0 is
 energy at T0 and its partial pressure there, μ_w,0 water's chemical potential there. ψ holds the
 physical part and the chemical part (the air's humidity against the dead state's); for ideal gases
 it is Wepfer's equation. With φ0 = 1 (the default) liquid water at the dead state has no exergy,
-as the "Water" streams, measured from liquid water at (T0, P0), assume.
+as the "Water" streams, measured from liquid water at (T0, P0), assume; with φ0 < 1 every "Water"
+state's ψ gains liquid water's chemical exergy −R_w T0 ln φ0 (:meth:`water_chemical_exergy`).
 
 References
 ----------
@@ -67,6 +68,7 @@ from __future__ import annotations
 import math
 from typing import TYPE_CHECKING
 
+from audit.constants import GAS_CONSTANT
 from audit.errors import StateError
 from audit.formation import DRY_AIR
 from audit.properties import mixtures
@@ -313,6 +315,13 @@ class HumidAirStates:
         if x_w > 0.0:
             fractions["H2O"] = x_w
         return self._mixtures.components(fractions)
+
+    def water_chemical_exergy(self) -> float:
+        """Liquid water's exergy at (T0, P0) against water vapour in the dead-state atmosphere
+        [J/kg]: g_liq(T0, P0) − μ_w,0, which this model makes exactly −R_w T0 ln φ0 (g_E puts μ_w
+        at g_liq where φ = 1, and the vapour mixes as an ideal gas) [5]; 0 for a saturated dead
+        state. "Water" states add it to their ψ, so that they and humid air share one dead state."""
+        return -GAS_CONSTANT / WATER_MOLAR_MASS * self.dead_T * math.log(self.dead_relative_humidity)
 
     def _dead_potentials(self) -> tuple[float, float]:
         """(μ_a,0 [J/kg dry air], μ_w,0 [J/kg water]) in the dead-state atmosphere (T0, P0, φ0)."""
