@@ -235,3 +235,22 @@ def test_liquid_water_carries_its_chemical_exergy_against_a_dry_dead_state(engin
     mu_w0 = (G(W0 + dW) - G(W0 - dW)) / (2 * dW)
     liquid = engine.state("Water", "TP", T0, P)
     assert_close(liquid.g - mu_w0, expected, "kJ/kg", atol=0.05)
+
+
+def test_a_fan_and_a_coil_on_humid_air_say_what_is_not_computed(tmp_path):
+    text = """
+streams:
+  F1: {fluid: humid air, T: 20 degC, P: 1.013 bar, relative_humidity: 50 %, flow: 2 kg/s}
+  F2: {fluid: humid air, T: 21 degC, P: 1.023 bar, relative_humidity: 47 %, flow: 2 kg/s}
+steps:
+  - id: FAN
+    kind: compressor
+    inlet: F1
+    outlet: F2
+"""
+    result = audit_text(tmp_path, text)
+    (finding,) = [f for f in result.findings if f.name == "step-not-evaluated"]
+    assert finding.message.endswith(
+        "humid air is evaluated from T, P and its humidity only; its states along a temperature "
+        "profile or at an isentropic outlet are not computed"
+    )

@@ -59,7 +59,7 @@ from audit.properties.fluids import (
     short_reason,
 )
 from audit.properties.formulations import refine
-from audit.properties.humid_air import HumidAirStates
+from audit.properties.humid_air import HUMID_AIR, HumidAirStates
 from audit.properties.library import CP, coolprop_version
 from audit.properties.mixture_states import MixtureStates
 from audit.properties.state import BASIS_FLUID, BASIS_FORMATION, BASIS_MIXTURE, State
@@ -184,6 +184,11 @@ class PropertyEngine(MixtureStates, DeclaredBases, HumidAirStates):
         if cached is not None:
             return cached
         components = self._mixture_names.get(fluid)
+        if fluid == HUMID_AIR:
+            raise StateError(
+                "humid air is evaluated from T, P and its humidity only; its states along a "
+                "temperature profile or at an isentropic outlet are not computed"
+            )
         if components is not None:
             result = self._mixture_from_pair(components, pair, a, b)
         else:
