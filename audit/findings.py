@@ -68,6 +68,11 @@ NAMES: dict[str, str] = {
     "faraday-mismatch": "current and production (or consumption) that disagree with Faraday's "
     "law, or a faradaic efficiency above 1",
     "power-mismatch": "a claimed electrical power that differs from voltage × current × cells",
+    "cop-above-reversible": "a chiller's or heat pump's COP above the reversible one between its "
+    "two sides' streams",
+    "machine-side-wrong-way": "a chiller or heat pump side heated that should be cooled, or the reverse",
+    "water-below-wet-bulb": "a cooling tower's water leaving colder than the inlet air's wet-bulb "
+    "temperature (the limit of evaporative cooling)",
     "acceptance-unmatched": "a reviewer's acceptance that matches no finding of the audit",
     "acceptance-expired": "a reviewer's acceptance past its expiry date: the finding counts again",
 }

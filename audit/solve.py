@@ -19,7 +19,7 @@ import math
 import platform
 import time
 from dataclasses import dataclass, field
-from typing import Any, cast
+from typing import Any
 
 from audit.clock import reproducible, run_time
 from audit.errors import InputErrors, Problem, StateError
@@ -31,12 +31,12 @@ from audit.model.streams import StreamSpec
 from audit.model.tolerances import merged
 from audit.plant import check_topology, dew_point_findings, freezing_finding, plant_totals
 from audit.printed import check_stream
-from audit.properties.engine import BACKEND, GAS_CONSTANT, PropertyEngine, State, coolprop_version
+from audit.properties.engine import BACKEND, PropertyEngine, coolprop_version
 from audit.results import AuditResult, StepResult, StreamResult
 from audit.steps import REGISTRY, StepContext
-from audit.units import Flow
+from audit.stream_state import evaluate_stream
 from audit.version import __version__
-from audit.wording import bar, celsius, to_celsius
+from audit.wording import bar, celsius
 
 _PHASE_MATCH = {
     "liquid": {"liquid"},
@@ -75,6 +75,7 @@ def solve(balance: Balance, document: Document) -> Solution:
         info.tolerances.saturation_band,
         reference=info.reference,
         formulation=info.formulation,
+        dead_relative_humidity=info.dead_state.relative_humidity,
     )
     findings: list[Finding] = []
     streams, problems = _evaluate_streams(balance, document, engine, findings)
@@ -250,7 +251,7 @@ def _evaluate_streams(
             )
         if result.state.below_freezing is not None:
             findings.append(freezing_finding(stream_id, result.state))
-        if result.composition is not None:
+        if spec.composition is not None and result.composition is not None:
             findings.extend(
                 dew_point_findings(stream_id, engine.state(result.fluid, "TP", result.T, result.P))
             )
@@ -297,82 +298,3 @@ def _other_formulation(engine: PropertyEngine, fluid: str) -> PropertyEngine | N
         reference=engine.reference,
         formulation={fluid: "IF97" if this == "reference" else "reference"},
     )
-
-
-def evaluate_stream(
-    stream_id: str, spec: StreamSpec, engine: PropertyEngine, line: int | None
-) -> StreamResult:
-    """A stream's state and flows from its written spec, through the property engine."""
-    pair, a, b = spec.inputs()
-    if isinstance(spec.composition, dict):  # a named composition is expanded on validation
-        # A gas mixture (audit.properties.mixtures); a normal or standard volume of it is converted
-        # with the ideal-gas molar volume at its reference conditions, as combustion practice does.
-        state = engine.mixture_state(spec.composition, a, b, spec.composition_basis)
-        if spec.flow.basis == "normal_volume":
-            T_ref, P_ref = spec.flow.reference  # type: ignore[misc]
-            mass_flow = spec.flow.value * P_ref * state.molar_mass / (GAS_CONSTANT * T_ref)
-        else:
-            mass_flow = _mass_flow(spec.flow, state.fluid, state.rho, state.molar_mass, engine)
-    elif spec.fraction is not None or engine.is_liquid(cast(str, spec.fluid)):
-        state = _liquid_state(spec, engine)
-        mass_flow = _mass_flow(spec.flow, state.fluid, state.rho, state.molar_mass, engine)
-    else:
-        fluid = cast(str, spec.fluid)  # validated: a stream without a composition names its fluid
-        state = engine.state(fluid, pair, a, engine.to_tool_basis(fluid, pair, b))
-        mass_flow = _mass_flow(spec.flow, fluid, state.rho, state.molar_mass, engine)
-    return StreamResult(
-        id=stream_id,
-        state=state,
-        mass_flow=mass_flow,
-        molar_flow=mass_flow / state.molar_mass,
-        flow_as_written=spec.flow.basis,
-        velocity=spec.velocity or 0.0,
-        elevation=spec.elevation or 0.0,
-        declared_phase=spec.phase,
-        description=spec.description,
-        line=line,
-    )
-
-
-def _liquid_state(spec: StreamSpec, engine: PropertyEngine) -> State:
-    """A brine, glycol or heat-transfer liquid (:mod:`audit.properties.liquids`), from T and P."""
-    if spec.pair != "TP" or spec.claims() or spec.state_from is not None:
-        raise StateError(f"{spec.fluid} is a liquid of the incompressible library: give T and P only")
-    if spec.flow.basis == "normal_volume":
-        raise StateError(
-            f"a normal or standard volumetric flow is for gases; give the flow of {spec.fluid} "
-            "as a mass, molar or actual volumetric flow"
-        )
-    return engine.liquid_state(
-        cast(str, spec.fluid),
-        spec.fraction,
-        spec.fraction_basis,
-        cast(float, spec.T),
-        cast(float, spec.P),
-    )
-
-
-def _mass_flow(flow: Flow, fluid: str, rho: float, molar_mass: float, engine: PropertyEngine) -> float:
-    """Mass flow [kg/s] from a flow as written (mass, molar, normal/standard or actual volume)."""
-    if flow.basis == "mass":
-        return flow.value
-    if flow.basis == "molar":
-        return flow.value * molar_mass
-    if flow.basis == "actual_volume":
-        return flow.value * rho
-    T_ref, P_ref = flow.reference  # type: ignore[misc]
-    try:
-        reference = engine.state(fluid, "TP", T_ref, P_ref)
-    except StateError as exc:  # e.g. water at 0 °C is below its equation's range
-        raise StateError(
-            f"a normal or standard volumetric flow needs a gas at its reference conditions "
-            f"({to_celsius(T_ref):g} °C, {P_ref / 1e3:g} kPa), but {fluid} cannot be evaluated "
-            f"there ({exc.problem.message}); give a mass or molar flow"
-        ) from None
-    if reference.phase not in ("vapour", "gas", "supercritical"):
-        raise StateError(
-            f"a normal or standard volumetric flow needs a gas at its reference conditions "
-            f"({to_celsius(T_ref):g} °C, {P_ref / 1e3:g} kPa), but {reference.fluid} is "
-            f"{reference.phase} there; give a mass or molar flow"
-        )
-    return flow.value * reference.rho

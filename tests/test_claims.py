@@ -28,6 +28,8 @@ NOT_CLAIMS = {
     "cells": "a count of cells in series, exact",
     "electrons": "electrons per mole of reaction, exact",
     "reactions.extent": "a reaction's extent, fitted to the streams when omitted; not a reading",
+    "cop": "a datasheet ratio the audit checks against the reversible one; its spread follows "
+    "from the duty and the power",
 }
 """Numeric fields of step models that are not claims (dotted path without list positions)."""
 

@@ -61,7 +61,7 @@ def test_tables_say_absolute_and_list_the_steps(seeded) -> None:
 
 
 def test_the_verdict_line_is_plain(seeded) -> None:
-    assert findings_summary(seeded, width=100).splitlines()[-1] == "FAIL: 18 errors"
+    assert findings_summary(seeded, width=100).splitlines()[-1] == "FAIL: 20 errors"
     clean = audit.run(SAMPLE / "quillon-bay-clean.yaml")
     assert findings_summary(clean, width=100).splitlines()[-1] == "PASS"
     measured = audit.run(SAMPLE / "quillon-bay-measured.yaml")
@@ -89,7 +89,7 @@ def test_the_command_fits_columns_and_writes_no_colour_when_piped(
     out = capsys.readouterr().out
     assert max(len(line) for line in out.splitlines()) <= 90
     assert "\x1b[" not in out
-    assert out.rstrip().endswith("FAIL: 18 errors")
+    assert out.rstrip().endswith("FAIL: 20 errors")
 
 
 def test_text_from_the_balance_is_made_safe() -> None:

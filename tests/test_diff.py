@@ -74,6 +74,10 @@ def test_changed_streams_and_claims_are_the_seeded_edits(clean, seeded) -> None:
         "S62",
         "S70",
         "S71",
+        "AIR1",
+        "AIR2",
+        "MU1",
+        "BD1",
     }  # sample_plant/README.md, "what was changed"
     s11 = {c.field: c for c in diff.changes if c.id == "S11"}
     assert {"T", "mass_flow"} <= set(s11)

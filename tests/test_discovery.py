@@ -104,7 +104,7 @@ def test_a_repository_runs_nightly_with_a_stable_history(
     out = capsys.readouterr().out
     assert code == EXIT_FINDINGS
     assert out.count("nothing new since") == 2
-    assert "18 new since" in out
+    assert "20 new since" in out
     with sqlite3.connect(database) as connection:
         keys = {k for (k,) in connection.execute("SELECT DISTINCT file FROM runs")}
     assert keys == {"north/boiler.yaml", "north/chiller.yaml", "south/site.yaml"}
@@ -112,7 +112,7 @@ def test_a_repository_runs_nightly_with_a_stable_history(
     assert main(["history", "south/site.yaml", "--history", str(database)]) == EXIT_PASS
     out = capsys.readouterr().out
     assert out.startswith(f"Runs of south/site.yaml recorded in {database}, newest first:")
-    assert "Trend (oldest → newest): errors and warnings 0 → 18; exergy destroyed" in out
+    assert "Trend (oldest → newest): errors and warnings 0 → 20; exergy destroyed" in out
 
 
 def test_identity_prefers_a_declared_id_then_the_project_root(tmp_path: Path) -> None:

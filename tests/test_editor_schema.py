@@ -95,7 +95,7 @@ def test_an_unknown_kind_gives_one_message(clean: dict) -> None:
     data = copy.deepcopy(clean)
     data["steps"][0]["kind"] = "pumpp"
     (message,) = _messages(data)
-    assert message.startswith("'pumpp' is not one of ['compressor', 'cooler',")
+    assert message.startswith("'pumpp' is not one of ['chiller', 'compressor', 'cooler',")
 
 
 def test_a_negative_tolerance_is_refused_by_the_standard_minimum(clean: dict) -> None:

@@ -197,4 +197,4 @@ def test_batch_writes_reports_and_an_index(tmp_path: Path):
     for name in ("quillon-bay-clean.html", "quillon-bay-seeded.html"):
         assert f'href="{name}"' in index and (out / name).is_file()
     assert index.count('class="trend"') == 2
-    assert "errors per run: fail (18)" in index
+    assert "errors per run: fail (20)" in index

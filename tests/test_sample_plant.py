@@ -33,6 +33,8 @@ EXPECTED_SEEDED = {
     ("F1", "energy-imbalance"),
     ("F1", "input-below-minimum"),
     (None, "below-freezing-point"),
+    ("CH1", "cop-above-reversible"),
+    ("CT1", "water-below-wet-bulb"),
 }
 
 
@@ -67,6 +69,8 @@ def test_seeded_margins_match_the_readme():
     assert round(by_name[("C1", "input-below-minimum")].bound / -1e3, 1) == 123.5
     assert round(by_name[("HX1", "internal-pinch")].margin, 1) == 6.6
     assert round(by_name[("SP1", "mass-imbalance")].margin, 3) == 0.306
+    assert round(by_name[("CH1", "cop-above-reversible")].bound, 1) == 12.3
+    assert round(by_name[("CT1", "water-below-wet-bulb")].margin, 2) == 0.87
 
 
 def test_sample_files_point_editors_at_the_schema():

@@ -35,6 +35,7 @@ from audit.input.tables import TableSource
 from audit.model.acceptance import Acceptance
 from audit.model.editor_schema import SCHEMA_FILE as SCHEMA_FILE  # re-exported
 from audit.model.editor_schema import SCHEMA_KEY, balance_schema
+from audit.model.humid_air import DEAD_STATE_HUMIDITY, RelativeHumidity
 from audit.model.quantities import Pressure, Temperature
 from audit.model.references import FormulationField, ReferenceField
 from audit.model.steps import StepBase
@@ -53,12 +54,15 @@ atmosphere; from memory), rounded outwards."""
 
 
 class DeadState(BaseModel):
-    """The environment exergy is measured against: T0 and P0."""
+    """The environment exergy is measured against: T0, P0 and (for humid air) its humidity."""
 
     model_config = ConfigDict(extra="forbid")
 
     T: Temperature = Field("25 degC", validate_default=True, description="dead-state temperature")
     P: Pressure = Field("101.325 kPa", validate_default=True, description="dead-state pressure")
+    relative_humidity: RelativeHumidity = Field(
+        DEAD_STATE_HUMIDITY, gt=0, description="dead-state relative humidity (humid air's exergy)"
+    )
 
     @field_validator("T")
     @classmethod

@@ -18,6 +18,7 @@ from typing import Annotated, ClassVar, Literal
 from pydantic import BaseModel, ConfigDict, Field, WithJsonSchema, field_validator, model_validator
 
 from audit.model.composition import check_fractions, named_composition
+from audit.model.humid_air import HumidityRatio, RelativeHumidity, check_humid_air
 from audit.model.quantities import (
     Density,
     Length,
@@ -25,6 +26,7 @@ from audit.model.quantities import (
     SpecificEntropy,
     SpecificVolume,
     StreamFlow,
+    Temperature,
     Velocity,
 )
 from audit.model.steps import ClaimField, PressureClaim, TemperatureClaim
@@ -166,6 +168,7 @@ class StreamSpec(StateSpec):
     """A stream: a state, a flow, and optionally velocity, elevation, a declared phase and printed
     properties beyond the two that fix its state (see the module docstring).
 
+    Humid air is ``fluid: humid air`` with T, P and one humidity (:mod:`audit.model.humid_air`).
     A gas mixture gives ``composition`` (mole fractions by formula or CoolProp name, or mass
     fractions with ``composition_basis: mass``, or a named composition such as ``air``) instead of
     ``fluid``, with T and P; it is evaluated as an ideal-gas mixture (:mod:`audit.properties.mixtures`).
@@ -237,6 +240,25 @@ class StreamSpec(StateSpec):
     )
     description: str | None = None
     uncertainty: StreamUncertaintyField = None
+    relative_humidity: RelativeHumidity | None = Field(
+        None,
+        description="humid air: relative humidity, a fraction from 0 to 1 or a percentage with "
+        "'%' (e.g. 0.6 or '60 %')",
+    )
+    humidity_ratio: HumidityRatio | None = Field(
+        None,
+        description="humid air: kg of water vapour per kg of dry air, or with 'g/kg' "
+        "(e.g. 0.010 or '10 g/kg')",
+    )
+    wet_bulb: Temperature | None = Field(
+        None, description="humid air: thermodynamic wet-bulb temperature"
+    )
+    dew_point: Temperature | None = Field(None, description="humid air: dew-point temperature")
+    flow_of: Literal["humid air", "dry air"] | None = Field(
+        None,
+        description="humid air: whether the mass flow written is of the humid air (default) or "
+        "of its dry air",
+    )
 
     over_determined: ClassVar[bool] = True
 
@@ -291,6 +313,7 @@ class StreamSpec(StateSpec):
             raise ValueError(
                 "a stream needs exactly one of 'fluid' (a pure fluid) or 'composition' (a gas mixture)"
             )
+        check_humid_air(self)
         if self.composition is None:
             return self
         if self.claims() or self.state_from is not None:

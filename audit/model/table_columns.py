@@ -20,6 +20,8 @@ STREAM_KINDS: dict[str, str] = {
     "v": "specific_volume",
     "rho": "density",
     "T_sat": "temperature",
+    "wet_bulb": "temperature",
+    "dew_point": "temperature",
     "velocity": "velocity",
     "elevation": "length",
     "flow": "flow",

@@ -59,6 +59,7 @@ from audit.properties.fluids import (
     short_reason,
 )
 from audit.properties.formulations import refine
+from audit.properties.humid_air import HUMID_AIR, HumidAirStates
 from audit.properties.library import CP, coolprop_version
 from audit.properties.liquid_states import LiquidStates
 from audit.properties.liquids import LiquidLibrary
@@ -78,7 +79,7 @@ __all__ = [
 ]
 
 
-class PropertyEngine(MixtureStates, LiquidStates, DeclaredBases):
+class PropertyEngine(MixtureStates, LiquidStates, DeclaredBases, HumidAirStates):
     """Evaluates and caches stream states for one balance (one dead state, one saturation band).
 
     Parameters
@@ -89,6 +90,8 @@ class PropertyEngine(MixtureStates, LiquidStates, DeclaredBases):
         ambiguous [K]
     reference : the reference printed h and s are on (``balance: reference:``; None: the fluid's own)
     formulation : the declared formulation (``balance: formulation:``; None: reference equations)
+    dead_relative_humidity : the dead state's relative humidity φ0 [-] (humid air's exergy,
+        :mod:`audit.properties.humid_air`)
     """
 
     def __init__(
@@ -98,8 +101,10 @@ class PropertyEngine(MixtureStates, LiquidStates, DeclaredBases):
         saturation_band: float = 0.1,
         reference: object = None,
         formulation: object = None,
+        dead_relative_humidity: float = 1.0,
     ) -> None:
         self.reference = reference
+        self.dead_relative_humidity = dead_relative_humidity
         self.formulation = formulation
         self._offsets: dict[str, tuple[float, float]] = {}
         self.dead_T = dead_T
@@ -184,6 +189,11 @@ class PropertyEngine(MixtureStates, LiquidStates, DeclaredBases):
         if cached is not None:
             return cached
         components = self._mixture_names.get(fluid)
+        if fluid == HUMID_AIR:
+            raise StateError(
+                "humid air is evaluated from T, P and its humidity only; its states along a "
+                "temperature profile or at an isentropic outlet are not computed"
+            )
         liquid = self._liquid_names.get(fluid)
         if components is not None:
             result = self._mixture_from_pair(components, pair, a, b)
@@ -278,10 +288,18 @@ class PropertyEngine(MixtureStates, LiquidStates, DeclaredBases):
             quality=quality,
             g=h - T * s,
             a=u - T * s,
-            psi=(h - h0) - self.dead_T * (s - s0),
+            psi=(h - h0) - self.dead_T * (s - s0) + self._chemical(info.name),
             molar_mass=info.molar_mass,
             basis=info.basis,
         )
+
+    def _chemical(self, fluid: str) -> float:
+        """The chemical exergy [J/kg] of liquid water at the dead state against the dead-state
+        atmosphere, added to every "Water" state's ψ when the dead state is not saturated
+        (:meth:`water_chemical_exergy`); 0 otherwise and for other fluids."""
+        if self.dead_relative_humidity == 1.0 or fluid != "Water":
+            return 0.0
+        return self.water_chemical_exergy()
 
     def _phase_for_TP(self, info: Fluid, T: float, P: float) -> CP.phases | None:
         """Decide the phase of a (T, P) input from T_sat(P); refuse states in the band."""

@@ -186,6 +186,32 @@ SOURCES: tuple[tuple[str, str], ...] = (
         "Transfer, 6th ed., Wiley, 2007, ch. 11.",
     ),
     (
+        "chillers and heat pumps: entropic mean temperature of a stream's heat",
+        "T. J. Kotas, The Exergy Method of Thermal Plant Analysis, Butterworths, 1985, §3.4.",
+    ),
+    (
+        "chillers and heat pumps: reversible COP between the two sides",
+        "A. Bejan, Advanced Engineering Thermodynamics, 4th ed., Wiley, 2016, ch. 9.",
+    ),
+    (
+        "cooling towers: the wet-bulb limit of evaporative cooling",
+        'ASHRAE Handbook—HVAC Systems and Equipment, ch. 40 "Cooling towers", ASHRAE, 2016.',
+    ),
+    (
+        "humid air: relative humidity, thermodynamic wet bulb",
+        'ASHRAE Handbook—Fundamentals, ch. 1 "Psychrometrics", ASHRAE, 2017.',
+    ),
+    (
+        "humid air: enhancement factor (CIPM-2007)",
+        'A. Picard, R. S. Davis, M. Gläser, K. Fujii, "Revised formula for the density of moist air '
+        '(CIPM-2007)", Metrologia 45 (2008) 149–155.',
+    ),
+    (
+        "humid air: exergy including its chemical part against the dead state's humidity",
+        'W. J. Wepfer, R. A. Gaggioli, E. F. Obert, "Proper evaluation of available energy for '
+        'HVAC", ASHRAE Transactions 85 (1979) 214–230.',
+    ),
+    (
         "fuel cells and electrolysers: reversible and thermoneutral voltage, Faraday's law",
         "J. Larminie, A. Dicks, Fuel Cell Systems Explained, 2nd ed., Wiley, 2003, ch. 2.",
     ),

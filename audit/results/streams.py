@@ -5,6 +5,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Any
 
+from audit.properties.humid_air import DRY_AIR_PART, HUMID_AIR, WATER_MOLAR_MASS
 from audit.properties.state import State
 from audit.results.delegated import Delegated
 
@@ -52,6 +53,15 @@ class StreamResult:
         """A gas mixture's mole fractions [-] by formula; None for a pure fluid."""
         pairs = self.state.composition
         return dict(pairs) if pairs is not None else None
+
+    def conserved_parts(self) -> tuple[tuple[str, float], ...]:
+        """(substance, mass flow [kg/s]) pairs that a step conserves: the stream's own fluid, or for
+        humid air its dry air and its water (which evaporates from and condenses to "Water")."""
+        if self.state.fluid != HUMID_AIR:
+            return ((self.state.fluid, self.mass_flow),)
+        x_w = dict(self.state.composition or ()).get("H2O", 0.0)
+        y_w = x_w * WATER_MOLAR_MASS / self.state.molar_mass
+        return ((DRY_AIR_PART, self.mass_flow * (1.0 - y_w)), ("Water", self.mass_flow * y_w))
 
     @property
     def kinetic_potential(self) -> float:

@@ -26,11 +26,12 @@ every failing step it closes (a stream shared by a valve and an evaporator gets 
 Single slips only; when several close a step, the one that leaves the smallest margin comes first
 (at most :data:`MAX_CAUSES`).
 
-Bound: per failing step at most 6 slips per stream (1 pressure, 1 temperature and 4 flow slips when
-the file says how each is written, 8 when it does not), each re-evaluating the stream's steps (at
-most two, by the plant topology), plus 3 per claimed power or energy, 1 per claimed temperature or
-pressure and 1 per inlet/outlet pair: at most 16 re-evaluations per stream, 3 per claim and 1 per
-pair, and a slip shared by two failing steps is evaluated once.
+Bound: per failing step at most 7 slips per stream (1 pressure, 1 temperature, 1 relative humidity
+and 4 flow slips when the file says how each is written, 9 when it does not), each re-evaluating
+the stream's steps (at most two, by the plant topology), plus 3 per claimed power or energy (5 for
+a chiller's or heat pump's duty), 1 per claimed temperature or pressure and 1 per inlet/outlet
+pair: at most 18 re-evaluations per stream, 5 per claim and 1 per pair, and a slip shared by two
+failing steps is evaluated once.
 
 Each re-evaluation costs time in proportion to the step's streams, so the stream slips of a step
 with more than :data:`MAX_SEARCHED_STREAMS` streams (a mixer with thousands of inlets) are not

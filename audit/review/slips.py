@@ -6,11 +6,13 @@ are:
 * on a stream of the step: its pressure read as gauge instead of absolute (P + site pressure) or
   the reverse (P − site pressure), whichever the way it is written allows; its temperature read in
   °F instead of °C or the reverse; its flow ×3.6 or ÷3.6 (kg/s and t/h confused) or ×3600 or
-  ÷3600 (kg/s and kg/h);
+  ÷3600 (kg/s and kg/h); a humid air's relative humidity read as a fraction instead of a
+  percentage or the reverse;
 * on a claim of the step (the fields its model declares as claims,
   :func:`audit.model.steps.step_claims`): a power or energy ×1000 or ÷1000 (kW and MW, kJ and MJ
   confused), or with the opposite sign (heat added for removed, work delivered for absorbed, when
-  the claim declares its opposite field; else a minus sign); a claimed temperature or pressure (a
+  the claim declares its opposite field; else a minus sign); a chiller's or heat pump's duty
+  ×3.517 or ÷3.517 (refrigeration tons and kW confused); a claimed temperature or pressure (a
   vessel state, a source temperature) read as above;
 * the step's inlet and outlet swapped (each inlet/outlet pair, each side of an exchanger).
 
@@ -38,6 +40,11 @@ from audit.wording import bar, to_bar, to_celsius
 _GAUGE_UNIT = re.compile(r"^\s*(mbar|bar|Pa|kPa|MPa|psi)\s*(g|\(g\))\s*$")
 _CELSIUS = ("degC", "°C", "℃", "celsius", "degree_Celsius")
 _FAHRENHEIT = ("degF", "°F", "℉", "fahrenheit", "degree_Fahrenheit")
+REFRIGERATION_TON = 12_000 * 1055.05585262 / 3600
+"""One ton of refrigeration [W]: 12 000 Btu/h with the international-table Btu (1055.05585262 J,
+exact by definition), 3516.85 W."""
+REFRIGERATION_DUTIES = ("cooling_duty", "heating_duty")
+"""The claims that datasheets give in refrigeration tons as often as in kW."""
 _FLOW_SLIPS = (
     (3.6, "3.6 times larger", "kg/s written as t/h"),
     (1 / 3.6, "3.6 times smaller", "t/h written as kg/s"),
@@ -120,6 +127,26 @@ def _temperature_slips(value: float, text: Any, what: str) -> list[tuple[float, 
     return [(T, s) for T, s in slips if T > 0]
 
 
+def _humidity_slips(phi: float, text: Any, stream_id: str) -> list[tuple[float, str]]:
+    """(φ' [-], sentence) for a relative humidity φ [-] written as ``text``: a percentage read as a
+    fraction, or a fraction read as a percentage."""
+    what = f"stream {stream_id}'s relative humidity"
+    shown = f"'{text}'" if text is not None else f"{phi:g}"
+    if isinstance(text, str) and "%" in text:
+        number = phi * 100.0
+        if number > 1.0:
+            return []
+        return [
+            (
+                number,
+                f"closes if {what} {shown} is the fraction {number:g} ({number:.0%}), not a percentage",
+            )
+        ]
+    return [
+        (phi / 100.0, f"closes if {what} {shown} is {phi:g} %, not the fraction {phi:g} ({phi:.0%})")
+    ]
+
+
 def stream_slips(runner: StepRunner, stream_id: str) -> list[Slip]:
     """The slips of one stream (see the module docstring)."""
     spec = runner.balance.streams[stream_id]
@@ -135,6 +162,10 @@ def stream_slips(runner: StepRunner, stream_id: str) -> list[Slip]:
         text = _written(document, ("streams", stream_id, "T"))
         for T, sentence in _temperature_slips(spec.T, text, f"stream {stream_id}'s temperature"):
             slips.append(Slip(sentence, stream=stream_id, changes={"T": T}))
+    if spec.relative_humidity is not None:
+        text = _written(document, ("streams", stream_id, "relative_humidity"))
+        for phi, sentence in _humidity_slips(spec.relative_humidity, text, stream_id):
+            slips.append(Slip(sentence, stream=stream_id, changes={"relative_humidity": phi}))
     text = _written(document, ("streams", stream_id, "flow"))
     shown = f"'{text}'" if text is not None else "as written"
     for factor, size, words in _FLOW_SLIPS:
@@ -190,6 +221,8 @@ def step_slips(runner: StepRunner, index: int) -> list[Slip]:
                     )
                 )
             slips.append(_sign_slip(step, index, claim, what, shown))
+            if claim.key in REFRIGERATION_DUTIES:
+                slips.extend(_ton_slips(step, index, claim, what, shown))
         elif claim.kind == "temperature":
             for T, sentence in _temperature_slips(claim.value, text, what):
                 slips.append(Slip(sentence, step_index=index, step=with_value(step, claim.path, T)))
@@ -209,6 +242,24 @@ def step_slips(runner: StepRunner, index: int) -> list[Slip]:
                 f"closes if {side}inlet {inlet} and outlet {outlet} are swapped",
                 step_index=index,
                 step=target,
+            )
+        )
+    return slips
+
+
+def _ton_slips(step: Any, index: int, claim: Claim, what: str, shown: str) -> list[Slip]:
+    """A duty written in kW that the datasheet gives in refrigeration tons, or the reverse."""
+    slips = []
+    for factor, words in (
+        (REFRIGERATION_TON / 1e3, "refrigeration tons written as kW"),
+        (1e3 / REFRIGERATION_TON, "kW written as refrigeration tons"),
+    ):
+        value = claim.value * factor
+        slips.append(
+            Slip(
+                f"closes if {what} {shown} is {format_value(value, claim.kind)} ({words})",
+                step_index=index,
+                step=with_value(step, claim.path, value),
             )
         )
     return slips

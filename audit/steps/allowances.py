@@ -45,7 +45,11 @@ from dataclasses import dataclass
 from audit.errors import StateError
 from audit.model.tolerances import Tolerances
 from audit.properties.engine import PropertyEngine
+from audit.properties.humid_air import HUMID_AIR
 from audit.results import HeatFlow, StreamResult
+
+_WATER_GROUP = {HUMID_AIR: "Water"}
+"""Humid air exchanges water with "Water" streams: one group of the mass-conserving reading."""
 
 PROPERTY_SPREAD = 4e-4
 """Relative spread between reference property formulations (see the module docstring) [-]."""
@@ -126,18 +130,20 @@ def flow_groups(
     """The parts of a step that conserve mass on their own, as (inlets, outlets): each
     inlet/outlet pair when the step pairs its streams one to one with the same fluid (one-stream
     steps, exchanger sides) and ``paired`` (a mixer is not: its vent is no inlet's outlet), else the
-    inlets and outlets of each fluid."""
+    inlets and outlets of each fluid (humid air with water, which it takes up or gives off)."""
     if (
         paired
         and len(inlets) == len(outlets)
-        and all(i.fluid == o.fluid for i, o in zip(inlets, outlets, strict=True))
+        and all(
+            i.fluid == o.fluid and i.fluid != HUMID_AIR for i, o in zip(inlets, outlets, strict=True)
+        )
     ):
         return [([i], [o]) for i, o in zip(inlets, outlets, strict=True)]
     by_fluid: dict[str, tuple[list[StreamResult], list[StreamResult]]] = defaultdict(lambda: ([], []))
     for s in inlets:
-        by_fluid[s.fluid][0].append(s)
+        by_fluid[_WATER_GROUP.get(s.fluid, s.fluid)][0].append(s)
     for s in outlets:
-        by_fluid[s.fluid][1].append(s)
+        by_fluid[_WATER_GROUP.get(s.fluid, s.fluid)][1].append(s)
     return list(by_fluid.values())
 
 

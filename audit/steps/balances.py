@@ -33,6 +33,7 @@ from collections.abc import Sequence
 from audit.physics.bounds import energy_residual, entropy_generation, reversible_work
 from audit.physics.exergy import carnot_factor, exergy_destroyed, heat_exergy
 from audit.physics.exergy import entropy_of_heat as heat_entropy
+from audit.properties.humid_air import HUMID_AIR
 from audit.results import Balance, HeatFlow, StreamResult
 
 
@@ -82,9 +83,17 @@ def flow_balance(
     residual = energy_residual(Q, W, dE)
     mass: dict[str, float] = {}
     for s in inlets:
-        mass[s.fluid] = mass.get(s.fluid, 0.0) + s.mass_flow
+        if s.state.composition is not None and s.fluid == HUMID_AIR:
+            for name, m in s.conserved_parts():
+                mass[name] = mass.get(name, 0.0) + m
+        else:
+            mass[s.fluid] = mass.get(s.fluid, 0.0) + s.mass_flow
     for s in outlets:
-        mass[s.fluid] = mass.get(s.fluid, 0.0) - s.mass_flow
+        if s.state.composition is not None and s.fluid == HUMID_AIR:
+            for name, m in s.conserved_parts():
+                mass[name] = mass.get(name, 0.0) - m
+        else:
+            mass[s.fluid] = mass.get(s.fluid, 0.0) - s.mass_flow
     S_gen = entropy_generation(dS, entropy_of_heat(heat_flows))
     W_rev = reversible_work(dE, dS, T0, exergy_of_heat(heat_flows, T0))
     heat_scale = sum(abs(q.Q) for q in heat_flows)

@@ -222,6 +222,7 @@ def entropy_tolerance_words(tolerance: float, batch: bool, T0: float) -> str:
 
 
 def _kw(value: float, batch: bool) -> str:
+    value = value + 0.0  # a negative zero (minus no work) is written "0"
     if batch:
         return f"{value / 1e3:,.4g} kJ" if abs(value) < 1e6 else f"{value / 1e6:,.4g} MJ"
     return f"{value / 1e3:,.4g} kW" if abs(value) < 1e6 else f"{value / 1e6:,.4g} MW"
