@@ -604,7 +604,7 @@ def test_stream_findings_link_to_the_stream_row(injected):
 def test_chart_of_exergy_destroyed_largest_first(book, seeded):
     ws = book[EXERGY]
     charts = ws._charts
-    assert len(charts) == 1
+    assert len(charts) == 2  # a linear and a logarithmic scale
     chart = charts[0]
     assert type(chart).__name__ == "BarChart" and chart.type == "col"
     flow = [s for s in seeded.steps if not s.batch]
@@ -622,6 +622,22 @@ def test_chart_of_exergy_destroyed_largest_first(book, seeded):
     for step_id, value in zip(ids, values, strict=True):
         assert value == pytest.approx(by_id[step_id], rel=1e-15)
     assert "CIP1" not in ids
+
+
+def test_exergy_charts_mark_failing_steps_and_keep_small_steps_readable(book, seeded):
+    ws = book[EXERGY]
+    linear, logarithmic = ws._charts
+    assert linear.y_axis.scaling.logBase is None
+    assert logarithmic.y_axis.scaling.logBase == 10
+    flow = sorted((s for s in seeded.steps if not s.batch), key=lambda s: -s.exergy_destroyed)
+    for chart in (linear, logarithmic):
+        colours = {p.idx: p.graphicalProperties.solidFill.srgbClr for p in chart.series[0].dPt}
+        for index, step in enumerate(flow):
+            severities = {f.severity for f in seeded.findings_for(step.id)}
+            expected = (
+                "C00000" if "error" in severities else "FFC000" if "warning" in severities else None
+            )
+            assert colours.get(index) == expected, step.id
 
 
 # -- overview and method ---------------------------------------------------------------------------

@@ -1,10 +1,13 @@
-"""The Exergy losses sheet: exergy destroyed per flow step, largest first, with a bar chart of it;
-vessels (batch totals in kJ, not rates) listed below and not charted."""
+"""The Exergy losses sheet: exergy destroyed per flow step, largest first, with two bar charts of it
+(a linear scale, and a logarithmic one on which the small steps stay readable beside the boiler),
+each step's bar coloured by its worst open finding (red: error, amber: warning); vessels (batch
+totals in kJ, not rates) listed below and not charted."""
 
 from __future__ import annotations
 
 from typing import Any
 
+from audit.findings import ERROR, WARNING
 from audit.report.display import shown
 from audit.report.sheets.context import EXERGY, STEPS, Book, worst
 from audit.report.workbook_cells import (
@@ -69,16 +72,31 @@ def write(book: Book) -> None:
     sh.fit()
     if flow and book.wb is not None:
         sh.ws.insert_chart("I2", chart(book, flow))
+        sh.ws.insert_chart(f"I{2 + CHART_ROWS}", chart(book, flow, logarithmic=True))
 
 
 CM = 96 / 2.54
 """Pixels per centimetre (96 dpi), for the chart's size."""
 
+CHART_ROWS = 25
+"""Rows between the tops of the two charts (a 12 cm chart covers about 23 rows of 15 points)."""
 
-def chart(book: Book, flow: list[Any]) -> Any:
+BAR_COLOURS = {ERROR: "#C00000", WARNING: "#FFC000"}
+"""Bar colours of a step with an open error or warning (plain red and amber); others keep the
+chart style's colour."""
+
+
+def chart(book: Book, flow: list[Any], logarithmic: bool = False) -> Any:
     """A column chart of the exergy destroyed per flow step (rows 2 to the last flow step); the
-    step ids and the values go in as the chart's cached data (the sheet is already on disk)."""
+    step ids and the values go in as the chart's cached data (the sheet is already on disk). On the
+    ``logarithmic`` one, a step that destroys no exergy (or a negative amount: a violation) has no
+    bar; its row and its colour on the linear chart still show it."""
     chart = book.wb.add_chart({"type": "column"})
+    points = []
+    for s in flow:
+        severity = worst(book.result.findings_for(s.id))
+        colour = BAR_COLOURS.get(severity or "")
+        points.append({"fill": {"color": colour}} if colour else None)
     last = len(flow) + 1
     sheet = "'" + EXERGY + "'"
     chart.add_series(
@@ -90,11 +108,18 @@ def chart(book: Book, flow: list[Any]) -> Any:
             "values": f"={sheet}!$D$2:$D${last}",
             "values_data": [shown(s.exergy_destroyed, "power") for s in flow],
             "gap": 60,
+            "points": points,
         }
     )
     chart.set_style(10)
-    chart.set_title({"name": "Exergy destroyed per step, largest first [kW]"})
-    chart.set_y_axis({"name": "exergy destroyed [kW]", "num_format": "#,##0"})
+    scale = " (logarithmic scale)" if logarithmic else ""
+    chart.set_title(
+        {"name": f"Exergy destroyed per step, largest first [kW]{scale}; red: error, amber: warning"}
+    )
+    y_axis: dict[str, Any] = {"name": "exergy destroyed [kW]", "num_format": "#,##0.##"}
+    if logarithmic:
+        y_axis["log_base"] = 10
+    chart.set_y_axis(y_axis)
     # step names below the plot even for negative bars
     chart.set_x_axis({"name": "step", "label_position": "low"})
     chart.set_legend({"none": True})
