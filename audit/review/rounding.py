@@ -153,6 +153,26 @@ def _reworded(finding: Finding, tolerance: float, bound: float, T0: float) -> st
     return f"{finding.message}{stop} ({new}.)"
 
 
+def rounding_bounds(
+    runner: StepRunner, index: int, margins: Sequence[Margin]
+) -> tuple[list[float], list[list[float] | None], list[tuple[Input, str]]]:
+    """The worst-case rounding bound Σ_i |∂m/∂x_i| δx_i of each of ``margins`` of step ``index``
+    [their units], with each written number's contribution (by input, per margin; None when it
+    could not be evaluated) and the written numbers (:func:`rounding_inputs`)."""
+    written = rounding_inputs(runner, index)
+    inputs = [item for item, _ in written]
+    bounds = [0.0] * len(margins)
+    contributions: list[list[float] | None] = []
+    if inputs:
+        f = step_function(runner, index, inputs, margins)
+        propagation = propagate(f, [i.value for i in inputs], [i.u for i in inputs])
+        contributions = propagation.contributions
+        for c in contributions:
+            if c is not None:
+                bounds = [b + abs(v) for b, v in zip(bounds, c, strict=True)]
+    return bounds, contributions, written
+
+
 def assess_rounding(
     runner: StepRunner, index: int, items: Sequence[tuple[int, Finding]], result: StepResult
 ) -> dict[int, Finding | None]:
@@ -169,17 +189,7 @@ def assess_rounding(
             laws.append((position, finding, margin))
     if not laws:
         return {}
-    written = rounding_inputs(runner, index)
-    inputs = [item for item, _ in written]
-    bounds = [0.0] * len(laws)
-    contributions: list[list[float] | None] = []
-    if inputs:
-        f = step_function(runner, index, inputs, [margin for _, _, margin in laws])
-        propagation = propagate(f, [i.value for i in inputs], [i.u for i in inputs])
-        contributions = propagation.contributions
-        for c in contributions:
-            if c is not None:
-                bounds = [b + abs(v) for b, v in zip(bounds, c, strict=True)]
+    bounds, contributions, written = rounding_bounds(runner, index, [m for _, _, m in laws])
     out: dict[int, Finding | None] = {}
     for j, (position, finding, _) in enumerate(laws):
         allowance = finding.tolerance or 0.0
