@@ -144,6 +144,9 @@ def _reworded(finding: Finding, tolerance: float, bound: float, T0: float) -> st
     elif finding.quantity in ("power", "energy"):
         old = tolerance_words(finding.tolerance or 0.0, batch)
         new = tolerance_words(tolerance, batch)
+    elif finding.quantity == "voltage":
+        old = f"tolerance {(finding.tolerance or 0.0) * 1e3:.2g} mV"
+        new = f"tolerance {format_value(tolerance, 'voltage')}"
     else:
         old, new = "", f"tolerance {tolerance:.2g}"
     new += f", of which {format_value(bound, finding.quantity)} from the rounding of the written values"

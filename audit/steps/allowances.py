@@ -120,6 +120,26 @@ def allowances(
     )
 
 
+def enthalpy_allowance(
+    streams: Sequence[StreamResult], engine: PropertyEngine, T0: float
+) -> tuple[float, str]:
+    """The property-method allowance [W] of a claim compared with the enthalpy flows of
+    ``streams`` (a duty against one side of an exchanger): PROPERTY_SPREAD Σ ṁ |h − h0|, and its
+    make-up in words; T0 [K]."""
+    found = allowances([(s, s.mass_flow) for s in streams], [], 0.0, 0.0, T0, engine)
+    return found.energy, found.energy_basis
+
+
+def claim_rule(tol: Tolerances, allowance: float, basis: str, declared: float) -> tuple[float, str, str]:
+    """(tolerance [W], rule, make-up) of a claim check of a flow step (a duty, an electrical
+    power): the step's ``declared`` energy tolerance [W] when the balance writes its own
+    (:func:`declared_rule`), else the property-method ``allowance`` [W], to which the review adds
+    the rounding bound of the written values (:mod:`audit.review.rounding`)."""
+    if declared_rule(tol, batch=False):
+        return declared, DECLARED, "the step's energy tolerance (the balance's tolerances)"
+    return allowance, ROUNDING, basis
+
+
 def flow_groups(
     inlets: Sequence[StreamResult], outlets: Sequence[StreamResult]
 ) -> list[tuple[list[StreamResult], list[StreamResult]]]:

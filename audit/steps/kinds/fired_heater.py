@@ -47,8 +47,9 @@ from audit.findings import ERROR, Finding, relative
 from audit.model.quantities import QUANTITY_PATTERN
 from audit.model.steps import DutyClaim, TemperatureClaim
 from audit.results import StepResult, StreamResult
+from audit.steps.allowances import claim_rule, enthalpy_allowance
 from audit.steps.base import StepBase, StepContext, register
-from audit.steps.laws import format_power
+from audit.steps.laws import format_power, tolerance_words
 from audit.steps.machines import heat_loss_flow
 from audit.steps.reacting import element_findings, finish_reacting_step
 from audit.steps.reactions import heating_values, species_flows
@@ -195,22 +196,32 @@ def evaluate(step: FiredHeater, ctx: StepContext) -> StepResult:
         }
     )
 
-    if step.duty is not None and abs(received - step.duty) > result.energy_tolerance:
-        gap = step.duty - received
+    tol_E, rule, basis = claim_rule(
+        tol, *enthalpy_allowance((hin, hout), ctx.engine, ctx.T0), result.energy_tolerance
+    )
+    # the heated side's duty with its flow conserved (inlet flow times energy change): a flow's
+    # rounding moves it by δṁ Δe, never by δṁ times an absolute (formation-basis) enthalpy
+    heated = hin.mass_flow * (hout.h + hout.kinetic_potential - hin.h - hin.kinetic_potential)
+    if step.duty is not None:
+        result.checks["duty-mismatch"] = heated - step.duty
+    if step.duty is not None and abs(heated - step.duty) > tol_E:
+        gap = step.duty - heated
         ctx.add(
             Finding(
                 ERROR,
                 "duty-mismatch",
                 step.id,
                 f"the claimed duty {format_power(step.duty)} differs from the "
-                f"{format_power(received)} the heated side ({hin.id} → {hout.id}) receives, by "
-                f"{format_power(abs(gap))} (tolerance {format_power(result.energy_tolerance)})",
+                f"{format_power(heated)} the heated side ({hin.id} → {hout.id}) receives, by "
+                f"{format_power(abs(gap))} ({tolerance_words(tol_E, False)})",
                 claimed=step.duty,
-                bound=received,
+                bound=heated,
                 margin=abs(gap),
-                margin_relative=relative(abs(gap), received),
+                margin_relative=relative(abs(gap), heated),
                 quantity="power",
-                tolerance=result.energy_tolerance,
+                tolerance=tol_E,
+                tolerance_rule=rule,
+                tolerance_basis=basis,
             )
         )
     for which, claim in (("lower", step.fuel_lhv), ("higher", step.fuel_hhv)):
