@@ -12,8 +12,11 @@ watt); E_rev = 1.22889 V and E_tn = 1.48121 V at 25 °C, 1 bar with liquid water
 
 from __future__ import annotations
 
+import CoolProp.CoolProp as CP
 import pytest
-from conftest import audit_text
+from conftest import SAMPLE, audit_text
+
+import audit
 
 E_REV, E_TN = 1.22889, 1.48121  # V, reference-values rows 21, 22
 F = 96_485.332_12  # C/mol, CODATA 2018 (exact: N_A e)
@@ -150,3 +153,38 @@ def test_a_voltage_within_its_written_rounding_is_silent(tmp_path):
     # "1.2 V" is 1.2 ± 0.05 V, which reaches above E_rev: the same voltage, fewer digits.
     result = _electrolyser(tmp_path, "cell_voltage: 1.2 V\n            current: 1000.0 A")
     assert _found(result, "voltage-beyond-reversible") == []
+
+
+# -- a fired heater's claimed duty (the sample site's boiler) --------------------------------------
+def _boiler(tmp_path, duty: str):
+    clean = (SAMPLE / "quillon-bay-clean.yaml").read_text(encoding="utf-8")
+    assert "duty: 8.30 MW" in clean
+    path = tmp_path / "boiler.yaml"
+    path.write_text(clean.replace("duty: 8.30 MW", f"duty: {duty}", 1), encoding="utf-8")
+    return audit.run(path)
+
+
+def _heated_side() -> float:
+    """The boiler's heated side, 10.8 t/h of water from 105.73 °C, 41.5 barg to 400 °C, 40 barg
+    (site pressure 1.013 bar): ṁ (h_out − h_in) on IAPWS-95 (CoolProp, the reference library) [W]."""
+    m = 10.8e3 / 3600.0
+    h_in = CP.PropsSI("H", "T", 378.88, "P", 42.513e5, "Water")
+    h_out = CP.PropsSI("H", "T", 673.15, "P", 41.013e5, "Water")
+    return m * (h_out - h_in)
+
+
+def test_a_boiler_duty_beyond_the_rounding_of_its_side_fires(tmp_path):
+    # 8.36 MW claimed, about 61 kW above the heated side. Rounding, worst case: the duty's ±5 kW and
+    # the flow's ±0.05 t/h × Δh (about 38 kW), with the states' few kW: under 50 kW. The old 1 %
+    # rule (about 89 kW here) let it pass.
+    (finding,) = _found(_boiler(tmp_path, "8.36 MW"), "duty-mismatch")
+    assert finding.margin == pytest.approx(8.36e6 - _heated_side(), abs=100.0)
+    assert finding.tolerance_rule == "rounding"
+    assert 43e3 < finding.rounding_bound < 50e3
+    assert finding.tolerance < finding.margin
+
+
+def test_a_boiler_duty_within_the_rounding_of_its_side_is_silent(tmp_path):
+    # 8.34 MW, about 41 kW above the heated side: within what "10.8 t/h" and "8.34 MW" leave open.
+    assert 8.34e6 - _heated_side() < 43e3
+    assert _found(_boiler(tmp_path, "8.34 MW"), "duty-mismatch") == []
