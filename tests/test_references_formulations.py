@@ -365,3 +365,31 @@ def test_a_declared_floor_cannot_hide_a_small_machine(tmp_path):
 def test_the_same_compressor_within_its_floor_passes(tmp_path):
     result = run(tmp_path, small_compressor("3.6 kW", {"energy_absolute": "1 kW"}))
     assert not [f for f in result.findings if f.name == "energy-imbalance"]
+
+
+def test_json_and_method_sheet_name_each_equation_of_state_with_its_source(tmp_path):
+    # IAPWS-95: W. Wagner, A. Pruß, J. Phys. Chem. Ref. Data 31 (2002) 387; IAPWS-IF97: W. Wagner
+    # et al., J. Eng. Gas Turbines Power 122 (2000) 150.
+    import openpyxl
+
+    from audit.report.machine import to_dict
+    from audit.report.workbook import write_workbook
+
+    for formulation, expected in (
+        (None, "Water: IAPWS-95 (Wagner & Pruß, J. Phys. Chem. Ref. Data 31 (2002) 387), CoolProp HEOS"),
+        (
+            "IF97",
+            "Water: IAPWS-IF97 (Wagner et al., J. Eng. Gas Turbines Power 122 (2000) 150), "
+            "CoolProp IF97",
+        ),
+    ):
+        result = run(tmp_path, steam_cycle((2, 2, 4), formulation=formulation))
+        assert to_dict(result)["provenance"]["equations of state"] == expected
+        path = tmp_path / f"book-{formulation}.xlsx"
+        write_workbook(result, path)
+        rows = [
+            tuple(c for c in row if c is not None)
+            for row in openpyxl.load_workbook(path)["Method"].iter_rows(values_only=True)
+        ]
+        fluid, _, source = expected.partition(": ")
+        assert (fluid, source) in rows

@@ -17,6 +17,11 @@ T0 (s − s0), relative to the larger of |h − h0| and T0 |s − s0|, found ove
 5 kPa-30 MPa away from the critical point (3.2e-4 and 2.8e-4), rounded up; the published
 comparisons of IF97 with IAPWS-95 agree to about 1e-4 in h in regions 1 and 2 [1, 2].
 
+The kinds' claim checks (a claimed duty against a side, a stack's power against V I N, the heat
+an electrolyser below its thermoneutral voltage needs) take the same route (:func:`claim_rule`):
+their allowance is PROPERTY_SPREAD times the enthalpy flows they compare with (nothing for
+arithmetic), and the review adds the rounding bound of the written values.
+
 A balance that writes ``energy_relative`` or ``energy_absolute`` under ``tolerances:`` (or a step
 that overrides them) keeps the rule it asked for: the larger of the relative tolerance times the
 step's energy scale and the absolute one, with no rounding bound (:func:`declared_rule`).

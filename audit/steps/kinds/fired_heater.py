@@ -15,7 +15,9 @@ Checks, beyond the laws:
 * the element balance of the gas side, fuel + air → flue gas (``element-imbalance``), in place of
   the per-fluid mass balance; the heated side keeps its fluid and mass (``side-changes-fluid``,
   ``mass-imbalance``);
-* a claimed duty matches the heated side (``duty-mismatch``);
+* a claimed duty matches the heated side, its inlet flow times its energy change, within the
+  rounding of the written values plus the property-method allowance (``duty-mismatch``,
+  :func:`audit.steps.allowances.claim_rule`);
 * a claimed heating value matches the one computed from formation data at 25 °C and 1 bar
   (``heating-value-mismatch``, relative tolerance ``energy_relative``; the message says when the
   claim matches the other heating value: HHV written for LHV is a common slip);

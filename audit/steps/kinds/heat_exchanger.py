@@ -8,7 +8,9 @@ Checks, beyond the laws:
 
 * each side keeps its fluid (``side-changes-fluid``) and its mass (``mass-imbalance``);
 * the heat the hot side releases equals the heat the cold side receives plus the loss (the first
-  law of the exchanger, ``energy-imbalance``); a claimed duty matches the sides (``duty-mismatch``);
+  law of the exchanger, ``energy-imbalance``); a claimed duty matches the sides (``duty-mismatch``,
+  each side read as its inlet flow times its enthalpy change, within the rounding of the written
+  values plus the property-method allowance, :func:`audit.steps.allowances.claim_rule`);
 * terminal temperatures do not cross for the arrangement (``temperature-cross``);
 * the T–Q profiles of the two sides, compared along the exchanger, do not cross inside it
   (``internal-pinch``: phase change makes the terminals lie) and the smallest approach is not below
