@@ -51,8 +51,8 @@ def _exchanger(tmp_path, duty: str):
 
 def test_a_duty_slip_beyond_its_written_rounding_fires(tmp_path):
     # "100.0 kW" stands for 100.0 ± 0.05 kW: 0.3 kW short of the sides' 100.3 kW is beyond it and
-    # beyond the property-method allowance (4e-4 of the hot side's enthalpy flows from the dead
-    # state, about 0.14 kW); the old 1 % rule (1 kW here) let it pass.
+    # beyond the property-method allowance (4e-4 of the side's duty, 0.04 kW); the old 1 % rule
+    # (1 kW here) let it pass.
     (finding,) = _found(_exchanger(tmp_path, "100.0 kW"), "duty-mismatch")
     assert finding.margin == pytest.approx(300.0, abs=1e-3)
     assert finding.tolerance_rule == "rounding"

@@ -19,8 +19,8 @@ comparisons of IF97 with IAPWS-95 agree to about 1e-4 in h in regions 1 and 2 [1
 
 The kinds' claim checks (a claimed duty against a side, a stack's power against V I N, the heat
 an electrolyser below its thermoneutral voltage needs) take the same route (:func:`claim_rule`):
-their allowance is PROPERTY_SPREAD times the enthalpy flows they compare with (nothing for
-arithmetic), and the review adds the rounding bound of the written values.
+their allowance is PROPERTY_SPREAD times the duty they compare with (:func:`duty_allowance`;
+nothing for arithmetic), and the review adds the rounding bound of the written values.
 
 A balance that writes ``energy_relative`` or ``energy_absolute`` under ``tolerances:`` (or a step
 that overrides them) keeps the rule it asked for: the larger of the relative tolerance times the
@@ -125,14 +125,17 @@ def allowances(
     )
 
 
-def enthalpy_allowance(
-    streams: Sequence[StreamResult], engine: PropertyEngine, T0: float
-) -> tuple[float, str]:
-    """The property-method allowance [W] of a claim compared with the enthalpy flows of
-    ``streams`` (a duty against one side of an exchanger): PROPERTY_SPREAD Σ ṁ |h − h0|, and its
-    make-up in words; T0 [K]."""
-    found = allowances([(s, s.mass_flow) for s in streams], [], 0.0, 0.0, T0, engine)
-    return found.energy, found.energy_basis
+def duty_allowance(duty: float, batch: bool = False) -> tuple[float, str]:
+    """The property-method allowance [W] of a claim compared with a side's duty [W] (its
+    enthalpy change, ṁ Δh): PROPERTY_SPREAD |duty|, and its make-up in words. The formulations'
+    difference in an enthalpy change is taken relative to that change; measured from the dead
+    state instead, a refrigerant side's latent heat would make it larger than the whole duty's
+    plausible error."""
+    allowed = PROPERTY_SPREAD * abs(duty)
+    return allowed, (
+        f"property-method allowance {_text(allowed, batch)} ({PROPERTY_SPREAD:g} of the side's "
+        f"duty, {_text(abs(duty), batch)})"
+    )
 
 
 def claim_rule(tol: Tolerances, allowance: float, basis: str, declared: float) -> tuple[float, str, str]:

@@ -49,7 +49,7 @@ from audit.findings import ERROR, Finding, relative
 from audit.model.quantities import QUANTITY_PATTERN
 from audit.model.steps import DutyClaim, TemperatureClaim
 from audit.results import StepResult, StreamResult
-from audit.steps.allowances import claim_rule, enthalpy_allowance
+from audit.steps.allowances import claim_rule, duty_allowance
 from audit.steps.base import StepBase, StepContext, register
 from audit.steps.laws import format_power, tolerance_words
 from audit.steps.machines import heat_loss_flow
@@ -198,12 +198,10 @@ def evaluate(step: FiredHeater, ctx: StepContext) -> StepResult:
         }
     )
 
-    tol_E, rule, basis = claim_rule(
-        tol, *enthalpy_allowance((hin, hout), ctx.engine, ctx.T0), result.energy_tolerance
-    )
     # the heated side's duty with its flow conserved (inlet flow times energy change): a flow's
     # rounding moves it by δṁ Δe, never by δṁ times an absolute (formation-basis) enthalpy
     heated = hin.mass_flow * (hout.h + hout.kinetic_potential - hin.h - hin.kinetic_potential)
+    tol_E, rule, basis = claim_rule(tol, *duty_allowance(heated), result.energy_tolerance)
     if step.duty is not None:
         result.checks["duty-mismatch"] = heated - step.duty
     if step.duty is not None and abs(heated - step.duty) > tol_E:

@@ -48,7 +48,7 @@ from audit.findings import ERROR, WARNING, Finding, relative
 from audit.model.steps import DutyClaim, TemperatureClaim
 from audit.physics.heat_transfer import log_mean_temperature_difference
 from audit.results import StepResult, StreamResult
-from audit.steps.allowances import claim_rule, enthalpy_allowance
+from audit.steps.allowances import claim_rule, duty_allowance
 from audit.steps.base import StepBase, StepContext, finish_flow_step, register
 from audit.steps.laws import format_power
 from audit.steps.machines import heat_loss_flow
@@ -143,10 +143,7 @@ def evaluate(step: HeatExchanger, ctx: StepContext) -> StepResult:
         # rounding moves it by δṁ Δh, never by δṁ times an absolute (formation-basis) enthalpy
         hot, cold = hi.mass_flow * (hi.h - ho.h), ci.mass_flow * (co.h - ci.h)
         worst = max((hot - loss, cold), key=lambda d: abs(d - duty))
-        side = (hi, ho) if worst == hot - loss else (ci, co)
-        tol_E, rule, basis = claim_rule(
-            tol, *enthalpy_allowance(side, ctx.engine, ctx.T0), result.energy_tolerance
-        )
+        tol_E, rule, basis = claim_rule(tol, *duty_allowance(worst), result.energy_tolerance)
         result.checks["duty-mismatch"] = worst - duty
         if abs(worst - duty) > tol_E:
             lost = f" ({format_power(loss)} of it lost to ambient)" if loss else ""
