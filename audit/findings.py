@@ -50,8 +50,8 @@ NAMES: dict[str, str] = {
     "phase-mismatch": "a stream's declared phase differs from the computed phase",
     "printed-property-mismatch": "a printed stream property that its state does not have, beyond the "
     "rounding of its digits",
-    "formulation-difference": "a printed stream property that differs beyond rounding, by no more than "
-    "the difference between two formulations of the fluid",
+    "formulation-difference": "a printed stream property, or a step's first law or bound, that "
+    "differs beyond rounding, by no more than the difference between two formulations of the fluid",
     "mixer-outlet-pressure": "a mixer outlet above its lowest inlet pressure",
     "stream-unused": "a stream that no step produces or consumes",
     "step-not-evaluated": "a check of the step could not be evaluated",

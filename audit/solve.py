@@ -291,10 +291,6 @@ def _other_formulation(engine: PropertyEngine, fluid: str) -> PropertyEngine | N
     if fluid not in FORMULATION_FLUIDS["IF97"]:
         return None
     this = engine.formulation_of(fluid)
-    return PropertyEngine(
-        engine.dead_T,
-        engine.dead_P,
-        engine.saturation_band,
-        reference=engine.reference,
-        formulation={fluid: "IF97" if this == "reference" else "reference"},
+    return engine.variant(
+        reference=engine.reference, formulation={fluid: "IF97" if this == "reference" else "reference"}
     )

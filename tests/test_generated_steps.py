@@ -292,12 +292,19 @@ def energy_scale(step: Step) -> float:
 
 
 def duty_excess(draw, step: Step) -> float:
-    """An error of an exchanger's claimed duty [W] comfortably above the duty comparison's
-    tolerance, which keeps the written rule: e ≥ 1.1 max(1 % of the scale bound, 1 kW), so that
-    even with the error itself in the scale, 1 % of (scale + e) stays below e."""
-    absolute = ENERGY_ABSOLUTE_BATCH if step.batch is not None else ENERGY_ABSOLUTE
-    factor = draw(st.floats(1.1, 10.0))
-    return factor * max(ENERGY_RELATIVE * energy_scale(step), absolute)
+    """An error of an exchanger's claimed duty [W] beyond the duty comparison's default tolerance
+    (README): 1.1 to 3 times the property-method allowance PROPERTY_SPREAD |Q| plus twice the
+    worst-case rounding of either side's duty ṁ_in (h_out − h_in) (its two states and its inlet
+    flow) and of the claims, plus the rounding of the changed claim itself."""
+    Q = step.extra["Q"]
+    rounding = max(
+        i.flow * (state_spread(i.point) + state_spread(o.point))
+        + half_digit(i.flow) * abs(o.point.h - i.point.h)
+        for i, o in zip(step.inlets, step.outlets, strict=True)
+    )
+    rounding += sum(half_digit(v) for v in claimed_numbers(step))
+    e = draw(st.floats(1.1, 3.0)) * (PROPERTY_SPREAD * abs(Q) + 2.0 * rounding)
+    return e + 2.0 * half_digit(abs(Q) + e)
 
 
 def energy_excess(draw, step: Step) -> float:

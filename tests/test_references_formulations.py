@@ -33,13 +33,18 @@ def names(result) -> list[tuple[str, str, str | None]]:
 
 # -- a steam cycle printed with T, P, h and s, its digits from IAPWS-IF97 ----------------------------
 def steam_cycle(
-    decimals: tuple[int, int, int], formulation: str | None = None, pump_s: str | None = None
+    decimals: tuple[int, int, int],
+    formulation: str | None = None,
+    pump_s: str | None = None,
+    precise: bool = False,
 ) -> dict:
     """A Rankine cycle (8 MPa, 480 °C; 8 kPa; turbine 85 %, pump 80 %), every state printed with T,
     P, h and s (and the quality of the saturated states), the values from iapws IAPWS97, rounded
     to ``decimals`` = (T [°C], h [kJ/kg], s [kJ/(kg K)]); with more than 2 decimals in h the
     (exact) pressures are printed to as many digits, so that their rounding does not hide the
-    difference between formulations."""
+    difference between formulations. ``precise`` prints the flows to 0.001 kg/s and the quality to
+    seven decimals, so that the steps' residuals left by the formulation difference lie beyond the
+    rounding of the written values."""
     dT, dh, ds = decimals
     m = 100.0
     s1 = IAPWS97(P=8.0, T=753.15)
@@ -55,10 +60,10 @@ def steam_cycle(
             "P": P,
             "h": f"{state.h:.{dh}f} kJ/kg",
             "s": f"{state.s:.{ds}f} kJ/(kg K)",
-            "flow": "100 kg/s",
+            "flow": "100.000 kg/s" if precise else "100 kg/s",
         }
         if quality is not None:
-            out["quality"] = round(float(quality), 5)
+            out["quality"] = round(float(quality), 7 if precise else 5)
         return out
 
     high, low = ("8.0 MPa", "0.008 MPa") if dh <= 2 else ("8.00000 MPa", "0.00800000 MPa")
@@ -128,6 +133,43 @@ def test_steam_cycle_on_if97_digits_is_a_formulation_warning_when_not_declared(t
             assert (
                 "within the known difference between formulations (IAPWS-IF97 gives" in finding.message
             )
+
+
+def test_steps_on_if97_digits_are_formulation_warnings_when_not_declared(tmp_path):
+    # The same cycle with flows and qualities printed finely enough that the steps' residuals on
+    # IAPWS-95 (about 1 kW on the pump and 3 kW on the turbine, R7-97 §9: the formulations agree
+    # to about 1e-4 in h) lie beyond the rounding of the written values; on IAPWS-IF97 they close.
+    result = run(tmp_path, steam_cycle((3, 3, 5), precise=True))
+    assert not [f for f in result.findings if f.severity == "error"]
+    steps = {f.step: f for f in result.findings if f.name == "formulation-difference" and f.step}
+    assert {"T1", "P1"} <= set(steps)
+    assert all(f.severity == "warning" for f in steps.values())
+    message = steps["P1"].message
+    assert message.startswith("the first law does not close on IAPWS-95 by ")
+    assert "beyond the rounding of the written values" in message
+    assert "but closes within it on IAPWS-IF97" in message
+    assert "declare 'formulation: IF97' under 'balance:' if so" in message
+    assert steps["P1"].margin > steps["P1"].rounding_bound
+    assert "step laws read on both formulations of water" in result.provenance["formulations"]
+
+
+def test_steps_on_if97_digits_are_clean_when_declared(tmp_path):
+    result = run(tmp_path, steam_cycle((3, 3, 5), formulation="IF97", precise=True))
+    assert [f for f in names(result) if f[1] in PRINTED or f[0] == "error"] == []
+    assert "formulations" not in result.provenance
+
+
+def test_a_real_slip_on_if97_digits_stays_an_error(tmp_path):
+    # The pump's shaft power written 5 % high: neither formulation closes its first law.
+    document = steam_cycle((3, 3, 5), precise=True)
+    pump = document["steps"][2]
+    power = float(pump["shaft_power"].split()[0])
+    pump["shaft_power"] = f"{power * 1.05:.1f} kW"
+    result = run(tmp_path, document)
+    on_pump = [(f.severity, f.name) for f in result.findings if f.step == "P1"]
+    assert ("error", "energy-imbalance") in on_pump
+    assert ("warning", "formulation-difference") not in on_pump
+    assert ("warning", "formulation-difference", "T1") in names(result)
 
 
 def test_textbook_digits_name_the_pump_outlet_entropy(tmp_path):
@@ -323,3 +365,31 @@ def test_a_declared_floor_cannot_hide_a_small_machine(tmp_path):
 def test_the_same_compressor_within_its_floor_passes(tmp_path):
     result = run(tmp_path, small_compressor("3.6 kW", {"energy_absolute": "1 kW"}))
     assert not [f for f in result.findings if f.name == "energy-imbalance"]
+
+
+def test_json_and_method_sheet_name_each_equation_of_state_with_its_source(tmp_path):
+    # IAPWS-95: W. Wagner, A. Pruß, J. Phys. Chem. Ref. Data 31 (2002) 387; IAPWS-IF97: W. Wagner
+    # et al., J. Eng. Gas Turbines Power 122 (2000) 150.
+    import openpyxl
+
+    from audit.report.machine import to_dict
+    from audit.report.workbook import write_workbook
+
+    for formulation, expected in (
+        (None, "Water: IAPWS-95 (Wagner & Pruß, J. Phys. Chem. Ref. Data 31 (2002) 387), CoolProp HEOS"),
+        (
+            "IF97",
+            "Water: IAPWS-IF97 (Wagner et al., J. Eng. Gas Turbines Power 122 (2000) 150), "
+            "CoolProp IF97",
+        ),
+    ):
+        result = run(tmp_path, steam_cycle((2, 2, 4), formulation=formulation))
+        assert to_dict(result)["provenance"]["equations of state"] == expected
+        path = tmp_path / f"book-{formulation}.xlsx"
+        write_workbook(result, path)
+        rows = [
+            tuple(c for c in row if c is not None)
+            for row in openpyxl.load_workbook(path)["Method"].iter_rows(values_only=True)
+        ]
+        fluid, _, source = expected.partition(": ")
+        assert (fluid, source) in rows

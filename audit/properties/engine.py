@@ -132,6 +132,18 @@ class PropertyEngine(MixtureStates, LiquidStates, DeclaredBases, HumidAirStates)
         self._flashes = value - self._mixtures.flash_count - self._liquids.flash_count
 
     # -- fluids -------------------------------------------------------------------------------
+    def variant(self, *, reference: object = None, formulation: object = None) -> PropertyEngine:
+        """A fresh engine with this one's dead state (temperature, pressure and humidity) and
+        saturation band, on another table ``reference`` and ``formulation`` (its own cache)."""
+        return PropertyEngine(
+            self.dead_T,
+            self.dead_P,
+            self.saturation_band,
+            reference=reference,
+            formulation=formulation,
+            dead_relative_humidity=self.dead_relative_humidity,
+        )
+
     def fluid(self, name: str) -> Fluid:
         """Fluid constants by CoolProp name or alias; :class:`StateError` for an unknown fluid."""
         known = self._fluids.get(name)

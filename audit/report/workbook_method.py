@@ -53,7 +53,10 @@ METHOD_TEXT: tuple[tuple[str, str], ...] = (
         "water, IIR for most refrigerants) unless the balance declares another (reference: IIR, "
         "ASHRAE, NBP, IAPWS or an explicit h and s at a stated state); they are shifted by one "
         "constant in h and one in s at the edge. formulation: IF97 evaluates water on IAPWS-IF97 "
-        "instead of IAPWS-95. The equation of state of each fluid is listed below with its source.",
+        "instead of IAPWS-95. When water's formulation is not declared, a step whose first law "
+        "or work or entropy bound misses beyond the rounding of the written values on IAPWS-95 "
+        "but closes on IAPWS-IF97 gets a formulation-difference warning (never an error, never "
+        "silence). The equation of state of each fluid is listed below with its source.",
     ),
     (
         "First law (steady flow)",

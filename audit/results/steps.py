@@ -105,6 +105,9 @@ class StepResult:
     line: int | None = None
     profile: ExchangerProfile | None = None  # heat exchangers: the T–Q profile of both sides
     exchanger: ExchangerValues | None = None  # heat exchangers: duty, approaches, LMTD
+    # The signed margins of the kind's own claim checks by finding name (bound minus claim, or
+    # the violation itself), for the review's re-evaluations; not published.
+    checks: dict[str, float] = field(default_factory=dict)
 
     # -- the balance's values, read as the step's own (reports read them by name) --
     @property

@@ -38,6 +38,14 @@ LAW_FINDINGS = (
     "efficiency-above-one",
 )
 """Findings whose margin is propagated and which get a verdict."""
+CLAIM_FINDINGS = (
+    "duty-mismatch",
+    "power-mismatch",
+    "heat-needed-below-thermoneutral",
+    "voltage-beyond-reversible",
+)
+"""Claim checks of the step kinds whose margin the rounding verdict propagates: the kind records
+the signed value on the step result (``StepResult.checks``)."""
 
 Margin = Callable[[StepResult, dict[str, StreamResult]], float]
 
@@ -130,6 +138,8 @@ def margin_function(
                 (r.isentropic_efficiency if r.isentropic_efficiency is not None else math.nan) - 1.0
             )
         )
+    elif name in CLAIM_FINDINGS:
+        candidates.append(_claim_margin(finding))
     elif name == "mass-imbalance" and not result.batch and finding.claimed is not None:
         sign = 1.0 if finding.claimed >= 0 else -1.0
         for fluid in result.mass_residual:
@@ -161,5 +171,19 @@ def _pair_residual(i: int, sign: float) -> Margin:
 
     def margin(r: StepResult, s: dict[str, StreamResult]) -> float:
         return sign * (s[r.inlets[i]].mass_flow - s[r.outlets[i]].mass_flow)
+
+    return margin
+
+
+def _claim_margin(finding: Finding) -> Margin:
+    """The margin of a kind's claim check from the value the kind records: a mismatch's bound
+    minus its claim, signed as the finding's; a violation (voltage, heat) as it is."""
+    name = finding.name
+    sign = 1.0
+    if name in ("duty-mismatch", "power-mismatch") and None not in (finding.bound, finding.claimed):
+        sign = 1.0 if (finding.bound or 0.0) - (finding.claimed or 0.0) >= 0 else -1.0
+
+    def margin(r: StepResult, s: dict[str, StreamResult]) -> float:
+        return sign * r.checks.get(name, math.nan)
 
     return margin

@@ -13,6 +13,7 @@ from collections import defaultdict
 from audit.findings import Finding
 from audit.results import StepResult
 from audit.review.causes import name_causes
+from audit.review.formulation_steps import assess_formulations
 from audit.review.inputs import check_declarations, declares_uncertainty
 from audit.review.margins import LAW_FINDINGS
 from audit.review.propagation import MONTE_CARLO_SEED
@@ -38,6 +39,12 @@ def review(solution: Solution, monte_carlo_trials: int = 0) -> tuple[list[Findin
         "rounding": f"worst-case bound of the written digits' rounding through the steps' "
         f"sensitivities (GUM, JCGM 100:2008, §F.2.2.1); {spent_on_rounding} step re-evaluations"
     }
+    findings, spent_on_formulations = assess_formulations(runner, findings, by_result)
+    if spent_on_formulations:
+        provenance["formulations"] = (
+            f"step laws read on both formulations of water (IAPWS-95 and IAPWS-IF97) where the "
+            f"balance declares none; {spent_on_formulations} step re-evaluations"
+        )
     for position, finding in enumerate(findings):
         if finding.step in runner.index and finding.name in LAW_FINDINGS:
             by_step[runner.index[finding.step]].append((position, finding))

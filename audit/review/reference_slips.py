@@ -19,7 +19,6 @@ from typing import Any
 
 from audit.errors import StateError
 from audit.model.references import NAMED_REFERENCES, for_fluid
-from audit.properties.engine import PropertyEngine
 from audit.review.runner import StepRunner
 
 _SMALLEST = 1.0  # J/kg: references closer than this are the same reference
@@ -48,13 +47,7 @@ def reference_slips(runner: StepRunner) -> list[FluidSlip]:
         declared = for_fluid(engine.reference, fluid)
         now = declared if isinstance(declared, str) else ("the declared" if declared else None)
         for name in NAMED_REFERENCES:
-            other = PropertyEngine(
-                engine.dead_T,
-                engine.dead_P,
-                engine.saturation_band,
-                reference={fluid: name},
-                formulation=engine.formulation,
-            )
+            other = engine.variant(reference={fluid: name}, formulation=engine.formulation)
             try:
                 dh, ds = other.printed_offset(fluid)
             except StateError:

@@ -144,6 +144,9 @@ def _reworded(finding: Finding, tolerance: float, bound: float, T0: float) -> st
     elif finding.quantity in ("power", "energy"):
         old = tolerance_words(finding.tolerance or 0.0, batch)
         new = tolerance_words(tolerance, batch)
+    elif finding.quantity == "voltage":
+        old = f"tolerance {(finding.tolerance or 0.0) * 1e3:.2g} mV"
+        new = f"tolerance {format_value(tolerance, 'voltage')}"
     else:
         old, new = "", f"tolerance {tolerance:.2g}"
     new += f", of which {format_value(bound, finding.quantity)} from the rounding of the written values"
@@ -151,6 +154,26 @@ def _reworded(finding: Finding, tolerance: float, bound: float, T0: float) -> st
         return finding.message.replace(old, new, 1)
     stop = "" if finding.message.rstrip().endswith(".") else "."
     return f"{finding.message}{stop} ({new}.)"
+
+
+def rounding_bounds(
+    runner: StepRunner, index: int, margins: Sequence[Margin]
+) -> tuple[list[float], list[list[float] | None], list[tuple[Input, str]]]:
+    """The worst-case rounding bound Σ_i |∂m/∂x_i| δx_i of each of ``margins`` of step ``index``
+    [their units], with each written number's contribution (by input, per margin; None when it
+    could not be evaluated) and the written numbers (:func:`rounding_inputs`)."""
+    written = rounding_inputs(runner, index)
+    inputs = [item for item, _ in written]
+    bounds = [0.0] * len(margins)
+    contributions: list[list[float] | None] = []
+    if inputs:
+        f = step_function(runner, index, inputs, margins)
+        propagation = propagate(f, [i.value for i in inputs], [i.u for i in inputs])
+        contributions = propagation.contributions
+        for c in contributions:
+            if c is not None:
+                bounds = [b + abs(v) for b, v in zip(bounds, c, strict=True)]
+    return bounds, contributions, written
 
 
 def assess_rounding(
@@ -169,17 +192,7 @@ def assess_rounding(
             laws.append((position, finding, margin))
     if not laws:
         return {}
-    written = rounding_inputs(runner, index)
-    inputs = [item for item, _ in written]
-    bounds = [0.0] * len(laws)
-    contributions: list[list[float] | None] = []
-    if inputs:
-        f = step_function(runner, index, inputs, [margin for _, _, margin in laws])
-        propagation = propagate(f, [i.value for i in inputs], [i.u for i in inputs])
-        contributions = propagation.contributions
-        for c in contributions:
-            if c is not None:
-                bounds = [b + abs(v) for b, v in zip(bounds, c, strict=True)]
+    bounds, contributions, written = rounding_bounds(runner, index, [m for _, _, m in laws])
     out: dict[int, Finding | None] = {}
     for j, (position, finding, _) in enumerate(laws):
         allowance = finding.tolerance or 0.0

@@ -15,6 +15,7 @@ from typing import Any
 from pydantic import BaseModel
 
 from audit.findings import Finding
+from audit.properties.engine import PropertyEngine
 from audit.results import StepResult, StreamResult
 from audit.solve import Solution, evaluate_step, evaluate_stream
 
@@ -68,6 +69,21 @@ class StepRunner:
             step,
             residuals_only,
         )
+
+    def on_engine(
+        self, index: int, engine: PropertyEngine
+    ) -> tuple[StepResult, dict[str, StreamResult]]:
+        """Step ``index`` with each of its streams re-flashed on ``engine`` (another formulation
+        of a fluid): the step's result and the streams it was evaluated on."""
+        inlets, outlets = self.balance.steps[index].stream_ids()
+        streams = {
+            sid: evaluate_stream(sid, self.balance.streams[sid], engine, self.streams[sid].line)
+            for sid in dict.fromkeys([*inlets, *outlets])
+        }
+        self.runs += 1
+        everything = {**self.streams, **streams}
+        result, _ = evaluate_step(self.balance, self.document, engine, everything, index)
+        return result, everything
 
 
 def with_value(model: BaseModel, path: Sequence[str | int], value: Any) -> BaseModel:

@@ -59,6 +59,8 @@ def format_value(value: float, quantity: str | None) -> str:
         return f"{value / 1e3:.4g} {'kW/K' if quantity == 'entropy_rate' else 'kJ/K'}"
     if quantity == "mass_flow":
         return f"{value:.4g} kg/s"
+    if quantity == "voltage":
+        return f"{value * 1e3:.3g} mV"
     return f"{value:.4g}"
 
 

@@ -17,6 +17,11 @@ T0 (s − s0), relative to the larger of |h − h0| and T0 |s − s0|, found ove
 5 kPa-30 MPa away from the critical point (3.2e-4 and 2.8e-4), rounded up; the published
 comparisons of IF97 with IAPWS-95 agree to about 1e-4 in h in regions 1 and 2 [1, 2].
 
+The kinds' claim checks (a claimed duty against a side, a stack's power against V I N, the heat
+an electrolyser below its thermoneutral voltage needs) take the same route (:func:`claim_rule`):
+their allowance is PROPERTY_SPREAD times the duty they compare with (:func:`duty_allowance`;
+nothing for arithmetic), and the review adds the rounding bound of the written values.
+
 A balance that writes ``energy_relative`` or ``energy_absolute`` under ``tolerances:`` (or a step
 that overrides them) keeps the rule it asked for: the larger of the relative tolerance times the
 step's energy scale and the absolute one, with no rounding bound (:func:`declared_rule`).
@@ -122,6 +127,29 @@ def allowances(
         f"property-method allowance {_text(PROPERTY_SPREAD * exergy, batch)} ({spread} of the "
         f"exergy at stake |W| + |W_rev| + T0·Σ|ṁ(s − s0)| + Σ|Q|T0/T, {_text(exergy, batch)})",
     )
+
+
+def duty_allowance(duty: float, batch: bool = False) -> tuple[float, str]:
+    """The property-method allowance [W] of a claim compared with a side's duty [W] (its
+    enthalpy change, ṁ Δh): PROPERTY_SPREAD |duty|, and its make-up in words. The formulations'
+    difference in an enthalpy change is taken relative to that change; measured from the dead
+    state instead, a refrigerant side's latent heat would make it larger than the whole duty's
+    plausible error."""
+    allowed = PROPERTY_SPREAD * abs(duty)
+    return allowed, (
+        f"property-method allowance {_text(allowed, batch)} ({PROPERTY_SPREAD:g} of the side's "
+        f"duty, {_text(abs(duty), batch)})"
+    )
+
+
+def claim_rule(tol: Tolerances, allowance: float, basis: str, declared: float) -> tuple[float, str, str]:
+    """(tolerance [W], rule, make-up) of a claim check of a flow step (a duty, an electrical
+    power): the step's ``declared`` energy tolerance [W] when the balance writes its own
+    (:func:`declared_rule`), else the property-method ``allowance`` [W], to which the review adds
+    the rounding bound of the written values (:mod:`audit.review.rounding`)."""
+    if declared_rule(tol, batch=False):
+        return declared, DECLARED, "the step's energy tolerance (the balance's tolerances)"
+    return allowance, ROUNDING, basis
 
 
 def flow_groups(

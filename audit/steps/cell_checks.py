@@ -11,15 +11,23 @@ from audit.physics.electrochemistry import (
     faraday_current,
 )
 from audit.results import StepResult
+from audit.steps.allowances import DECLARED, ROUNDING, claim_rule
 from audit.steps.base import StepContext
-from audit.steps.laws import format_power
+from audit.steps.laws import format_power, tolerance_words
 from audit.wording import to_celsius
 
 VOLTAGE_ALLOWANCE = 0.5e-3
 """Tolerance of the voltage check [V]: what the data leave uncertain in E_rev. The formation data
 give ΔfG°(H2O, l) to ±0.04 kJ/mol (CODATA Key Values for Thermodynamics, 1989), ±0.2 mV at
 n = 2, and the reference equations of state reproduce them to about 0.01 kJ/mol (design note
-2.3a); 0.5 mV covers both with room. The voltage's own written resolution is not added here."""
+2.3a); 0.5 mV covers both with room. The review adds the rounding of the written voltage (and of
+every other written number of the step) to it (:mod:`audit.review.rounding`)."""
+
+VOLTAGE_BASIS = "uncertainty of E_rev from the formation data, 0.5 mV"
+"""The make-up of the voltage allowance, in words."""
+
+ARITHMETIC = 1e-9
+"""Relative allowance of V × I × N against a claimed power: arithmetic, no property enters [-]."""
 
 CellStep = Any
 """A cell step (:class:`audit.steps.cells.CellStep`; not imported here, to keep the import order)."""
@@ -48,6 +56,8 @@ def cell_findings(
         if T_cell is not None
         else "each species at its own state"
     )
+    if V is not None:
+        result.checks["voltage-beyond-reversible"] = (E_rev - V) if driven else (V - E_rev)
     if V is not None and driven and V < E_rev - tol_V:
         found.append(
             Finding(
@@ -63,6 +73,8 @@ def cell_findings(
                 margin_relative=relative(E_rev - V, E_rev),
                 quantity="voltage",
                 tolerance=tol_V,
+                tolerance_rule=ROUNDING,
+                tolerance_basis=VOLTAGE_BASIS,
             )
         )
     if V is not None and not driven and V > E_rev + tol_V:
@@ -80,18 +92,22 @@ def cell_findings(
                 margin_relative=relative(V - E_rev, E_rev),
                 quantity="voltage",
                 tolerance=tol_V,
+                tolerance_rule=ROUNDING,
+                tolerance_basis=VOLTAGE_BASIS,
             )
         )
-    if (
-        V is not None
-        and driven
-        and step.heat is not None
-        and xi > 0.0
-        and V < E_tn - tol.energy_relative * E_tn
-    ):
+    if V is not None and driven and step.heat is not None and xi > 0.0:
         needed = faraday_current(n, xi) * (E_tn - V)
         shown = sum(q.Q for q in heat if q.claimed)
-        if shown < needed - result.energy_tolerance:
+        tol_H, rule, basis = claim_rule(
+            tol,
+            faraday_current(n, xi) * VOLTAGE_ALLOWANCE,
+            f"n F ξ̇ times the {VOLTAGE_BASIS} (of E_tn)",
+            result.energy_tolerance,
+        )
+        result.checks["heat-needed-below-thermoneutral"] = needed - shown
+        below = V < E_tn - tol.energy_relative * E_tn if rule == DECLARED else V < E_tn
+        if below and shown < needed - tol_H:
             found.append(
                 Finding(
                     ERROR,
@@ -105,7 +121,9 @@ def cell_findings(
                     margin=needed - shown,
                     margin_relative=relative(needed - shown, needed),
                     quantity="power",
-                    tolerance=result.energy_tolerance,
+                    tolerance=tol_H,
+                    tolerance_rule=rule,
+                    tolerance_basis=basis,
                 )
             )
     if step.current is not None:
@@ -172,7 +190,14 @@ def cell_findings(
                 )
     if step.power is not None and stack is not None:
         gap = step.power - stack
-        if abs(gap) > result.energy_tolerance:
+        tol_P, rule, basis = claim_rule(
+            tol,
+            ARITHMETIC * abs(stack),
+            "V × I × N is arithmetic: no property allowance",
+            result.energy_tolerance,
+        )
+        result.checks["power-mismatch"] = stack - step.power
+        if abs(gap) > tol_P:
             found.append(
                 Finding(
                     ERROR,
@@ -180,14 +205,16 @@ def cell_findings(
                     step.id,
                     f"the claimed power {format_power(step.power)} differs from voltage × current × "
                     f"cells = {V:.4g} V × {step.current:.5g} A × {step.cells} = "
-                    f"{format_power(stack)}, by {format_power(abs(gap))} (tolerance "
-                    f"{format_power(result.energy_tolerance)})",
+                    f"{format_power(stack)}, by {format_power(abs(gap))} "
+                    f"({tolerance_words(tol_P, False)})",
                     claimed=step.power,
                     bound=stack,
                     margin=abs(gap),
                     margin_relative=relative(abs(gap), stack),
                     quantity="power",
-                    tolerance=result.energy_tolerance,
+                    tolerance=tol_P,
+                    tolerance_rule=rule,
+                    tolerance_basis=basis,
                 )
             )
     return found

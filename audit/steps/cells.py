@@ -30,7 +30,9 @@ state: each gas at its own partial pressure in its stream, a real gas with its f
 reference equation of state (the Nernst equation with fugacities), liquid water at its own
 pressure; ``E_rev_standard`` beside it has every species at 1 bar. Voltage tolerance:
 :data:`audit.steps.cell_checks.VOLTAGE_ALLOWANCE` (what the formation data and the property
-formulation leave uncertain in E_rev); Faraday: ``energy_relative``.
+formulation leave uncertain in E_rev) plus the rounding of the written values, which the review
+adds (:mod:`audit.review.rounding`); the heat below E_tn and the stack power likewise, unless the
+balance writes its own energy tolerances; Faraday: ``energy_relative``.
 
 References
 ----------

@@ -17,7 +17,9 @@ Checks, beyond the laws:
 * the element balance of the gas side, fuel + air → flue gas (``element-imbalance``), in place of
   the per-fluid mass balance; the heated side keeps its fluid and mass (``side-changes-fluid``,
   ``mass-imbalance``);
-* a claimed duty matches the heated side (``duty-mismatch``);
+* a claimed duty matches the heated side, its inlet flow times its energy change, within the
+  rounding of the written values plus the property-method allowance (``duty-mismatch``,
+  :func:`audit.steps.allowances.claim_rule`);
 * a claimed heating value matches the one computed from formation data at 25 °C and 1 bar
   (``heating-value-mismatch``, relative tolerance ``energy_relative``; the message says when the
   claim matches the other heating value: HHV written for LHV is a common slip);
@@ -49,8 +51,9 @@ from audit.findings import ERROR, Finding, relative
 from audit.model.quantities import QUANTITY_PATTERN
 from audit.model.steps import DutyClaim, TemperatureClaim
 from audit.results import StepResult, StreamResult
+from audit.steps.allowances import claim_rule, duty_allowance
 from audit.steps.base import StepBase, StepContext, register
-from audit.steps.laws import format_power
+from audit.steps.laws import format_power, tolerance_words
 from audit.steps.machines import heat_loss_flow
 from audit.steps.reacting import element_findings, finish_reacting_step
 from audit.steps.reactions import heating_values, species_flows
@@ -204,23 +207,36 @@ def evaluate(step: FiredHeater, ctx: StepContext) -> StepResult:
         }
     )
 
-    if step.duty is not None and abs(received - step.duty) > result.energy_tolerance:
-        gap = step.duty - received
+    # the heated side's duty with its flow conserved (each outlet's flow times its energy change
+    # from the inlet; the inlet flow when there is one outlet): a flow's rounding moves it by
+    # δṁ Δe, never by δṁ times an absolute (formation-basis) enthalpy
+    flows = [hin.mass_flow] if len(side) == 1 else [s.mass_flow for s in side]
+    heated = sum(
+        m * (s.h + s.kinetic_potential - hin.h - hin.kinetic_potential)
+        for m, s in zip(flows, side, strict=True)
+    )
+    tol_E, rule, basis = claim_rule(tol, *duty_allowance(heated), result.energy_tolerance)
+    if step.duty is not None:
+        result.checks["duty-mismatch"] = heated - step.duty
+    if step.duty is not None and abs(heated - step.duty) > tol_E:
+        gap = step.duty - heated
         ctx.add(
             Finding(
                 ERROR,
                 "duty-mismatch",
                 step.id,
                 f"the claimed duty {format_power(step.duty)} differs from the "
-                f"{format_power(received)} the heated side ({hin.id} → "
+                f"{format_power(heated)} the heated side ({hin.id} → "
                 f"{', '.join(s.id for s in side)}) receives, by "
-                f"{format_power(abs(gap))} (tolerance {format_power(result.energy_tolerance)})",
+                f"{format_power(abs(gap))} ({tolerance_words(tol_E, False)})",
                 claimed=step.duty,
-                bound=received,
+                bound=heated,
                 margin=abs(gap),
-                margin_relative=relative(abs(gap), received),
+                margin_relative=relative(abs(gap), heated),
                 quantity="power",
-                tolerance=result.energy_tolerance,
+                tolerance=tol_E,
+                tolerance_rule=rule,
+                tolerance_basis=basis,
             )
         )
     for which, claim in (("lower", step.fuel_lhv), ("higher", step.fuel_hhv)):

@@ -8,7 +8,9 @@ Checks, beyond the laws:
 
 * each side keeps its fluid (``side-changes-fluid``) and its mass (``mass-imbalance``);
 * the heat the hot side releases equals the heat the cold side receives plus the loss (the first
-  law of the exchanger, ``energy-imbalance``); a claimed duty matches the sides (``duty-mismatch``);
+  law of the exchanger, ``energy-imbalance``); a claimed duty matches the sides (``duty-mismatch``,
+  each side read as its inlet flow times its enthalpy change, within the rounding of the written
+  values plus the property-method allowance, :func:`audit.steps.allowances.claim_rule`);
 * terminal temperatures do not cross for the arrangement (``temperature-cross``);
 * the T–Q profiles of the two sides, compared along the exchanger, do not cross inside it
   (``internal-pinch``: phase change makes the terminals lie) and the smallest approach is not below
@@ -46,6 +48,7 @@ from audit.findings import ERROR, WARNING, Finding, relative
 from audit.model.steps import DutyClaim, TemperatureClaim
 from audit.physics.heat_transfer import log_mean_temperature_difference
 from audit.results import StepResult, StreamResult
+from audit.steps.allowances import claim_rule, duty_allowance
 from audit.steps.base import StepBase, StepContext, finish_flow_step, register
 from audit.steps.laws import format_power
 from audit.steps.machines import heat_loss_flow
@@ -133,11 +136,15 @@ def evaluate(step: HeatExchanger, ctx: StepContext) -> StepResult:
     duty = step.duty
     swapped = released <= 0 and received <= 0  # reported once, as the sides swapped (below)
     if duty is not None and not swapped:
-        tol_E = result.energy_tolerance
         # the duty is what passes from the hot side to the cold side: the hot side releases it
         # plus the claimed heat loss
         loss = step.heat_loss or 0.0
-        worst = max((released - loss, received), key=lambda d: abs(d - duty))
+        # each side's duty with its flow conserved (inlet flow times enthalpy change): a flow's
+        # rounding moves it by δṁ Δh, never by δṁ times an absolute (formation-basis) enthalpy
+        hot, cold = hi.mass_flow * (hi.h - ho.h), ci.mass_flow * (co.h - ci.h)
+        worst = max((hot - loss, cold), key=lambda d: abs(d - duty))
+        tol_E, rule, basis = claim_rule(tol, *duty_allowance(worst), result.energy_tolerance)
+        result.checks["duty-mismatch"] = worst - duty
         if abs(worst - duty) > tol_E:
             lost = f" ({format_power(loss)} of it lost to ambient)" if loss else ""
             ctx.add(
@@ -146,14 +153,16 @@ def evaluate(step: HeatExchanger, ctx: StepContext) -> StepResult:
                     "duty-mismatch",
                     step.id,
                     f"the claimed duty {format_power(duty)} differs from the streams: the hot "
-                    f"side releases {format_power(released)}{lost}, the cold side receives "
-                    f"{format_power(received)}",
+                    f"side releases {format_power(hot)}{lost}, the cold side receives "
+                    f"{format_power(cold)}",
                     claimed=duty,
                     bound=worst,
                     margin=abs(worst - duty),
                     margin_relative=relative(abs(worst - duty), worst),
                     quantity="power",
                     tolerance=tol_E,
+                    tolerance_rule=rule,
+                    tolerance_basis=basis,
                 )
             )
     if released <= 0 or received <= 0:
