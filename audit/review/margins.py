@@ -25,6 +25,7 @@ import math
 from collections.abc import Callable
 
 from audit.findings import Finding
+from audit.properties.humid_air import HUMID_AIR
 from audit.results import StepResult, StreamResult
 from audit.steps.allowances import flow_groups as step_flow_groups
 
@@ -38,6 +39,9 @@ LAW_FINDINGS = (
     "efficiency-above-one",
 )
 """Findings whose margin is propagated and which get a verdict."""
+
+SHIFTED_FINDINGS = (*ENERGY_FINDINGS, *WORK_FINDINGS, "negative-entropy-generation")
+"""Findings whose margin is read with the mass-conserving reference shift."""
 
 Margin = Callable[[StepResult, dict[str, StreamResult]], float]
 
@@ -61,6 +65,20 @@ def flow_groups(
         [streams[i] for i in result.inlets], [streams[o] for o in result.outlets], paired(result)
     )
     return [(tuple(s.id for s in a), tuple(s.id for s in b)) for a, b in groups]
+
+
+def exchanges_water(result: StepResult, streams: dict[str, StreamResult]) -> bool:
+    """Whether a mass-conserving group of the step holds humid air with streams of another fluid
+    (a cooling tower's air with its water). Such a group's reference is the mean outlet enthalpy
+    of air and water together, on the formation basis: a change of one written flow moves it by
+    the difference between water's and humid air's formation enthalpies (megajoules per kg), not
+    by the stream's own change of state, so its margin is not propagated (:func:`margin_function`
+    gives None for the energy, work and entropy findings)."""
+    for ins, outs in flow_groups(result, streams):
+        fluids = {streams[x].fluid for x in (*ins, *outs)}
+        if HUMID_AIR in fluids and len(fluids) > 1:
+            return True
+    return False
 
 
 def _group_residual(
@@ -103,10 +121,14 @@ def margin_function(
     finding: Finding, result: StepResult, streams: dict[str, StreamResult], T0: float
 ) -> Margin | None:
     """The finding's margin as a function of a re-evaluated step (positive = violation), or None
-    when the finding is not a law finding this module knows how to propagate. The function is
+    when the finding is not a law finding this module knows how to propagate (nor an energy,
+    work or entropy finding of a step where humid air exchanges water, :func:`exchanges_water`;
+    nor a margin that no candidate reproduces). The function is
     checked to give the finding's own margin on the nominal step. Energy, entropy and work
     margins take flow changes as mass-conserving (:func:`reference_shift`); T0 [K]."""
     name = finding.name
+    if name in SHIFTED_FINDINGS and exchanges_water(result, streams):
+        return None
     candidates: list[Margin] = []
     # The step stage reads these margins with each conserved fluid's own reference
     # (audit.steps.allowances.reference_shift): the whole group residual is shifted, nominal or not.

@@ -36,7 +36,7 @@ from audit.findings import Finding
 from audit.model.steps import step_claims
 from audit.results import StepResult
 from audit.review.inputs import Input
-from audit.review.margins import Margin, margin_function
+from audit.review.margins import SHIFTED_FINDINGS, Margin, exchanges_water, margin_function
 from audit.review.propagation import propagate
 from audit.review.resolution import resolution, shown_half_unit, written_text
 from audit.review.runner import StepRunner
@@ -181,6 +181,8 @@ def assess_rounding(
         margin = margin_function(finding, result, runner.streams, T0)
         if margin is not None:
             laws.append((position, finding, margin))
+        elif finding.name in SHIFTED_FINDINGS and exchanges_water(result, runner.streams):
+            out[position] = not_propagated(finding, WATER)
         else:
             out[position] = not_propagated(finding, UNREAD)
     if not laws:
@@ -223,6 +225,11 @@ def assess_rounding(
 
 UNREAD = "its margin could not be read again from a re-evaluated step"
 """Why a finding's rounding was not propagated: no margin function gives its own margin."""
+WATER = (
+    "humid air exchanges water with the step's water streams, and a change of one written flow "
+    "cannot yet be followed through it"
+)
+"""Why a finding's rounding was not propagated: :func:`audit.review.margins.exchanges_water`."""
 UNEVALUATED = "its step could not be evaluated again"
 """Why a finding's rounding was not propagated: the step has no result to re-evaluate."""
 
