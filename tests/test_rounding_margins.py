@@ -22,6 +22,7 @@ from test_cooling_tower import _case as cooling_tower_case
 
 from audit.api import audit_balance
 from audit.reading import parse_balance
+from audit.review import rounding
 from audit.review.margins import (
     ENERGY_FINDINGS,
     LAW_FINDINGS,
@@ -30,6 +31,8 @@ from audit.review.margins import (
     margin_function,
     reference_shift,
 )
+from audit.review.passes import _rounding as review_rounding
+from audit.review.propagation import propagate
 from audit.review.rounding import assess_rounding
 from audit.review.runner import StepRunner
 from audit.solve import solve
@@ -237,3 +240,30 @@ def test_a_tower_whose_air_takes_up_water_says_its_rounding_was_not_propagated()
         assert finding.tolerance_basis.startswith(words + " + property-method allowance")
         assert finding.message.endswith(f"({words}; judged on the allowance alone.)")
         assert finding.rounding_bound is None
+
+
+def test_a_step_without_a_result_says_its_rounding_was_not_propagated():
+    balance, document = _printed("1.814e+06")
+    solution = solve(balance, document)
+    kept, _ = review_rounding(StepRunner(solution), solution.findings, {})
+    (finding,) = kept
+    assert finding.message.endswith(
+        "(the rounding of the written values was not propagated: its step could not be evaluated "
+        "again; judged on the allowance alone.)"
+    )
+
+
+def test_written_values_that_cannot_be_re_evaluated_are_counted(monkeypatch):
+    balance, document = _printed("1.817e+06")
+    solution = solve(balance, document)
+
+    def some_fail(f, x, u):
+        found = propagate(f, x, u)
+        return replace(found, contributions=[None, None, *found.contributions[2:]])
+
+    monkeypatch.setattr(rounding, "propagate", some_fail)
+    (finding,) = solution.findings
+    verdict = assess_rounding(StepRunner(solution), 0, [(0, finding)], solution.results[0])
+    assert "; 2 written values could not be re-evaluated and are left out) + " in (
+        verdict[0].tolerance_basis
+    )
