@@ -22,11 +22,12 @@ References
 from __future__ import annotations
 
 import math
-from collections import defaultdict
 from collections.abc import Callable
 
 from audit.findings import Finding
+from audit.properties.humid_air import HUMID_AIR
 from audit.results import StepResult, StreamResult
+from audit.steps.allowances import flow_groups as step_flow_groups
 
 ENERGY_FINDINGS = ("energy-imbalance", "valve-not-isenthalpic")
 WORK_FINDINGS = ("work-above-bound", "input-below-minimum")
@@ -47,29 +48,45 @@ CLAIM_FINDINGS = (
 """Claim checks of the step kinds whose margin the rounding verdict propagates: the kind records
 the signed value on the step result (``StepResult.checks``)."""
 
+SHIFTED_FINDINGS = (*ENERGY_FINDINGS, *WORK_FINDINGS, "negative-entropy-generation")
+"""Findings whose margin is read with the mass-conserving reference shift."""
+
 Margin = Callable[[StepResult, dict[str, StreamResult]], float]
+
+
+def paired(result: StepResult) -> bool:
+    """Whether the step's equal numbers of inlets and outlets may be read as pairs: every kind
+    but the mixer (its vent is no inlet's outlet; it calls the step stage with ``paired=False``,
+    :func:`audit.steps.base.finish_flow_step`)."""
+    return result.kind != "mixer"
 
 
 def flow_groups(
     result: StepResult, streams: dict[str, StreamResult]
 ) -> list[tuple[tuple[str, ...], tuple[str, ...]]]:
-    """The parts of a step that conserve mass on their own, as (inlets, outlets): each
-    inlet/outlet pair when the step pairs its streams one to one with the same fluid (one-stream
-    steps, exchanger sides), else the inlets and outlets of each fluid. A mixer's streams are never
-    pairs (a deaerator's vent is no inlet's outlet; :func:`audit.steps.allowances.flow_groups`)."""
-    ins, outs = result.inlets, result.outlets
-    if (
-        result.kind != "mixer"
-        and len(ins) == len(outs)
-        and all(streams[i].fluid == streams[o].fluid for i, o in zip(ins, outs, strict=True))
-    ):
-        return [((i,), (o,)) for i, o in zip(ins, outs, strict=True)]
-    by_fluid: dict[str, tuple[list[str], list[str]]] = defaultdict(lambda: ([], []))
-    for i in ins:
-        by_fluid[streams[i].fluid][0].append(i)
-    for o in outs:
-        by_fluid[streams[o].fluid][1].append(o)
-    return [(tuple(a), tuple(b)) for a, b in by_fluid.values()]
+    """The parts of a step that conserve mass on their own, as (inlets, outlets) stream ids: the
+    step stage's own grouping (:func:`audit.steps.allowances.flow_groups`), so that a margin read
+    here is the margin the step stage raised. Each inlet/outlet pair when the step pairs its
+    streams one to one with the same fluid (one-stream steps, exchanger sides), else the inlets
+    and outlets of each fluid (humid air with water; a mixer's streams are never pairs)."""
+    groups = step_flow_groups(
+        [streams[i] for i in result.inlets], [streams[o] for o in result.outlets], paired(result)
+    )
+    return [(tuple(s.id for s in a), tuple(s.id for s in b)) for a, b in groups]
+
+
+def exchanges_water(result: StepResult, streams: dict[str, StreamResult]) -> bool:
+    """Whether a mass-conserving group of the step holds humid air with streams of another fluid
+    (a cooling tower's air with its water). Such a group's reference is the mean outlet enthalpy
+    of air and water together, on the formation basis: a change of one written flow moves it by
+    the difference between water's and humid air's formation enthalpies (megajoules per kg), not
+    by the stream's own change of state, so its margin is not propagated (:func:`margin_function`
+    gives None for the energy, work and entropy findings)."""
+    for ins, outs in flow_groups(result, streams):
+        fluids = {streams[x].fluid for x in (*ins, *outs)}
+        if HUMID_AIR in fluids and len(fluids) > 1:
+            return True
+    return False
 
 
 def _group_residual(
@@ -112,16 +129,23 @@ def margin_function(
     finding: Finding, result: StepResult, streams: dict[str, StreamResult], T0: float
 ) -> Margin | None:
     """The finding's margin as a function of a re-evaluated step (positive = violation), or None
-    when the finding is not a law finding this module knows how to propagate. The function is
+    when the finding is not a law finding this module knows how to propagate (nor an energy,
+    work or entropy finding of a step where humid air exchanges water, :func:`exchanges_water`;
+    nor a margin that no candidate reproduces). The function is
     checked to give the finding's own margin on the nominal step. Energy, entropy and work
     margins take flow changes as mass-conserving (:func:`reference_shift`); T0 [K]."""
     name = finding.name
+    if name in SHIFTED_FINDINGS and exchanges_water(result, streams):
+        return None
     candidates: list[Margin] = []
     # The step stage reads these margins with each conserved fluid's own reference
     # (audit.steps.allowances.reference_shift): the whole group residual is shifted, nominal or not.
     nominal: dict[tuple, float] = {}
     if name in ENERGY_FINDINGS:
-        sign = 1.0 if result.energy_residual >= 0 else -1.0
+        # The sign of the residual the step stage judged: the shifted one. A mass residual within
+        # its tolerance can shift the raw residual by more than the finding's margin and flip it.
+        shifted = result.energy_residual - reference_shift(result, streams, nominal)[0]
+        sign = 1.0 if shifted >= 0 else -1.0
         candidates.append(lambda r, s: sign * (r.energy_residual - reference_shift(r, s, nominal)[0]))
     elif name in WORK_FINDINGS:
 

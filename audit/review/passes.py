@@ -17,7 +17,7 @@ from audit.review.formulation_steps import assess_formulations
 from audit.review.inputs import check_declarations, declares_uncertainty
 from audit.review.margins import LAW_FINDINGS
 from audit.review.propagation import MONTE_CARLO_SEED
-from audit.review.rounding import assess_rounding
+from audit.review.rounding import UNEVALUATED, assess_rounding, not_propagated
 from audit.review.runner import StepRunner
 from audit.review.uncertainty import DEFAULT_COVERAGE_FACTOR, assess_step
 from audit.solve import Solution
@@ -94,6 +94,8 @@ def _rounding(
         result = by_result.get(runner.balance.steps[index].id)
         if result is not None:
             changed.update(assess_rounding(runner, index, items, result))
+        else:
+            changed.update((p, not_propagated(f, UNEVALUATED)) for p, f in items)
     kept = []
     for position, finding in enumerate(findings):
         new = changed.get(position, finding)

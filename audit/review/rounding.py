@@ -36,7 +36,7 @@ from audit.findings import Finding
 from audit.model.steps import step_claims
 from audit.results import StepResult
 from audit.review.inputs import Input
-from audit.review.margins import Margin, margin_function
+from audit.review.margins import SHIFTED_FINDINGS, Margin, exchanges_water, margin_function
 from audit.review.propagation import propagate
 from audit.review.resolution import resolution, shown_half_unit, written_text
 from audit.review.runner import StepRunner
@@ -122,7 +122,11 @@ def rounding_inputs(runner: StepRunner, index: int) -> list[tuple[Input, str]]:
 
 
 def _makeup(
-    finding: Finding, ranked: Sequence[tuple[float, Input, str]], bound: float, allowance: str
+    finding: Finding,
+    ranked: Sequence[tuple[float, Input, str]],
+    bound: float,
+    allowance: str,
+    missing: int = 0,
 ) -> str:
     named = [
         f"{item.label} '{text}' ±{shown_half_unit(text)}: {format_value(abs(c), finding.quantity)}"
@@ -130,9 +134,15 @@ def _makeup(
         if c != 0.0
     ]
     more = f" and {len(ranked) - NAMED} more" if len(ranked) > NAMED else ""
+    left = (
+        f"; {missing} written value{'s' if missing > 1 else ''} could not be re-evaluated and "
+        f"{'are' if missing > 1 else 'is'} left out"
+        if missing
+        else ""
+    )
     return (
         f"rounding of the written values {format_value(bound, finding.quantity)} (worst case; "
-        f"{'; '.join(named) or 'no written number moves it'}{more}) + {allowance}"
+        f"{'; '.join(named) or 'no written number moves it'}{more}{left}) + {allowance}"
     )
 
 
@@ -181,19 +191,27 @@ def assess_rounding(
 ) -> dict[int, Finding | None]:
     """The rounding verdict of the law findings ``items`` (position, finding) of step ``index``
     whose tolerance rule is ``"rounding"``: by position, the finding with its tolerance widened by
-    the rounding bound and its make-up, or None when the rounding explains it."""
+    the rounding bound and its make-up, or None when the rounding explains it. A finding whose
+    margin cannot be read again from a re-evaluated step keeps the allowance alone and says so
+    (:func:`not_propagated`); written values that cannot be re-evaluated are counted in the
+    make-up."""
     T0 = runner.balance.balance.dead_state.T
     laws: list[tuple[int, Finding, Margin]] = []
+    out: dict[int, Finding | None] = {}
     for position, finding in items:
         if finding.tolerance_rule != ROUNDING:
             continue
         margin = margin_function(finding, result, runner.streams, T0)
         if margin is not None:
             laws.append((position, finding, margin))
+        elif finding.name in SHIFTED_FINDINGS and exchanges_water(result, runner.streams):
+            out[position] = not_propagated(finding, WATER)
+        else:
+            out[position] = not_propagated(finding, UNREAD)
     if not laws:
-        return {}
+        return out
     bounds, contributions, written = rounding_bounds(runner, index, [m for _, _, m in laws])
-    out: dict[int, Finding | None] = {}
+    missing = sum(c is None for c in contributions)
     for j, (position, finding, _) in enumerate(laws):
         allowance = finding.tolerance or 0.0
         tolerance = allowance + bounds[j]
@@ -213,6 +231,30 @@ def assess_rounding(
             message=_reworded(finding, tolerance, bounds[j], T0),
             tolerance=tolerance,
             rounding_bound=bounds[j],
-            tolerance_basis=_makeup(finding, ranked, bounds[j], finding.tolerance_basis or ""),
+            tolerance_basis=_makeup(finding, ranked, bounds[j], finding.tolerance_basis or "", missing),
         )
     return out
+
+
+UNREAD = "its margin could not be read again from a re-evaluated step"
+"""Why a finding's rounding was not propagated: no margin function gives its own margin."""
+WATER = (
+    "humid air exchanges water with the step's water streams, and a change of one written flow "
+    "cannot yet be followed through it"
+)
+"""Why a finding's rounding was not propagated: :func:`audit.review.margins.exchanges_water`."""
+UNEVALUATED = "its step could not be evaluated again"
+"""Why a finding's rounding was not propagated: the step has no result to re-evaluate."""
+
+
+def not_propagated(finding: Finding, reason: str) -> Finding:
+    """A law finding under the rounding rule whose rounding bound could not be propagated
+    (``reason``): it stands on the property-method allowance alone, and says so in its message
+    and its tolerance make-up, so that the missing bound is never taken for a zero one."""
+    words = f"the rounding of the written values was not propagated: {reason}"
+    stop = "" if finding.message.rstrip().endswith(".") else "."
+    return replace(
+        finding,
+        message=f"{finding.message}{stop} ({words}; judged on the allowance alone.)",
+        tolerance_basis=f"{words} + {finding.tolerance_basis or ''}",
+    )
