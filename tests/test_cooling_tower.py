@@ -15,6 +15,7 @@ from conftest import audit_text, names
 
 from audit.errors import InputErrors
 from audit.properties.engine import PropertyEngine
+from audit.steps.allowances import reference_shift
 
 P = 101325.0
 
@@ -116,3 +117,20 @@ def test_probable_cause_relative_humidity_as_a_percentage(tmp_path):
     assert energy.probable_causes[0] == (
         "closes if stream AIR1's relative humidity '0.4 %' is the fraction 0.4 (40%), not a percentage"
     )
+
+
+def test_a_small_water_residual_is_priced_at_water_not_at_air(tmp_path):
+    """The water out written 0.05 kg/s short (a mass residual the mass check judges on its own):
+    the energy residual, read relative to each conserved part, moves by about 0.05 kg/s times the
+    water's enthalpy change from the mean water state (kJ/kg, not MJ/kg), so no energy or entropy
+    finding appears; one reference for water and air together moved it by about 0.28 MW."""
+    text = _case(30.0)
+    exact = text.split("CW2: {fluid: Water, T: 30.0 degC, P: 2 bar, flow: ")[1].split(" kg/s")[0]
+    text = text.replace(f"flow: {exact} kg/s", f"flow: {float(exact) - 0.05:.6f} kg/s", 1)
+    result = audit_text(tmp_path, text)
+    step = result.steps[0]
+    by_id = {s.id: s for s in result.streams}
+    shift = reference_shift([by_id[i] for i in step.inlets], [by_id[o] for o in step.outlets])
+    shifted = step.balance.energy_residual - shift[0]
+    assert abs(shifted) < 2e3  # [W]: a few kW at most, against ~280 kW with one reference
+    assert not {n for _, n in names(result)} & {"energy-imbalance", "negative-entropy-generation"}

@@ -50,7 +50,7 @@ from dataclasses import dataclass
 from audit.errors import StateError
 from audit.model.tolerances import Tolerances
 from audit.properties.engine import PropertyEngine
-from audit.properties.humid_air import HUMID_AIR
+from audit.properties.humid_air import DRY_AIR_PART, HUMID_AIR
 from audit.results import HeatFlow, StreamResult
 
 _WATER_GROUP = {HUMID_AIR: "Water"}
@@ -182,11 +182,18 @@ def reference_shift(
     have both inlets and outlets, Δṁ_g being the group's mass residual (in − out) [kg/s] and
     h_ref, s_ref its mean outlet enthalpy and entropy. The energy residual relative to each
     group's reference is the residual minus the first term; the entropy generation plus the
-    second; the work-bound margin plus the first minus T0 times the second."""
+    second; the work-bound margin plus the first minus T0 times the second. A group where humid
+    air takes up or gives off water is read per conserved part (:func:`_parts_shift`)."""
     dH = dS = 0.0
     for ins, outs in flow_groups(inlets, outlets, paired):
         if not ins or not outs:
             continue  # a fluid that only enters or only leaves (it reacts): taken as measured
+        if any(s.fluid == HUMID_AIR for s in (*ins, *outs)) and any(
+            s.fluid == "Water" for s in (*ins, *outs)
+        ):
+            h, s_ = _parts_shift(ins, outs)
+            dH, dS = dH + h, dS + s_
+            continue
         change = sum(s.mass_flow for s in ins) - sum(s.mass_flow for s in outs)
         mass = sum(s.mass_flow for s in outs)
         if change == 0.0 or mass <= 0.0:
@@ -194,3 +201,31 @@ def reference_shift(
         dH += change * sum(s.mass_flow * s.h for s in outs) / mass
         dS += change * sum(s.mass_flow * s.s for s in outs) / mass
     return dH, dS
+
+
+def _parts_shift(ins: Sequence[StreamResult], outs: Sequence[StreamResult]) -> tuple[float, float]:
+    """The shift of a group of humid air and water, part by part: the water's residual (liquid and
+    vapour together) at the mean specific enthalpy and entropy of the group's liquid water streams
+    (outlets first), and the dry air's residual at the humid air's mean outlet enthalpy and entropy
+    per kg of dry air once its water is taken at that same reference. One reference for the whole
+    group would price a kilogram of missing water at a kilogram of air's enthalpy (the two differ
+    by about 15 MJ/kg on the formation basis). Humid air alone keeps the one reference per group.
+    Assumes a group with liquid water streams of positive flow."""
+    water = [s for s in outs if s.fluid == "Water"] or [s for s in ins if s.fluid == "Water"]
+    air = [s for s in outs if s.fluid == HUMID_AIR] or [s for s in ins if s.fluid == HUMID_AIR]
+
+    def part(streams: Sequence[StreamResult], name: str) -> float:
+        return sum(m for st in streams for p, m in st.conserved_parts() if p == name)
+
+    water_mass = sum(s.mass_flow for s in water)  # > 0: the group holds liquid water
+    h_w = sum(s.mass_flow * s.h for s in water) / water_mass
+    s_w = sum(s.mass_flow * s.s for s in water) / water_mass
+    dry = part(air, DRY_AIR_PART)
+    if dry > 0.0:
+        h_a = (sum(s.mass_flow * s.h for s in air) - part(air, "Water") * h_w) / dry
+        s_a = (sum(s.mass_flow * s.s for s in air) - part(air, "Water") * s_w) / dry
+    else:
+        h_a = s_a = 0.0
+    d_water = part(ins, "Water") - part(outs, "Water")
+    d_dry = part(ins, DRY_AIR_PART) - part(outs, DRY_AIR_PART)
+    return d_water * h_w + d_dry * h_a, d_water * s_w + d_dry * s_a
