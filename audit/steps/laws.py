@@ -8,6 +8,9 @@ of the written values), or the balance's written tolerances when it declares the
 
 from __future__ import annotations
 
+from collections.abc import Sequence
+from typing import Any
+
 from audit.findings import ERROR, Finding, relative
 from audit.model.tolerances import Tolerances
 from audit.results import Balance
@@ -231,3 +234,29 @@ def _kw(value: float, batch: bool) -> str:
 def format_power(value: float, batch: bool = False) -> str:
     """A power [W] (or an energy [J] for a vessel) in kW/MW (kJ/MJ) for messages."""
     return _kw(value, batch)
+
+
+def side_mass_finding(
+    step_id: str, name: str, inlet: Any, outlets: Sequence[Any], tol: Tolerances
+) -> Finding | None:
+    """``mass-imbalance`` of one side of a step (an exchanger's or a machine's side, a boiler's
+    heated side): the inlet's mass flow against the outlets' together [kg/s], within the larger of
+    the relative and the absolute mass tolerance; None when it balances."""
+    leaving = sum(s.mass_flow for s in outlets)
+    residual = inlet.mass_flow - leaving
+    mass_tol = max(tol.mass_relative * inlet.mass_flow, tol.mass_absolute)
+    if abs(residual) <= mass_tol:
+        return None
+    return Finding(
+        ERROR,
+        "mass-imbalance",
+        step_id,
+        f"the {name} side enters with {inlet.mass_flow:.4g} kg/s ({inlet.id}) and leaves with "
+        f"{leaving:.4g} kg/s ({', '.join(s.id for s in outlets)})",
+        claimed=residual,
+        bound=0.0,
+        margin=abs(residual),
+        margin_relative=relative(abs(residual), inlet.mass_flow),
+        quantity="mass_flow",
+        tolerance=mass_tol,
+    )

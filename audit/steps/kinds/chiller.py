@@ -41,7 +41,7 @@ from audit.physics.refrigeration import (
 from audit.results import StepResult, StreamResult
 from audit.steps.allowances import PROPERTY_SPREAD
 from audit.steps.base import StepBase, StepContext, finish_flow_step, register
-from audit.steps.laws import format_power
+from audit.steps.laws import format_power, side_mass_finding
 from audit.wording import to_celsius
 
 
@@ -158,25 +158,9 @@ def evaluate(step: Chiller | HeatPump, ctx: StepContext) -> StepResult:
 def _mass_check(
     step_id: str, name: str, inlet: StreamResult, outlet: StreamResult, ctx: StepContext
 ) -> None:
-    tol = ctx.tolerances
-    residual = inlet.mass_flow - outlet.mass_flow
-    mass_tol = max(tol.mass_relative * inlet.mass_flow, tol.mass_absolute)
-    if abs(residual) > mass_tol:
-        ctx.add(
-            Finding(
-                ERROR,
-                "mass-imbalance",
-                step_id,
-                f"the {name} side enters with {inlet.mass_flow:.4g} kg/s ({inlet.id}) and leaves "
-                f"with {outlet.mass_flow:.4g} kg/s ({outlet.id})",
-                claimed=residual,
-                bound=0.0,
-                margin=abs(residual),
-                margin_relative=relative(abs(residual), inlet.mass_flow),
-                quantity="mass_flow",
-                tolerance=mass_tol,
-            )
-        )
+    finding = side_mass_finding(step_id, name, inlet, [outlet], ctx.tolerances)
+    if finding is not None:
+        ctx.add(finding)
 
 
 def _wrong_way(

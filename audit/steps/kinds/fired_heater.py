@@ -53,7 +53,7 @@ from audit.model.steps import DutyClaim, TemperatureClaim
 from audit.results import StepResult, StreamResult
 from audit.steps.allowances import claim_rule, duty_allowance
 from audit.steps.base import StepBase, StepContext, register
-from audit.steps.laws import format_power, tolerance_words
+from audit.steps.laws import format_power, side_mass_finding, tolerance_words
 from audit.steps.machines import heat_loss_flow
 from audit.steps.reacting import element_findings, finish_reacting_step
 from audit.steps.reactions import heating_values, species_flows
@@ -280,26 +280,9 @@ def _side_findings(
                     f"{outlet.fluid} ({outlet.id}); it keeps its own fluid",
                 )
             )
-    tol = ctx.tolerances
-    leaving = sum(s.mass_flow for s in outlets)
-    residual = inlet.mass_flow - leaving
-    mass_tol = max(tol.mass_relative * inlet.mass_flow, tol.mass_absolute)
-    if abs(residual) > mass_tol:
-        found.append(
-            Finding(
-                ERROR,
-                "mass-imbalance",
-                step_id,
-                f"the heated side enters with {inlet.mass_flow:.4g} kg/s ({inlet.id}) and leaves with "
-                f"{leaving:.4g} kg/s ({', '.join(s.id for s in outlets)})",
-                claimed=residual,
-                bound=0.0,
-                margin=abs(residual),
-                margin_relative=relative(abs(residual), inlet.mass_flow),
-                quantity="mass_flow",
-                tolerance=mass_tol,
-            )
-        )
+    finding = side_mass_finding(step_id, "heated", inlet, outlets, ctx.tolerances)
+    if finding is not None:
+        found.append(finding)
     return found
 
 

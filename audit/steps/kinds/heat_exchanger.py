@@ -50,7 +50,7 @@ from audit.physics.heat_transfer import log_mean_temperature_difference
 from audit.results import StepResult, StreamResult
 from audit.steps.allowances import claim_rule, duty_allowance
 from audit.steps.base import StepBase, StepContext, finish_flow_step, register
-from audit.steps.laws import format_power
+from audit.steps.laws import format_power, side_mass_finding
 from audit.steps.machines import heat_loss_flow
 from audit.steps.profile import approach_minimum
 from audit.wording import to_celsius
@@ -115,24 +115,9 @@ def evaluate(step: HeatExchanger, ctx: StepContext) -> StepResult:
                     f"{outlet.fluid} ({outlet.id}); each side keeps its own fluid",
                 )
             )
-        residual = inlet.mass_flow - outlet.mass_flow
-        mass_tol = max(tol.mass_relative * inlet.mass_flow, tol.mass_absolute)
-        if abs(residual) > mass_tol:
-            ctx.add(
-                Finding(
-                    ERROR,
-                    "mass-imbalance",
-                    step.id,
-                    f"the {name} side enters with {inlet.mass_flow:.4g} kg/s ({inlet.id}) and leaves "
-                    f"with {outlet.mass_flow:.4g} kg/s ({outlet.id})",
-                    claimed=residual,
-                    bound=0.0,
-                    margin=abs(residual),
-                    margin_relative=relative(abs(residual), inlet.mass_flow),
-                    quantity="mass_flow",
-                    tolerance=mass_tol,
-                )
-            )
+        finding = side_mass_finding(step.id, name, inlet, [outlet], tol)
+        if finding is not None:
+            ctx.add(finding)
     duty = step.duty
     swapped = released <= 0 and received <= 0  # reported once, as the sides swapped (below)
     if duty is not None and not swapped:
