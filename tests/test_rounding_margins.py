@@ -220,18 +220,19 @@ def test_a_vented_mixer_is_one_group_of_its_fluid():
 
 
 def test_a_tower_whose_air_takes_up_water_says_its_rounding_was_not_propagated():
-    """Humid air and water are one group of the mass-conserving reading; its mean outlet enthalpy
-    mixes water's formation enthalpy (about -15.8 MJ/kg) with humid air's (about -0.5 MJ/kg), so a
-    change of the written water flow would move the margin by megawatts: not propagated, and said."""
+    """Humid air and water are one group of the mass-conserving reading, read per conserved part
+    (water, dry air); the review does not yet follow a change of one written flow through those
+    parts: not propagated, and said. (The water left 0.1 K warm is a real energy imbalance of about
+    42 kW; the lost 0.05 kg/s, priced at water's enthalpy, creates no work-bound finding.)"""
     balance, document = parse_balance("balance: {name: tower}\n" + _cooling_tower(), "tower.yaml")
     solution = solve(balance, document)
     (result,) = solution.results
     laws = [f for f in solution.findings if f.name in LAW_FINDINGS]
-    assert {f.name for f in laws} == {"energy-imbalance", "input-below-minimum"}
+    assert {f.name for f in laws} == {"energy-imbalance"}
     for finding in laws:
         assert margin_function(finding, result, solution.streams, 298.15) is None
     reviewed = [f for f in audit_balance(balance, document).findings if f.name in LAW_FINDINGS]
-    assert {f.name for f in reviewed} == {"energy-imbalance", "input-below-minimum"}
+    assert {f.name for f in reviewed} == {"energy-imbalance"}
     words = (
         "the rounding of the written values was not propagated: humid air exchanges water with the "
         "step's water streams, and a change of one written flow cannot yet be followed through it"
