@@ -63,9 +63,12 @@ METHOD_TEXT: tuple[tuple[str, str], ...] = (
         "residual = Σ Q_j − W − (Σ ṁ_e·e_e − Σ ṁ_i·e_i), e = h + V²/2 + g·z. In the Steps sheet the "
         "formula column computes Q − W − (enthalpy flow out − enthalpy flow in) − (kinetic+potential "
         "out − kinetic+potential in) from the cells of its row; the solver's own residual stands "
-        "beside it. An energy-imbalance finding is raised when |residual| exceeds the energy "
-        "tolerance: the larger of energy_relative × the step's energy scale and the absolute floor, "
-        "which never exceeds energy_floor_fraction × the step's own work or heat.",
+        "beside it. An energy-imbalance finding is raised when |residual| exceeds the rounding of "
+        "the step's written values (half a unit in each last digit, carried worst case through the "
+        "step) plus a property-method allowance of 4e-4 of its enthalpy flows from the dead state. "
+        "A balance that writes energy_relative or energy_absolute is judged instead on the larger "
+        "of energy_relative × the step's energy scale and the absolute floor, which never exceeds "
+        "energy_floor_fraction × the step's own work or heat.",
     ),
     (
         "Closed vessel (batch)",
