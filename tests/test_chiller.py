@@ -156,3 +156,26 @@ def test_probable_cause_refrigeration_tons_written_as_kw(tmp_path):
     assert energy.probable_causes[0].startswith(
         "closes if step CH1's cooling_duty '60 kW' is 211 kW (refrigeration tons written as kW)"
     )
+
+
+def test_a_written_cop_is_judged_on_its_own_digits(tmp_path):
+    """Limit 12.29 (analytic, above). `cop: 12.4` exceeds it by 0.11, within the property allowance
+    (4e-4 of the limit carried through T_c/(T_c − T_e), about 0.065) plus half a unit of its last
+    digit (0.05): no finding. `cop: 12.8` is beyond both, and the finding says how much of its
+    tolerance the rounding makes."""
+    assert names(audit_text(tmp_path, _chiller(12.4, written_cop=True))) == set()
+    result = audit_text(tmp_path, _chiller(12.8, written_cop=True))
+    (finding,) = [f for f in result.findings if f.name == "cop-above-reversible"]
+    assert finding.tolerance_rule == "rounding"
+    assert 0.05 <= finding.rounding_bound < 0.07  # the COP's own half unit plus the temperatures'
+    assert "of which 0.05815 from the rounding of the written values" in finding.message
+
+
+def test_a_flow_rounding_is_not_priced_at_water_formation_enthalpy(tmp_path):
+    """Each side's heat is its inlet flow times its enthalpy change: writing one chilled-water flow
+    0.05 kg/s apart (within the rounding of `10.0 kg/s`) moves the COP by half a percent, not by
+    the 0.05 kg/s × 15.9 MJ/kg a side read as ṁ_out h_out − ṁ_in h_in would add."""
+    text = _chiller(15.0).replace("T: 7 degC, P: 3 bar, flow: 10.0", "T: 7 degC, P: 3 bar, flow: 10.05")
+    result = audit_text(tmp_path, text)
+    excess = result.steps[0].checks["cop-above-reversible"]
+    assert 2.5 < excess < 2.9  # 15 − 12.29 = 2.71, give or take the duty's 0.5 %

@@ -44,6 +44,7 @@ CLAIM_FINDINGS = (
     "power-mismatch",
     "heat-needed-below-thermoneutral",
     "voltage-beyond-reversible",
+    "cop-above-reversible",
 )
 """Claim checks of the step kinds whose margin the rounding verdict propagates: the kind records
 the signed value on the step result (``StepResult.checks``)."""

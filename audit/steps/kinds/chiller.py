@@ -39,7 +39,7 @@ from audit.physics.refrigeration import (
     reversible_cop_heating,
 )
 from audit.results import StepResult, StreamResult
-from audit.steps.allowances import PROPERTY_SPREAD
+from audit.steps.allowances import DECLARED, PROPERTY_SPREAD, ROUNDING, declared_rule
 from audit.steps.base import StepBase, StepContext, finish_flow_step, register
 from audit.steps.laws import format_power, side_mass_finding
 from audit.wording import to_celsius
@@ -80,10 +80,10 @@ class HeatPump(_Machine):
 
 
 def _side_heat(inlet: StreamResult, outlet: StreamResult) -> float:
-    """Heat received by a side [W]: ṁ_out e_out − ṁ_in e_in."""
-    return outlet.mass_flow * (outlet.h + outlet.kinetic_potential) - inlet.mass_flow * (
-        inlet.h + inlet.kinetic_potential
-    )
+    """Heat received by a side [W] with its flow conserved: ṁ_in (e_out − e_in). A side's mass
+    residual is its own check (``mass-imbalance``); read as ṁ_out e_out − ṁ_in e_in it would price
+    a rounding of one flow at an absolute (formation-basis) enthalpy, megawatts on a water side."""
+    return inlet.mass_flow * (outlet.h + outlet.kinetic_potential - inlet.h - inlet.kinetic_potential)
 
 
 def evaluate(step: Chiller | HeatPump, ctx: StepContext) -> StepResult:
@@ -151,7 +151,7 @@ def evaluate(step: Chiller | HeatPump, ctx: StepContext) -> StepResult:
                     tolerance=result.energy_tolerance,
                 )
             )
-    _cop_check(step, e_in, e_out, c_in, c_out, duty, power, heating, ctx)
+    _cop_check(step, e_in, e_out, c_in, c_out, duty, power, heating, ctx, result)
     return result
 
 
@@ -206,10 +206,13 @@ def _cop_check(
     power: float,
     heating: bool,
     ctx: StepContext,
+    result: StepResult,
 ) -> None:
     """The COP (claimed, or duty over power) against the reversible one between the two sides'
-    entropic mean temperatures; the tolerance is the property-method spread carried through
-    T̄/(T̄_c − T̄_e)."""
+    entropic mean temperatures. The allowance is the property-method spread carried through
+    T̄/(T̄_c − T̄_e); the review adds the rounding of the written values (the COP's digits, the
+    temperatures', the flows' and the power's, carried through the step), as for the laws; the
+    signed excess COP − COP_rev is recorded in ``result.checks``."""
     T_e = entropic_mean_temperature(e_out.h - e_in.h, e_out.s - e_in.s, e_in.T, e_out.T)
     T_c = entropic_mean_temperature(c_out.h - c_in.h, c_out.s - c_in.s, c_in.T, c_out.T)
     limit = reversible_cop_heating(T_e, T_c) if heating else reversible_cop_cooling(T_e, T_c)
@@ -217,6 +220,7 @@ def _cop_check(
         return
     cop = step.cop if step.cop is not None else duty / power
     tolerance = limit * PROPERTY_SPREAD * T_c / (T_c - T_e)
+    result.checks["cop-above-reversible"] = cop - limit
     if cop - limit <= tolerance:
         return
     what = "heating" if heating else "cooling"
@@ -236,6 +240,12 @@ def _cop_check(
             margin_relative=relative(cop - limit, limit),
             quantity="fraction",
             tolerance=tolerance,
+            # a balance that writes its own tolerances keeps the allowance alone
+            tolerance_rule=DECLARED if declared_rule(ctx.tolerances, batch=False) else ROUNDING,
+            tolerance_basis=(
+                f"property-method allowance {tolerance:.3g} ({PROPERTY_SPREAD:g} of the reversible "
+                "COP carried through T̄_c/(T̄_c − T̄_e))"
+            ),
         )
     )
 
