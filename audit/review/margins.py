@@ -45,6 +45,7 @@ CLAIM_FINDINGS = (
     "heat-needed-below-thermoneutral",
     "voltage-beyond-reversible",
     "cop-above-reversible",
+    "water-below-wet-bulb",
 )
 """Claim checks of the step kinds whose margin the rounding verdict propagates: the kind records
 the signed value on the step result (``StepResult.checks``)."""

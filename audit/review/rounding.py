@@ -157,6 +157,8 @@ def _reworded(finding: Finding, tolerance: float, bound: float, T0: float) -> st
     elif finding.quantity == "voltage":
         old = f"tolerance {(finding.tolerance or 0.0) * 1e3:.2g} mV"
         new = f"tolerance {format_value(tolerance, 'voltage')}"
+    elif finding.quantity == "temperature":
+        old, new = "", f"tolerance {format_value(tolerance, 'temperature')}"
     else:
         old, new = "", f"tolerance {tolerance:.2g}"
     new += f", of which {format_value(bound, finding.quantity)} from the rounding of the written values"

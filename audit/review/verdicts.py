@@ -61,6 +61,8 @@ def format_value(value: float, quantity: str | None) -> str:
         return f"{value:.4g} kg/s"
     if quantity == "voltage":
         return f"{value * 1e3:.3g} mV"
+    if quantity == "temperature":  # a temperature difference
+        return f"{value:.4g} K"
     return f"{value:.4g}"
 
 
