@@ -268,3 +268,20 @@ def test_written_values_that_cannot_be_re_evaluated_are_counted(monkeypatch):
     assert "; 2 written values could not be re-evaluated and are left out) + " in (
         verdict[0].tolerance_basis
     )
+
+
+def test_a_measured_tower_says_its_finding_has_no_uncertainty_verdict():
+    """The same tower as a measured balance (declared uncertainties): its energy-imbalance cannot be
+    followed through a re-evaluation either, so it says it stands without an uncertainty verdict —
+    never a finding silently left without one."""
+    head = (
+        "balance:\n  name: tower\n  uncertainty: {basis: measured, temperature: 0.1 K, "
+        "pressure: 0.25 %, flow: 1 %, power: 0.5 %}\n"
+    )
+    balance, document = parse_balance(head + _cooling_tower(), "tower.yaml")
+    findings = [f for f in audit_balance(balance, document).findings if f.name == "energy-imbalance"]
+    assert findings
+    for finding in findings:
+        assert finding.verdict is None
+        assert "the uncertainty of the readings was not propagated" in finding.message
+        assert finding.message.endswith("it stands without an uncertainty verdict)")

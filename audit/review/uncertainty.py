@@ -53,6 +53,12 @@ re-evaluations of the step, and each re-evaluation costs time in proportion to t
 past this (a mixer with a hundred inlets and more), the propagation would grow with the square of
 the step's size, so it is not run and the findings say so (they stand without a verdict)."""
 
+UNREAD_NOTE = (
+    " (the uncertainty of the readings was not propagated: the finding's margin cannot be read "
+    "again from a re-evaluated step; it stands without an uncertainty verdict)"
+)
+"""Appended to a law finding whose margin the review cannot follow through a re-evaluation."""
+
 DEFAULT_COVERAGE_FACTOR = 2.0
 TOP_CONTRIBUTORS = 5
 
@@ -102,12 +108,15 @@ def assess_step(
     """Propagate the uncertainty of the law findings ``items`` (position, finding) of step
     ``index`` and give each its verdict. Returns the new findings by position."""
     laws = []
+    unread: dict[int, Finding] = {}
     for position, finding in items:
         margin = margin_function(finding, result, runner.streams, runner.balance.balance.dead_state.T)
         if margin is not None:
             laws.append((position, finding, margin))
+        else:  # never a silent skip: the finding says it has no uncertainty verdict, and why
+            unread[position] = replace(finding, message=finding.message + UNREAD_NOTE)
     if not laws:
-        return {}, StepUncertainty({}, 0)
+        return unread, StepUncertainty({}, 0)
     inputs = step_inputs(runner, index)
     if len(inputs) > MAX_PROPAGATED_INPUTS:
         note = (
@@ -116,7 +125,8 @@ def assess_step(
             "the finding stands without an uncertainty verdict)"
         )
         return (
-            {
+            unread
+            | {
                 position: replace(finding, message=finding.message + note)
                 for position, finding, _ in laws
             },
@@ -124,7 +134,7 @@ def assess_step(
         )
     if not inputs:
         return (
-            {position: with_verdict(finding, 0.0, k) for position, finding, _ in laws},
+            unread | {position: with_verdict(finding, 0.0, k) for position, finding, _ in laws},
             StepUncertainty({position: 0.0 for position, _, _ in laws}, 0),
         )
     f = step_function(runner, index, inputs, [margin for _, _, margin in laws])
@@ -135,7 +145,7 @@ def assess_step(
     failed = 0
     if trials > 0:
         mc_std, failed = monte_carlo(f, x0, u, trials, seed=(MONTE_CARLO_SEED, index))
-    updated: dict[int, Finding] = {}
+    updated: dict[int, Finding] = dict(unread)
     expanded: dict[int, float] = {}
     for j, (position, finding, _) in enumerate(laws):
         u_c = propagation.u_c[j]
