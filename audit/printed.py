@@ -33,7 +33,7 @@ from audit import units
 from audit.errors import InputError, StateError
 from audit.findings import ERROR, WARNING, Finding, relative
 from audit.model.digits import written_resolution
-from audit.model.streams import PAIRS, StreamSpec
+from audit.model.streams import PAIR_FIELDS, PAIRS, StreamSpec
 from audit.properties.engine import PropertyEngine, State
 from audit.properties.formulations import NUMERICAL
 
@@ -51,13 +51,6 @@ PROPERTIES = {
 """Each printed property: how it is written (a unit kind of :mod:`audit.units`; quality: a plain
 number) and its display quantity in findings."""
 _FIXING = ("T", "P", "quality", "h", "s")
-_NAMES = {
-    "TP": ("T", "P"),
-    "PQ": ("P", "quality"),
-    "TQ": ("T", "quality"),
-    "Ph": ("P", "h"),
-    "Ps": ("P", "s"),
-}
 
 
 @dataclass(frozen=True)
@@ -211,7 +204,7 @@ def _propagated(
 ) -> dict[str, float]:
     """Σ_i max over ± of |computed(x_i ± r_i) − computed| for each claim: the fixing pair's
     rounding carried into the computed value, worst case."""
-    first, second = _NAMES[pair]
+    first, second = PAIR_FIELDS[pair]
     spread = dict.fromkeys(claims, 0.0)
     for index, name in enumerate((first, second)):
         r = texts[name].rounding
@@ -259,7 +252,7 @@ def _odd_one_out(
         pair = PAIRS.get(frozenset((first, second)))
         if pair is None:
             continue
-        a_name, b_name = _NAMES[pair]
+        a_name, b_name = PAIR_FIELDS[pair]
         a, b = texts[a_name].value, texts[b_name].value
         try:
             values = _evaluate(engine, fluid, pair, a, b)
@@ -313,7 +306,7 @@ def _mismatch(
     odd: str | None,
     texts: dict[str, _Written],
 ) -> Finding:
-    fixing = ", ".join(_NAMES[spec.pair])
+    fixing = ", ".join(PAIR_FIELDS[spec.pair])
     assert claim.computed is not None and claim.difference is not None
     message = (
         f"stream {stream_id} prints {name} = {w.text}, but the state fixed by ({fixing}) has "

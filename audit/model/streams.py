@@ -42,13 +42,14 @@ PAIRS = {
 _PROPERTIES = ("T", "P", "quality", "h", "s")
 _PAIR_OF_GIVEN = {tuple(name in given for name in _PROPERTIES): pair for given, pair in PAIRS.items()}
 """(T given, P given, quality given, h given, s given) -> pair: a cheap lookup per stream."""
-_INPUT_NAMES = {
+PAIR_FIELDS = {
     "TP": ("T", "P"),
     "PQ": ("P", "quality"),
     "TQ": ("T", "quality"),
     "Ph": ("P", "h"),
     "Ps": ("P", "s"),
 }
+"""The two written properties of each pair that fixes a state, in the order of ``inputs()``."""
 PRECEDENCE = ("PQ", "TQ", "Ph", "Ps", "TP")
 """The pair that fixes an over-determined state when ``state_from`` names none: the first of these
 whose two properties are given. A printed quality first: it says the state is saturated, where
@@ -138,7 +139,7 @@ class PropertyPair(BaseModel):
                 )
             return pair
         for pair in PRECEDENCE:
-            if all(name in given for name in _INPUT_NAMES[pair]):
+            if all(name in given for name in PAIR_FIELDS[pair]):
                 return pair
         written = ", ".join(name for name in CLAIMS if name in given) or "none"
         raise ValueError(
@@ -148,13 +149,13 @@ class PropertyPair(BaseModel):
 
     def claims(self) -> list[str]:
         """The printed properties outside the fixing pair (checked against the state)."""
-        fixing = _INPUT_NAMES[self.pair]
+        fixing = PAIR_FIELDS[self.pair]
         return [n for n in CLAIMS if n not in fixing and getattr(self, n, None) is not None]
 
     def inputs(self) -> tuple[str, float, float]:
         """(pair, first value, second value) in SI, in the order the pair names them."""
         pair = self.pair
-        names = _INPUT_NAMES[pair]
+        names = PAIR_FIELDS[pair]
         return pair, float(getattr(self, names[0])), float(getattr(self, names[1]))
 
 

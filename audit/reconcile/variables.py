@@ -28,19 +28,12 @@ from typing import Any
 
 from audit.errors import InputError
 from audit.model.steps import step_claims
+from audit.model.streams import PAIR_FIELDS
 from audit.results import StepResult, StreamResult
 from audit.review.inputs import Input, claim_inputs, stream_inputs
 from audit.review.margins import flow_groups, reference_shift
 from audit.review.runner import StepRunner, with_value
 from audit.solve import Solution
-
-_STREAM_NAMES = {
-    "TP": ("T", "P"),
-    "PQ": ("P", "quality"),
-    "TQ": ("T", "quality"),
-    "Ph": ("P", "h"),
-    "Ps": ("P", "s"),
-}
 
 
 @dataclass(frozen=True)
@@ -99,7 +92,7 @@ def _unmeasured_input(solution: Solution, key: str) -> Input:
     if owner in balance.streams:
         spec = balance.streams[owner]
         pair, a, b = spec.inputs()
-        values = dict(zip(_STREAM_NAMES[pair], (a, b), strict=True))
+        values = dict(zip(PAIR_FIELDS[pair], (a, b), strict=True))
         values["flow"] = spec.flow.value
         if name in values:
             return Input(

@@ -15,7 +15,7 @@ from typing import Any
 from audit.errors import InputError, InputErrors, Problem
 from audit.input.document import Document
 from audit.model.steps import step_claims, step_spreads
-from audit.model.streams import StreamSpec
+from audit.model.streams import PAIR_FIELDS, StreamSpec
 from audit.model.uncertainty import (
     EXACT,
     STREAM_CATEGORY,
@@ -98,13 +98,7 @@ def stream_inputs(
     base_divisor = coverage_divisor(unc.coverage) if unc is not None else 1.0
     own_divisor = coverage_divisor(own.coverage) if own is not None and own.coverage else (base_divisor)
     pair, a, b = spec.inputs()
-    names = {
-        "TP": ("T", "P"),
-        "PQ": ("P", "quality"),
-        "TQ": ("T", "quality"),
-        "Ph": ("P", "h"),
-        "Ps": ("P", "s"),
-    }[pair]
+    names = PAIR_FIELDS[pair]
     found = []
     for name, value in ((names[0], a), (names[1], b), ("flow", spec.flow.value)):
         spread: Spread | None = None

@@ -34,6 +34,7 @@ from dataclasses import replace
 
 from audit.findings import Finding
 from audit.model.steps import step_claims
+from audit.model.streams import PAIR_FIELDS
 from audit.results import StepResult
 from audit.review.inputs import Input
 from audit.review.margins import SHIFTED_FINDINGS, Margin, exchanges_water, margin_function
@@ -56,13 +57,6 @@ _STREAM_KIND = {
     "s": "specific_entropy",
     "flow": "flow",
 }
-_PAIR_NAMES = {
-    "TP": ("T", "P"),
-    "PQ": ("P", "quality"),
-    "TQ": ("T", "quality"),
-    "Ph": ("P", "h"),
-    "Ps": ("P", "s"),
-}
 _SHOWN_UNIT = {"temperature": "temperature_difference", "flow": None, "quality": None}
 
 
@@ -80,7 +74,7 @@ def rounding_inputs(runner: StepRunner, index: int) -> list[tuple[Input, str]]:
     for stream_id in dict.fromkeys([*inlets, *outlets]):
         spec = balance.streams[stream_id]
         pair, a, b = spec.inputs()
-        names = _PAIR_NAMES[pair]
+        names = PAIR_FIELDS[pair]
         for name, value in ((names[0], a), (names[1], b), ("flow", spec.flow.value)):
             text = written_text(document, ("streams", stream_id, name))
             delta = resolution(text, _STREAM_KIND[name], site)

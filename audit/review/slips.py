@@ -23,7 +23,6 @@ gauge ...``).
 from __future__ import annotations
 
 import re
-from collections.abc import Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -32,6 +31,7 @@ from pydantic import BaseModel
 from audit.constants import ZERO_CELSIUS
 from audit.errors import InputError
 from audit.model.steps import Claim, step_claims
+from audit.review.resolution import written_text
 from audit.review.runner import StepRunner, with_value
 from audit.review.verdicts import format_value
 from audit.units import STANDARD_ATMOSPHERE, split_number
@@ -63,18 +63,6 @@ class Slip:
     changes: dict[str, float] = field(default_factory=dict)
     step_index: int | None = None
     step: Any = None
-
-
-def _written(document: Any, path: Sequence[Any]) -> Any:
-    node = document.data
-    for part in path:
-        if isinstance(node, dict) and part in node:
-            node = node[part]
-        elif isinstance(node, list) and isinstance(part, int) and 0 <= part < len(node):
-            node = node[part]
-        else:
-            return None
-    return node
 
 
 def _unit_of(text: Any, kind: str) -> str | None:
@@ -155,18 +143,18 @@ def stream_slips(runner: StepRunner, stream_id: str) -> list[Slip]:
     pair, _, _ = spec.inputs()
     slips = []
     if "P" in pair and spec.P is not None:
-        text = _written(document, ("streams", stream_id, "P"))
+        text = written_text(document, ("streams", stream_id, "P"))
         for P, sentence in _pressure_slips(spec.P, text, site, f"stream {stream_id}'s pressure"):
             slips.append(Slip(sentence, stream=stream_id, changes={"P": P}))
     if "T" in pair and spec.T is not None:
-        text = _written(document, ("streams", stream_id, "T"))
+        text = written_text(document, ("streams", stream_id, "T"))
         for T, sentence in _temperature_slips(spec.T, text, f"stream {stream_id}'s temperature"):
             slips.append(Slip(sentence, stream=stream_id, changes={"T": T}))
     if spec.relative_humidity is not None:
-        text = _written(document, ("streams", stream_id, "relative_humidity"))
+        text = written_text(document, ("streams", stream_id, "relative_humidity"))
         for phi, sentence in _humidity_slips(spec.relative_humidity, text, stream_id):
             slips.append(Slip(sentence, stream=stream_id, changes={"relative_humidity": phi}))
-    text = _written(document, ("streams", stream_id, "flow"))
+    text = written_text(document, ("streams", stream_id, "flow"))
     shown = f"'{text}'" if text is not None else "as written"
     for factor, size, words in _FLOW_SLIPS:
         value = spec.flow.value * factor
@@ -201,7 +189,7 @@ def step_slips(runner: StepRunner, index: int) -> list[Slip]:
     site = runner.balance.balance.site_pressure
     slips = []
     for claim in step_claims(step):
-        text = _written(document, ("steps", index, *claim.path))
+        text = written_text(document, ("steps", index, *claim.path))
         what = f"step {step.id}'s {claim.key}"
         shown = f"'{text}'" if text is not None else format_value(claim.value, claim.kind)
         if claim.kind in ("power", "energy"):
