@@ -1,20 +1,20 @@
 """Reading a balance: the file's bytes → YAML with positions → tables merged → validated model.
 
 The one place where the file edge (:mod:`audit.input`) meets the model with every step kind
-(:data:`audit.steps.BALANCE_MODEL`). The solver never reads files; it receives what this returns.
+(:func:`audit.steps.model_for`). The solver never reads files; it receives what this returns.
 """
 
 from __future__ import annotations
 
 from pathlib import Path
 
+from audit import steps as _steps
 from audit.input.document import Document, load_document, parse_document
 from audit.input.tables import TableFile, resolve
 from audit.model import balance as _balance
 from audit.model.balance import Balance
 from audit.model.ids import normalise_ids
 from audit.model.table_columns import stream_kinds
-from audit.steps import BALANCE_MODEL
 
 
 def resolve_tables(document: Document, allow_outside: bool = False) -> tuple[Document, list[TableFile]]:
@@ -29,10 +29,13 @@ def resolve_tables(document: Document, allow_outside: bool = False) -> tuple[Doc
 
 
 def validate_document(document: Document) -> Balance:
-    """Validate a read document into the balance model with every known step kind.
+    """Validate a read document into the balance model of the step kinds it names
+    (:func:`audit.steps.model_for`: the same verdict and messages as the model of every kind).
 
     Raises :class:`audit.errors.InputErrors` naming the file, line and field of every problem."""
-    return _balance.validate_document(document, BALANCE_MODEL)
+    steps = document.data.get("steps") if isinstance(document.data, dict) else None
+    kinds = [s.get("kind") for s in steps if isinstance(s, dict)] if isinstance(steps, list) else []
+    return _balance.validate_document(document, _steps.model_for(kinds))
 
 
 def load_balance(path: str | Path) -> tuple[Balance, Document]:
@@ -53,9 +56,9 @@ def parse_balance(text: str, file: str = "<text>") -> tuple[Balance, Document]:
 
 def json_schema() -> dict:
     """The JSON Schema of a balance file, as committed in ``schemas/``."""
-    return _balance.json_schema(BALANCE_MODEL)
+    return _balance.json_schema(_steps.BALANCE_MODEL)
 
 
 def schema_text() -> str:
     """:func:`json_schema` as the committed text."""
-    return _balance.schema_text(BALANCE_MODEL)
+    return _balance.schema_text(_steps.BALANCE_MODEL)

@@ -106,3 +106,52 @@ def test_expansions_per_fluid_give_the_fully_loaded_library_numbers():
     # reference: the property layer, which builds them for the fluids it opens only, must give
     # the same saturation and single-phase states bit for bit.
     assert _saturation_values("audit") == _saturation_values("whole")
+
+
+_DENSITY_TEMPERATURE = """
+import json, sys
+if sys.argv[1] == "audit":
+    from audit.properties.library import CP, new_state
+else:
+    import CoolProp.CoolProp as CP
+
+    def new_state(backend, name, saturation=True):
+        return CP.AbstractState(backend, name)
+
+values = []
+for fluid in ("Water", "CarbonDioxide", "Nitrogen", "Argon", "Methane", "Hydrogen", "Oxygen"):
+    state = new_state("HEOS", fluid, saturation=False)
+    values += [state.molar_mass(), state.Tmin(), state.Tmax(), state.pmax()]
+    T_far = state.T_critical() + 1.0  # audit.properties.mixtures.ABOVE_CRITICAL
+    for T in (160.0, 200.0, 298.15, 400.0, 700.12345, 1500.0):
+        if not state.Tmin() <= T <= state.Tmax():
+            continue
+        if T < T_far:
+            continue
+        for rho in (1e-3, 0.5):  # the ideal-gas limit the mixtures read, and a gas
+            state.update(CP.DmolarT_INPUTS, rho, T)
+            values += [state.hmolar_idealgas(), state.smolar_idealgas(), state.Bvirial()]
+            values += [state.hmolar(), state.smolar()]
+        for P in (1e3, 1e5, 1e6, 5e6, 3e7):
+            state.update(CP.PT_INPUTS, P, T)
+            values += [state.hmolar(), state.hmolar_idealgas(), state.fugacity_coefficient(0)]
+print(json.dumps(values))
+"""
+
+
+def _density_temperature_values(how: str) -> list[float]:
+    done = subprocess.run(
+        [sys.executable, "-c", _DENSITY_TEMPERATURE, how],
+        capture_output=True,
+        text=True,
+        env={**os.environ, "PYTHONPATH": os.pathsep.join(sys.path)},
+        check=True,
+    )
+    return json.loads(done.stdout.strip().splitlines()[-1])
+
+
+def test_states_without_expansions_give_the_fully_loaded_library_numbers():
+    # A state object made without a fluid's saturation expansions (a gas-mixture species) is asked
+    # for constants and updated, at (ρ, T) or (T, P), only 1 K or more above its critical
+    # temperature: every value must be that of CoolProp loaded whole, bit for bit.
+    assert _density_temperature_values("audit") == _density_temperature_values("whole")

@@ -12,7 +12,6 @@ import argparse
 import os
 import signal
 import sys
-import traceback
 from typing import Any, TextIO
 
 from audit.commands import (
@@ -154,6 +153,8 @@ def _run(args: argparse.Namespace) -> int:
         return EXIT_INTERRUPTED
     except Exception:  # a bug of ours: say so plainly, with a short trace for the report
         print("internal error in plant-audit (please report it with the input file):", file=sys.stderr)
+        import traceback  # only for a crash: not loaded on every start
+
         traceback.print_exc(limit=3, file=sys.stderr)
         return EXIT_INTERNAL
 

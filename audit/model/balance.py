@@ -133,7 +133,7 @@ class BalanceInfo(BaseModel):
 class Balance(BaseModel):
     """A whole balance file (the concrete model with the step kinds: :func:`balance_model`)."""
 
-    model_config = ConfigDict(extra="forbid", title="plant-audit balance")
+    model_config = ConfigDict(extra="forbid", title="plant-audit balance", defer_build=True)
     step_kinds: ClassVar[dict[str, type[StepBase]]] = {}
 
     balance: BalanceInfo

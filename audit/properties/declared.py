@@ -20,6 +20,7 @@ from audit.errors import StateError
 from audit.model.references import FORMULATION_FLUIDS, ExplicitReference, for_fluid
 from audit.properties.fluids import Fluid
 from audit.properties.formulations import citation
+from audit.properties.mixtures import IdealGasMixtures
 from audit.properties.state import State
 
 _NAMED = {
@@ -36,6 +37,7 @@ class DeclaredBases:
     formulation: object
     _fluids: dict[str, Fluid]
     _offsets: dict[str, tuple[float, float]]
+    _mixtures: IdealGasMixtures
 
     if TYPE_CHECKING:
 
@@ -95,6 +97,10 @@ class DeclaredBases:
         return b + (dh if pair == "Ph" else ds)
 
     def equations_of_state(self) -> dict[str, str]:
-        """Each pure fluid evaluated so far → its equation of state with its citation."""
-        names = sorted({info.name for info in self._fluids.values()})
-        return {name: citation(name, self.formulation_of(name)) for name in names}
+        """Each pure fluid evaluated so far, and each species of a gas mixture (its ideal-gas part
+        and real-gas corrections are its reference equation's) → its equation of state with its
+        citation."""
+        found = {info.name: self.formulation_of(info.name) for info in self._fluids.values()}
+        for name in self._mixtures.species_opened():
+            found.setdefault(name, "reference")
+        return {name: citation(name, found[name]) for name in sorted(found)}

@@ -68,11 +68,18 @@ def load() -> ModuleType:
     return module
 
 
-def new_state(backend: str, name: str) -> Any:
+def new_state(backend: str, name: str, saturation: bool = True) -> Any:
     """``CP.AbstractState(backend, name)``, the saturation expansions of each fluid of ``name``
-    (a fluid, or ``A&B`` with optional ``[fractions]``) added first when they are not yet."""
+    (a fluid, or ``A&B`` with optional ``[fractions]``) added first when they are not yet.
+
+    ``saturation=False`` leaves them out (when they are not added yet) for a state object that is
+    asked for constants and updated only well above the fluid's critical temperature, where no
+    saturation search is made (:meth:`audit.properties.mixtures.IdealGasMixtures._gas_state`):
+    its values are the same bit for bit (``tests/test_start_up.py``), and a fluid that is only a
+    gas in mixtures (nitrogen, argon, methane in a flue gas) never costs its expansions. (The
+    critical point itself is not such a constant: the expansions move it, by up to 0.02 K.)"""
     load()
-    if _selective:
+    if _selective and saturation:
         for fluid in name.split("&"):
             fluid = fluid.split("[")[0].strip()
             if fluid not in _expanded:
@@ -90,7 +97,8 @@ def _expand(fluid: str) -> None:
         try:
             text = CP.get_fluid_param_string(fluid, "JSON")
             canonical = CP.get_fluid_param_string(fluid, "name")
-        except ValueError:
+        except ValueError:  # not a fluid of the library (its state object will say so)
+            _expanded.add(fluid)
             return
         if canonical not in _expanded:
             overwrite = CP.get_config_bool(CP.OVERWRITE_FLUIDS)

@@ -165,4 +165,4 @@ class MixtureStates:
         data = lookup(name)
         if data is None:
             raise StateError(f"no formation data for '{name}'")
-        return self.fluid(data.fluid).molar_mass
+        return self._mixtures.molar_mass(data.fluid)

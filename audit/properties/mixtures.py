@@ -81,6 +81,9 @@ IDEAL_GAS_Z_LIMIT = 0.01
 relative energy tolerance; common practice, no published source)."""
 
 MODEL_NAME = "ideal-gas mixture"
+ABOVE_CRITICAL = 1.0
+"""K above a species' critical temperature from which its (T, P) flashes need no saturation search
+(no state there can condense)."""
 _RHO_LOW = 1.0e-3  # mol/m**3: far below any saturation density, where the ideal-gas part is read
 
 
@@ -126,6 +129,7 @@ class IdealGasMixtures:
 
     def __init__(self) -> None:
         self._states: dict[str, CP.AbstractState] = {}
+        self._gas_states: dict[str, CP.AbstractState] = {}
         self._anchor: dict[str, tuple[float, float, float]] = {}  # fluid -> (dh, ds, M)
         self._ideal: dict[tuple[str, float], tuple[float, float]] = {}
         self._virial: dict[tuple[str, float], float] = {}
@@ -173,7 +177,7 @@ class IdealGasMixtures:
         p_sat = self.saturation_pressure(fluid, T)
         if p_sat is not None and P >= p_sat:
             return 0.0, 1.0
-        state = self._state(fluid)
+        state = self._gas_state(fluid) if self._far_above_critical(fluid, T) else self._state(fluid)
         if T > state.Tmax() or P > state.pmax():
             return 0.0, 1.0
         try:
@@ -254,8 +258,11 @@ class IdealGasMixtures:
         key = (fluid, T)
         if key in self._psat:
             return self._psat[key]
-        state = self._state(fluid)
         value: float | None = None
+        if self._far_above_critical(fluid, T):
+            self._psat[key] = value
+            return value
+        state = self._state(fluid)
         if T < state.T_critical():
             try:
                 state.update(CP.QT_INPUTS, 0.0, max(T, state.Ttriple(), state.Tmin()))
@@ -266,13 +273,43 @@ class IdealGasMixtures:
         self._psat[key] = value
         return value
 
+    def species_opened(self) -> set[str]:
+        """The CoolProp names of the species evaluated so far."""
+        return set(self._states) | set(self._gas_states)
+
+    def molar_mass(self, fluid: str) -> float:
+        """M [kg/mol] of the species ``fluid`` (CoolProp name), without opening it for flashes."""
+        return float(self._gas_state(fluid).molar_mass())
+
     # -- internals ---------------------------------------------------------------------------------
     def _state(self, fluid: str) -> CP.AbstractState:
+        """The state object of ``fluid`` for flashes ((T, P), saturation)."""
         state = self._states.get(fluid)
         if state is None:
             state = new_state(BACKEND, fluid)
             self._states[fluid] = state
         return state
+
+    def _gas_state(self, fluid: str) -> CP.AbstractState:
+        """The state object of ``fluid`` for what no saturation search reaches: constants such as
+        the molar mass, and updates at least :data:`ABOVE_CRITICAL` above the critical temperature
+        ((ρ, T) for the ideal-gas part and the virial coefficient, (T, P) for the real gas); below
+        that, even a (ρ, T) update looks for the saturation line to name the phase. It is made
+        without the fluid's saturation expansions (:func:`audit.properties.library.new_state`),
+        so a species that is only ever a gas well above its critical point (nitrogen, argon,
+        methane in a flue gas) never costs them; every value is the fully loaded library's, bit
+        for bit (``tests/test_start_up.py``)."""
+        state = self._gas_states.get(fluid)
+        if state is None:
+            state = new_state(BACKEND, fluid, saturation=False)
+            self._gas_states[fluid] = state
+        return state
+
+    def _far_above_critical(self, fluid: str, T: float) -> bool:
+        """Whether T [K] lies :data:`ABOVE_CRITICAL` or more above the critical temperature of
+        ``fluid``, read from the equation of state itself: the saturation expansions move the
+        library's critical point by at most 0.02 K (oxygen), far less than the margin."""
+        return T >= self._gas_state(fluid).T_critical() + ABOVE_CRITICAL
 
     def _constants(self, fluid: str) -> tuple[float, float, float]:
         """(h shift [J/mol], s shift [J/(mol K)], M [kg/mol]) that put CoolProp's ideal-gas part of
@@ -285,14 +322,14 @@ class IdealGasMixtures:
         anchor = (
             data.enthalpy_of_formation - h_ig,
             data.standard_entropy - s_ig,
-            self._state(fluid).molar_mass(),
+            self._gas_state(fluid).molar_mass(),
         )
         self._anchor[fluid] = anchor
         return anchor
 
     def _coolprop_ideal(self, fluid: str, T: float) -> tuple[float, float]:
         """CoolProp's ideal-gas h [J/mol] and s at P° [J/(mol K)] of ``fluid`` at T [K]."""
-        state = self._state(fluid)
+        state = self._gas_state(fluid) if self._far_above_critical(fluid, T) else self._state(fluid)
         try:
             state.update(CP.DmolarT_INPUTS, _RHO_LOW, T)
             self.flash_count += 1

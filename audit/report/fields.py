@@ -18,7 +18,7 @@ from audit.model.balance import BalanceInfo, DeadState
 from audit.model.streams import StreamSpec
 from audit.model.tolerances import ToleranceOverrides, Tolerances
 from audit.model.uncertainty import BalanceUncertainty, Correlation
-from audit.steps import BALANCE_MODEL, REGISTRY
+from audit.steps import REGISTRY
 
 TITLE = "# Balance file fields"
 GENERATED = (
@@ -118,8 +118,8 @@ def reference_text() -> str:
         ),
         *_section("streams.<id>", StreamSpec, "Each entry of `streams:`, keyed by the stream id."),
     ]
-    for kind, model in sorted(BALANCE_MODEL.step_kinds.items()):
-        lines += _section(f"steps: kind `{kind}`", model, REGISTRY[kind].summary)
+    for kind, entry in sorted(REGISTRY.items()):
+        lines += _section(f"steps: kind `{kind}`", entry.model, entry.summary)
     lines += _section("steps: tolerances (per step)", ToleranceOverrides)
     lines += _section(
         "accepted (and `*.accepted.yaml`)",

@@ -17,7 +17,6 @@ operating system's reason; the command line exits with code 4 for it.
 from __future__ import annotations
 
 import os
-import tempfile
 from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from contextvars import ContextVar
@@ -82,6 +81,8 @@ def write_atomically(path: str | Path, write: Callable[[BinaryIO], None], what: 
     try:
         staging = _STAGING.get()
         token = f"{staging.token}." if staging is not None and staging.token else ""
+        import tempfile  # loaded when a report is written, not for a refused input
+
         handle, name = tempfile.mkstemp(
             prefix=f".{path.name}.{token}", suffix=TEMPORARY_SUFFIX, dir=path.parent
         )

@@ -15,8 +15,6 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 from typing import Any
 
-from audit.input.tables.package import check_package
-
 MAX_CELLS = 200_000
 """Largest sheet read [cells]; a stream table of a large site is a few thousand cells. Checked on
 the sheet's XML before the workbook is loaded (:mod:`audit.input.tables.package`)."""
@@ -146,6 +144,8 @@ def read_workbook(
 
     import openpyxl
     from openpyxl.utils.exceptions import InvalidFileException
+
+    from audit.input.tables.package import check_package  # zip and XML: for a workbook only
 
     declared = check_package(raw, display, MAX_CELLS, fail)
     hidden = {info.name: info.state for info in declared if info.state != "visible"}
