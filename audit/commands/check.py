@@ -152,13 +152,13 @@ def run(args: argparse.Namespace) -> int:
     assert result is not None
     if json_text is not None:
         sys.stdout.write(json_text)
-    from audit.report.console import colour_wanted, findings_summary, step_table, stream_table
-
     failed = result.fails(args.fail_on, marginal=args.fail_on_marginal)
     console = _console(json_text)
     if args.quiet:
         print(f"{escaped(args.file)}: {'FAIL' if failed else 'PASS'}", file=console)
-    else:
+    else:  # the tables (rich) are loaded only when they are printed
+        from audit.report.console import colour_wanted, findings_summary, step_table, stream_table
+
         colour = colour_wanted(console.isatty())
         if not args.brief:
             print(stream_table(result, colour=colour), file=console)
