@@ -182,7 +182,7 @@ class HeatClaim(BaseModel):
     """A heat flow written without signs: ``added`` to the step or ``removed`` from it, crossing
     the boundary at ``temperature`` (the source or sink temperature) when it is known."""
 
-    model_config = ConfigDict(extra="forbid")
+    model_config = ConfigDict(extra="forbid", defer_build=True)  # built with the step kinds
 
     added: Annotated[Power | None, ClaimField("duty", "removed")] = Field(
         None, description="heat received by the step"

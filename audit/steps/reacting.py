@@ -48,7 +48,7 @@ class ReactionClaim(BaseModel):
     """A reaction by stoichiometry and, optionally, its extent (omit it to infer it from the
     streams' compositions)."""
 
-    model_config = ConfigDict(extra="forbid")
+    model_config = ConfigDict(extra="forbid", defer_build=True)  # built with its step kind
 
     equation: str = Field(description="e.g. 'CH4 + 2 O2 -> CO2 + 2 H2O'")
     extent: MolarFlow | None = Field(

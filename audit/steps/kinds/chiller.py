@@ -46,7 +46,7 @@ from audit.wording import to_celsius
 
 
 class Side(BaseModel):
-    model_config = ConfigDict(extra="forbid")
+    model_config = ConfigDict(extra="forbid", defer_build=True)  # built with its step kind
 
     inlet: str
     outlet: str

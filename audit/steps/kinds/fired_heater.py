@@ -117,7 +117,7 @@ HeatingValue = Annotated[
 
 
 class HeatedSide(BaseModel):
-    model_config = ConfigDict(extra="forbid")
+    model_config = ConfigDict(extra="forbid", defer_build=True)  # built with its step kind
 
     inlet: str
     outlet: str

@@ -37,7 +37,7 @@ from audit.steps.potentials import exchange_at, govern_closed, isothermal_temper
 class BatchHeat(BaseModel):
     """A heat amount [J] written without signs."""
 
-    model_config = ConfigDict(extra="forbid")
+    model_config = ConfigDict(extra="forbid", defer_build=True)  # built with its step kind
 
     added: Annotated[Energy | None, ClaimField("energy", "removed")] = None
     removed: Annotated[Energy | None, ClaimField("energy", "added")] = None
