@@ -80,7 +80,8 @@ def step_function(
             else:
                 step = with_value(step, item.path, value)
         replaced = {sid: runner.stream(sid, change) for sid, change in changes.items()}
-        result, _ = runner.run(index, step, replaced)
+        # the margins read the step's balances and claim checks only: the kind may skip the rest
+        result, _ = runner.run(index, step, replaced, residuals_only=True)
         streams = {**runner.streams, **replaced}
         return [margin(result, streams) for margin in margins]
 

@@ -48,8 +48,9 @@ class StepContext:
     line: int | None = None
     findings: list[Finding] = field(default_factory=list)
     residuals_only: bool = False
-    """Set by the reconciliation, which needs a step's balances only: a kind may then skip
-    checks that compute nothing its balances use (a heat exchanger's approach profile)."""
+    """Set by the reconciliation and the review's propagation, which read a step's balances, its
+    isentropic efficiency, ``extra`` duties and claim checks (``StepResult.checks``) only: a kind
+    may then skip checks that compute none of these (a heat exchanger's approach profile)."""
 
     def stream(self, stream_id: str) -> StreamResult:
         return self.streams[stream_id]
