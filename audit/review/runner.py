@@ -8,7 +8,7 @@ kind's own ``evaluate``). :class:`StepRunner` holds what those calls need and co
 from __future__ import annotations
 
 from collections import defaultdict
-from collections.abc import Sequence
+from collections.abc import Iterator, Mapping, Sequence
 from dataclasses import replace
 from typing import Any
 
@@ -18,6 +18,38 @@ from audit.findings import Finding
 from audit.properties.engine import PropertyEngine
 from audit.results import StepResult, StreamResult
 from audit.solve import Solution, evaluate_step, evaluate_stream
+
+
+class Overlay(Mapping[str, StreamResult]):
+    """The streams of a balance with some replaced, read through without copying the balance's
+    (a re-evaluation replaces one or two streams of thousands)."""
+
+    __slots__ = ("base", "changed")
+
+    def __init__(self, base: Mapping[str, StreamResult], changed: Mapping[str, StreamResult]) -> None:
+        self.base = base
+        self.changed = changed
+
+    def __getitem__(self, stream_id: str) -> StreamResult:
+        found = self.changed.get(stream_id)
+        return self.base[stream_id] if found is None else found
+
+    def __contains__(self, stream_id: object) -> bool:
+        return stream_id in self.changed or stream_id in self.base
+
+    def __iter__(self) -> Iterator[str]:
+        yield from self.base
+        yield from (k for k in self.changed if k not in self.base)
+
+    def __len__(self) -> int:
+        return len(self.base) + sum(1 for k in self.changed if k not in self.base)
+
+
+def overlay(
+    base: Mapping[str, StreamResult], changed: Mapping[str, StreamResult] | None
+) -> Mapping[str, StreamResult]:
+    """``base`` with the streams of ``changed`` in place of its own (:class:`Overlay`)."""
+    return Overlay(base, changed) if changed else base
 
 
 class StepRunner:
@@ -54,7 +86,7 @@ class StepRunner:
         self,
         index: int,
         step: Any = None,
-        streams: dict[str, StreamResult] | None = None,
+        streams: Mapping[str, StreamResult] | None = None,
         residuals_only: bool = False,
     ) -> tuple[StepResult, list[Finding]]:
         """Evaluate step ``index`` (or a changed copy ``step``) with some streams replaced
@@ -64,7 +96,7 @@ class StepRunner:
             self.balance,
             self.document,
             self.engine,
-            {**self.streams, **(streams or {})},
+            overlay(self.streams, streams),
             index,
             step,
             residuals_only,
@@ -72,7 +104,7 @@ class StepRunner:
 
     def on_engine(
         self, index: int, engine: PropertyEngine
-    ) -> tuple[StepResult, dict[str, StreamResult]]:
+    ) -> tuple[StepResult, Mapping[str, StreamResult]]:
         """Step ``index`` with each of its streams re-flashed on ``engine`` (another formulation
         of a fluid): the step's result and the streams it was evaluated on."""
         inlets, outlets = self.balance.steps[index].stream_ids()
@@ -81,7 +113,7 @@ class StepRunner:
             for sid in dict.fromkeys([*inlets, *outlets])
         }
         self.runs += 1
-        everything = {**self.streams, **streams}
+        everything = overlay(self.streams, streams)
         result, _ = evaluate_step(self.balance, self.document, engine, everything, index)
         return result, everything
 

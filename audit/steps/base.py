@@ -10,7 +10,7 @@ kind's own checks.
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -40,7 +40,7 @@ class StepContext:
     """What a step's ``evaluate`` may use: the evaluated streams, the property engine, the dead
     state, its tolerances, and where its findings go."""
 
-    streams: dict[str, StreamResult]
+    streams: Mapping[str, StreamResult]
     engine: PropertyEngine
     T0: float
     P0: float
