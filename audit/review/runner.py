@@ -70,17 +70,24 @@ class StepRunner:
             for stream_id in dict.fromkeys([*inlets, *outlets]):
                 self.users[stream_id].append(i)
         self.runs = 0
+        self._kept: dict[tuple, StreamResult] = {}
 
     def stream(self, stream_id: str, changes: dict[str, Any]) -> StreamResult:
         """The stream re-evaluated with some of its inputs (T, P, quality, h, s, flow, a solution's
-        fraction basis) changed."""
+        fraction basis) changed; kept for the review, as the steps sharing a stream perturb it
+        alike (the same rounding of the same written value)."""
+        key = (stream_id, *changes.items())
+        kept = self._kept.get(key)
+        if kept is not None:
+            return kept
         spec = self.balance.streams[stream_id]
         update: dict[str, Any] = {}
         for name, value in changes.items():
             update[name] = replace(spec.flow, value=value) if name == "flow" else value
-        return evaluate_stream(
+        kept = self._kept[key] = evaluate_stream(
             stream_id, spec.model_copy(update=update), self.engine, self.streams[stream_id].line
         )
+        return kept
 
     def run(
         self,
