@@ -2,8 +2,8 @@
 :class:`audit.steps.base.StepContext`): every kind must then give the same balances, isentropic
 efficiency, ``extra`` duties and claim checks (``StepResult.checks``) as its full evaluation, so
 that a rounding bound or an uncertainty never depends on which checks a kind skipped. The steps
-are those of the four sample plants (fourteen kinds), on their own states and with one stream
-re-flashed at a changed temperature (as the review's re-evaluations do).
+are those of the four sample plants (fourteen kinds) and a fuel cell, on their own states and with
+one stream re-flashed at a changed temperature (as the review's re-evaluations do).
 """
 
 from __future__ import annotations
@@ -13,11 +13,21 @@ from pathlib import Path
 
 import pytest
 
-from audit.reading import load_balance
+from audit.reading import load_balance, parse_balance
 from audit.review.runner import StepRunner
 from audit.solve import solve
 
 SAMPLES = sorted((Path(__file__).resolve().parent.parent / "sample_plant").glob("*.yaml"))
+FUEL_CELL = """
+balance: {name: cell}
+streams:
+  H: {fluid: Hydrogen, T: 25 degC, P: 1 bar, flow: 0.518 mol/s}
+  O: {fluid: Oxygen, T: 25 degC, P: 1 bar, flow: 0.259 mol/s}
+  W: {fluid: Water, T: 25 degC, P: 1 bar, flow: 0.518 mol/s, phase: liquid}
+steps:
+  - {id: FC, kind: fuel_cell, inlets: [H, O], outlets: [W], cells: 100, cell_voltage: 0.70 V,
+     current: 1000 A, heat: [{removed: 78.2 kW, temperature: 25 degC}]}
+"""
 
 
 def _read(result):
@@ -26,9 +36,9 @@ def _read(result):
     return asdict(result.balance), result.isentropic_efficiency, duties, dict(result.checks)
 
 
-@pytest.mark.parametrize("path", SAMPLES, ids=[p.stem for p in SAMPLES])
+@pytest.mark.parametrize("path", [*SAMPLES, None], ids=[p.stem for p in SAMPLES] + ["fuel cell"])
 def test_residuals_only_reads_what_the_full_evaluation_reads(path):
-    balance, document = load_balance(path)
+    balance, document = load_balance(path) if path else parse_balance(FUEL_CELL, "cell.yaml")
     runner = StepRunner(solve(balance, document))
     for index, step in enumerate(balance.steps):
         full, _ = runner.run(index)
