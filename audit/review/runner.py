@@ -19,6 +19,9 @@ from audit.properties.engine import PropertyEngine
 from audit.results import StepResult, StreamResult
 from audit.solve import Solution, evaluate_step, evaluate_stream
 
+KEPT_STREAMS = 20_000
+"""Most re-flashed streams a :class:`StepRunner` keeps (then it starts again)."""
+
 
 class Overlay(Mapping[str, StreamResult]):
     """The streams of a balance with some replaced, read through without copying the balance's
@@ -84,6 +87,8 @@ class StepRunner:
         update: dict[str, Any] = {}
         for name, value in changes.items():
             update[name] = replace(spec.flow, value=value) if name == "flow" else value
+        if len(self._kept) >= KEPT_STREAMS:  # a long reconciliation: memory stays bounded
+            self._kept.clear()
         kept = self._kept[key] = evaluate_stream(
             stream_id, spec.model_copy(update=update), self.engine, self.streams[stream_id].line
         )
