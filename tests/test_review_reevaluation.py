@@ -14,7 +14,7 @@ from pathlib import Path
 import pytest
 
 from audit.reading import load_balance, parse_balance
-from audit.review.runner import StepRunner
+from audit.review.runner import StepRunner, overlay
 from audit.solve import solve
 
 SAMPLES = sorted((Path(__file__).resolve().parent.parent / "sample_plant").glob("*.yaml"))
@@ -52,3 +52,25 @@ def test_residuals_only_reads_what_the_full_evaluation_reads(path):
             full, _ = runner.run(index, None, moved)
             lean, _ = runner.run(index, None, moved, residuals_only=True)
             assert _read(lean) == _read(full), step.id
+
+
+def test_an_overlay_reads_the_replaced_streams_first_and_copies_nothing():
+    base = {"A": "a", "B": "b"}
+    view = overlay(base, {"B": "b2", "C": "c"})
+    assert (view["A"], view["B"], view["C"]) == ("a", "b2", "c")
+    assert "C" in view and "D" not in view
+    assert list(view) == ["A", "B", "C"] and len(view) == 3
+    assert dict(view) == {"A": "a", "B": "b2", "C": "c"}
+    assert overlay(base, {}) is base and overlay(base, None) is base
+    with pytest.raises(KeyError):
+        view["D"]
+
+
+def test_a_perturbed_stream_is_flashed_once_per_review():
+    balance, document = load_balance(SAMPLES[0])
+    runner = StepRunner(solve(balance, document))
+    stream_id = next(s for s, spec in balance.streams.items() if spec.T is not None)
+    T = balance.streams[stream_id].T + 0.05
+    first = runner.stream(stream_id, {"T": T})
+    assert runner.stream(stream_id, {"T": T}) is first
+    assert first.T == pytest.approx(T)
