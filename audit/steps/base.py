@@ -137,6 +137,7 @@ def finish_flow_step(
     balance.energy_scale = max(balance.energy_scale, energy_scale_floor)
     basis, classical = govern_flow(balance, T_iso)
     conservative = any(q.conservative for q in heat_flows)
+    inlet_mass = sum(s.mass_flow for s in inlets)
     if not ctx.residuals_only:  # else only the balance is read: its law findings are not wanted
         allowance = (
             None
@@ -156,7 +157,7 @@ def finish_flow_step(
             tol,
             ctx.T0,
             batch=False,
-            inlet_mass=sum(s.mass_flow for s in inlets),
+            inlet_mass=inlet_mass,
             conservative_note=CONSERVATIVE_NOTE if conservative else "",
             check_energy=check_energy,
             energy_finding=energy_finding,
