@@ -18,6 +18,7 @@ from __future__ import annotations
 import math
 import platform
 import time
+from collections.abc import Mapping
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -155,7 +156,7 @@ def evaluate_step(
     balance: Balance,
     document: Document,
     engine: PropertyEngine,
-    streams: dict[str, StreamResult],
+    streams: Mapping[str, StreamResult],
     index: int,
     step: Any = None,
     residuals_only: bool = False,

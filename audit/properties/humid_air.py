@@ -66,7 +66,8 @@ References
 from __future__ import annotations
 
 import math
-from typing import TYPE_CHECKING
+from collections.abc import Callable
+from typing import TYPE_CHECKING, TypeVar, cast
 
 from audit.constants import GAS_CONSTANT
 from audit.errors import StateError
@@ -88,6 +89,7 @@ ENHANCEMENT = (1.00062, 3.14e-8, 5.6e-7)
 """CIPM-2007 enhancement factor f = α + β P + γ t²: α [-], β [1/Pa], γ [1/K²] [3]."""
 T_LOWEST = 273.16
 """The lowest humid-air temperature [K]: the triple point of water (no saturation over ice)."""
+_Kept = TypeVar("_Kept")
 SATURATION_ALLOWANCE = 2e-3
 """Relative humidity up to 1 + this is read as saturated (the rounding of a written humidity)."""
 
@@ -110,14 +112,26 @@ class HumidAirStates:
         def saturation_temperature(self, fluid: str, P: float) -> float | None: ...
 
     # -- water in the air -------------------------------------------------------------------------
+    def _kept(self, key: tuple, make: Callable[[], _Kept]) -> _Kept:
+        """``make()``, computed once per engine under ``key`` (in the engine's state cache)."""
+        cached = self._cache.get(key)
+        if cached is None:
+            cached = make()  # type: ignore[assignment]
+            self._cache[key] = cached  # type: ignore[assignment]
+        return cast(_Kept, cached)
+
     def _dry(self) -> tuple[mixtures.Component, ...]:
-        return self._mixtures.components(DRY_AIR)
+        """Dry air's species (composed once: every humid-air call reads them)."""
+        return self._kept(("humid dry air",), lambda: self._mixtures.components(DRY_AIR))
 
     def _molar_masses(self) -> tuple[float, float]:
         """(M of dry air, M of water) [kg/mol]."""
-        dry = self._dry()
-        water = self._mixtures.components({"H2O": 1.0})[0]
-        return math.fsum(c.x * c.molar_mass for c in dry), water.molar_mass
+
+        def make() -> tuple[float, float]:
+            water = self._mixtures.components({"H2O": 1.0})[0]
+            return math.fsum(c.x * c.molar_mass for c in self._dry()), water.molar_mass
+
+        return self._kept(("humid molar masses",), make)
 
     def enhancement_factor(self, T: float, P: float) -> float:
         """The CIPM-2007 enhancement factor f(T, P) [-] [3]: x_ws = f p_sat(T) / P."""
@@ -202,7 +216,11 @@ class HumidAirStates:
     def wet_bulb_temperature(self, T: float, P: float, W: float) -> float:
         """The thermodynamic wet-bulb temperature T* [K] of air (T [K], P [Pa], W [kg/kg]): the
         adiabatic saturation temperature, from H(T, W) + (W_s(T*) − W) h_liq(T*) = H(T*, W_s(T*))
-        [4], by regula falsi (Illinois) between 0.01 °C and T."""
+        [4], by regula falsi (Illinois) between 0.01 °C and T. Kept per engine by (T, P, W): the
+        review re-evaluates a step many times with the same inlet air."""
+        return self._kept(("humid wet bulb", T, P, W), lambda: self._wet_bulb(T, P, W))
+
+    def _wet_bulb(self, T: float, P: float, W: float) -> float:
         H = self.enthalpy_per_dry_air(T, P, W)
 
         def residual(T_star: float) -> float:

@@ -44,7 +44,7 @@ from __future__ import annotations
 
 import math
 from collections import defaultdict
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field, replace
 
 from audit.errors import InputError
@@ -52,7 +52,7 @@ from audit.findings import ERROR, MARGINAL, VIOLATED, Finding
 from audit.results import StepResult, StreamResult
 from audit.review.margins import LAW_FINDINGS, Margin, margin_function
 from audit.review.reference_slips import FluidSlip, fraction_basis_slips, reference_slips
-from audit.review.runner import StepRunner
+from audit.review.runner import StepRunner, overlay
 from audit.review.slips import Slip, step_slips, stream_slips
 
 MAX_SEARCHED_STREAMS = 64
@@ -117,7 +117,7 @@ def _failing(
 
 
 def _closes(
-    state: _Failing, result: StepResult, new: list[Finding], streams: dict[str, StreamResult]
+    state: _Failing, result: StepResult, new: list[Finding], streams: Mapping[str, StreamResult]
 ) -> float | None:
     """The largest remaining law margin over its allowance when the slip closes the step, else
     None."""
@@ -251,7 +251,7 @@ def _judge_stream_slip(
     except InputError:
         return
     replaced = {str(slip.stream): stream}
-    streams = {**runner.streams, **replaced}
+    streams = overlay(runner.streams, replaced)
     closed: list[tuple[int, float]] = []
     for index in runner.users[str(slip.stream)]:
         try:
@@ -283,7 +283,7 @@ def _judge_fluid_slip(
         replaced = {sid: runner.stream(sid, changes) for sid, changes in slip.changes.items()}
     except InputError:
         return None
-    streams = {**runner.streams, **replaced}
+    streams = overlay(runner.streams, replaced)
     users = sorted({i for sid in replaced for i in runner.users[sid]})
     closed: list[tuple[int, float]] = []
     left = 0

@@ -41,7 +41,7 @@ References
 
 from __future__ import annotations
 
-from collections.abc import Callable, Iterator
+from collections.abc import Callable, Iterator, Mapping
 from dataclasses import dataclass
 
 from audit.errors import StateError
@@ -116,14 +116,14 @@ def _laws(runner: StepRunner, result: StepResult, fluids: set[str]) -> list[_Law
     nominal: dict[tuple, float] = {}
     sign = 1.0 if result.energy_residual - reference_shift(result, streams, nominal)[0] >= 0 else -1.0
 
-    def first_law(r: StepResult, s: dict[str, StreamResult]) -> float:
+    def first_law(r: StepResult, s: Mapping[str, StreamResult]) -> float:
         return sign * (r.energy_residual - reference_shift(r, s, nominal)[0])
 
-    def work(r: StepResult, s: dict[str, StreamResult]) -> float:
+    def work(r: StepResult, s: Mapping[str, StreamResult]) -> float:
         dH, dS = reference_shift(r, s, nominal)
         return r.W - r.W_rev + dH - T0 * dS
 
-    def entropy(r: StepResult, s: dict[str, StreamResult]) -> float:
+    def entropy(r: StepResult, s: Mapping[str, StreamResult]) -> float:
         return -(r.S_gen + reference_shift(r, s, nominal)[1])
 
     return [

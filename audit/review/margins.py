@@ -22,7 +22,7 @@ References
 from __future__ import annotations
 
 import math
-from collections.abc import Callable
+from collections.abc import Callable, Mapping
 
 from audit.findings import Finding
 from audit.properties.humid_air import HUMID_AIR
@@ -53,7 +53,7 @@ the signed value on the step result (``StepResult.checks``)."""
 SHIFTED_FINDINGS = (*ENERGY_FINDINGS, *WORK_FINDINGS, "negative-entropy-generation")
 """Findings whose margin is read with the mass-conserving reference shift."""
 
-Margin = Callable[[StepResult, dict[str, StreamResult]], float]
+Margin = Callable[[StepResult, Mapping[str, StreamResult]], float]
 
 
 def paired(result: StepResult) -> bool:
@@ -64,7 +64,7 @@ def paired(result: StepResult) -> bool:
 
 
 def flow_groups(
-    result: StepResult, streams: dict[str, StreamResult]
+    result: StepResult, streams: Mapping[str, StreamResult]
 ) -> list[tuple[tuple[str, ...], tuple[str, ...]]]:
     """The parts of a step that conserve mass on their own, as (inlets, outlets) stream ids: the
     step stage's own grouping (:func:`audit.steps.allowances.flow_groups`), so that a margin read
@@ -77,7 +77,7 @@ def flow_groups(
     return [(tuple(s.id for s in a), tuple(s.id for s in b)) for a, b in groups]
 
 
-def exchanges_water(result: StepResult, streams: dict[str, StreamResult]) -> bool:
+def exchanges_water(result: StepResult, streams: Mapping[str, StreamResult]) -> bool:
     """Whether a mass-conserving group of the step holds humid air with streams of another fluid
     (a cooling tower's air with its water). Such a group's reference is the mean outlet enthalpy
     of air and water together, on the formation basis: a change of one written flow moves it by
@@ -92,14 +92,14 @@ def exchanges_water(result: StepResult, streams: dict[str, StreamResult]) -> boo
 
 
 def _group_residual(
-    group: tuple[tuple[str, ...], tuple[str, ...]], streams: dict[str, StreamResult]
+    group: tuple[tuple[str, ...], tuple[str, ...]], streams: Mapping[str, StreamResult]
 ) -> float:
     ins, outs = group
     return sum(streams[i].mass_flow for i in ins) - sum(streams[o].mass_flow for o in outs)
 
 
 def reference_shift(
-    result: StepResult, streams: dict[str, StreamResult], nominal: dict[tuple, float]
+    result: StepResult, streams: Mapping[str, StreamResult], nominal: dict[tuple, float]
 ) -> tuple[float, float]:
     """(Σ h_ref Δṁ [W], Σ s_ref Δṁ [W/K]) over the step's mass-conserving groups, Δṁ being the
     change of a group's mass residual from its ``nominal`` value [kg/s] and h_ref, s_ref the
@@ -128,7 +128,7 @@ def reference_shift(
 
 
 def margin_function(
-    finding: Finding, result: StepResult, streams: dict[str, StreamResult], T0: float
+    finding: Finding, result: StepResult, streams: Mapping[str, StreamResult], T0: float
 ) -> Margin | None:
     """The finding's margin as a function of a re-evaluated step (positive = violation), or None
     when the finding is not a law finding this module knows how to propagate (nor an energy,
@@ -151,7 +151,7 @@ def margin_function(
         candidates.append(lambda r, s: sign * (r.energy_residual - reference_shift(r, s, nominal)[0]))
     elif name in WORK_FINDINGS:
 
-        def work(r: StepResult, s: dict[str, StreamResult]) -> float:
+        def work(r: StepResult, s: Mapping[str, StreamResult]) -> float:
             dH, dS = reference_shift(r, s, nominal)
             return r.W - r.W_rev + dH - T0 * dS
 
@@ -186,7 +186,7 @@ def margin_function(
 def _fluid_residual(fluid: str, sign: float) -> Margin:
     """The mass residual of one fluid [kg/s], signed as the finding's."""
 
-    def margin(r: StepResult, s: dict[str, StreamResult]) -> float:
+    def margin(r: StepResult, s: Mapping[str, StreamResult]) -> float:
         return sign * r.mass_residual.get(fluid, 0.0)
 
     return margin
@@ -195,7 +195,7 @@ def _fluid_residual(fluid: str, sign: float) -> Margin:
 def _pair_residual(i: int, sign: float) -> Margin:
     """The flow of inlet ``i`` minus that of outlet ``i`` [kg/s], signed as the finding's."""
 
-    def margin(r: StepResult, s: dict[str, StreamResult]) -> float:
+    def margin(r: StepResult, s: Mapping[str, StreamResult]) -> float:
         return sign * (s[r.inlets[i]].mass_flow - s[r.outlets[i]].mass_flow)
 
     return margin
@@ -209,7 +209,7 @@ def _claim_margin(finding: Finding) -> Margin:
     if name in ("duty-mismatch", "power-mismatch") and None not in (finding.bound, finding.claimed):
         sign = 1.0 if (finding.bound or 0.0) - (finding.claimed or 0.0) >= 0 else -1.0
 
-    def margin(r: StepResult, s: dict[str, StreamResult]) -> float:
+    def margin(r: StepResult, s: Mapping[str, StreamResult]) -> float:
         return sign * r.checks.get(name, math.nan)
 
     return margin

@@ -44,7 +44,7 @@ from audit.results import StepResult
 from audit.review.inputs import Input, step_inputs
 from audit.review.margins import Margin, margin_function
 from audit.review.propagation import MONTE_CARLO_SEED, monte_carlo, propagate
-from audit.review.runner import StepRunner, with_value
+from audit.review.runner import StepRunner, overlay, with_value
 from audit.review.verdicts import with_verdict
 
 MAX_PROPAGATED_INPUTS = 300
@@ -80,8 +80,9 @@ def step_function(
             else:
                 step = with_value(step, item.path, value)
         replaced = {sid: runner.stream(sid, change) for sid, change in changes.items()}
-        result, _ = runner.run(index, step, replaced)
-        streams = {**runner.streams, **replaced}
+        # the margins read the step's balances and claim checks only: the kind may skip the rest
+        result, _ = runner.run(index, step, replaced, residuals_only=True)
+        streams = overlay(runner.streams, replaced)
         return [margin(result, streams) for margin in margins]
 
     return f

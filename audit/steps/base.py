@@ -10,7 +10,7 @@ kind's own checks.
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -40,7 +40,7 @@ class StepContext:
     """What a step's ``evaluate`` may use: the evaluated streams, the property engine, the dead
     state, its tolerances, and where its findings go."""
 
-    streams: dict[str, StreamResult]
+    streams: Mapping[str, StreamResult]
     engine: PropertyEngine
     T0: float
     P0: float
@@ -48,8 +48,10 @@ class StepContext:
     line: int | None = None
     findings: list[Finding] = field(default_factory=list)
     residuals_only: bool = False
-    """Set by the reconciliation, which needs a step's balances only: a kind may then skip
-    checks that compute nothing its balances use (a heat exchanger's approach profile)."""
+    """Set by the reconciliation and the review's propagation, which read a step's balances, its
+    isentropic efficiency, ``extra`` duties and claim checks (``StepResult.checks``) only, never
+    its findings: the law findings are then not raised (:func:`finish_flow_step`), and a kind may
+    skip checks that compute none of these (a heat exchanger's approach profile)."""
 
     def stream(self, stream_id: str) -> StreamResult:
         return self.streams[stream_id]
@@ -136,33 +138,34 @@ def finish_flow_step(
     basis, classical = govern_flow(balance, T_iso)
     conservative = any(q.conservative for q in heat_flows)
     inlet_mass = sum(s.mass_flow for s in inlets)
-    allowance = (
-        None
-        if declared_rule(tol, batch=False)
-        else allowances(
-            [(s, s.mass_flow) for s in (*inlets, *outlets)],
-            heat_flows,
-            W,
-            balance.W_rev,
-            ctx.T0,
-            ctx.engine,
+    if not ctx.residuals_only:  # else only the balance is read: its law findings are not wanted
+        allowance = (
+            None
+            if declared_rule(tol, batch=False)
+            else allowances(
+                [(s, s.mass_flow) for s in (*inlets, *outlets)],
+                heat_flows,
+                W,
+                balance.W_rev,
+                ctx.T0,
+                ctx.engine,
+            )
         )
-    )
-    for finding in law_findings(
-        step.id,
-        balance,
-        tol,
-        ctx.T0,
-        batch=False,
-        inlet_mass=inlet_mass,
-        conservative_note=CONSERVATIVE_NOTE if conservative else "",
-        check_energy=check_energy,
-        energy_finding=energy_finding,
-        check_mass=check_mass,
-        allowance=allowance,
-        shift=reference_shift(inlets, outlets, paired),
-    ):
-        ctx.add(finding)
+        for finding in law_findings(
+            step.id,
+            balance,
+            tol,
+            ctx.T0,
+            batch=False,
+            inlet_mass=inlet_mass,
+            conservative_note=CONSERVATIVE_NOTE if conservative else "",
+            check_energy=check_energy,
+            energy_finding=energy_finding,
+            check_mass=check_mass,
+            allowance=allowance,
+            shift=reference_shift(inlets, outlets, paired),
+        ):
+            ctx.add(finding)
     result = StepResult(
         id=step.id,
         kind=kind,

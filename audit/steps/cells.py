@@ -215,7 +215,8 @@ def evaluate_cell(step: CellStep, ctx: StepContext, kind: str) -> StepResult:
 
     E_rev = reversible_voltage(-sign * reported.dG, n)
     E_tn = thermoneutral_voltage(-sign * reported.dH, n)
-    standard = properties_at(ctx, [reaction], T_rep, P_STANDARD)[0]
+    # E_rev with every species at 1 bar is reported only (not read with the balances)
+    standard = None if ctx.residuals_only else properties_at(ctx, [reaction], T_rep, P_STANDARD)[0]
     charge = step.current * step.cells if step.current is not None else None
     efficiency = None
     if charge is not None and xi > 0.0:
@@ -234,7 +235,7 @@ def evaluate_cell(step: CellStep, ctx: StepContext, kind: str) -> StepResult:
             "fugacity_coefficients": dict(reported.fugacity or {}),
             "E_rev": E_rev,
             "E_tn": E_tn,
-            "E_rev_standard": reversible_voltage(-sign * standard.dG, n),
+            "E_rev_standard": None if standard is None else reversible_voltage(-sign * standard.dG, n),
             "E_rev_checked": E_rev,
             "E_tn_checked": E_tn,
             "gibbs_work": sign * xi * reported.dG,

@@ -223,21 +223,54 @@ def fit_extents(
     ``change`` is outlet minus inlet flow per species [mol/s]. Claimed extents are taken as given;
     the others are the least-squares solution of Σ_k ν_ik ξ_k = Δn_i over all species. Returns the
     extents and the residual Δn_i − Σ_k ν_ik ξ_k per species [mol/s].
-    """
-    import numpy as np  # loaded only when needed: it costs a start-up
 
+    One free extent (a step's usual single reaction) is the orthogonal projection
+    ξ = Σ_i ν_i b_i / Σ_i ν_i² of the unexplained change b on its column ν [1, §5.3], summed
+    exactly (``math.fsum``); several are solved by ``numpy.linalg.lstsq`` (SVD, the minimum-norm
+    solution when the reactions are dependent), loaded only then.
+
+    References
+    ----------
+    .. [1] G. H. Golub, C. F. Van Loan, *Matrix Computations*, 4th ed., Johns Hopkins University
+       Press, 2013, §5.3 (the full-rank least-squares problem).
+    """
     formulas = sorted(set(change) | {f for r in reactions for f in r.nu()})
-    nu = np.array([[r.nu().get(f, 0.0) for r in reactions] for f in formulas])
-    target = np.array([change.get(f, 0.0) for f in formulas])
+    nus = [r.nu() for r in reactions]
+    nu = [[n.get(f, 0.0) for n in nus] for f in formulas]
+    target = [change.get(f, 0.0) for f in formulas]
     extents = [0.0 if c is None else float(c) for c in claimed]
     free = [k for k, c in enumerate(claimed) if c is None]
-    fixed = target - nu @ np.array(extents)
-    if free:
-        solution, *_ = np.linalg.lstsq(nu[:, free], fixed, rcond=None)
-        for k, value in zip(free, solution, strict=True):
-            extents[k] = float(value)
-    residual = target - nu @ np.array(extents)
-    return extents, {f: float(r) for f, r in zip(formulas, residual, strict=True)}
+    if len(free) == 1:
+        (k,) = free
+        fixed = [t - _dot(row, extents) for t, row in zip(target, nu, strict=True)]
+        norm = math.fsum(row[k] * row[k] for row in nu)
+        extents[k] = (
+            math.fsum(row[k] * b for row, b in zip(nu, fixed, strict=True)) / norm if norm else 0.0
+        )
+    elif free:
+        extents = _fitted(nu, target, extents, free)
+    residual = [t - _dot(row, extents) for t, row in zip(target, nu, strict=True)]
+    return extents, dict(zip(formulas, residual, strict=True))
+
+
+def _dot(row: Sequence[float], extents: Sequence[float]) -> float:
+    """Σ_k ν_k ξ_k [mol/s] of one species."""
+    return sum(n * x for n, x in zip(row, extents, strict=True))
+
+
+def _fitted(
+    nu: list[list[float]], target: list[float], extents: list[float], free: list[int]
+) -> list[float]:
+    """The extents with the ``free`` ones fitted by least squares (several free: SVD)."""
+    import numpy as np  # loaded only when needed: it costs a start-up
+
+    matrix = np.array(nu)
+    fixed = np.array(target) - matrix @ np.array(extents)
+    solution, *_ = np.linalg.lstsq(matrix[:, free], fixed, rcond=None)
+    out = list(extents)
+    for k, value in zip(free, solution, strict=True):
+        out[k] = float(value)
+    return out
 
 
 # -- reaction properties ------------------------------------------------------------------------
