@@ -11,7 +11,7 @@ import sys
 import pytest
 from conftest import ROOT, SAMPLE
 
-HEAVY = ("CoolProp", "pandas", "pint", "scipy")
+HEAVY = ("CoolProp", "pandas", "pint", "scipy", "numpy", "rich")
 
 _PROBE = """
 import runpy, sys
@@ -47,6 +47,16 @@ def _loaded(args: list[str], tmp_path) -> set[str]:
 )
 def test_answers_without_properties_load_no_heavy_library(args, tmp_path):
     assert _loaded(args, tmp_path) == set()
+
+
+def test_a_quiet_check_loads_the_property_library_only(tmp_path):
+    # The sample site (reactions, electrolysers, humid air, liquids, measured readings): a quiet
+    # check needs CoolProp and nothing else heavy (no numpy for one reaction's extent, no console
+    # tables, no frames).
+    assert _loaded(
+        ["check", str(SAMPLE / "quillon-bay-seeded.yaml"), "-q", "--json", str(tmp_path / "x.json")],
+        tmp_path,
+    ) == {"CoolProp"}
 
 
 def test_superancillary_switch_keeps_the_notice_out_of_the_output(tmp_path):
