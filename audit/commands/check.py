@@ -183,8 +183,6 @@ def _console(json_text: str | None) -> TextIO:
 
 def planned_outputs(args: argparse.Namespace) -> list[Output]:
     """Every file ``check`` will write, each file of the ``--csv`` folder too."""
-    from audit.report.columns import FINDINGS, STEPS, STREAMS
-
     outputs = []
     if args.output:
         outputs.append(Output(args.output, "the findings workbook"))
@@ -194,6 +192,8 @@ def planned_outputs(args: argparse.Namespace) -> list[Output]:
         if is_standard_output(args.csv):
             raise InputError("--csv writes a folder of files; '-' (the standard output) is not one")
         outputs.append(Output(args.csv, "the CSV folder", folder=True))
+        from audit.report.columns import FINDINGS, STEPS, STREAMS  # the tables' names
+
         for table in (FINDINGS, STEPS, STREAMS):
             outputs.append(Output(args.csv / f"{table.name}.csv", f"the CSV table of {table.name}"))
     if args.junit:
