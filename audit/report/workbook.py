@@ -48,8 +48,9 @@ workbook keeps to:
   on Data ▸ Calculate ▸ Recalculate Hard or when set to recalculate on load;
 * it is written in two passes by the same sheet code (:mod:`audit.report.workbook_cells`): one
   measures column widths, row heights and each column's common style, the other writes the cells
-  with XlsxWriter in constant-memory mode, one row at a time, styles set per column (memory flat
-  in the number of rows).
+  into XlsxWriter's constant-memory worksheets, one row at a time as XML of our own
+  (:mod:`audit.report.workbook_rows`, the same bytes as XlsxWriter's cell writer), styles set per
+  column (memory flat in the number of rows).
 """
 
 from __future__ import annotations
@@ -133,6 +134,7 @@ def build(
         module.write(book)
     result = book.result
     for title, sheet in book.sheets.items():
+        sheet.finish()
         # Landscape A4, one page wide, the header row on every page (audit.report.printing).
         # (the Exchangers sheet's blocks below its table have headers of their own)
         header_row = sheet.header_row if sheet.header_titles and title != EXCHANGERS else 0

@@ -3,10 +3,11 @@ and columns and rows sized to their content. Used by :mod:`audit.report.workbook
 
 A sheet is written twice by the same sheet code. The first pass (``Sheet(title)``, no worksheet)
 only measures: how wide each column must be, which rows wrap and how tall they get, and which style
-most cells of each column share. The second pass writes the cells with XlsxWriter in its
-constant-memory mode (each row goes to disk when the next one starts, so memory stays flat in the
-number of rows): each column gets its common style once (:meth:`Sheet.layout_columns`), and a cell
-carries a style of its own only where it differs (a fill, a link, a bold id, a vessel's unit).
+most cells of each column share. The second pass writes the cells into an XlsxWriter workbook in
+its constant-memory mode, a whole row at a time as XML (:mod:`audit.report.workbook_rows`: each row
+goes to disk when the next one starts, so memory stays flat in the number of rows): each column
+gets its common style once (:meth:`Sheet.layout_columns`), and a cell carries a style of its own
+only where it differs (a fill, a link, a bold id, a vessel's unit).
 """
 
 from __future__ import annotations
@@ -20,6 +21,7 @@ from typing import Any, NamedTuple
 
 from audit.findings import ERROR, INFO, WARNING
 from audit.report.machine import FORMULA_TRIGGERS
+from audit.report.workbook_rows import BLANK, BOOLEAN, FORMULA, NUMBER, STRING, Rows
 from audit.wording import finite_or_none
 
 
@@ -139,6 +141,7 @@ class Sheet:
         self.extremes: dict[tuple[int, str], list[float]] = {}
         self.links = 0
         self._row = 0
+        self.rows = Rows(ws) if ws is not None else None
 
     # -- cells -------------------------------------------------------------------------------------
     def put(
@@ -163,46 +166,34 @@ class Sheet:
         if link is not None:
             font = LINK_FONT
         style = (None if is_text else fmt, fill, font, wrap, align, quote, False)
-        if self.ws is None:
+        rows = self.rows
+        if rows is None:
             self._measure_cell(row, col, value, fmt, style, wrap, width, merge_to)
             return
+        r, c = row - 1, col - 1
         if row != self._row:
             self._row = row
             height = self.layout.heights.get(row)
             if height is not None:
-                self.ws.set_row(row - 1, height)
+                rows.height(r, height)
         cell_format = None if style == self.layout.column_style.get(col) else self.formats.get(style)
-        r, c = row - 1, col - 1
         if type(value) is float and link is None and merge_to is None:  # the usual cell
-            if math.isfinite(value):
-                self.ws.write_number(r, c, value, cell_format)
+            if value - value == 0:  # finite
+                rows.cell(r, c, NUMBER, value, cell_format)
             else:
-                self.ws.write_blank(r, c, None, cell_format or self.formats.get(style))
+                rows.cell(r, c, BLANK, None, cell_format or self.formats.get(style))
             return
         if merge_to is not None:
-            self.ws.merge_range(
-                r, c, r, merge_to - 1, safe_text(value) if is_text else value, cell_format
-            )
+            kind, shown = _kind(value)
+            rows.merge(r, c, merge_to - 1, kind, shown, cell_format)
         elif link is not None and self.links < MAX_LINKS:
             self.links += 1
-            self.ws.write_url(r, c, "internal:" + link, cell_format, safe_text(value))
-        elif is_text:
-            self.ws.write_string(r, c, safe_text(value), cell_format)
-        elif isinstance(value, Formula):
-            cached = value.cached if value.cached is not None else 0
-            self.ws.write_formula(r, c, value.text, cell_format, cached)
-        elif isinstance(value, bool):
-            self.ws.write_boolean(r, c, value, cell_format)
-        elif isinstance(value, (int, float)):
-            number = finite_or_none(float(value)) if isinstance(value, float) else value
-            if number is None:
-                self.ws.write_blank(r, c, None, cell_format or self.formats.get(style))
-            else:
-                self.ws.write_number(r, c, number, cell_format)
-        elif value is None:
-            self.ws.write_blank(r, c, None, cell_format or self.formats.get(style))
+            rows.link(r, c, "internal:" + link, safe_text(value), cell_format)
         else:
-            self.ws.write_string(r, c, safe_text(str(value)), cell_format)
+            kind, shown = _kind(value)
+            if kind == BLANK:
+                cell_format = cell_format or self.formats.get(style)
+            rows.cell(r, c, kind, shown, cell_format)
 
     def _measure_cell(
         self,
@@ -311,6 +302,11 @@ class Sheet:
         column_style = {col: counts.most_common(1)[0][0] for col, counts in self.styles.items()}
         self.layout = Layout(final, heights, column_style, dict(self.widths))
 
+    def finish(self) -> None:
+        """Writing: the last row goes to the file."""
+        if self.rows is not None:
+            self.rows.finish()
+
     def layout_columns(self) -> None:
         """Writing: each column's width and common style, set once for the whole column."""
         for col, width in self.layout.widths.items():
@@ -320,6 +316,24 @@ class Sheet:
 
 
 LINE_HEIGHT = 15  # points per line of 11-point text
+
+
+def _kind(value: Any) -> tuple[int, Any]:
+    """How a cell value is written (:mod:`audit.report.workbook_rows`): text as text, a
+    :class:`Formula` with its cached value (0 when it has none), a number (a non-finite one as an
+    empty cell), a boolean, nothing as an empty cell, anything else as its text."""
+    if isinstance(value, str):
+        return STRING, safe_text(value)
+    if isinstance(value, Formula):
+        return FORMULA, (value.text, value.cached if value.cached is not None else 0)
+    if isinstance(value, bool):
+        return BOOLEAN, value
+    if isinstance(value, (int, float)):
+        number = finite_or_none(float(value)) if isinstance(value, float) else value
+        return (BLANK, None) if number is None else (NUMBER, number)
+    if value is None:
+        return BLANK, None
+    return STRING, safe_text(str(value))
 
 
 def _lines(text: str, width: float) -> int:

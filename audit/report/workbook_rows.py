@@ -1,0 +1,224 @@
+"""Whole rows of a findings-workbook sheet written as XML by us, into an XlsxWriter worksheet in
+constant-memory mode: the one module that reaches into XlsxWriter's private parts.
+
+XlsxWriter keeps one row of a constant-memory worksheet in a table and writes it to the sheet's
+temporary file when a cell of a later row arrives; each cell costs it a cell object, a dimension
+check and a list of attributes turned into XML one by one. :class:`Rows` does the same job a row at
+a time: the cells of the current row are kept as (kind, value, format), and when the row is done
+its XML goes straight into the worksheet's temporary file, the same bytes XlsxWriter's own cell
+writer makes (``tests/test_workbook_rows.py`` compares the two on every kind of cell, so a change in
+XlsxWriter's output shows there). What it uses of XlsxWriter's insides, all of the worksheet:
+
+* ``constant_memory``, ``fh`` (the temporary row file while the sheet is open), ``previous_row``
+  and ``_write_single_row`` (the row XlsxWriter itself holds, written before ours), ``table``;
+* ``_check_dimensions`` (the sheet's used range), ``_write_row`` (a row's opening tag, with its
+  height), ``row_info`` (the heights :meth:`set_row` stored), ``col_info`` (a column's format, the
+  format of a cell that has none), ``merge`` (merged ranges), ``ignore_write_string`` (a link
+  stored without its text cell, which :class:`Rows` writes), ``default_url_format``;
+* of a format, ``_get_xf_index`` (its number in the file's style table, given on first use).
+
+The XlsxWriter versions this is written for are pinned in ``pyproject.toml``.
+"""
+
+from __future__ import annotations
+
+import re
+from typing import Any
+
+NUMBER, STRING, FORMULA, BLANK, BOOLEAN = range(5)
+"""The kinds of cell :meth:`Rows.cell` takes."""
+
+STRING_MAX = 32_767
+"""The most characters (UTF-16 code units) a cell's text may have; longer text is cut there."""
+
+_SPECIAL = re.compile("[&<>\x00-\x08\x0b-\x1f\ufffe\uffff]|_x[0-9a-fA-F]{4}_")
+"""Text that needs escaping: XML's own characters, control characters, Excel's ``_xHHHH_``."""
+_ESCAPED = re.compile("(_x[0-9a-fA-F]{4}_)")
+_CONTROL = re.compile("([\x00-\x08\x0b-\x1f])")
+_LEADING_SPACE = re.compile(r"^\s")
+_TRAILING_SPACE = re.compile(r"\s$")
+_FUNCTION = re.compile(r"[A-Za-z_][A-Za-z0-9_.]*\(|^\{")
+"""A formula that calls a function (XlsxWriter may prefix newer ones) or is an array formula."""
+
+
+def column_letters(col: int) -> str:
+    """The letters of a 0-based column (0 → A, 26 → AA)."""
+    letters = ""
+    col += 1
+    while col:
+        col, remainder = divmod(col - 1, 26)
+        letters = chr(65 + remainder) + letters
+    return letters
+
+
+def text_xml(text: str) -> str:
+    """``text`` as the content of an inline string's ``<t>`` element, with its opening tag's
+    attribute: Excel's ``_xHHHH_`` escapes for control characters (and for literal ``_xHHHH_``),
+    XML's for ``&``, ``<`` and ``>``, and ``xml:space="preserve"`` when it starts or ends with
+    white space."""
+    if _SPECIAL.search(text):
+        text = _ESCAPED.sub(r"_x005F\1", text)
+        text = _CONTROL.sub(lambda m: f"_x{ord(m.group(1)):04X}_", text)
+        text = text.replace("\ufffe", "_xFFFE_").replace("\uffff", "_xFFFF_")
+        text = text.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;")
+    if text and (_LEADING_SPACE.search(text) or _TRAILING_SPACE.search(text)):
+        return '<t xml:space="preserve">' + text + "</t>"
+    return "<t>" + text + "</t>"
+
+
+def _utf16_cut(text: str) -> str:
+    """``text`` cut to :data:`STRING_MAX` UTF-16 code units (a cell's limit)."""
+    if len(text) <= STRING_MAX // 2:
+        return text
+    units = 0
+    for index, char in enumerate(text):
+        units += 2 if ord(char) > 0xFFFF else 1
+        if units > STRING_MAX:
+            return text[:index]
+    return text
+
+
+class Rows:
+    """The rows of one worksheet (an XlsxWriter worksheet made with ``constant_memory``), written
+    a row at a time in increasing order; a cell of a row already written is dropped, as XlsxWriter
+    drops it. Call :meth:`finish` when the sheet's cells are all given."""
+
+    def __init__(self, ws: Any) -> None:
+        if not ws.constant_memory:
+            raise ValueError("Rows writes into a constant-memory worksheet only")
+        self.ws = ws
+        self.row = -1
+        self.cells: dict[int, tuple[int, Any, Any]] = {}
+        self.styles: dict[int, str] = {}  # id(format) → its ' s="N"' attribute
+        self.letters: list[str] = []
+
+    # -- cells ---------------------------------------------------------------------------------
+    def cell(self, row: int, col: int, kind: int, value: Any, cell_format: Any = None) -> None:
+        """Keep a cell (0-based ``row`` and ``col``): a :data:`NUMBER` (finite), a
+        :data:`STRING`, a :data:`FORMULA` (``value`` = (text, cached value)), a :data:`BLANK`
+        (written only with a format) or a :data:`BOOLEAN`."""
+        if row != self.row:
+            if row < self.row:
+                return
+            self._write()
+            self.row = row
+        if kind == BLANK and cell_format is None:
+            return  # XlsxWriter writes no blank cell without a format (nor clears the cell)
+        self.cells[col] = (kind, value, cell_format)
+
+    def link(self, row: int, col: int, target: str, text: str, cell_format: Any = None) -> None:
+        """A cell of ``text`` that links to ``target`` ("internal:'Sheet'!A1" or a URL); without a
+        format it takes the worksheet's hyperlink format, as XlsxWriter's own links do."""
+        if row < self.row:
+            return
+        self.cell(row, col, STRING, text, cell_format or self.ws.default_url_format)
+        ws = self.ws
+        self._claim(row)
+        ws.ignore_write_string = True
+        try:
+            ws.write_url(row, col, target, cell_format, text)
+        finally:
+            ws.ignore_write_string = False
+
+    def merge(
+        self, row: int, first_col: int, last_col: int, kind: int, value: Any, cell_format: Any
+    ) -> None:
+        """A cell merged across ``first_col`` … ``last_col`` of ``row``: its value in the first,
+        formatted blanks in the others."""
+        if row < self.row:
+            return
+        if kind == STRING and value == "":
+            kind = BLANK  # as XlsxWriter's merge writes an empty text
+        self.cell(row, first_col, kind, value, cell_format)
+        for col in range(first_col + 1, last_col + 1):
+            self.cell(row, col, BLANK, None, cell_format)
+        self.ws.merge.append([row, first_col, row, last_col])
+
+    def height(self, row: int, height: float) -> None:
+        """Give ``row`` a height [points] (before its cells are written)."""
+        if row < self.row:
+            return
+        if row != self.row:
+            self._write()
+            self.row = row
+        self._claim(row)
+        self.ws.set_row(row, height)
+
+    def finish(self) -> None:
+        """Write the last row."""
+        self._write()
+
+    # -- the XML -------------------------------------------------------------------------------
+    def _claim(self, row: int) -> None:
+        """Make XlsxWriter write the row it holds, so that ``row`` is the one it is at."""
+        ws = self.ws
+        if ws.previous_row < row:
+            ws._write_single_row(row)
+
+    def _style(self, cell_format: Any) -> str:
+        key = id(cell_format)
+        style = self.styles.get(key)
+        if style is None:
+            style = self.styles[key] = f' s="{cell_format._get_xf_index()}"'
+        return style
+
+    def _column_style(self, col: int) -> str:
+        info = self.ws.col_info.get(col)
+        if info is None or info.column_format is None:
+            return ""
+        return self._style(info.column_format)
+
+    def _write(self) -> None:
+        cells, row = self.cells, self.row
+        if not cells:
+            return
+        ws = self.ws
+        self._claim(row)
+        columns = sorted(cells)
+        ws._check_dimensions(row, columns[0])
+        ws._check_dimensions(row, columns[-1])
+        while len(self.letters) <= columns[-1]:
+            self.letters.append(column_letters(len(self.letters)))
+        ws._write_row(row, None, ws.row_info.get(row))
+        number = str(row + 1)
+        out = []
+        letters, style, column_style = self.letters, self._style, self._column_style
+        for col in columns:
+            kind, value, cell_format = cells[col]
+            s = style(cell_format) if cell_format is not None else column_style(col)
+            ref = letters[col] + number
+            if kind == NUMBER:
+                out.append(f'<c r="{ref}"{s}><v>{value:.16G}</v></c>')
+            elif kind == STRING:
+                text = text_xml(_utf16_cut(value))
+                out.append(f'<c r="{ref}"{s} t="inlineStr"><is>{text}</is></c>')
+            elif kind == FORMULA:
+                out.append(_formula(ws, ref, s, *value))
+            elif kind == BLANK:
+                out.append(f'<c r="{ref}"{s}/>')
+            else:  # BOOLEAN
+                out.append(f'<c r="{ref}"{s} t="b"><v>{int(bool(value))}</v></c>')
+        out.append("</row>")
+        ws.fh.write("".join(out))
+        ws.table.clear()
+        ws.previous_row = row + 1  # XlsxWriter holds nothing of this row, nor writes it again
+        cells.clear()
+
+
+ERROR_VALUES = ("#DIV/0!", "#N/A", "#NAME?", "#NULL!", "#NUM!", "#REF!", "#VALUE!")
+
+
+def _formula(ws: Any, ref: str, s: str, text: str, cached: Any) -> str:
+    """A formula cell with its cached value (a number, a boolean, a text or an error value)."""
+    if _FUNCTION.search(text):
+        text = ws._prepare_formula(text)
+    elif text.startswith("="):
+        text = text[1:]
+    text = text.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;")
+    kind = ""
+    if isinstance(cached, bool):
+        kind, cached = ' t="b"', int(cached)
+    elif isinstance(cached, str):
+        kind = ' t="e"' if cached in ERROR_VALUES else ' t="str"' if cached else ""
+        cached = cached.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;")
+    return f'<c r="{ref}"{s}{kind}><f>{text}</f><v>{cached}</v></c>'
