@@ -83,6 +83,9 @@ PERCENT = "0.0%"
 INTEGER = "0"
 GENERAL = "General"
 
+QUOTED = -1
+"""A text cell that starts like a formula (:meth:`Sheet.plain`: it carries the quote prefix)."""
+
 MAX_LINKS = 65_530
 """The most hyperlinks a worksheet may hold (the file format's limit); later cells keep their text
 without the link."""
@@ -142,6 +145,7 @@ class Sheet:
         self.links = 0
         self._row = 0
         self.rows = Rows(ws) if ws is not None else None
+        self._plain: dict[tuple[int, str | None, bool, int], tuple[Style, Any]] = {}  # see plain
 
     # -- cells -------------------------------------------------------------------------------------
     def put(
@@ -194,6 +198,74 @@ class Sheet:
             if kind == BLANK:
                 cell_format = cell_format or self.formats.get(style)
             rows.cell(r, c, kind, shown, cell_format)
+
+    def plain(self, row: int, col: int, value: Any, fmt: str | None = None, wrap: bool = False) -> None:
+        """:meth:`put` of a cell with no fill, font, link, alignment or merge: the large sheets'
+        usual cell. A finite number, a text or nothing takes a short way (the style of each is the
+        same in every row of a column, so it is looked up once per column); anything else, and a
+        row's first cell (its height), goes through :meth:`put`."""
+        kind = type(value)
+        if kind is float:
+            if value - value != 0:  # not finite
+                self.put(row, col, value, fmt=fmt, wrap=wrap)
+                return
+            look = NUMBER
+        elif kind is str:
+            look = QUOTED if value.startswith(FORMULA_TRIGGERS) else STRING
+        elif value is None:
+            look = BLANK
+        else:
+            self.put(row, col, value, fmt=fmt, wrap=wrap)
+            return
+        rows = self.rows
+        if rows is not None and row != self._row:
+            self.put(row, col, value, fmt=fmt, wrap=wrap)
+            return
+        key = (col, fmt, wrap, look)
+        known = self._plain.get(key)
+        if known is None:
+            style: Style
+            if look == STRING or look == QUOTED:
+                style = (None, None, None, wrap, None, look == QUOTED, False)
+            else:
+                style = (fmt, None, None, wrap, None, False, False)
+            cell_format = None
+            if rows is not None:
+                if style != self.layout.column_style.get(col) or look == BLANK:
+                    cell_format = self.formats.get(style)
+            known = self._plain[key] = (style, cell_format)
+        style, cell_format = known
+        if rows is not None:
+            if look == NUMBER:
+                rows.cell(row - 1, col - 1, NUMBER, value, cell_format)
+            elif look == BLANK:
+                rows.cell(row - 1, col - 1, BLANK, None, cell_format)
+            else:
+                rows.cell(row - 1, col - 1, STRING, safe_text(value), cell_format)
+            return
+        # measuring: as _measure_cell does
+        counts = self.styles.get(col)
+        if counts is None:
+            counts = self.styles[col] = Counter()
+        counts[style] += 1
+        if look == BLANK:
+            return
+        if wrap:
+            if look != NUMBER:
+                self.wrapped.append((row, col, value))
+            return
+        if look == NUMBER and fmt and fmt != GENERAL:
+            extremes = self.extremes.get((col, fmt))
+            if extremes is None:
+                self.extremes[(col, fmt)] = [value, value]
+            elif value < extremes[0]:
+                extremes[0] = value
+            elif value > extremes[1]:
+                extremes[1] = value
+            return
+        length = len(value) if look != NUMBER else _shown_length(value, fmt)
+        if length > self.widths.get(col, 0):
+            self.widths[col] = length
 
     def _measure_cell(
         self,

@@ -90,6 +90,7 @@ class Rows:
         self.row = -1
         self.cells: dict[int, tuple[int, Any, Any]] = {}
         self.styles: dict[int, str] = {}  # id(format) → its ' s="N"' attribute
+        self.column_styles: dict[int, str] = {}  # column → the attribute of its cells without one
         self.letters: list[str] = []
 
     # -- cells ---------------------------------------------------------------------------------
@@ -156,17 +157,15 @@ class Rows:
             ws._write_single_row(row)
 
     def _style(self, cell_format: Any) -> str:
-        key = id(cell_format)
-        style = self.styles.get(key)
-        if style is None:
-            style = self.styles[key] = f' s="{cell_format._get_xf_index()}"'
+        style = self.styles[id(cell_format)] = f' s="{cell_format._get_xf_index()}"'
         return style
 
     def _column_style(self, col: int) -> str:
+        """The style of a cell without a format: its column's format, if the column has one."""
         info = self.ws.col_info.get(col)
-        if info is None or info.column_format is None:
-            return ""
-        return self._style(info.column_format)
+        style = "" if info is None or info.column_format is None else self._style(info.column_format)
+        self.column_styles[col] = style
+        return style
 
     def _write(self) -> None:
         cells, row = self.cells, self.row
@@ -182,22 +181,28 @@ class Rows:
         ws._write_row(row, None, ws.row_info.get(row))
         number = str(row + 1)
         out = []
-        letters, style, column_style = self.letters, self._style, self._column_style
+        letters, styles, column_styles = self.letters, self.styles, self.column_styles
         for col in columns:
             kind, value, cell_format = cells[col]
-            s = style(cell_format) if cell_format is not None else column_style(col)
-            ref = letters[col] + number
+            if cell_format is None:
+                s = column_styles.get(col)
+                if s is None:
+                    s = self._column_style(col)
+            else:
+                s = styles.get(id(cell_format))
+                if s is None:
+                    s = self._style(cell_format)
             if kind == NUMBER:
-                out.append(f'<c r="{ref}"{s}><v>{value:.16G}</v></c>')
+                out.append(f'<c r="{letters[col]}{number}"{s}><v>{value:.16G}</v></c>')
             elif kind == STRING:
                 text = text_xml(_utf16_cut(value))
-                out.append(f'<c r="{ref}"{s} t="inlineStr"><is>{text}</is></c>')
+                out.append(f'<c r="{letters[col]}{number}"{s} t="inlineStr"><is>{text}</is></c>')
             elif kind == FORMULA:
-                out.append(_formula(ws, ref, s, *value))
+                out.append(_formula(ws, letters[col] + number, s, *value))
             elif kind == BLANK:
-                out.append(f'<c r="{ref}"{s}/>')
+                out.append(f'<c r="{letters[col]}{number}"{s}/>')
             else:  # BOOLEAN
-                out.append(f'<c r="{ref}"{s} t="b"><v>{int(bool(value))}</v></c>')
+                out.append(f'<c r="{letters[col]}{number}"{s} t="b"><v>{int(bool(value))}</v></c>')
         out.append("</row>")
         ws.fh.write("".join(out))
         ws.table.clear()

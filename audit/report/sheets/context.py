@@ -3,13 +3,15 @@ row of each step, stream and finding (for links), and small helpers."""
 
 from __future__ import annotations
 
-from collections.abc import Iterable, Sequence
+import math
+from collections.abc import Callable, Iterable, Sequence
+from operator import attrgetter
 from typing import Any
 
 from audit.findings import SEVERITY_RANK, Finding
 from audit.reconcile.records import Reconciliation
 from audit.report.columns import OWN, Column
-from audit.report.display import in_si, shown
+from audit.report.display import DISPLAY, in_si, shown
 from audit.report.workbook_cells import Layout, Sheet
 from audit.report.workbook_file import Formats
 from audit.results import AuditResult, StepResult
@@ -170,3 +172,36 @@ def cell_value(column: Column, row: Any, quantity: str | None = None) -> Any:
     if quantity is None and column.fmt is None and value is None:
         return ""
     return value
+
+
+def cell_reader(column: Column, quantity: str | None = None) -> Callable[[Any], Any]:
+    """:func:`cell_value` of ``column`` (and ``quantity``) as a function of the row object, with
+    what can be decided once per column decided once (the workbook's large sheets call it for
+    every cell)."""
+    if column.read is not None or column.joined is not None or column.cell is not None:
+        return lambda row: cell_value(column, row, quantity)
+    if column.quantity == OWN:
+        return lambda row: cell_value(column, row, quantity)
+    get = attrgetter(column.key)
+    quantity = quantity or column.quantity
+    if quantity is not None and not in_si(quantity):
+        _, scale, offset = DISPLAY[quantity]
+        if column.difference:
+            offset = 0.0
+        isfinite = math.isfinite
+
+        def scaled(row: Any) -> Any:
+            value = get(row)
+            if value is None or not isfinite(value):
+                return None
+            return value * scale + offset
+
+        return scaled
+    if quantity is None and column.fmt is None:
+
+        def text(row: Any) -> Any:
+            value = get(row)
+            return "" if value is None else value
+
+        return text
+    return get

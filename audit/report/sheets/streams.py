@@ -7,7 +7,15 @@ from __future__ import annotations
 from audit.findings import Finding
 from audit.report.blame import blame_note, blamed_streams
 from audit.report.columns import STREAMS as COLUMNS
-from audit.report.sheets.context import FINDINGS, STEPS, STREAMS, Book, cell_value, marker, worst
+from audit.report.sheets.context import (
+    FINDINGS,
+    STEPS,
+    STREAMS,
+    Book,
+    cell_reader,
+    marker,
+    worst,
+)
 from audit.report.workbook_cells import FILLS, FORMATS, location
 
 WIDTHS = {"description": 32}
@@ -27,11 +35,21 @@ def write(book: Book) -> None:
     for f in book.result.findings:
         if f.stream:
             stream_findings.setdefault(f.stream, []).append(f)
+    # each column's reader and number format, decided once
+    plans = [
+        (
+            column.key,
+            cell_reader(column),
+            column.fmt or (FORMATS[column.quantity] if column.quantity else None),
+            column.wrap,
+        )
+        for column in columns
+    ]
+    plain = sh.plain
     for row, s in enumerate(book.result.streams, start=2):
         worst_severity = worst(stream_findings.get(s.id, []))
         fill = FILLS[worst_severity] if worst_severity else None
-        for col, column in enumerate(columns, start=1):
-            key = column.key
+        for col, (key, read, fmt, wrap) in enumerate(plans, start=1):
             if key == "id":
                 sh.put(row, col, s.id, fill=fill)
             elif key == "findings":
@@ -50,6 +68,5 @@ def write(book: Book) -> None:
                 if step_id:
                     sh.put(row, col, step_id, link=location(STEPS, book.step_row[step_id]))
             else:
-                fmt = column.fmt or (FORMATS[column.quantity] if column.quantity else None)
-                sh.put(row, col, cell_value(column, s), fmt=fmt, wrap=column.wrap)
+                plain(row, col, read(s), fmt, wrap)
     sh.table(len(book.result.streams) + 1)
