@@ -83,8 +83,9 @@ PERCENT = "0.0%"
 INTEGER = "0"
 GENERAL = "General"
 
-QUOTED = -1
-"""A text cell that starts like a formula (:meth:`Sheet.plain`: it carries the quote prefix)."""
+QUOTED, WHOLE = -1, -2
+"""For :meth:`Sheet.plain`: a text cell that starts like a formula (it carries the quote prefix),
+an integer (measured as it is shown, not by the column's extremes)."""
 
 MAX_LINKS = 65_530
 """The most hyperlinks a worksheet may hold (the file format's limit); later cells keep their text
@@ -145,7 +146,8 @@ class Sheet:
         self.links = 0
         self._row = 0
         self.rows = Rows(ws) if ws is not None else None
-        self._plain: dict[tuple[int, str | None, bool, int], tuple[Style, Any]] = {}  # see plain
+        # plain cells: (column, format, wrap, look) → [style, cell format, cells measured]
+        self._plain: dict[tuple[int, str | None, bool, int], list[Any]] = {}
 
     # -- cells -------------------------------------------------------------------------------------
     def put(
@@ -210,6 +212,8 @@ class Sheet:
                 self.put(row, col, value, fmt=fmt, wrap=wrap)
                 return
             look = NUMBER
+        elif kind is int:
+            look = WHOLE
         elif kind is str:
             look = QUOTED if value.startswith(FORMULA_TRIGGERS) else STRING
         elif value is None:
@@ -233,25 +237,27 @@ class Sheet:
             if rows is not None:
                 if style != self.layout.column_style.get(col) or look == BLANK:
                     cell_format = self.formats.get(style)
-            known = self._plain[key] = (style, cell_format)
-        style, cell_format = known
+            else:  # the style takes its place among the column's styles (see fit)
+                counts = self.styles.get(col)
+                if counts is None:
+                    counts = self.styles[col] = Counter()
+                counts[style] += 0
+            known = self._plain[key] = [style, cell_format, 0]
         if rows is not None:
-            if look == NUMBER:
+            cell_format = known[1]
+            if look == NUMBER or look == WHOLE:
                 rows.cell(row - 1, col - 1, NUMBER, value, cell_format)
             elif look == BLANK:
                 rows.cell(row - 1, col - 1, BLANK, None, cell_format)
             else:
                 rows.cell(row - 1, col - 1, STRING, safe_text(value), cell_format)
             return
-        # measuring: as _measure_cell does
-        counts = self.styles.get(col)
-        if counts is None:
-            counts = self.styles[col] = Counter()
-        counts[style] += 1
+        # measuring: as _measure_cell does (the style counted with its column's in fit)
+        known[2] += 1
         if look == BLANK:
             return
         if wrap:
-            if look != NUMBER:
+            if look == STRING or look == QUOTED:
                 self.wrapped.append((row, col, value))
             return
         if look == NUMBER and fmt and fmt != GENERAL:
@@ -263,7 +269,7 @@ class Sheet:
             elif value > extremes[1]:
                 extremes[1] = value
             return
-        length = len(value) if look != NUMBER else _shown_length(value, fmt)
+        length = _shown_length(value, fmt) if look == WHOLE or look == NUMBER else len(value)
         if length > self.widths.get(col, 0):
             self.widths[col] = length
 
@@ -346,6 +352,9 @@ class Sheet:
         heights for the header and the wrapped cells (measuring); the measured layout (writing)."""
         if self.ws is not None:
             return
+        for (col, *_), known in self._plain.items():
+            self.styles[col][known[0]] += known[2]
+            known[2] = 0
         for (col, fmt), extremes in self.extremes.items():
             length = max(_shown_length(v, fmt) for v in extremes)
             if length > self.widths.get(col, 0):

@@ -35,8 +35,6 @@ _SPECIAL = re.compile("[&<>\x00-\x08\x0b-\x1f\ufffe\uffff]|_x[0-9a-fA-F]{4}_")
 """Text that needs escaping: XML's own characters, control characters, Excel's ``_xHHHH_``."""
 _ESCAPED = re.compile("(_x[0-9a-fA-F]{4}_)")
 _CONTROL = re.compile("([\x00-\x08\x0b-\x1f])")
-_LEADING_SPACE = re.compile(r"^\s")
-_TRAILING_SPACE = re.compile(r"\s$")
 _FUNCTION = re.compile(r"[A-Za-z_][A-Za-z0-9_.]*\(|^\{")
 """A formula that calls a function (XlsxWriter may prefix newer ones) or is an array formula."""
 
@@ -61,7 +59,7 @@ def text_xml(text: str) -> str:
         text = _CONTROL.sub(lambda m: f"_x{ord(m.group(1)):04X}_", text)
         text = text.replace("\ufffe", "_xFFFE_").replace("\uffff", "_xFFFF_")
         text = text.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;")
-    if text and (_LEADING_SPACE.search(text) or _TRAILING_SPACE.search(text)):
+    if text[:1].isspace() or text[-1:].isspace():  # as XlsxWriter's r"^\s" or r"\s$"
         return '<t xml:space="preserve">' + text + "</t>"
     return "<t>" + text + "</t>"
 
@@ -195,7 +193,7 @@ class Rows:
             if kind == NUMBER:
                 out.append(f'<c r="{letters[col]}{number}"{s}><v>{value:.16G}</v></c>')
             elif kind == STRING:
-                text = text_xml(_utf16_cut(value))
+                text = text_xml(value if len(value) < STRING_MAX // 2 else _utf16_cut(value))
                 out.append(f'<c r="{letters[col]}{number}"{s} t="inlineStr"><is>{text}</is></c>')
             elif kind == FORMULA:
                 out.append(_formula(ws, letters[col] + number, s, *value))

@@ -14,7 +14,7 @@ from audit.report.columns import OWN, Column
 from audit.report.display import DISPLAY, in_si, shown
 from audit.report.workbook_cells import Layout, Sheet
 from audit.report.workbook_file import Formats
-from audit.results import AuditResult, StepResult
+from audit.results import AuditResult, Delegated, StepResult
 
 OVERVIEW, FINDINGS, STEPS, STREAMS, HEAT, EXCHANGERS, EXERGY, METHOD = (
     "Overview",
@@ -174,15 +174,22 @@ def cell_value(column: Column, row: Any, quantity: str | None = None) -> Any:
     return value
 
 
-def cell_reader(column: Column, quantity: str | None = None) -> Callable[[Any], Any]:
-    """:func:`cell_value` of ``column`` (and ``quantity``) as a function of the row object, with
-    what can be decided once per column decided once (the workbook's large sheets call it for
-    every cell)."""
+def cell_reader(
+    column: Column, quantity: str | None = None, record: type | None = None
+) -> Callable[[Any], Any]:
+    """:func:`cell_value` of ``column`` (and ``quantity``) as a function of the row object (of
+    class ``record`` when given), with what can be decided once per column decided once (the
+    workbook's large sheets call it for every cell); a value the record delegates to one of its
+    parts (:class:`audit.results.delegated.Delegated`) is read from the part directly."""
     if column.read is not None or column.joined is not None or column.cell is not None:
         return lambda row: cell_value(column, row, quantity)
     if column.quantity == OWN:
         return lambda row: cell_value(column, row, quantity)
-    get = attrgetter(column.key)
+    delegated = getattr(record, column.key, None) if record is not None else None
+    if isinstance(delegated, Delegated):
+        get = attrgetter(f"{delegated.part}.{delegated.name}")
+    else:
+        get = attrgetter(column.key)
     quantity = quantity or column.quantity
     if quantity is not None and not in_si(quantity):
         _, scale, offset = DISPLAY[quantity]
