@@ -41,6 +41,8 @@ CELLS: list[tuple[int, int, int, Any, str | None]] = [
     (2, 5, STRING, "", None),
     (2, 6, STRING, "ρ [kg/m³] Ṡ_gen 🔥 astral", "number"),
     (2, 7, STRING, "tab\tinside", None),
+    (2, 8, STRING, "\u00a0non-breaking space first", None),
+    (2, 9, STRING, "ends in a line feed\n\n", None),
     (3, 0, FORMULA, ("=B4-C4-(E4-D4)", 1.25), "number"),
     (3, 1, FORMULA, ("=A4+1", 0), None),
     (3, 2, FORMULA, ("=SUM(A4:B4)", 2.5e-7), None),
@@ -177,6 +179,30 @@ def test_a_cell_of_a_row_already_written_is_dropped_as_xlsxwriter_drops_it():
 
     ws = openpyxl.load_workbook(io.BytesIO(_book(late)))["Rows"]
     assert ws["A4"].value == 1 and ws["B4"].value is None and ws["A5"].value == 2
+
+
+def test_rows_with_more_than_a_height_are_opened_by_xlsxwriter():
+    def tall(rows_first: bool) -> Any:
+        def write(ws: Any, formats: dict[str, Any]) -> None:
+            ws.set_default_row(18)
+            rows = Rows(ws) if rows_first else None
+            for row in range(4):
+                if rows is not None:
+                    rows.height(row, 30 + row)
+                    rows.cell(row, 0, NUMBER, float(row))
+                else:
+                    ws.set_row(row, 30 + row)
+                    ws.write_number(row, 0, float(row))
+            ws.set_row(5, 20, formats["number"], {"level": 1, "hidden": True})
+            if rows is not None:
+                rows.cell(5, 1, STRING, "outlined")
+                rows.finish()
+            else:
+                ws.write_string(5, 1, "outlined")
+
+        return write
+
+    assert _book(tall(True)) == _book(tall(False))
 
 
 def test_rows_need_a_constant_memory_worksheet():

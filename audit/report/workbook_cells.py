@@ -13,75 +13,72 @@ only where it differs (a fill, a link, a bold id, a vessel's unit).
 from __future__ import annotations
 
 import math
-import re
 from collections import Counter
 from collections.abc import Sequence
 from dataclasses import dataclass, field
-from typing import Any, NamedTuple
+from typing import Any
 
-from audit.findings import ERROR, INFO, WARNING
 from audit.report.machine import FORMULA_TRIGGERS
-from audit.report.workbook_rows import BLANK, BOOLEAN, FORMULA, NUMBER, STRING, Rows
-from audit.wording import finite_or_none
+from audit.report.workbook_look import (
+    BOLD,
+    FILLS,
+    FONT,
+    FORMATS,
+    GENERAL,
+    HEADER_FILL,
+    HEADER_FONT,
+    INTEGER,
+    LINE_HEIGHT,
+    LINK_FONT,
+    PERCENT,
+    PLAIN,
+    SECTION_FONT,
+    TITLE_FONT,
+    Fill,
+    Font,
+    Style,
+    shown_length,
+    text_lines,
+    with_unit,
+)
+from audit.report.workbook_rows import (
+    BLANK,
+    NUMBER,
+    STRING,
+    Formula,
+    Rows,
+    cell_kind,
+    safe_text,
+)
 
+__all__ = [  # the look (audit.report.workbook_look) is re-exported for the sheets
+    "BOLD",
+    "FILLS",
+    "FONT",
+    "FORMATS",
+    "GENERAL",
+    "HEADER_FILL",
+    "HEADER_FONT",
+    "INTEGER",
+    "LINE_HEIGHT",
+    "LINK_FONT",
+    "MAX_LINKS",
+    "PERCENT",
+    "PLAIN",
+    "SECTION_FONT",
+    "TITLE_FONT",
+    "Fill",
+    "Font",
+    "Formula",
+    "Layout",
+    "Sheet",
+    "Style",
+    "column_letter",
+    "location",
+    "safe_text",
+    "with_unit",
+]
 
-class Fill(NamedTuple):
-    """A solid cell fill of one colour (RGB hex). (Named tuples: a cell's style is looked up by
-    them for every cell, and their hash and comparison run at C speed.)"""
-
-    color: str
-
-
-class Font(NamedTuple):
-    """A cell font: the workbook's default face, bold or not, a size, a colour, underlined."""
-
-    bold: bool = False
-    size: int = 11
-    color: str | None = None
-    underline: bool = False
-
-
-# Fills for the severities and the verdict; the word is always written too (greyscale prints).
-FILLS = {
-    ERROR: Fill("F4A6A6"),
-    WARNING: Fill("FFE699"),
-    INFO: Fill("DDEBF7"),
-    "pass": Fill("C6EFCE"),
-}
-HEADER_FILL = Fill("D9D9D9")
-FONT = "Calibri"  # the workbook's default font
-HEADER_FONT = Font(bold=True)
-BOLD = Font(bold=True)
-PLAIN = Font()
-LINK_FONT = Font(color="0563C1", underline=True)
-TITLE_FONT = Font(bold=True, size=14)
-SECTION_FONT = Font(bold=True, size=12)
-
-# Number formats, one per display unit (resolution: about four significant figures or better).
-FORMATS = {
-    "temperature": "0.00",
-    "temperature_difference": "0.00",
-    "pressure": "0.00000",
-    "mass_flow": "0.0000",
-    "molar_flow": "0.000",
-    "power": "#,##0.000",
-    "energy": "#,##0.000",
-    "entropy_rate": "0.00000",
-    "entropy": "0.00000",
-    "specific_energy": "#,##0.00",
-    "specific_entropy": "0.00000",
-    "density": "0.000",
-    "specific_volume": "0.000000",
-    "fraction": "0.0000",
-    "mass": "#,##0.000",
-    "velocity": "0.00",
-    "elevation": "0.00",
-    "voltage": "0.000",
-    "current": "0.00",
-}
-PERCENT = "0.0%"
-INTEGER = "0"
-GENERAL = "General"
 
 QUOTED, WHOLE = -1, -2
 """For :meth:`Sheet.plain`: a text cell that starts like a formula (it carries the quote prefix),
@@ -90,29 +87,6 @@ an integer (measured as it is shown, not by the column's extremes)."""
 MAX_LINKS = 65_530
 """The most hyperlinks a worksheet may hold (the file format's limit); later cells keep their text
 without the link."""
-
-_ILLEGAL = re.compile(r"[\000-\010]|[\013-\014]|[\016-\037]")
-"""Control characters an .xlsx cell cannot hold (XML 1.0)."""
-
-
-def safe_text(value: str) -> str:
-    """``value`` with the control characters a workbook cannot hold replaced by U+FFFD, and
-    carriage returns as line feeds (XML readers turn them into line feeds anyway)."""
-    if value.isprintable():  # the usual text: no control character at all
-        return value
-    return _ILLEGAL.sub("\ufffd", value.replace("\r\n", "\n").replace("\r", "\n"))
-
-
-@dataclass
-class Formula:
-    """A live formula and the value a spreadsheet program computes for it (cached in the file)."""
-
-    text: str
-    cached: float | None
-
-
-Style = tuple  # (number format, fill, font, wrap, horizontal, quote prefix, header)
-"""A cell's look; equal tuples share one format of the file."""
 
 
 @dataclass
@@ -190,13 +164,13 @@ class Sheet:
                 rows.cell(r, c, BLANK, None, cell_format or self.formats.get(style))
             return
         if merge_to is not None:
-            kind, shown = _kind(value)
+            kind, shown = cell_kind(value)
             rows.merge(r, c, merge_to - 1, kind, shown, cell_format)
         elif link is not None and self.links < MAX_LINKS:
             self.links += 1
             rows.link(r, c, "internal:" + link, safe_text(value), cell_format)
         else:
-            kind, shown = _kind(value)
+            kind, shown = cell_kind(value)
             if kind == BLANK:
                 cell_format = cell_format or self.formats.get(style)
             rows.cell(r, c, kind, shown, cell_format)
@@ -269,7 +243,7 @@ class Sheet:
             elif value > extremes[1]:
                 extremes[1] = value
             return
-        length = _shown_length(value, fmt) if look == WHOLE or look == NUMBER else len(value)
+        length = shown_length(value, fmt) if look == WHOLE or look == NUMBER else len(value)
         if length > self.widths.get(col, 0):
             self.widths[col] = length
 
@@ -308,7 +282,7 @@ class Sheet:
                     elif value > extremes[1]:
                         extremes[1] = value
                 return
-            length = len(value) if isinstance(value, str) else _shown_length(value, fmt)
+            length = len(value) if isinstance(value, str) else shown_length(value, fmt)
             if length > self.widths.get(col, 0):
                 self.widths[col] = length
 
@@ -356,7 +330,7 @@ class Sheet:
             self.styles[col][known[0]] += known[2]
             known[2] = 0
         for (col, fmt), extremes in self.extremes.items():
-            length = max(_shown_length(v, fmt) for v in extremes)
+            length = max(shown_length(v, fmt) for v in extremes)
             if length > self.widths.get(col, 0):
                 self.widths[col] = length
         self.extremes.clear()
@@ -370,14 +344,14 @@ class Sheet:
             )
         heights: dict[int, float] = {}
         if titles:
-            lines = max(_lines(title, final[col]) for col, title in enumerate(titles, start=1))
+            lines = max(text_lines(title, final[col]) for col, title in enumerate(titles, start=1))
             heights[self.header_row] = LINE_HEIGHT * lines + 2
         rows: dict[int, int] = {}
         spans = {(row, col): to for row, col, to in self.merged}
         for row, col, text in self.wrapped:
             to = spans.get((row, col), col)
             span = sum(final.get(c, 10) for c in range(col, to + 1))
-            rows[row] = max(rows.get(row, 1), _lines(text, span))
+            rows[row] = max(rows.get(row, 1), text_lines(text, span))
         for row, lines in rows.items():
             heights[row] = LINE_HEIGHT * lines + 2
         column_style = {col: counts.most_common(1)[0][0] for col, counts in self.styles.items()}
@@ -396,62 +370,6 @@ class Sheet:
             self.ws.set_column(col - 1, col - 1, width, cell_format)
 
 
-LINE_HEIGHT = 15  # points per line of 11-point text
-
-
-def _kind(value: Any) -> tuple[int, Any]:
-    """How a cell value is written (:mod:`audit.report.workbook_rows`): text as text, a
-    :class:`Formula` with its cached value (0 when it has none), a number (a non-finite one as an
-    empty cell), a boolean, nothing as an empty cell, anything else as its text."""
-    if isinstance(value, str):
-        return STRING, safe_text(value)
-    if isinstance(value, Formula):
-        return FORMULA, (value.text, value.cached if value.cached is not None else 0)
-    if isinstance(value, bool):
-        return BOOLEAN, value
-    if isinstance(value, (int, float)):
-        number = finite_or_none(float(value)) if isinstance(value, float) else value
-        return (BLANK, None) if number is None else (NUMBER, number)
-    if value is None:
-        return BLANK, None
-    return STRING, safe_text(str(value))
-
-
-def _lines(text: str, width: float) -> int:
-    """How many lines ``text`` takes in a wrapped column ``width`` characters wide (about one
-    character per width unit, word wrap)."""
-    per_line = max(int(width * 1.15) - 1, 1)
-    lines = 0
-    for paragraph in text.split("\n"):
-        count, used = 1, 0
-        for word in paragraph.split(" "):
-            extra = len(word) + (1 if used else 0)
-            if used and used + extra > per_line:
-                count += 1
-                used = len(word)
-            else:
-                used += extra
-        lines += count
-    return lines
-
-
-def _shown_length(value: Any, fmt: str | None) -> int:
-    """About how many characters a number takes once formatted with ``fmt``."""
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
-        return len(str(value))
-    if not math.isfinite(value):
-        return 0
-    fmt = fmt or GENERAL
-    suffix = "".join(re.findall(r'"([^"]*)"', fmt))
-    core = re.sub(r'"[^"]*"', "", fmt)
-    if core == GENERAL:
-        return len(f"{value:.10g}")
-    decimals = len(core.split(".")[1].rstrip("%")) if "." in core else 0
-    number = value * 100 if core.endswith("%") else value
-    text = f"{number:,.{decimals}f}" if "," in core else f"{number:.{decimals}f}"
-    return len(text) + len(suffix) + (1 if core.endswith("%") else 0)
-
-
 def column_letter(col: int) -> str:
     """The letters of a 1-based column number (1 → A, 27 → AA)."""
     letters = ""
@@ -464,8 +382,3 @@ def column_letter(col: int) -> str:
 def location(sheet: str, row: int, col: int = 1) -> str:
     quoted = "'" + sheet.replace("'", "''") + "'"
     return f"{quoted}!{column_letter(col)}{row}"
-
-
-def with_unit(fmt: str, label: str) -> str:
-    """A number format that shows ``label`` after the number."""
-    return f'{fmt}" {label}"'

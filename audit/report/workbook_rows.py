@@ -17,13 +17,21 @@ XlsxWriter's output shows there). What it uses of XlsxWriter's insides, all of t
   stored without its text cell, which :class:`Rows` writes), ``default_url_format``;
 * of a format, ``_get_xf_index`` (its number in the file's style table, given on first use).
 
+What kind of cell a value makes (:func:`cell_kind`) is here too: text always as text, with the
+control characters a cell cannot hold replaced (:func:`safe_text`), a :class:`Formula` with its
+cached value.
+
 The XlsxWriter versions this is written for are pinned in ``pyproject.toml``.
 """
 
 from __future__ import annotations
 
+import io
 import re
+from dataclasses import dataclass
 from typing import Any
+
+from audit.wording import finite_or_none
 
 NUMBER, STRING, FORMULA, BLANK, BOOLEAN = range(5)
 """The kinds of cell :meth:`Rows.cell` takes."""
@@ -37,6 +45,44 @@ _ESCAPED = re.compile("(_x[0-9a-fA-F]{4}_)")
 _CONTROL = re.compile("([\x00-\x08\x0b-\x1f])")
 _FUNCTION = re.compile(r"[A-Za-z_][A-Za-z0-9_.]*\(|^\{")
 """A formula that calls a function (XlsxWriter may prefix newer ones) or is an array formula."""
+
+
+_ILLEGAL = re.compile(r"[\000-\010]|[\013-\014]|[\016-\037]")
+"""Control characters an .xlsx cell cannot hold (XML 1.0)."""
+
+
+def safe_text(value: str) -> str:
+    """``value`` with the control characters a workbook cannot hold replaced by U+FFFD, and
+    carriage returns as line feeds (XML readers turn them into line feeds anyway)."""
+    if value.isprintable():  # the usual text: no control character at all
+        return value
+    return _ILLEGAL.sub("\ufffd", value.replace("\r\n", "\n").replace("\r", "\n"))
+
+
+@dataclass
+class Formula:
+    """A live formula and the value a spreadsheet program computes for it (cached in the file)."""
+
+    text: str
+    cached: float | None
+
+
+def cell_kind(value: Any) -> tuple[int, Any]:
+    """The kind of cell a value makes, and what it holds: text as text (:func:`safe_text`), a
+    :class:`Formula` with its cached value (0 when it has none), a number (a non-finite one as an
+    empty cell), a boolean, nothing as an empty cell, anything else as its text."""
+    if isinstance(value, str):
+        return STRING, safe_text(value)
+    if isinstance(value, Formula):
+        return FORMULA, (value.text, value.cached if value.cached is not None else 0)
+    if isinstance(value, bool):
+        return BOOLEAN, value
+    if isinstance(value, (int, float)):
+        number = finite_or_none(float(value)) if isinstance(value, float) else value
+        return (BLANK, None) if number is None else (NUMBER, number)
+    if value is None:
+        return BLANK, None
+    return STRING, safe_text(str(value))
 
 
 def column_letters(col: int) -> str:
@@ -165,6 +211,25 @@ class Rows:
         self.column_styles[col] = style
         return style
 
+    def _row_tag(self, row: int, number: str) -> str:
+        """The row's opening tag, with its height when it has one, as XlsxWriter writes it; rows
+        with more than a height (a format, hidden, an outline level) are left to XlsxWriter."""
+        ws = self.ws
+        info = ws.row_info.get(row)
+        plain_sheet = ws.excel_version == 2007 and ws.default_row_height == ws.original_row_height
+        if info is None and plain_sheet:
+            return f'<row r="{number}">'
+        if plain_sheet and info.row_format is None and not (info.hidden or info.level or info.collapsed):
+            if info.height == ws.original_row_height:
+                return f'<row r="{number}">'
+            return f'<row r="{number}" ht="{info.height * 0.75:.16g}" customHeight="1">'
+        fh, ws.fh = ws.fh, io.StringIO()
+        try:
+            ws._write_row(row, None, info)
+            return ws.fh.getvalue()
+        finally:
+            ws.fh = fh
+
     def _write(self) -> None:
         cells, row = self.cells, self.row
         if not cells:
@@ -176,10 +241,12 @@ class Rows:
         ws._check_dimensions(row, columns[-1])
         while len(self.letters) <= columns[-1]:
             self.letters.append(column_letters(len(self.letters)))
-        ws._write_row(row, None, ws.row_info.get(row))
         number = str(row + 1)
-        out = []
+        out = [self._row_tag(row, number)]
         letters, styles, column_styles = self.letters, self.styles, self.column_styles
+        info = ws.row_info.get(row)
+        if info is not None and info.row_format:  # a row format comes before a column's
+            column_styles = dict.fromkeys(columns, self._style(info.row_format))
         for col in columns:
             kind, value, cell_format = cells[col]
             if cell_format is None:
