@@ -50,7 +50,9 @@ workbook keeps to:
   measures column widths, row heights and each column's common style, the other writes the cells
   into XlsxWriter's constant-memory worksheets, one row at a time as XML of our own
   (:mod:`audit.report.workbook_rows`, the same bytes as XlsxWriter's cell writer), styles set per
-  column (memory flat in the number of rows).
+  column: no cell stays in memory once its row is written (what does grow with the rows: the
+  measured row heights, and XlsxWriter's record of each link and row height until the file is
+  closed).
 """
 
 from __future__ import annotations
