@@ -217,3 +217,53 @@ def test_rows_need_a_constant_memory_worksheet():
 )
 def test_column_letters(col, letters):
     assert workbook_rows.column_letters(col) == letters
+
+
+# -- Sheet.plain: the large sheets' short way must write what Sheet.put writes ---------------------
+PLAIN_ROWS = [
+    # (value, number format, wraps); in the third column two texts (the short way) against four
+    # cells that only put writes (nan, booleans, inf), so that the column's common style depends on
+    # both being counted alike
+    [(1.5, "0.00", False), ("Water", None, False), ("x", "0.000", False), (12, "0", False)],
+    [(-2.25e5, "0.00", False), ("=1+1", None, False), (float("nan"), "0.000", False), (7, "0", False)],
+    [
+        (3.0, "0.00", False),
+        ("a long text that wraps " * 5, None, True),
+        ("y", "0.000", False),
+        (None, "0", False),
+    ],
+    [(float("inf"), "0.00", False), ("", None, False), (True, "0.000", False), ("12", "0", False)],
+    [(4.0, "0.00", False), ("+x\x07", None, True), (float("inf"), "0.000", False), (123456, "0", False)],
+    [(None, "0.00", False), ("b", None, False), (False, "0.000", False), (5, "0", False)],
+]
+
+
+def _sheet_book(use_plain: bool) -> bytes:
+    from audit.report import workbook_file
+    from audit.report.workbook_cells import Sheet
+
+    def cells(sheet: Sheet) -> None:
+        sheet.header(["T [°C]", "fluid", "ρ", "line"])
+        for row, values in enumerate(PLAIN_ROWS, start=2):
+            for col, (value, fmt, wrap) in enumerate(values, start=1):
+                if use_plain:
+                    sheet.plain(row, col, value, fmt, wrap)
+                else:
+                    sheet.put(row, col, value, fmt=fmt, wrap=wrap)
+        sheet.fix(2, 20)
+        sheet.table(len(PLAIN_ROWS) + 1)
+
+    measuring = Sheet("Cells")
+    cells(measuring)
+    stream = io.BytesIO()
+    wb = workbook_file.open_workbook(stream, "cells", WHEN)
+    writing = Sheet("Cells", wb.add_worksheet("Cells"), measuring.layout, workbook_file.Formats(wb))
+    writing.layout_columns()
+    cells(writing)
+    writing.finish()
+    workbook_file.close(wb)
+    return stream.getvalue()
+
+
+def test_plain_cells_write_what_put_writes():
+    assert _sheet_book(use_plain=True) == _sheet_book(use_plain=False)
