@@ -48,8 +48,11 @@ workbook keeps to:
   on Data ▸ Calculate ▸ Recalculate Hard or when set to recalculate on load;
 * it is written in two passes by the same sheet code (:mod:`audit.report.workbook_cells`): one
   measures column widths, row heights and each column's common style, the other writes the cells
-  with XlsxWriter in constant-memory mode, one row at a time, styles set per column (memory flat
-  in the number of rows).
+  into XlsxWriter's constant-memory worksheets, one row at a time as XML of our own
+  (:mod:`audit.report.workbook_rows`, the same bytes as XlsxWriter's cell writer), styles set per
+  column: no cell stays in memory once its row is written (what does grow with the rows: the
+  measured row heights, and XlsxWriter's record of each link and row height until the file is
+  closed).
 """
 
 from __future__ import annotations
@@ -133,6 +136,7 @@ def build(
         module.write(book)
     result = book.result
     for title, sheet in book.sheets.items():
+        sheet.finish()
         # Landscape A4, one page wide, the header row on every page (audit.report.printing).
         # (the Exchangers sheet's blocks below its table have headers of their own)
         header_row = sheet.header_row if sheet.header_titles and title != EXCHANGERS else 0

@@ -3,16 +3,18 @@ row of each step, stream and finding (for links), and small helpers."""
 
 from __future__ import annotations
 
-from collections.abc import Iterable, Sequence
+import math
+from collections.abc import Callable, Iterable, Sequence
+from operator import attrgetter
 from typing import Any
 
 from audit.findings import SEVERITY_RANK, Finding
 from audit.reconcile.records import Reconciliation
 from audit.report.columns import OWN, Column
-from audit.report.display import in_si, shown
+from audit.report.display import DISPLAY, in_si, shown
 from audit.report.workbook_cells import Layout, Sheet
 from audit.report.workbook_file import Formats
-from audit.results import AuditResult, StepResult
+from audit.results import AuditResult, Delegated, StepResult
 
 OVERVIEW, FINDINGS, STEPS, STREAMS, HEAT, EXCHANGERS, EXERGY, METHOD = (
     "Overview",
@@ -170,3 +172,43 @@ def cell_value(column: Column, row: Any, quantity: str | None = None) -> Any:
     if quantity is None and column.fmt is None and value is None:
         return ""
     return value
+
+
+def cell_reader(
+    column: Column, quantity: str | None = None, record: type | None = None
+) -> Callable[[Any], Any]:
+    """:func:`cell_value` of ``column`` (and ``quantity``) as a function of the row object (of
+    class ``record`` when given), with what can be decided once per column decided once (the
+    workbook's large sheets call it for every cell); a value the record delegates to one of its
+    parts (:class:`audit.results.delegated.Delegated`) is read from the part directly."""
+    if column.read is not None or column.joined is not None or column.cell is not None:
+        return lambda row: cell_value(column, row, quantity)
+    if column.quantity == OWN:
+        return lambda row: cell_value(column, row, quantity)
+    delegated = getattr(record, column.key, None) if record is not None else None
+    if isinstance(delegated, Delegated):
+        get = attrgetter(f"{delegated.part}.{delegated.name}")
+    else:
+        get = attrgetter(column.key)
+    quantity = quantity or column.quantity
+    if quantity is not None and not in_si(quantity):
+        _, scale, offset = DISPLAY[quantity]
+        if column.difference:
+            offset = 0.0
+        isfinite = math.isfinite
+
+        def scaled(row: Any) -> Any:
+            value = get(row)
+            if value is None or not isfinite(value):
+                return None
+            return value * scale + offset
+
+        return scaled
+    if quantity is None and column.fmt is None:
+
+        def text(row: Any) -> Any:
+            value = get(row)
+            return "" if value is None else value
+
+        return text
+    return get

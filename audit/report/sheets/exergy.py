@@ -34,11 +34,11 @@ def write(book: Book) -> None:
         severity = worst(book.result.findings_for(s.id))
         sh.put(row, 1, rank, fmt=INTEGER)
         sh.put(row, 2, s.id, link=location(STEPS, book.step_row[s.id]))
-        sh.put(row, 3, s.kind)
-        sh.put(row, 4, shown(s.exergy_destroyed, "power"), fmt=FORMATS["power"])
-        sh.put(row, 5, shown(s.S_gen, "entropy_rate"), fmt=FORMATS["entropy_rate"])
+        sh.plain(row, 3, s.kind)
+        sh.plain(row, 4, shown(s.exergy_destroyed, "power"), FORMATS["power"])
+        sh.plain(row, 5, shown(s.S_gen, "entropy_rate"), FORMATS["entropy_rate"])
         sh.put(row, 6, severity or "none", fill=FILLS[severity] if severity else None)
-        sh.put(row, 7, s.description or "", wrap=True)
+        sh.plain(row, 7, s.description or "", wrap=True)
         row += 1
     vessels = [s for s in book.result.steps if s.batch]
     if vessels:

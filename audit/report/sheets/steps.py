@@ -8,6 +8,7 @@ number format."""
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from typing import Any
 
 from audit.findings import ERROR
@@ -20,7 +21,7 @@ from audit.report.sheets.context import (
     STEPS,
     TOTAL_BASIS,
     Book,
-    cell_value,
+    cell_reader,
     marker,
     worst,
 )
@@ -50,12 +51,12 @@ def _format(column: Column, quantity: str | None) -> str | None:
     return FORMATS[quantity] if quantity else None
 
 
-def _plan(column: Column, batch: bool) -> tuple[Column, str | None, str | None]:
-    """A column with its quantity and number format on a flow step's row or a vessel's."""
+def _plan(column: Column, batch: bool) -> tuple[Column, Callable[[Any], Any], str | None]:
+    """A column with its cell reader and number format on a flow step's row or a vessel's."""
     quantity = column.quantity
     if batch and quantity in VESSEL_QUANTITY:
         quantity = VESSEL_QUANTITY[quantity]
-    return column, quantity, _format(column, quantity)
+    return column, cell_reader(column, quantity, StepResult), _format(column, quantity)
 
 
 def write(book: Book) -> None:
@@ -67,31 +68,38 @@ def write(book: Book) -> None:
     letter = {c.key: column_letter(index) for index, c in enumerate(columns, start=1)}
     # each column's quantity and number format, for flow steps and for vessels (batch steps)
     plans = {batch: [_plan(c, batch) for c in columns] for batch in (False, True)}
+    # the columns written below one by one, and the others: plain cells read through their plans
+    at = {c.key: col for col, c in enumerate(columns, start=1)}
+    own = ("id", "findings", "basis", "residual_formula")
+    plain_plans = {
+        batch: [
+            (col, read, fmt, column.wrap)
+            for col, (column, read, fmt) in enumerate(plans[batch], start=1)
+            if column.key not in own and not (batch and column.key in FLOW_ONLY)
+        ]
+        for batch in (False, True)
+    }
+    residual_fmt = {batch: plans[batch][at["residual_formula"] - 1][2] for batch in (False, True)}
+    plain = sh.plain
     for row, s in enumerate(book.result.steps, start=2):
         worst_severity = worst(book.result.findings_for(s.id))
         fill = FILLS[worst_severity] if worst_severity else None
-        for col, (column, quantity, fmt) in enumerate(plans[s.batch], start=1):
-            key = column.key
-            if key == "id":
-                sh.put(row, col, s.id, fill=fill, font=BOLD if worst_severity == ERROR else PLAIN)
-            elif key == "findings":
-                if worst_severity:
-                    count = len(book.result.findings_for(s.id))
-                    sh.put(
-                        row,
-                        col,
-                        marker(worst_severity, count),
-                        fill=fill,
-                        link=location(FINDINGS, book.first_finding_row[("step", s.id)]),
-                    )
-                else:
-                    sh.put(row, col, "none")
-            elif key == "basis":
-                sh.put(row, col, TOTAL_BASIS if s.batch else RATE_BASIS)
-            elif key == "residual_formula":
-                sh.put(row, col, residual_formula(s, row, letter), fmt=fmt)
-            elif not (s.batch and key in FLOW_ONLY):
-                sh.put(row, col, cell_value(column, s, quantity), fmt=fmt, wrap=column.wrap)
+        sh.put(row, at["id"], s.id, fill=fill, font=BOLD if worst_severity == ERROR else PLAIN)
+        if worst_severity:
+            sh.put(
+                row,
+                at["findings"],
+                marker(worst_severity, len(book.result.findings_for(s.id))),
+                fill=fill,
+                link=location(FINDINGS, book.first_finding_row[("step", s.id)]),
+            )
+        else:
+            plain(row, at["findings"], "none")
+        plain(row, at["basis"], TOTAL_BASIS if s.batch else RATE_BASIS)
+        formula = residual_formula(s, row, letter)
+        sh.put(row, at["residual_formula"], formula, fmt=residual_fmt[s.batch])
+        for col, read, fmt, wrap in plain_plans[s.batch]:
+            plain(row, col, read(s), fmt, wrap)
     sh.table(len(book.result.steps) + 1)
     if book.result.steps:
         # The formula's cell turns red while |residual| exceeds the step's energy tolerance,

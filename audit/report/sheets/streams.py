@@ -7,8 +7,17 @@ from __future__ import annotations
 from audit.findings import Finding
 from audit.report.blame import blame_note, blamed_streams
 from audit.report.columns import STREAMS as COLUMNS
-from audit.report.sheets.context import FINDINGS, STEPS, STREAMS, Book, cell_value, marker, worst
+from audit.report.sheets.context import (
+    FINDINGS,
+    STEPS,
+    STREAMS,
+    Book,
+    cell_reader,
+    marker,
+    worst,
+)
 from audit.report.workbook_cells import FILLS, FORMATS, location
+from audit.results import StreamResult
 
 WIDTHS = {"description": 32}
 
@@ -27,29 +36,39 @@ def write(book: Book) -> None:
     for f in book.result.findings:
         if f.stream:
             stream_findings.setdefault(f.stream, []).append(f)
+    # the columns written below one by one, and the others: plain cells, each column's reader and
+    # number format decided once
+    at = {c.key: col for col, c in enumerate(columns, start=1)}
+    own = ("id", "findings", "from_step", "to_step")
+    plans = [
+        (
+            col,
+            cell_reader(column, record=StreamResult),
+            column.fmt or (FORMATS[column.quantity] if column.quantity else None),
+            column.wrap,
+        )
+        for col, column in enumerate(columns, start=1)
+        if column.key not in own
+    ]
+    plain = sh.plain
     for row, s in enumerate(book.result.streams, start=2):
         worst_severity = worst(stream_findings.get(s.id, []))
         fill = FILLS[worst_severity] if worst_severity else None
-        for col, column in enumerate(columns, start=1):
-            key = column.key
-            if key == "id":
-                sh.put(row, col, s.id, fill=fill)
-            elif key == "findings":
-                if worst_severity:
-                    sh.put(
-                        row,
-                        col,
-                        marker(worst_severity, len(stream_findings[s.id])),
-                        fill=fill,
-                        link=location(FINDINGS, book.first_finding_row[("stream", s.id)]),
-                    )
-                else:
-                    sh.put(row, col, blame_note(blamed.get(s.id)) or "none")
-            elif key in ("from_step", "to_step"):
-                step_id = (producer if key == "from_step" else consumer).get(s.id)
-                if step_id:
-                    sh.put(row, col, step_id, link=location(STEPS, book.step_row[step_id]))
-            else:
-                fmt = column.fmt or (FORMATS[column.quantity] if column.quantity else None)
-                sh.put(row, col, cell_value(column, s), fmt=fmt, wrap=column.wrap)
+        sh.put(row, at["id"], s.id, fill=fill)
+        if worst_severity:
+            sh.put(
+                row,
+                at["findings"],
+                marker(worst_severity, len(stream_findings[s.id])),
+                fill=fill,
+                link=location(FINDINGS, book.first_finding_row[("stream", s.id)]),
+            )
+        else:
+            plain(row, at["findings"], blame_note(blamed.get(s.id)) or "none")
+        for key, steps_of in (("from_step", producer), ("to_step", consumer)):
+            step_id = steps_of.get(s.id)
+            if step_id:
+                sh.put(row, at[key], step_id, link=location(STEPS, book.step_row[step_id]))
+        for col, read, fmt, wrap in plans:
+            plain(row, col, read(s), fmt, wrap)
     sh.table(len(book.result.streams) + 1)
