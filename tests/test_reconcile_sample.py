@@ -50,6 +50,15 @@ def test_after_removing_the_gross_errors_the_global_test_passes(result):
     assert result.fails()
 
 
+def test_each_round_is_tested_with_the_readings_it_names(result):
+    # After C1.shaft_power replaced S22.T (the first choice), the global test printed after each
+    # round is that of the readings removed up to it: the last round's is the final one.
+    last = result.eliminations[-1].after
+    assert last.statistic == pytest.approx(result.final.statistic, rel=1e-9)
+    assert last.dof == result.final.dof
+    assert [e.after.dof for e in result.eliminations] == [25, 24]
+
+
 def test_every_reconciled_balance_closes(result):
     for key, residual, unit in result.constraints:
         scale = {"kg/s": 1e-6, "W": 1e-2, "J": 1.0}[unit]  # far below any reading's uncertainty

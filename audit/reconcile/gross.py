@@ -70,6 +70,8 @@ def eliminate(network: Network, confidence: float) -> tuple[Round, Round, list[E
             )
         )
     current = _best_alternative(network, confidence, current, done)
+    if any(elim.swapped for elim in done):
+        _retest_rounds(network, confidence, current, done)
     for elim in done:
         index = network.index[elim.removed]
         elim.estimate = float(current.estimate.x[index])
@@ -110,6 +112,21 @@ def _best_alternative(
                 elim.measured = network.variables[network.index[alternative]].measured
                 current = trial
     return current
+
+
+def _retest_rounds(network: Network, confidence: float, last: Round, done: list[Elimination]) -> None:
+    """After a swap, each round's global test is taken again with the removals kept up to that
+    round (the one printed after it must be that of the readings named, not of the first choice
+    the swap replaced); the last round is ``last`` itself."""
+    for k, elim in enumerate(done):
+        if k == len(done) - 1:
+            elim.after = global_test(last, confidence)
+            continue
+        removed = {e.removed for e in done[: k + 1]}
+        measured = [i for i, v in enumerate(network.variables) if v.is_measured and v.key not in removed]
+        elim.after = global_test(
+            solve_round(network, last.estimate.x.copy(), measured, confidence), confidence
+        )
 
 
 def _note(network: Network, elim: Elimination) -> str:
