@@ -196,6 +196,19 @@ def reference_shift(
     second; the work-bound margin plus the first minus T0 times the second. A group where humid
     air takes up or gives off water is read per conserved part (:func:`_parts_shift`)."""
     dH = dS = 0.0
+    if paired and len(inlets) == len(outlets):
+        pairs = tuple(zip(inlets, outlets, strict=True))
+        if all(i.fluid == o.fluid and i.fluid != HUMID_AIR for i, o in pairs):
+            # each inlet/outlet pair is a group (flow_groups): read as the loop below reads
+            # one-stream groups, in the same arithmetic
+            for i, o in pairs:
+                m_out = o.mass_flow
+                change = (0 + i.mass_flow) - (0 + m_out)
+                if change == 0.0 or m_out <= 0.0:
+                    continue
+                dH += change * (0 + m_out * o.h) / m_out
+                dS += change * (0 + m_out * o.s) / m_out
+            return dH, dS
     for ins, outs in flow_groups(inlets, outlets, paired):
         if not ins or not outs:
             continue  # a fluid that only enters or only leaves (it reacts): taken as measured
