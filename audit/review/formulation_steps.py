@@ -43,6 +43,8 @@ from __future__ import annotations
 
 from collections.abc import Callable, Iterator
 from dataclasses import dataclass
+from functools import lru_cache
+from typing import Any
 
 from audit.errors import StateError
 from audit.findings import WARNING, Finding, relative
@@ -85,9 +87,11 @@ def open_fluids(runner: StepRunner) -> set[str]:
     does not declare."""
     engine = runner.engine
     found = set()
+    asked: set[str] = set()  # each fluid name once (a balance names a few fluids many times)
     for spec in runner.balance.streams.values():
-        if spec.fluid is None or spec.composition is not None:
+        if spec.fluid is None or spec.composition is not None or spec.fluid in asked:
             continue
+        asked.add(spec.fluid)
         try:
             name = engine.canonical_name(spec.fluid)
         except StateError:  # pragma: no cover - every stream was evaluated
@@ -214,15 +218,26 @@ def _rounding_floors(runner: StepRunner, index: int, result: StepResult) -> Iter
     for claim in step_claims(runner.balance.steps[index]):
         if claim.kind == "power":
             text = written_text(document, ("steps", index, *claim.path))
-            floor += resolution(text, "power", site)
+            floor += _resolution(text, "power", site)
     yield floor
     if len(result.inlets) == len(result.outlets):
         for i, o in zip(result.inlets, result.outlets, strict=True):
             inlet, outlet = runner.streams[i], runner.streams[o]
             if inlet.fluid == outlet.fluid:
                 text = written_text(document, ("streams", i, "flow"))
-                floor += resolution(text, "flow", site) * abs(inlet.h - outlet.h)
+                floor += _resolution(text, "flow", site) * abs(inlet.h - outlet.h)
                 yield floor
+
+
+_remembered_resolution = lru_cache(maxsize=4096, typed=True)(resolution)
+
+
+def _resolution(text: Any, kind: str, site: float | None) -> float:
+    """:func:`resolution`, of each written number once (a balance writes one flow on several
+    streams)."""
+    if text is None or isinstance(text, (str, int, float)):
+        return _remembered_resolution(text, kind, site)
+    return resolution(text, kind, site)
 
 
 def _size(law: _Law, margin: float) -> float:
