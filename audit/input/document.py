@@ -254,13 +254,14 @@ class _Builder:
         if depth > 100:
             raise _FastPathDeclined  # the usual path words the error
         result: dict = {}
-        positions = self.positions if len(path) < self.keep else {}
+        kept = len(path) < self.keep  # the items' own positions (else only the mapping's is)
+        positions = self.positions
         row = line + 1
         nodes = 0
         for key, key_column, key_tag, first, second, tag in items:
             if key_tag is None:
                 nodes += 1
-                if not result:
+                if kept and not result:
                     positions.setdefault(path + ("<key>",), (row, key_column + 1))
             else:
                 key = self.build(
@@ -268,16 +269,17 @@ class _Builder:
                 )
                 if key in result:
                     raise _FastPathDeclined  # the usual path words the duplicate-key error
-            here = path + (key,)
             if type(second) is list:  # a nested mapping: (column of its brace, its items)
                 nodes += 1
-                result[key] = self._flow_line(second, line, here, depth)
+                result[key] = self._flow_line(second, line, path + (key,), depth)
             elif tag is None:  # a plain string: (text, column)
                 nodes += 1
                 result[key] = first
             else:
-                result[key] = self.build(flowlines.scalar_node(first, tag, line, second), here, depth)
-            positions[here] = (row, key_column + 1)
+                scalar = flowlines.scalar_node(first, tag, line, second)
+                result[key] = self.build(scalar, path + (key,), depth)
+            if kept:
+                positions[path + (key,)] = (row, key_column + 1)
         self.count += nodes
         if self.count > MAX_NODES:
             raise _FastPathDeclined  # the usual path words the error
