@@ -136,6 +136,7 @@ def _flat_items(line: str, start: int, stop: int) -> list[Item] | None:
         return None
     items: list[Item] = []
     keys: set[str] = set()
+    known = _PLAIN.get  # (most keys and many values are remembered: no call for them)
     at = start
     for part in line[start:stop].split(","):
         key_text, _, value_text = part.partition(":")
@@ -147,9 +148,9 @@ def _flat_items(line: str, start: int, stop: int) -> list[Item] | None:
         if key in keys:
             return None  # the usual path words the duplicate-key error
         keys.add(key)
-        key, key_tag = _plain(key)
+        key, key_tag = known(key) or _plain(key)
         value = value.rstrip(" ")
-        value, tag = (value, None) if " " in value else _plain(value)
+        value, tag = (value, None) if " " in value else (known(value) or _plain(value))
         items.append((key, key_at, key_tag, value, value_at, tag))
     return items
 
