@@ -13,6 +13,7 @@ from __future__ import annotations
 import re
 
 import pytest
+import yaml
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
@@ -203,6 +204,17 @@ def documents(draw) -> str:
 @given(documents())
 def test_fast_path_reads_generated_lines_like_pure_pyyaml(monkeypatch, text):
     assert_reads_alike(text, monkeypatch)
+
+
+def test_plain_text_is_tagged_as_the_resolver_tags_it():
+    # text starting with a character no implicit resolver reads is a string without asking it
+    # (ids and names); anything else is asked; either way the tag is the resolver's
+    resolver = yaml.resolver.Resolver()
+    texts = [t for t in TOKENS if t.strip()] + KEYS + ["L12a", "yes", "Yes", "off", "NULL", "True"]
+    for text in texts:
+        flowlines._PLAIN.pop(text, None)
+        tag = resolver.resolve(yaml.ScalarNode, text, (True, False))
+        assert flowlines._plain(text) == (text, None if tag == flowlines.STR_TAG else tag)
 
 
 # -- units ----------------------------------------------------------------------------------------

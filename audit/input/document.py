@@ -155,35 +155,7 @@ class _Builder:
         if len(path) <= self.keep:
             self.positions.setdefault(path, (node.start_mark.line + 1, node.start_mark.column + 1))
         if isinstance(node, yaml.ScalarNode):
-            if node.tag == _STR_TAG:
-                return node.value  # what SafeConstructor makes of a string, without its calls
-            if node.tag not in _ALLOWED_SCALAR_TAGS:
-                raise self._fail(node, f"the tag '{node.tag}' is not allowed in a balance file")
-            if node.tag == _STANDARD_TAG + "timestamp":
-                return node.value  # keep dates as written (and never fail on 2024-02-30)
-            if node.tag == _STANDARD_TAG + "bool" and node.value.lower() in _YES_NO:
-                raise InputError(
-                    f"'{node.value}' reads as a yes/no value in YAML; write the number meant, "
-                    "true or false, or put text in quotes",
-                    file=self.file,
-                    line=node.start_mark.line + 1,
-                    column=node.start_mark.column + 1,
-                    field_path=".".join(map(str, path)) or None,
-                )
-            if len(path) <= 2 and node.tag in (_STANDARD_TAG + "float", _STANDARD_TAG + "int"):
-                self.texts[path] = node.value
-            try:
-                return self._scalar.construct_object(node, deep=True)
-            except (ValueError, IndexError, KeyError) as exc:
-                # e.g. an integer of more than 4300 digits, or '!!int' with no value
-                shown = node.value if len(node.value) <= 40 else node.value[:40] + "..."
-                if "integer string conversion" in str(exc):
-                    reason = f"a number of {len(node.value):,} digits is too long to read"
-                elif isinstance(exc, ValueError):
-                    reason = str(exc)
-                else:
-                    reason = f"it is not a valid {node.tag.rsplit(':', 1)[-1]}"
-                raise self._fail(node, f"the value '{shown}' cannot be read: {reason}") from None
+            return self._scalar_value(node, path)
         if id(node) in self._open:
             raise self._fail(
                 node,
@@ -210,6 +182,52 @@ class _Builder:
             self._open.discard(id(node))
             return mapping
         raise self._fail(node, "unsupported YAML node")  # pragma: no cover
+
+    def _flow_scalar(self, node: yaml.ScalarNode, path: Path_) -> Any:
+        """:meth:`build` of a scalar node made for a value :mod:`audit.input.flowlines` read (not
+        a node of the composed graph, so never an alias): counted and placed as :meth:`build`
+        does, its value constructed and not remembered by the constructor (which would keep every
+        such node alive until the file is read)."""
+        self.count += 1
+        if self.count > MAX_NODES:
+            raise self._fail(node, f"the file holds more than {MAX_NODES:,} values", LimitError)
+        if len(path) <= self.keep:
+            self.positions.setdefault(path, (node.start_mark.line + 1, node.start_mark.column + 1))
+        value = self._scalar_value(node, path)
+        self._scalar.constructed_objects.pop(node, None)
+        return value
+
+    def _scalar_value(self, node: yaml.ScalarNode, path: Path_) -> Any:
+        """The value of a scalar node, its tag checked (see the module docstring)."""
+        if node.tag == _STR_TAG:
+            return node.value  # what SafeConstructor makes of a string, without its calls
+        if node.tag not in _ALLOWED_SCALAR_TAGS:
+            raise self._fail(node, f"the tag '{node.tag}' is not allowed in a balance file")
+        if node.tag == _STANDARD_TAG + "timestamp":
+            return node.value  # keep dates as written (and never fail on 2024-02-30)
+        if node.tag == _STANDARD_TAG + "bool" and node.value.lower() in _YES_NO:
+            raise InputError(
+                f"'{node.value}' reads as a yes/no value in YAML; write the number meant, "
+                "true or false, or put text in quotes",
+                file=self.file,
+                line=node.start_mark.line + 1,
+                column=node.start_mark.column + 1,
+                field_path=".".join(map(str, path)) or None,
+            )
+        if len(path) <= 2 and node.tag in (_STANDARD_TAG + "float", _STANDARD_TAG + "int"):
+            self.texts[path] = node.value
+        try:
+            return self._scalar.construct_object(node, deep=True)
+        except (ValueError, IndexError, KeyError) as exc:
+            # e.g. an integer of more than 4300 digits, or '!!int' with no value
+            shown = node.value if len(node.value) <= 40 else node.value[:40] + "..."
+            if "integer string conversion" in str(exc):
+                reason = f"a number of {len(node.value):,} digits is too long to read"
+            elif isinstance(exc, ValueError):
+                reason = str(exc)
+            else:
+                reason = f"it is not a valid {node.tag.rsplit(':', 1)[-1]}"
+            raise self._fail(node, f"the value '{shown}' cannot be read: {reason}") from None
 
     def _mapping(self, node: yaml.MappingNode, path: Path_, depth: int) -> dict:
         result: dict = {}
@@ -254,30 +272,32 @@ class _Builder:
         if depth > 100:
             raise _FastPathDeclined  # the usual path words the error
         result: dict = {}
-        positions = self.positions if len(path) < self.keep else {}
+        kept = len(path) < self.keep  # the items' own positions (else only the mapping's is)
+        positions = self.positions
         row = line + 1
         nodes = 0
         for key, key_column, key_tag, first, second, tag in items:
             if key_tag is None:
                 nodes += 1
-                if not result:
+                if kept and not result:
                     positions.setdefault(path + ("<key>",), (row, key_column + 1))
             else:
-                key = self.build(
-                    flowlines.scalar_node(key, key_tag, line, key_column), path + ("<key>",), depth
+                key = self._flow_scalar(
+                    flowlines.scalar_node(key, key_tag, line, key_column), path + ("<key>",)
                 )
                 if key in result:
                     raise _FastPathDeclined  # the usual path words the duplicate-key error
-            here = path + (key,)
             if type(second) is list:  # a nested mapping: (column of its brace, its items)
                 nodes += 1
-                result[key] = self._flow_line(second, line, here, depth)
+                result[key] = self._flow_line(second, line, path + (key,), depth)
             elif tag is None:  # a plain string: (text, column)
                 nodes += 1
                 result[key] = first
             else:
-                result[key] = self.build(flowlines.scalar_node(first, tag, line, second), here, depth)
-            positions[here] = (row, key_column + 1)
+                scalar = flowlines.scalar_node(first, tag, line, second)
+                result[key] = self._flow_scalar(scalar, path + (key,))
+            if kept:
+                positions[path + (key,)] = (row, key_column + 1)
         self.count += nodes
         if self.count > MAX_NODES:
             raise _FastPathDeclined  # the usual path words the error

@@ -37,6 +37,10 @@ _SCALAR = r"(?:[A-Za-z0-9_.(+°µ]|-(?=[0-9.]))[A-Za-z0-9_.+\-/()*^°³²µ ]*"
 _ITEM = re.compile(rf"[ ]*({_KEY}):[ ]+(?:\{{([^{{}}]*)\}}|({_SCALAR}))[ ]*(,|$)")
 _INNER_ITEM = re.compile(rf"[ ]*({_KEY}):[ ]+({_SCALAR})[ ]*(,|$)")
 _LEAD = re.compile(r"^[ ]*(?:-[ ]+)?(?:[A-Za-z0-9_][A-Za-z0-9_.\-]*:[ ]+)?$")
+_FLAT_ITEM = rf"[ ]*{_KEY}:[ ]+{_SCALAR}[ ]*"
+_FLAT = re.compile(rf"{_FLAT_ITEM}(?:,{_FLAT_ITEM})*")
+"""A flow mapping's items with no nested mapping, as :data:`_INNER_ITEM` reads them one by one:
+neither a key nor a value holds a comma or a colon, so its text splits at them."""
 
 STR_TAG = "tag:yaml.org,2002:str"
 
@@ -90,6 +94,8 @@ def scan(text: str) -> Scan | None:
 def _items(line: str, start: int, stop: int, nested: bool) -> list[Item] | None:
     """The items of the flow mapping written in ``line[start:stop]``, or None when it is not
     entirely made of recognised items (or repeats a key)."""
+    if not nested or line.find("{", start, stop) < 0:
+        return _flat_items(line, start, stop)
     items: list[Item] = []
     keys: set[str] = set()
     position = start
@@ -123,9 +129,40 @@ def _items(line: str, start: int, stop: int, nested: bool) -> list[Item] | None:
     return items
 
 
+def _flat_items(line: str, start: int, stop: int) -> list[Item] | None:
+    """:func:`_items` of a mapping with no nested mapping: the same items, with the same
+    columns, checked by one match of the whole text and split at its commas and colons."""
+    if _FLAT.fullmatch(line, start, stop) is None:
+        return None
+    items: list[Item] = []
+    keys: set[str] = set()
+    known = _PLAIN.get  # (most keys and many values are remembered: no call for them)
+    at = start
+    for part in line[start:stop].split(","):
+        key_text, _, value_text = part.partition(":")
+        key = key_text.lstrip(" ")
+        value = value_text.lstrip(" ")
+        key_at = at + len(key_text) - len(key)
+        value_at = at + len(key_text) + 1 + len(value_text) - len(value)
+        at += len(part) + 1
+        if key in keys:
+            return None  # the usual path words the duplicate-key error
+        keys.add(key)
+        key, key_tag = known(key) or _plain(key)
+        value = value.rstrip(" ")
+        value, tag = (value, None) if " " in value else (known(value) or _plain(value))
+        items.append((key, key_at, key_tag, value, value_at, tag))
+    return items
+
+
 _RESOLVER = yaml.resolver.Resolver()
 _PLAIN: dict[str, tuple[str, str | None]] = {}
 _MAX_PLAIN = 10_000
+_IMPLICIT_FIRST = frozenset(_RESOLVER.yaml_implicit_resolvers)
+"""The first characters of the text PyYAML's implicit resolvers read (digits, signs, the first
+letters of true/false/yes/no/on/off/null, ...): the resolver looks its patterns up by the text's
+first character, so text starting otherwise is a string (the default resolver has no pattern for
+any text, key None, nor path resolvers)."""
 
 
 def _plain(text: str) -> tuple[str, str | None]:
@@ -137,8 +174,11 @@ def _plain(text: str) -> tuple[str, str | None]:
     known = _PLAIN.get(text)
     if known is not None:
         return known
-    tag = _RESOLVER.resolve(yaml.ScalarNode, text, (True, False))
-    known = (text, None if tag == STR_TAG else tag)
+    if text and text[0] not in _IMPLICIT_FIRST:
+        known = (text, None)  # the resolver asks no pattern of text starting so (ids, names)
+    else:
+        tag = _RESOLVER.resolve(yaml.ScalarNode, text, (True, False))
+        known = (text, None if tag == STR_TAG else tag)
     if len(_PLAIN) < _MAX_PLAIN:
         _PLAIN[text] = known
     return known

@@ -77,12 +77,19 @@ CurrentClaim = Annotated[Current | None, ClaimField("current")]
 
 def claim_fields(model: type[BaseModel]) -> dict[str, ClaimField]:
     """The fields of ``model`` declared as claims, with their declaration."""
-    found = {}
-    for name, info in model.model_fields.items():
-        for meta in info.metadata:
-            if isinstance(meta, ClaimField):
-                found[name] = meta
-    return found
+    known = _CLAIM_FIELDS.get(model)
+    if known is None:
+        known = _CLAIM_FIELDS[model] = {
+            name: meta
+            for name, info in model.model_fields.items()
+            for meta in info.metadata
+            if isinstance(meta, ClaimField)
+        }
+    return dict(known)
+
+
+_CLAIM_FIELDS: dict[type[BaseModel], dict[str, ClaimField]] = {}
+""":func:`claim_fields` of each model class, read once (the review asks for every step)."""
 
 
 @dataclass(frozen=True)

@@ -114,6 +114,7 @@ class PropertyEngine(MixtureStates, LiquidStates, DeclaredBases, HumidAirStates)
         self._fluids: dict[str, Fluid] = {}
         self._cache: dict[tuple, State] = {}
         self._dead: dict[str, tuple[float, float]] = {}
+        self._dead_named: dict[str, tuple[float, float]] = {}
         self._tsat: dict[tuple[str, float], float] = {}
         self._mixtures = mixtures.IdealGasMixtures()
         self._mixture_names: dict[str, tuple[mixtures.Component, ...]] = {}
@@ -357,13 +358,18 @@ class PropertyEngine(MixtureStates, LiquidStates, DeclaredBases, HumidAirStates)
 
     def dead_state(self, fluid: str) -> tuple[float, float]:
         """(h0 [J/kg], s0 [J/(kg K)]) of ``fluid`` at the engine's dead state."""
+        known = self._dead_named.get(fluid)  # a pure fluid's, by the name asked (every step asks)
+        if known is not None:
+            return known
         components = self._mixture_names.get(fluid)
         if components is not None:
             dead = self._mixtures.state(components, self.dead_T, self.dead_P, check_ideal=False)
             return dead.h, dead.s
         if fluid in self._liquid_names:
             return self.liquid_dead_state(fluid)
-        return self._dead_state(self.fluid(fluid))
+        value = self._dead_state(self.fluid(fluid))
+        self._dead_named[fluid] = value
+        return value
 
     def saturation_pressure(self, fluid: str, T: float) -> float | None:
         """p_sat(T) [Pa] of a pure fluid below its critical temperature, else None."""

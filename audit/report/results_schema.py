@@ -26,11 +26,11 @@ _NUMBER = {"type": ["number", "null"]}  # non-finite numbers are written as null
 def _annotations(record: type) -> dict[str, str]:
     hints = {f.name: str(f.type) for f in dataclasses.fields(record)}
     for name, member in inspect.getmembers(record):
-        if isinstance(member, property):
-            hints[name] = str(member.fget.__annotations__.get("return"))
-        elif isinstance(member, Delegated):  # a value of a composed part, typed Delegated[...]
+        if isinstance(member, Delegated):  # a value of a composed part, typed Delegated[...]
             (kind,) = get_args(getattr(member, "__orig_class__", Delegated[Any])) or (Any,)
             hints[name] = kind.__name__ if isinstance(kind, type) else str(kind)
+        elif isinstance(member, property):  # (Delegated is a property too: asked first)
+            hints[name] = str(member.fget.__annotations__.get("return"))
     return hints
 
 

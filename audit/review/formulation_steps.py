@@ -43,6 +43,8 @@ from __future__ import annotations
 
 from collections.abc import Callable, Iterator, Mapping
 from dataclasses import dataclass
+from functools import lru_cache
+from typing import Any
 
 from audit.errors import StateError
 from audit.findings import WARNING, Finding, relative
@@ -77,6 +79,7 @@ class _Law:
     key: str
     margin: Margin
     strict: float  # allowance without the formulation spread [W or W/K]
+    here: float  # the margin of the solved step (``margin`` of it, read once)
 
 
 def open_fluids(runner: StepRunner) -> set[str]:
@@ -84,9 +87,11 @@ def open_fluids(runner: StepRunner) -> set[str]:
     does not declare."""
     engine = runner.engine
     found = set()
+    asked: set[str] = set()  # each fluid name once (a balance names a few fluids many times)
     for spec in runner.balance.streams.values():
-        if spec.fluid is None or spec.composition is not None:
+        if spec.fluid is None or spec.composition is not None or spec.fluid in asked:
             continue
+        asked.add(spec.fluid)
         try:
             name = engine.canonical_name(spec.fluid)
         except StateError:  # pragma: no cover - every stream was evaluated
@@ -114,7 +119,8 @@ def _laws(runner: StepRunner, result: StepResult, fluids: set[str]) -> list[_Law
     energy = (part.energy if part else 0.0) + numerical
     exergy = (part.exergy if part else 0.0) + numerical
     nominal: dict[tuple, float] = {}
-    sign = 1.0 if result.energy_residual - reference_shift(result, streams, nominal)[0] >= 0 else -1.0
+    shift_H, shift_S = reference_shift(result, streams, nominal)  # the solved step's, read once
+    sign = 1.0 if result.energy_residual - shift_H >= 0 else -1.0
 
     def first_law(r: StepResult, s: Mapping[str, StreamResult]) -> float:
         return sign * (r.energy_residual - reference_shift(r, s, nominal)[0])
@@ -127,9 +133,9 @@ def _laws(runner: StepRunner, result: StepResult, fluids: set[str]) -> list[_Law
         return -(r.S_gen + reference_shift(r, s, nominal)[1])
 
     return [
-        _Law("energy", first_law, energy),
-        _Law("work", work, exergy),
-        _Law("entropy", entropy, exergy / T0),
+        _Law("energy", first_law, energy, sign * (result.energy_residual - shift_H)),
+        _Law("work", work, exergy, result.W - result.W_rev + shift_H - T0 * shift_S),
+        _Law("entropy", entropy, exergy / T0, -(result.S_gen + shift_S)),
     ]
 
 
@@ -168,13 +174,9 @@ def _assess_step(
     other: PropertyEngine,
     findings: list[Finding],
 ) -> list[Finding]:
-    laws = [
-        law
-        for law in _laws(runner, result, fluids)
-        if _size(law, law.margin(result, runner.streams)) > law.strict
-    ]
+    laws = [law for law in _laws(runner, result, fluids) if _size(law, law.here) > law.strict]
     if [law.key for law in laws] == ["energy"]:  # the common case: screened without re-evaluating
-        beyond = _size(laws[0], laws[0].margin(result, runner.streams)) - laws[0].strict
+        beyond = _size(laws[0], laws[0].here) - laws[0].strict
         if any(beyond <= 0.9 * floor for floor in _rounding_floors(runner, index, result)):
             laws = []
     if not laws:
@@ -183,7 +185,7 @@ def _assess_step(
         moved, streams = runner.on_engine(index, other)
     except StateError:
         return findings  # a state outside the other formulation's range: nothing to compare
-    here = [law.margin(result, runner.streams) for law in laws]
+    here = [law.here for law in laws]
     there = [_size(law, law.margin(moved, streams)) for law in laws]
     halved = [j for j in range(len(laws)) if there[j] <= 0.5 * here[j]]
     if not halved:
@@ -216,15 +218,26 @@ def _rounding_floors(runner: StepRunner, index: int, result: StepResult) -> Iter
     for claim in step_claims(runner.balance.steps[index]):
         if claim.kind == "power":
             text = written_text(document, ("steps", index, *claim.path))
-            floor += resolution(text, "power", site)
+            floor += _resolution(text, "power", site)
     yield floor
     if len(result.inlets) == len(result.outlets):
         for i, o in zip(result.inlets, result.outlets, strict=True):
             inlet, outlet = runner.streams[i], runner.streams[o]
             if inlet.fluid == outlet.fluid:
                 text = written_text(document, ("streams", i, "flow"))
-                floor += resolution(text, "flow", site) * abs(inlet.h - outlet.h)
+                floor += _resolution(text, "flow", site) * abs(inlet.h - outlet.h)
                 yield floor
+
+
+_remembered_resolution = lru_cache(maxsize=4096, typed=True)(resolution)
+
+
+def _resolution(text: Any, kind: str, site: float | None) -> float:
+    """:func:`resolution`, of each written number once (a balance writes one flow on several
+    streams)."""
+    if text is None or isinstance(text, (str, int, float)):
+        return _remembered_resolution(text, kind, site)
+    return resolution(text, kind, site)
 
 
 def _size(law: _Law, margin: float) -> float:

@@ -65,14 +65,33 @@ DECLARED = "declared"
 """Tolerance rule of a finding checked with the balance's own written tolerances."""
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class Allowances:
-    """The property-method allowances of a step's law checks [W or J] and how each was found."""
+    """The property-method allowances of a step's law checks [W or J] and how each was found:
+    ``enthalpy`` the enthalpy flows from the dead state and ``stake`` the exergy at stake they
+    are PROPERTY_SPREAD of [W or J]. Their make-up in words (``energy_basis``, ``exergy_basis``)
+    is written only when a finding asks for it."""
 
     energy: float
     exergy: float
-    energy_basis: str
-    exergy_basis: str
+    enthalpy: float
+    stake: float
+    batch: bool = False
+
+    @property
+    def energy_basis(self) -> str:
+        return (
+            f"property-method allowance {_text(self.energy, self.batch)} ({PROPERTY_SPREAD:g} of "
+            f"the enthalpy flows from the dead state, {_text(self.enthalpy, self.batch)})"
+        )
+
+    @property
+    def exergy_basis(self) -> str:
+        return (
+            f"property-method allowance {_text(self.exergy, self.batch)} ({PROPERTY_SPREAD:g} of "
+            f"the exergy at stake |W| + |W_rev| + T0·Σ|ṁ(s − s0)| + Σ|Q|T0/T, "
+            f"{_text(self.stake, self.batch)})"
+        )
 
 
 def declared_rule(tol: Tolerances, batch: bool) -> bool:
@@ -118,15 +137,7 @@ def allowances(
         if math.isfinite(q.temperature) and q.temperature > 0
     )
     exergy = abs(W) + abs(W_rev) + T0 * entropy + heat
-    spread = f"{PROPERTY_SPREAD:g}"
-    return Allowances(
-        PROPERTY_SPREAD * enthalpy,
-        PROPERTY_SPREAD * exergy,
-        f"property-method allowance {_text(PROPERTY_SPREAD * enthalpy, batch)} ({spread} of the "
-        f"enthalpy flows from the dead state, {_text(enthalpy, batch)})",
-        f"property-method allowance {_text(PROPERTY_SPREAD * exergy, batch)} ({spread} of the "
-        f"exergy at stake |W| + |W_rev| + T0·Σ|ṁ(s − s0)| + Σ|Q|T0/T, {_text(exergy, batch)})",
-    )
+    return Allowances(PROPERTY_SPREAD * enthalpy, PROPERTY_SPREAD * exergy, enthalpy, exergy, batch)
 
 
 def duty_allowance(duty: float, batch: bool = False) -> tuple[float, str]:
@@ -185,6 +196,19 @@ def reference_shift(
     second; the work-bound margin plus the first minus T0 times the second. A group where humid
     air takes up or gives off water is read per conserved part (:func:`_parts_shift`)."""
     dH = dS = 0.0
+    if paired and len(inlets) == len(outlets):
+        pairs = tuple(zip(inlets, outlets, strict=True))
+        if all(i.fluid == o.fluid and i.fluid != HUMID_AIR for i, o in pairs):
+            # each inlet/outlet pair is a group (flow_groups): read as the loop below reads
+            # one-stream groups, in the same arithmetic
+            for i, o in pairs:
+                m_out = o.mass_flow
+                change = (0 + i.mass_flow) - (0 + m_out)
+                if change == 0.0 or m_out <= 0.0:
+                    continue
+                dH += change * (0 + m_out * o.h) / m_out
+                dS += change * (0 + m_out * o.s) / m_out
+            return dH, dS
     for ins, outs in flow_groups(inlets, outlets, paired):
         if not ins or not outs:
             continue  # a fluid that only enters or only leaves (it reacts): taken as measured

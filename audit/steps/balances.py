@@ -83,20 +83,27 @@ def flow_balance(
     residual = energy_residual(Q, W, dE)
     mass: dict[str, float] = {}
     for s in inlets:
-        if s.state.composition is not None and s.fluid == HUMID_AIR:
+        state = s.state
+        if state.composition is not None and state.fluid == HUMID_AIR:
             for name, m in s.conserved_parts():
                 mass[name] = mass.get(name, 0.0) + m
         else:
-            mass[s.fluid] = mass.get(s.fluid, 0.0) + s.mass_flow
+            mass[state.fluid] = mass.get(state.fluid, 0.0) + s.mass_flow
     for s in outlets:
-        if s.state.composition is not None and s.fluid == HUMID_AIR:
+        state = s.state
+        if state.composition is not None and state.fluid == HUMID_AIR:
             for name, m in s.conserved_parts():
                 mass[name] = mass.get(name, 0.0) - m
         else:
-            mass[s.fluid] = mass.get(s.fluid, 0.0) - s.mass_flow
-    S_gen = entropy_generation(dS, entropy_of_heat(heat_flows))
-    W_rev = reversible_work(dE, dS, T0, exergy_of_heat(heat_flows, T0))
-    heat_scale = sum(abs(q.Q) for q in heat_flows)
+            mass[state.fluid] = mass.get(state.fluid, 0.0) - s.mass_flow
+    if heat_flows:
+        S_gen = entropy_generation(dS, entropy_of_heat(heat_flows))
+        W_rev = reversible_work(dE, dS, T0, exergy_of_heat(heat_flows, T0))
+        heat_scale = sum(abs(q.Q) for q in heat_flows)
+    else:  # the same values, without summing nothing three times
+        S_gen = entropy_generation(dS, 0)
+        W_rev = reversible_work(dE, dS, T0, 0)
+        heat_scale = 0
     scale = max(abs(W), heat_scale, energy_turnover(inlets, outlets))
     return Balance(
         H_in=H_in,
@@ -124,14 +131,14 @@ def _flow_totals(streams: Sequence[StreamResult]) -> tuple[float, float, float, 
     """Σ ṁ h, Σ ṁ u, Σ ṁ s, Σ ṁ g, Σ ṁ a [W, W/K] and Σ ṁ (V²/2 + g z) [W] of ``streams``, in one
     pass (summed in the order given, as ``sum`` would)."""
     H = U = S = G = A = KE = 0.0
-    for s in streams:
-        m = s.mass_flow
+    for stream in streams:
+        m, s = stream.mass_flow, stream.state
         H += m * s.h
         U += m * s.u
         S += m * s.s
         G += m * s.g
         A += m * s.a
-        KE += m * s.kinetic_potential
+        KE += m * stream.kinetic_potential
     return H, U, S, G, A, KE
 
 

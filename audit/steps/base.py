@@ -130,20 +130,21 @@ def finish_flow_step(
     vent; :func:`audit.steps.allowances.flow_groups`).
     """
     tol = ctx.tolerances
-    T_iso = isothermal_temperature([s.T for s in (*inlets, *outlets)], heat_flows, tol.isothermal_band)
+    streams = (*inlets, *outlets)
+    T_iso = isothermal_temperature([s.T for s in streams], heat_flows, tol.isothermal_band)
     if T_iso is not None:
         exchange_at(heat_flows, T_iso)
     balance = flow_balance(inlets, outlets, heat_flows, W, ctx.T0)
     balance.energy_scale = max(balance.energy_scale, energy_scale_floor)
     basis, classical = govern_flow(balance, T_iso)
-    conservative = any(q.conservative for q in heat_flows)
+    conservative = any(q.conservative for q in heat_flows) if heat_flows else False
     inlet_mass = sum(s.mass_flow for s in inlets)
     if not ctx.residuals_only:  # else only the balance is read: its law findings are not wanted
         allowance = (
             None
             if declared_rule(tol, batch=False)
             else allowances(
-                [(s, s.mass_flow) for s in (*inlets, *outlets)],
+                [(s, s.mass_flow) for s in streams],
                 heat_flows,
                 W,
                 balance.W_rev,

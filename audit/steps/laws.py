@@ -86,7 +86,7 @@ def law_findings(
         )
     else:
         tol_E, tol_W, rule = allowance.energy, allowance.exergy, ROUNDING
-        basis_E, basis_W = allowance.energy_basis, allowance.exergy_basis
+        basis_E = basis_W = ""  # worded below, only for a finding (most steps have none)
     dH_shift, dS_shift = shift
     note = f" {conservative_note}" if conservative_note else ""
 
@@ -151,7 +151,7 @@ def law_findings(
                 quantity=energy_q,
                 tolerance=tol_E,
                 tolerance_rule=rule,
-                tolerance_basis=basis_E,
+                tolerance_basis=allowance.energy_basis if allowance is not None else basis_E,
             )
         )
 
@@ -184,7 +184,7 @@ def law_findings(
                 quantity=energy_q,
                 tolerance=tol_W,
                 tolerance_rule=rule,
-                tolerance_basis=basis_W,
+                tolerance_basis=allowance.exergy_basis if allowance is not None else basis_W,
             )
         )
 
@@ -207,7 +207,7 @@ def law_findings(
                 quantity=entropy_q,
                 tolerance=tol_S,
                 tolerance_rule=rule,
-                tolerance_basis=basis_W,
+                tolerance_basis=allowance.exergy_basis if allowance is not None else basis_W,
             )
         )
     return findings
