@@ -44,8 +44,8 @@ def model_for(kinds: Iterable[object]) -> type[Balance]:
     message about an unknown kind lists every registered kind (``step_kinds``).
     """
     names = frozenset(k for k in kinds if isinstance(k, str) and k in REGISTRY)
-    if len(names) < 2:
-        names |= frozenset(list(REGISTRY)[: 2 - len(names)])
+    if len(names) < 2:  # a union of two at least
+        names |= frozenset([k for k in REGISTRY if k not in names][: 2 - len(names)])
     model = _models.get(names)
     if model is None:
         if len(_models) >= MODELS_KEPT:
