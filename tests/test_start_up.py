@@ -165,3 +165,40 @@ def test_states_without_expansions_give_the_fully_loaded_library_numbers():
     # for constants and updated, at (ρ, T) or (T, P), only 1 K or more above its critical
     # temperature: every value must be that of CoolProp loaded whole, bit for bit.
     assert _density_temperature_values("audit") == _density_temperature_values("whole")
+
+
+_CRITICAL = """
+import json, sys
+from audit.formation import SPECIES
+if sys.argv[1] == "audit":
+    from audit.properties.library import new_state
+else:
+    import CoolProp.CoolProp as CP
+
+    def new_state(backend, name, saturation=True):
+        return CP.AbstractState(backend, name)
+
+print(json.dumps({d.fluid: new_state("HEOS", d.fluid, saturation=False).T_critical()
+                  for d in SPECIES.values()}))
+"""
+
+
+def _critical_temperatures(how: str) -> dict[str, float]:
+    done = subprocess.run(
+        [sys.executable, "-c", _CRITICAL, how],
+        capture_output=True,
+        text=True,
+        env={**os.environ, "PYTHONPATH": os.pathsep.join(sys.path)},
+        check=True,
+    )
+    return json.loads(done.stdout.strip().splitlines()[-1])
+
+
+def test_the_expansions_move_no_species_critical_point_near_the_margin():
+    # mixtures._far_above_critical reads T_c without the expansions, which move it (oxygen by
+    # 0.018 K): the margin of 1 K must stay far above that for every species with formation data.
+    from audit.properties.mixtures import ABOVE_CRITICAL
+
+    without, whole = _critical_temperatures("audit"), _critical_temperatures("whole")
+    assert without.keys() == whole.keys()
+    assert max(abs(without[f] - whole[f]) for f in whole) < ABOVE_CRITICAL / 20
