@@ -15,6 +15,8 @@ XlsxWriter's output shows there). What it uses of XlsxWriter's insides, all of t
   height), ``row_info`` (the heights :meth:`set_row` stored), ``col_info`` (a column's format, the
   format of a cell that has none), ``merge`` (merged ranges), ``ignore_write_string`` (a link
   stored without its text cell, which :class:`Rows` writes), ``default_url_format``;
+  ``hyperlinks``, ``hlink_count`` and ``max_url_length`` (an internal link stored as the
+  attributes ``_write_hyperlinks`` reads, :class:`InternalLink`, with ``url.UrlTypes``);
 * of a format, ``_get_xf_index`` (its number in the file's style table, given on first use).
 
 What kind of cell a value makes (:func:`cell_kind`) is here too: text always as text, with the
