@@ -235,13 +235,7 @@ class Sheet:
                 self.wrapped.append((row, col, value))
             return
         if look == NUMBER and fmt and fmt != GENERAL:
-            extremes = self.extremes.get((col, fmt))
-            if extremes is None:
-                self.extremes[(col, fmt)] = [value, value]
-            elif value < extremes[0]:
-                extremes[0] = value
-            elif value > extremes[1]:
-                extremes[1] = value
+            self._extend_extremes(col, fmt, value)
             return
         length = shown_length(value, fmt) if look == WHOLE or look == NUMBER else len(value)
         if length > self.widths.get(col, 0):
@@ -274,17 +268,21 @@ class Sheet:
                 # the shown length grows with the magnitude on either side of zero: the smallest
                 # and the largest value of a column and format give its widest text (see fit)
                 if math.isfinite(value):
-                    extremes = self.extremes.get((col, fmt))
-                    if extremes is None:
-                        self.extremes[(col, fmt)] = [value, value]
-                    elif value < extremes[0]:
-                        extremes[0] = value
-                    elif value > extremes[1]:
-                        extremes[1] = value
+                    self._extend_extremes(col, fmt, value)
                 return
             length = len(value) if isinstance(value, str) else shown_length(value, fmt)
             if length > self.widths.get(col, 0):
                 self.widths[col] = length
+
+    def _extend_extremes(self, col: int, fmt: str, value: float) -> None:
+        """Keep the smallest and the largest finite ``value`` of a column and number format."""
+        extremes = self.extremes.get((col, fmt))
+        if extremes is None:
+            self.extremes[(col, fmt)] = [value, value]
+        elif value < extremes[0]:
+            extremes[0] = value
+        elif value > extremes[1]:
+            extremes[1] = value
 
     def fix(self, col: int, width: float) -> None:
         """Give column ``col`` this width (its text wraps)."""
