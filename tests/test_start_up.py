@@ -76,6 +76,19 @@ def test_superancillary_switch_keeps_the_notice_out_of_the_output(tmp_path):
     assert done.stdout.strip().endswith("PASS")
 
 
+def _probe(script: str, how: str):  # noqa: ANN202 - the JSON the script prints
+    """Run ``script`` in a fresh interpreter with the property layer (``how="audit"``) or CoolProp
+    loaded whole (``"whole"``) and return what it prints as JSON."""
+    done = subprocess.run(
+        [sys.executable, "-c", script, how],
+        capture_output=True,
+        text=True,
+        env={**os.environ, "PYTHONPATH": os.pathsep.join(sys.path)},
+        check=True,
+    )
+    return json.loads(done.stdout.strip().splitlines()[-1])
+
+
 _SATURATION = """
 import json, sys
 if sys.argv[1] == "audit":
@@ -100,22 +113,11 @@ print(json.dumps(values))
 """
 
 
-def _saturation_values(how: str) -> list[float]:
-    done = subprocess.run(
-        [sys.executable, "-c", _SATURATION, how],
-        capture_output=True,
-        text=True,
-        env={**os.environ, "PYTHONPATH": os.pathsep.join(sys.path)},
-        check=True,
-    )
-    return json.loads(done.stdout.strip().splitlines()[-1])
-
-
 def test_expansions_per_fluid_give_the_fully_loaded_library_numbers():
     # CoolProp itself, loaded whole (every fluid's saturation expansions built at load), is the
     # reference: the property layer, which builds them for the fluids it opens only, must give
     # the same saturation and single-phase states bit for bit.
-    assert _saturation_values("audit") == _saturation_values("whole")
+    assert _probe(_SATURATION, "audit") == _probe(_SATURATION, "whole")
 
 
 _DENSITY_TEMPERATURE = """
@@ -149,22 +151,11 @@ print(json.dumps(values))
 """
 
 
-def _density_temperature_values(how: str) -> list[float]:
-    done = subprocess.run(
-        [sys.executable, "-c", _DENSITY_TEMPERATURE, how],
-        capture_output=True,
-        text=True,
-        env={**os.environ, "PYTHONPATH": os.pathsep.join(sys.path)},
-        check=True,
-    )
-    return json.loads(done.stdout.strip().splitlines()[-1])
-
-
 def test_states_without_expansions_give_the_fully_loaded_library_numbers():
     # A state object made without a fluid's saturation expansions (a gas-mixture species) is asked
     # for constants and updated, at (ρ, T) or (T, P), only 1 K or more above its critical
     # temperature: every value must be that of CoolProp loaded whole, bit for bit.
-    assert _density_temperature_values("audit") == _density_temperature_values("whole")
+    assert _probe(_DENSITY_TEMPERATURE, "audit") == _probe(_DENSITY_TEMPERATURE, "whole")
 
 
 _CRITICAL = """
@@ -183,22 +174,11 @@ print(json.dumps({d.fluid: new_state("HEOS", d.fluid, saturation=False).T_critic
 """
 
 
-def _critical_temperatures(how: str) -> dict[str, float]:
-    done = subprocess.run(
-        [sys.executable, "-c", _CRITICAL, how],
-        capture_output=True,
-        text=True,
-        env={**os.environ, "PYTHONPATH": os.pathsep.join(sys.path)},
-        check=True,
-    )
-    return json.loads(done.stdout.strip().splitlines()[-1])
-
-
 def test_the_expansions_move_no_species_critical_point_near_the_margin():
     # mixtures._far_above_critical reads T_c without the expansions, which move it (oxygen by
     # 0.018 K): the margin of 1 K must stay far above that for every species with formation data.
     from audit.properties.mixtures import ABOVE_CRITICAL
 
-    without, whole = _critical_temperatures("audit"), _critical_temperatures("whole")
+    without, whole = _probe(_CRITICAL, "audit"), _probe(_CRITICAL, "whole")
     assert without.keys() == whole.keys()
     assert max(abs(without[f] - whole[f]) for f in whole) < ABOVE_CRITICAL / 20
