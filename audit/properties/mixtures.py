@@ -177,7 +177,7 @@ class IdealGasMixtures:
         p_sat = self.saturation_pressure(fluid, T)
         if p_sat is not None and P >= p_sat:
             return 0.0, 1.0
-        state = self._gas_state(fluid) if self._far_above_critical(fluid, T) else self._state(fluid)
+        state = self._state_at(fluid, T)
         if T > state.Tmax() or P > state.pmax():
             return 0.0, 1.0
         try:
@@ -305,6 +305,11 @@ class IdealGasMixtures:
             self._gas_states[fluid] = state
         return state
 
+    def _state_at(self, fluid: str, T: float) -> CP.AbstractState:
+        """The state object for an update of ``fluid`` at T [K]: without the saturation expansions
+        far above the critical temperature (:meth:`_gas_state`), with them below."""
+        return self._gas_state(fluid) if self._far_above_critical(fluid, T) else self._state(fluid)
+
     def _far_above_critical(self, fluid: str, T: float) -> bool:
         """Whether T [K] lies :data:`ABOVE_CRITICAL` or more above the critical temperature of
         ``fluid``, read from the equation of state itself: the saturation expansions move the
@@ -330,7 +335,7 @@ class IdealGasMixtures:
 
     def _coolprop_ideal(self, fluid: str, T: float) -> tuple[float, float]:
         """CoolProp's ideal-gas h [J/mol] and s at P° [J/(mol K)] of ``fluid`` at T [K]."""
-        state = self._gas_state(fluid) if self._far_above_critical(fluid, T) else self._state(fluid)
+        state = self._state_at(fluid, T)
         try:
             state.update(CP.DmolarT_INPUTS, _RHO_LOW, T)
             self.flash_count += 1
